@@ -1,0 +1,21 @@
+// Bundles the three entry points with esbuild: the CLI, the language server and the
+// VS Code client. Everything is CommonJS for Node 20; `vscode` stays external because
+// the editor provides it at run time.
+import { build } from 'esbuild';
+import { chmodSync } from 'node:fs';
+
+const common = {
+  bundle: true,
+  platform: 'node',
+  target: 'node20',
+  format: 'cjs',
+  sourcemap: true,
+  logLevel: 'warning',
+};
+
+await Promise.all([
+  build({ ...common, entryPoints: ['server/src/cli/main.ts'], outfile: 'dist/cli.js', banner: { js: '#!/usr/bin/env node' } }),
+  build({ ...common, entryPoints: ['server/src/lsp/main.ts'], outfile: 'dist/server.js' }),
+  build({ ...common, entryPoints: ['client/src/extension.ts'], outfile: 'dist/client.js', external: ['vscode'] }),
+]);
+chmodSync('dist/cli.js', 0o755);
