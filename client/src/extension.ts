@@ -1,0 +1,1 @@
+// placeholder entry until the extension client lands; see issue 5.

@@ -1,0 +1,45 @@
+// Command dispatch and the usage text. Each command lives in its own module under commands/.
+import type { Io } from './io';
+import { checkCommand } from './commands/check';
+import { explainCommand } from './commands/explain';
+
+export interface Command {
+  name: string;
+  summary: string;
+  usage: string;
+  run(args: string[], io: Io): Promise<number>;
+}
+
+const commands: Command[] = [checkCommand, explainCommand];
+
+export function usage(): string {
+  const lines = ['Phasewright: control tables for microcoded RV32I processors built from discrete logic.', '', 'Usage:'];
+  for (const c of commands) lines.push(`  phasewright ${c.usage.padEnd(58)} ${c.summary}`);
+  lines.push('', 'Exit codes: 0 success, 1 problems found in the table, 2 usage or file errors.');
+  return lines.join('\n') + '\n';
+}
+
+export async function runCommand(argv: string[], io: Io): Promise<number> {
+  const [name, ...rest] = argv;
+  if (!name || name === '--help' || name === '-h' || name === 'help') {
+    io.out(usage());
+    return name ? 0 : 2;
+  }
+  if (name === '--version' || name === '-v') {
+    io.out(`phasewright ${VERSION}\n`);
+    return 0;
+  }
+  const command = commands.find((c) => c.name === name);
+  if (!command) {
+    io.err(`phasewright: unknown command '${name}'\n\n${usage()}`);
+    return 2;
+  }
+  return command.run(rest, io);
+}
+
+export function registerCommand(command: Command): void {
+  commands.push(command);
+}
+
+declare const __PHASEWRIGHT_VERSION__: string | undefined;
+export const VERSION = typeof __PHASEWRIGHT_VERSION__ === 'string' ? __PHASEWRIGHT_VERSION__ : '0.1.0';

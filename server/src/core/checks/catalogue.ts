@@ -1,0 +1,228 @@
+// The catalogue of diagnostic codes: the stable code users put in settings, its default
+// severity, a one-line title, and the long explanation `phasewright explain CODE` prints.
+// docs/diagnostics.md shows every code with an example and its fix; a test keeps the two in step.
+import type { Severity } from '../text/diagnostic';
+
+export interface CodeInfo {
+  code: string;
+  severity: Severity;
+  title: string;
+  /** What goes wrong in the hardware and what to do, in plain words. */
+  explanation: string;
+}
+
+const HEAT_CAUTION =
+  'Caution: outputs that fight each other on a bus pass large currents through both drivers; parts can overheat and be damaged within seconds. Fix the table before powering the board, and check the drivers\' data sheets for their short-circuit ratings.';
+
+export const catalogue: CodeInfo[] = [
+  {
+    code: 'syntax-error',
+    severity: 'error',
+    title: 'the line does not follow the notation',
+    explanation: 'The parser could not read this line. The message says what it expected at that place. The rest of the file is still read, from the next line or declaration on, so one typo does not hide other problems. See docs/notation.md for the grammar.',
+  },
+  {
+    code: 'undefined-name',
+    severity: 'error',
+    title: 'a name is used but never declared',
+    explanation: 'A step, layout, map or declaration refers to a bus, part, strobe, field, value, map, phase or flag that no declaration introduces. Usually a typo: the message suggests the closest declared name, and the quick fix replaces it. Otherwise, declare the name.',
+  },
+  {
+    code: 'duplicate-name',
+    severity: 'error',
+    title: 'a name is declared twice',
+    explanation: 'Two declarations of the same kind of thing share a name (buses and parts share one set of names; strobes and fields another). Only the first is used. Rename or remove one. A store also has only one word layout and one address layout.',
+  },
+  {
+    code: 'unused-name',
+    severity: 'warning',
+    title: 'a declaration is never used',
+    explanation: 'A strobe or field that no step asserts, a bus no strobe touches, a part nothing is wired to, a map or phase nobody uses, or a flag no guard or address tests. Harmless in itself, but often a sign of a forgotten step or a misspelt name. The quick fix removes an unused strobe and its placement in the word.',
+  },
+  {
+    code: 'unknown-kind',
+    severity: 'error',
+    title: 'an unknown part kind, strobe kind, setting or chip',
+    explanation: 'The word after a part or strobe name must be one of the built-in kinds, whose behaviour the simulator knows; settings written `name=value` must be ones the declaration accepts; a chip must be a known part number or DEPTHxWIDTH. The message lists what is accepted.',
+  },
+  {
+    code: 'wrong-wiring',
+    severity: 'error',
+    title: 'a strobe, field or part is wired to something that cannot do it',
+    explanation: 'For example: an enable from a part with no output (a comparator), a clock into an ALU, a register-file port used the wrong way round (rd is an input; rs1 and rs2 are outputs), a field controlling a register, a value name an ALU does not know, or a map feeding a different field. The message says what the part can do.',
+  },
+  {
+    code: 'bad-number',
+    severity: 'error',
+    title: 'a number or bit pattern is malformed or out of range',
+    explanation: 'Widths, bit numbers, codes and opcodes must be whole numbers in range; bit patterns in guards and maps must have exactly as many 0, 1 or - characters as the input has bits.',
+  },
+  {
+    code: 'width-mismatch',
+    severity: 'warning',
+    title: 'a part and its bus differ in width',
+    explanation: 'A part drives or loads a bus of a different width. The extra bus lines float or the part\'s extra bits are lost. Usually a typo in a width.',
+  },
+  {
+    code: 'bus-contention',
+    severity: 'error',
+    title: 'two outputs drive one bus in the same step',
+    explanation: 'Two or more enables (or a memory read) put values on the same bus in one step, for at least one combination of the guard inputs. The drivers fight: the bus carries neither value, and both drivers pass a large current. ' + HEAT_CAUTION + ' Remove all but one of the enables, or move one to another step.',
+  },
+  {
+    code: 'field-conflict',
+    severity: 'error',
+    title: 'a field is given two values in one step',
+    explanation: 'A field (a group of control bits, such as the ALU function) holds one code at a time; a step that sets it twice cannot be encoded. Keep one value.',
+  },
+  {
+    code: 'repeated-strobe',
+    severity: 'warning',
+    title: 'a strobe is listed twice in one step',
+    explanation: 'Asserting a strobe twice in one step is the same as once; the second mention is probably meant to be a different strobe.',
+  },
+  {
+    code: 'clock-conflict',
+    severity: 'error',
+    title: 'a part is loaded twice in one step',
+    explanation: 'A register loaded from two buses in the same step, or a counter both loaded and counted, cannot do both at one clock edge: which wins depends on the chip. Keep one load per part per step.',
+  },
+  {
+    code: 'x0-write',
+    severity: 'error',
+    title: 'an explicit write to register x0',
+    explanation: 'RV32I defines x0 as always zero. A strobe that clocks the register file\'s x[0] writes it: on a hard-wired x0 nothing happens, on a stored x0 every later read of x0 returns the written value and every instruction that relies on zero goes wrong. Remove the write.',
+  },
+  {
+    code: 'rd-without-field',
+    severity: 'error',
+    title: 'a register write in a format that has no rd',
+    explanation: 'In the S (stores) and B (branches) formats, instruction bits 11..7 hold immediate bits, not rd. A register-file write through the rd port in such a class writes whichever register the offset happens to name, corrupting it. Remove the write from this class.',
+  },
+  {
+    code: 'x0-stored-write',
+    severity: 'error',
+    title: 'x0 is a stored register and nothing stops writes to it',
+    explanation: 'The register file keeps x0 in a real register (x0=stored), and classes write rd without suppression. RV32I instructions with rd = x0 are common (the canonical NOP is `addi x0, x0, 0`; `jal x0, label` is a plain jump): each would store into x0. Declare `x0=hardwired` (x0 reads as zero, writes ignored) or `x0=guarded` (a zero detector on rd blocks the clock).',
+  },
+  {
+    code: 'undriven-latch',
+    severity: 'error',
+    title: 'a part latches a bus that nothing drives',
+    explanation: 'A clock or memory write takes a bus no enable drives in that step (or the ALU output when the ALU\'s operand bus is undriven). Without bus keepers the lines float: the part stores whatever noise is on them, and floating CMOS inputs can draw extra supply current. Enable a driver in the same step, or move the load.',
+  },
+  {
+    code: 'stale-latch',
+    severity: 'warning',
+    title: 'a part latches a bus that only its keepers hold',
+    explanation: 'Nothing drives the bus in this step, but it has keepers (bus-hold), so the part stores the last value driven in an earlier step. This works only if that earlier value is the one meant; it usually is not. Drive the bus explicitly.',
+  },
+  {
+    code: 'instruction-uncovered',
+    severity: 'error',
+    title: 'an RV32I instruction is not decoded',
+    explanation: 'An RV32I instruction reaches no class (no class has its opcode), or a decode map used by its class has no row for its funct3/funct7 bits. Its control-store addresses hold the fill word: the processor does nothing for it, silently. Add the class or the map row.',
+  },
+  {
+    code: 'class-no-end',
+    severity: 'error',
+    title: 'a class never ends the instruction',
+    explanation: 'No path through the class\'s steps asserts an end-of-instruction strobe before the step counter runs out. The counter wraps around and the processor never fetches the next instruction. Assert the end strobe in the last step (the quick fix adds it).',
+  },
+  {
+    code: 'step-overflow',
+    severity: 'error',
+    title: 'a step number does not fit the step counter',
+    explanation: 'The step counter has as many bits as the `step` lines in the address layout; this step number needs more. The ROM can never reach it. Widen the step counter (and the address) or use fewer steps.',
+  },
+  {
+    code: 'step-gap',
+    severity: 'warning',
+    title: 'a class skips a step number',
+    explanation: 'Between step 0 and the class\'s last step a number is missing. At that step the ROM holds the fill word: one clock cycle passes with every strobe idle. Renumber the steps or fill the gap.',
+  },
+  {
+    code: 'guard-gap',
+    severity: 'error',
+    title: 'no alternative of a step applies to some inputs',
+    explanation: 'The guarded alternatives of a step do not cover every value of the inputs they test, and an RV32I instruction (or a flag value) falls into the gap. There the ROM holds the fill word and the instruction does nothing at that step. Add the missing alternative, or an `else` line. Gaps that only illegal encodings reach are allowed: those fall to the fill word by design.',
+  },
+  {
+    code: 'guard-overlap',
+    severity: 'error',
+    title: 'two alternatives of a step apply to the same inputs',
+    explanation: 'Two lines of the same step (including one from a used phase) both match some combination of address inputs, so the control word there is undefined. Make the guards disjoint, or merge the lines.',
+  },
+  {
+    code: 'class-opcode',
+    severity: 'error',
+    title: 'a class has no usable opcode',
+    explanation: 'Each class handles one RV32I major opcode, given as seven bits (`opcode=0110011`). The opcode is missing, not an RV32I major opcode, or already taken by another class.',
+  },
+  {
+    code: 'bit-overlap',
+    severity: 'error',
+    title: 'two signals share a bit, or two inputs share an address line',
+    explanation: 'Each bit of the control word carries one strobe or field bit, and each address line one input. Overlapping placements make both wrong. Move one. A signal is also placed in one store only.',
+  },
+  {
+    code: 'bit-range',
+    severity: 'error',
+    title: 'a bit or address line beyond the declared width',
+    explanation: 'A placement uses a bit at or above the word width, or an address source a line at or above the address width. Widen the word or address, or move the placement.',
+  },
+  {
+    code: 'unplaced-signal',
+    severity: 'error',
+    title: 'a strobe used in steps has no bit in any control word',
+    explanation: 'The strobe or field is asserted by steps but no word layout gives it a bit, so no ROM produces it. Place it in a store\'s word layout.',
+  },
+  {
+    code: 'placement-width',
+    severity: 'error',
+    title: 'a placement or address source has the wrong number of bits',
+    explanation: 'A one-bit strobe needs one bit; a field needs exactly its width; an instruction field in the address needs as many lines as it has bits (opcode 5, funct3 3, f7b5 1).',
+  },
+  {
+    code: 'value-too-wide',
+    severity: 'error',
+    title: 'a field code does not fit its bits',
+    explanation: 'A named value\'s code needs more bits than the field has. The ROM would store a truncated code, selecting a different function. Widen the field or pick a smaller code.',
+  },
+  {
+    code: 'chip-capacity',
+    severity: 'error',
+    title: 'the word or address does not fit the declared chips',
+    explanation: 'The chips hold fewer data bits than the word, or fewer words than the address lines can select, or a chip\'s width differs from its byte lane. Choose bigger chips or narrow the layout.',
+  },
+  {
+    code: 'not-addressable',
+    severity: 'error',
+    title: 'the control store cannot see an input the table depends on',
+    explanation: 'A guard, decode map or class depends on an input (flag, instruction bits, the opcode, the step counter) that no store\'s address lines carry, so the ROM cannot react to it. Add it to an address layout.',
+  },
+  {
+    code: 'store-ambiguous',
+    severity: 'error',
+    title: 'a store cannot hold its signals for some addresses',
+    explanation: 'A store\'s address lines do not carry everything its signals depend on: two situations that the table treats differently land on the same address of that store. For example a decoder store without step lines holding a field that changes from step to step. Add the missing inputs to that store\'s address, or move the signal to a store that has them.',
+  },
+  {
+    code: 'map-overlap',
+    severity: 'error',
+    title: 'two rows of a decode map match the same inputs with different values',
+    explanation: 'Decode-map rows must be disjoint where their values differ, or the field\'s code is undefined for those inputs. Narrow the patterns.',
+  },
+];
+
+const byCode = new Map(catalogue.map((c) => [c.code, c]));
+
+export function codeInfo(code: string): CodeInfo | undefined {
+  return byCode.get(code);
+}
+
+export function defaultSeverity(code: string): Severity {
+  return byCode.get(code)?.severity ?? 'error';
+}
+
+export const busContentionCaution = 'Caution: fighting outputs can overheat and damage parts; fix this before powering the board.';

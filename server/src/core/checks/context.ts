@@ -1,0 +1,75 @@
+// What every check receives, and helpers for walking the steps of a machine. A phase's steps
+// are checked once where the phase is written; a class's own steps where the class writes
+// them. Checks that depend on the class (its format, its opcode) walk classes with phases
+// expanded and point at the `use` line as a related location.
+import type { Diagnostic, Fix, RelatedInfo } from '../text/diagnostic';
+import type { Span } from '../text/span';
+import type { Action, ClassDef, Machine, StepAlt, Strobe } from '../model/types';
+import { defaultSeverity } from './catalogue';
+
+export class CheckContext {
+  readonly diagnostics: Diagnostic[] = [];
+
+  constructor(
+    readonly machine: Machine,
+    /** The source text, for fixes that must look at what surrounds a span. */
+    readonly text: string,
+  ) {}
+
+  report(code: string, at: Span, message: string, related?: RelatedInfo[], fixes?: Fix[]): void {
+    this.diagnostics.push({ code, severity: defaultSeverity(code), span: at, message, related, fixes });
+  }
+}
+
+export interface Check {
+  /** The codes this check can produce. */
+  codes: string[];
+  run(ctx: CheckContext): void;
+}
+
+export interface OwnedAlt {
+  alt: StepAlt;
+  /** `phase fetch` or `class OP`, for messages. */
+  owner: string;
+}
+
+/** Every step alternative once, where it is written. */
+export function* writtenAlternatives(machine: Machine): Generator<OwnedAlt> {
+  for (const phase of machine.phases.values()) for (const alt of phase.steps) yield { alt, owner: `phase ${phase.name}` };
+  for (const cls of machine.classes) {
+    for (const alts of cls.steps.values()) for (const alt of alts) if (!alt.phase) yield { alt, owner: `class ${cls.name}` };
+  }
+}
+
+/** Every step alternative of every class, phases expanded. */
+export function* classAlternatives(machine: Machine): Generator<{ cls: ClassDef; alt: StepAlt }> {
+  for (const cls of machine.classes) for (const alts of cls.steps.values()) for (const alt of alts) yield { cls, alt };
+}
+
+export function strobeOf(machine: Machine, action: Action): Strobe | undefined {
+  const signal = machine.signals.get(action.signal);
+  return signal?.type === 'strobe' ? signal : undefined;
+}
+
+/** The actions of an alternative that put a value on each bus (enables and memory reads). */
+export function driversByBus(machine: Machine, alt: StepAlt): Map<string, Action[]> {
+  const result = new Map<string, Action[]>();
+  for (const action of alt.actions) {
+    const strobe = strobeOf(machine, action);
+    if (!strobe || !strobe.bus || (strobe.kind !== 'enable' && strobe.kind !== 'read')) continue;
+    const list = result.get(strobe.bus);
+    if (list) list.push(action);
+    else result.set(strobe.bus, [action]);
+  }
+  return result;
+}
+
+/** "step 2 of class OP" or "step 0 of phase fetch (used by class OP)". */
+export function describeStep(alt: StepAlt, owner: string): string {
+  return `step ${alt.step} of ${owner}`;
+}
+
+/** Related location pointing at the `use` line that brought a phase step into a class. */
+export function useSite(alt: StepAlt, cls: ClassDef): RelatedInfo[] {
+  return alt.phase ? [{ span: alt.phase.useSpan, message: `phase ${alt.phase.name} is used here by class ${cls.name}` }] : [];
+}

@@ -1,0 +1,99 @@
+// instruction-uncovered: each of the 40 RV32I instructions must reach a class (by opcode) and,
+// in every step it can reach, find a row in each decode map that step uses. Otherwise its
+// control-store addresses hold the fill word and the processor silently does nothing for it.
+import { MAJOR_OPCODES, RV32I_INSTRUCTIONS } from '../isa/rv32i';
+import { matchesBits, toBinary } from '../model/numbers';
+import type { DecodeMap } from '../model/types';
+import { type Check } from './context';
+import { type Cube, type Scenario, bitsOf, cubeOfBits, instructionCube, intersect, scenarios } from './inputSpace';
+
+export const instructionCoverage: Check = {
+  codes: ['instruction-uncovered'],
+  run(ctx) {
+    const machine = ctx.machine;
+    if (machine.classes.length === 0 && machine.signals.size === 0) return;
+    const anchor = machine.classes[0]?.symbol.span ?? machine.symbols[0]?.span ?? { start: 0, end: 0 };
+    // Only a machine that declares `isa rv32i` promises every instruction; a partial table
+    // (a sketch, a fault example, a sub-store) is checked for the classes it has.
+    for (const major of machine.isa === 'rv32i' ? MAJOR_OPCODES : []) {
+      if (machine.classes.some((c) => c.opcode === major.opcode)) continue;
+      const names = RV32I_INSTRUCTIONS.filter((s) => s.opcode === major.opcode).map((s) => s.mnemonic);
+      ctx.report(
+        'instruction-uncovered',
+        anchor,
+        `no class handles opcode ${toBinary(major.opcode, 7)} (${major.name}): ${names.join(', ')} would run the fill word and do nothing; add \`class ${major.name} opcode=${toBinary(major.opcode, 7)}\``,
+      );
+    }
+    const reported = new Set<string>();
+    for (const cls of machine.classes) {
+      for (const spec of RV32I_INSTRUCTIONS) {
+        if (spec.opcode !== cls.opcode) continue;
+        const cube = instructionCube(spec);
+        for (const alts of cls.steps.values()) {
+          for (const alt of alts) {
+            const guardCube = (alt.guard ?? []).reduce<Cube | undefined>(
+              (acc, lit) => (acc && lit.input.kind === 'ir' ? intersect(acc, cubeOfBits(lit.input.hi, lit.input.lo, lit.bits)) : acc),
+              cube,
+            );
+            if (!guardCube) continue;
+            for (const action of alt.actions) {
+              if (action.value?.kind !== 'map') continue;
+              const map = machine.maps.get(action.value.map);
+              if (!map) continue;
+              const missing = firstUncovered(map, guardCube);
+              if (!missing) continue;
+              const key = `${action.span.start}:${spec.mnemonic}`;
+              if (reported.has(key)) continue;
+              reported.add(key);
+              ctx.report(
+                'instruction-uncovered',
+                action.span,
+                `decode map \`${map.name}\` has no row for ${spec.mnemonic} (${missing}), used in step ${alt.step} of class ${cls.name}: its addresses would hold the fill word; add a row for it`,
+                [{ span: map.symbol.span, message: `map \`${map.name}\`` }],
+              );
+            }
+          }
+        }
+      }
+    }
+  },
+};
+
+/** Describes the first input combination of an instruction that no row of the map matches. */
+function firstUncovered(map: DecodeMap, cube: Cube): string | undefined {
+  let freeMask = 0;
+  const flags: string[] = [];
+  for (const input of map.inputs) {
+    if (input.input.kind === 'flag') flags.push(input.input.name);
+    else if (input.input.kind === 'ir') freeMask |= cubeOfBits(input.input.hi, input.input.lo, '0'.repeat(input.width)).mask;
+  }
+  const free = bitsOf((freeMask & ~cube.mask) >>> 0);
+  for (const scenario of scenarios(cube, free, flags)) {
+    if (map.rows.some((row) => rowMatches(map, row.patterns, scenario))) continue;
+    return map.inputs.map((input, i) => `${input.label}=${inputValue(map, i, scenario)}`).join(', ');
+  }
+  return undefined;
+}
+
+function inputValue(map: DecodeMap, index: number, scenario: Scenario): string {
+  const input = map.inputs[index].input;
+  if (input.kind === 'flag') return String(scenario.flags.get(input.name) ?? '-');
+  if (input.kind !== 'ir') return '-';
+  let bits = '';
+  for (let b = input.hi; b >= input.lo; b--) bits += (scenario.ir.mask >>> b) & 1 ? (scenario.ir.value >>> b) & 1 : '-';
+  return bits;
+}
+
+export function rowMatches(map: DecodeMap, patterns: string[], scenario: Scenario): boolean {
+  return map.inputs.every((input, i) => {
+    const pattern = patterns[i];
+    if (input.input.kind === 'flag') {
+      const v = scenario.flags.get(input.input.name);
+      return pattern === '-' || v === undefined || String(v) === pattern;
+    }
+    if (input.input.kind !== 'ir') return true;
+    const width = input.input.hi - input.input.lo + 1;
+    const value = (scenario.ir.value >>> input.input.lo) & ((1 << width) - 1);
+    return matchesBits(pattern, value);
+  });
+}

@@ -1,0 +1,62 @@
+// unused-name: declarations nothing uses: strobes and fields no step asserts, buses no strobe
+// or part touches, parts nothing is wired to, maps and phases never used, flags never tested.
+// Often a forgotten step or a misspelling. The fix removes an unused strobe with its placement.
+import { type Check } from './context';
+import { removeLinesEdit } from './fixes';
+
+export const unusedName: Check = {
+  codes: ['unused-name'],
+  run(ctx) {
+    const machine = ctx.machine;
+    const used = new Set<string>();
+    for (const ref of machine.references) used.add(ref.symbol.kind + ':' + ref.symbol.key);
+    const usedSignals = new Set<string>();
+    for (const cls of machine.classes) for (const alts of cls.steps.values()) for (const alt of alts) for (const a of alt.actions) usedSignals.add(a.signal);
+    for (const phase of machine.phases.values()) for (const alt of phase.steps) for (const a of alt.actions) usedSignals.add(a.signal);
+    for (const map of machine.maps.values()) if (map.output && usedSignals.has(map.output)) usedSignals.add(map.output);
+    const usedBuses = new Set<string>();
+    const usedParts = new Set<string>();
+    for (const signal of machine.signals.values()) {
+      if (signal.type === 'strobe') {
+        if (signal.bus) usedBuses.add(signal.bus);
+        if (signal.part) usedParts.add(signal.part);
+      } else if (signal.target) usedParts.add(signal.target);
+    }
+    for (const part of machine.parts.values()) {
+      if (part.kind === 'alu' || part.kind === 'compare') {
+        usedBuses.add(part.a);
+        usedBuses.add(part.b);
+      }
+      if (part.kind === 'memory') (part.addressFrom === 'bus' ? usedBuses : usedParts).add(part.address);
+      if (part.kind === 'immediate' && part.source) usedParts.add(part.source);
+      if (part.kind === 'instruction' || part.kind === 'regfile') usedParts.add(part.name);
+    }
+    for (const flag of machine.flags.values()) usedParts.add(flag.part);
+    const warn = (name: string, span: typeof machine.symbols[number]['span'], what: string, fixes?: Parameters<typeof ctx.report>[4]) =>
+      ctx.report('unused-name', span, `${what} \`${name}\` is never used`, undefined, fixes);
+
+    for (const signal of machine.signals.values()) {
+      if (usedSignals.has(signal.name)) continue;
+      const placement = machine.stores.flatMap((s) => s.word?.placements ?? []).find((p) => p.signal === signal.name);
+      const edits = [removeLinesEdit(ctx.text, signal.symbol.declSpan)];
+      // Remove the placement too, but only when it stands alone on its line.
+      if (placement && lineHolds(ctx.text, placement.span)) edits.push(removeLinesEdit(ctx.text, placement.span));
+      else if (placement) edits.push({ span: placement.span, newText: '' });
+      warn(signal.name, signal.symbol.span, `${signal.type === 'strobe' ? 'strobe' : 'field'}`, [{ title: `Remove the unused ${signal.type} \`${signal.name}\``, edits }]);
+    }
+    for (const bus of machine.buses.values()) if (!usedBuses.has(bus.name)) warn(bus.name, bus.symbol.span, 'bus');
+    for (const part of machine.parts.values()) if (!usedParts.has(part.name)) warn(part.name, part.symbol.span, 'part');
+    for (const map of machine.maps.values()) if (!used.has('map:' + map.name)) warn(map.name, map.symbol.span, 'map');
+    for (const phase of machine.phases.values()) if (!used.has('phase:' + phase.name)) warn(phase.name, phase.symbol.span, 'phase');
+    for (const flag of machine.flags.values()) if (!used.has('flag:' + flag.name)) warn(flag.name, flag.symbol.span, 'flag');
+  },
+};
+
+/** True if the span is the only thing on its line (besides spaces and a comment). */
+function lineHolds(text: string, at: { start: number; end: number }): boolean {
+  let start = at.start;
+  while (start > 0 && text[start - 1] !== '\n' && text[start - 1] !== '\r') start--;
+  let end = at.end;
+  while (end < text.length && text[end] !== '\n' && text[end] !== '\r') end++;
+  return /^\s*$/.test(text.slice(start, at.start)) && /^\s*(#.*)?$/.test(text.slice(at.end, end));
+}

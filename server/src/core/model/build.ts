@@ -1,0 +1,822 @@
+// Builds the semantic model from a syntax tree: declares every name, resolves references,
+// interprets part settings, layouts, maps, phases and classes. It reports what it cannot
+// understand (undefined and duplicate names, wrong kinds, bad numbers) and leaves those
+// pieces out, so later stages always see a consistent model. Hazard checks (contention,
+// coverage, layout overlaps...) are not here: they live in checks/, one file per rule.
+import type * as A from '../syntax/ast';
+import type { Diagnostic, Fix, RelatedInfo } from '../text/diagnostic';
+import type { Span } from '../text/span';
+import { closest } from '../text/suggest';
+import { chipType, knownChipNames } from './chips';
+import { parseBits, parseNumber } from './numbers';
+import type * as M from './types';
+import { controlVocabulary, instructionFields, partKinds, strobeKinds } from './vocabulary';
+import { buildBodies } from './buildSteps';
+
+export interface BuildResult {
+  machine: M.Machine;
+  diagnostics: Diagnostic[];
+}
+
+type Namespace = 'structure' | 'signal' | 'map' | 'phase' | 'class' | 'store';
+
+const namespaceOf: Record<M.SymbolKind, Namespace> = {
+  bus: 'structure',
+  part: 'structure',
+  port: 'structure',
+  flag: 'structure',
+  strobe: 'signal',
+  field: 'signal',
+  value: 'signal',
+  map: 'map',
+  phase: 'phase',
+  class: 'class',
+  store: 'store',
+};
+
+/** Shared state of one model build; the step builder uses it too. */
+export class BuildContext {
+  readonly diagnostics: Diagnostic[] = [];
+  readonly machine: M.Machine = {
+    buses: new Map(),
+    parts: new Map(),
+    flags: new Map(),
+    signals: new Map(),
+    stores: [],
+    maps: new Map(),
+    phases: new Map(),
+    classes: [],
+    symbols: [],
+    references: [],
+  };
+  /** Declared names per namespace (first declaration wins). */
+  readonly names = new Map<Namespace, Map<string, M.SymbolInfo>>();
+
+  report(code: string, at: Span, message: string, related?: RelatedInfo[], fixes?: Fix[]): void {
+    this.diagnostics.push({ code, severity: 'error', span: at, message, related, fixes });
+  }
+
+  /** Declares a name; on a duplicate, reports it and returns undefined. */
+  declare(kind: M.SymbolKind, name: A.Name, declSpan: Span, key = name.text): M.SymbolInfo | undefined {
+    const ns = namespaceOf[kind];
+    let table = this.names.get(ns);
+    if (!table) this.names.set(ns, (table = new Map()));
+    const existing = table.get(key);
+    if (existing) {
+      this.report(
+        'duplicate-name',
+        name.span,
+        `\`${name.text}\` is already declared as a ${existing.kind}; give this ${kind} another name or remove one of them`,
+        [{ span: existing.span, message: `first declaration of \`${name.text}\`` }],
+      );
+      return undefined;
+    }
+    const symbol: M.SymbolInfo = { kind, name: name.text, key, span: name.span, declSpan };
+    table.set(key, symbol);
+    this.machine.symbols.push(symbol);
+    return symbol;
+  }
+
+  lookup(ns: Namespace, key: string): M.SymbolInfo | undefined {
+    return this.names.get(ns)?.get(key);
+  }
+
+  reference(span: Span, symbol: M.SymbolInfo): void {
+    this.machine.references.push({ span, symbol });
+  }
+
+  /** Resolves a name in a namespace, recording the reference or reporting it as undefined. */
+  resolve(ns: Namespace, name: A.Name, what: string, accept?: (s: M.SymbolInfo) => boolean): M.SymbolInfo | undefined {
+    const symbol = this.lookup(ns, name.text);
+    if (symbol && (!accept || accept(symbol))) {
+      this.reference(name.span, symbol);
+      return symbol;
+    }
+    if (symbol) return undefined; // Wrong kind: the caller reports it with context.
+    this.undefinedName(name, what, [...(this.names.get(ns)?.values() ?? [])].filter((s) => !accept || accept(s)).map((s) => s.name));
+    return undefined;
+  }
+
+  undefinedName(name: A.Name, what: string, candidates: string[]): void {
+    const guess = closest(name.text, candidates);
+    const fixes: Fix[] | undefined = guess ? [{ title: `Change to \`${guess}\``, edits: [{ span: name.span, newText: guess }], preferred: true }] : undefined;
+    this.report(
+      'undefined-name',
+      name.span,
+      `no ${what} is named \`${name.text}\`` + (guess ? `; did you mean \`${guess}\`?` : `; declare it or check the spelling`),
+      undefined,
+      fixes,
+    );
+  }
+
+  /** Reads a non-negative integer literal, reporting malformed or out-of-range text. */
+  number(lit: A.Literal | undefined, what: string, min = 0, max = Number.MAX_SAFE_INTEGER): number | undefined {
+    if (!lit) return undefined;
+    const value = parseNumber(lit.text);
+    if (value === undefined) {
+      this.report('bad-number', lit.span, `\`${lit.text}\` is not a number; write ${what} in decimal, or with 0x (hex) or 0b (binary)`);
+      return undefined;
+    }
+    if (value < min || value > max) {
+      this.report('bad-number', lit.span, `${what} must be between ${min} and ${max}; \`${lit.text}\` is out of range`);
+      return undefined;
+    }
+    return value;
+  }
+
+  /**
+   * Resolves an address input as written: `step`, an instruction field name, `ir[hi:lo]`,
+   * a flag, or (in address layouts only) a field of another store.
+   */
+  input(ref: A.InputRef, allow: { step?: boolean; field?: boolean }): { input: M.InputVar | { kind: 'field'; name: string }; label: string } | undefined {
+    const text = ref.name.text;
+    if (ref.bitHi) {
+      if (text !== 'ir') {
+        this.report('wrong-wiring', ref.name.span, `only the instruction bits \`ir[...]\` can be indexed; \`${text}\` cannot`);
+        return undefined;
+      }
+      const hi = this.number(ref.bitHi, 'an instruction bit number', 0, 31);
+      const lo = ref.bitLo ? this.number(ref.bitLo, 'an instruction bit number', 0, 31) : hi;
+      if (hi === undefined || lo === undefined) return undefined;
+      if (lo > hi) {
+        this.report('bad-number', ref.span, `write the high bit first, e.g. \`ir[${lo}:${hi}]\``);
+        return undefined;
+      }
+      return { input: { kind: 'ir', hi, lo }, label: hi === lo ? `ir[${hi}]` : `ir[${hi}:${lo}]` };
+    }
+    if (text === 'step') {
+      if (allow.step) return { input: { kind: 'step' }, label: 'step' };
+      this.report('wrong-wiring', ref.name.span, 'the step counter cannot be tested here: steps are selected by their numbers');
+      return undefined;
+    }
+    const field = instructionFields[text];
+    if (field) return { input: field, label: text };
+    const flag = this.lookup('structure', text);
+    if (flag?.kind === 'flag') {
+      this.reference(ref.name.span, flag);
+      return { input: { kind: 'flag', name: text }, label: text };
+    }
+    if (allow.field) {
+      const signal = this.lookup('signal', text);
+      if (signal?.kind === 'field') {
+        this.reference(ref.name.span, signal);
+        return { input: { kind: 'field', name: text }, label: text };
+      }
+    }
+    const candidates = [...Object.keys(instructionFields), ...[...(this.names.get('structure')?.values() ?? [])].filter((s) => s.kind === 'flag').map((s) => s.name)];
+    if (allow.step) candidates.push('step');
+    this.undefinedName(ref.name, 'address input (step, opcode, funct3, f7b5, funct7, ir[n] or a flag)', candidates);
+    return undefined;
+  }
+}
+
+/** Builds the model. Never throws on any tree the parser can produce. */
+export function buildModel(tree: A.FileNode): BuildResult {
+  const ctx = new BuildContext();
+  declareAll(ctx, tree);
+  for (const decl of tree.decls) {
+    if (decl.kind === 'machine') buildMachine(ctx, decl);
+    else if (decl.kind === 'bus') buildBus(ctx, decl);
+  }
+  for (const decl of tree.decls) if (decl.kind === 'part') buildPart(ctx, decl);
+  for (const decl of tree.decls) if (decl.kind === 'field') buildField(ctx, decl);
+  for (const decl of tree.decls) if (decl.kind === 'strobe') buildStrobe(ctx, decl);
+  finishParts(ctx, tree);
+  buildStores(ctx, tree);
+  buildBodies(ctx, tree);
+  return { machine: ctx.machine, diagnostics: ctx.diagnostics };
+}
+
+/** First pass: every declared name, so references may come before declarations. */
+function declareAll(ctx: BuildContext, tree: A.FileNode): void {
+  for (const decl of tree.decls) {
+    switch (decl.kind) {
+      case 'bus':
+        if (decl.name) ctx.declare('bus', decl.name, decl.span);
+        break;
+      case 'part':
+        if (decl.name) ctx.declare('part', decl.name, decl.span);
+        break;
+      case 'strobe':
+        if (decl.name) ctx.declare('strobe', decl.name, decl.span);
+        break;
+      case 'field':
+        if (decl.name) ctx.declare('field', decl.name, decl.span);
+        break;
+      case 'map':
+        if (decl.name) ctx.declare('map', decl.name, decl.span);
+        break;
+      case 'phase':
+        if (decl.name) ctx.declare('phase', decl.name, decl.span);
+        break;
+      case 'class':
+        if (decl.name) ctx.declare('class', decl.name, decl.span);
+        break;
+      case 'store':
+        if (decl.name) ctx.declare('store', decl.name, decl.span);
+        break;
+    }
+  }
+  // Flags are declared by the comparators that produce them (`-> taken`).
+  for (const decl of tree.decls) {
+    if (decl.kind !== 'part') continue;
+    for (const arg of decl.args) {
+      if (arg.kind === 'arrow' && arg.target && decl.name && ctx.lookup('structure', decl.name.text)?.declSpan === decl.span) {
+        const symbol = ctx.declare('flag', arg.target, decl.span);
+        if (symbol) ctx.machine.flags.set(arg.target.text, { name: arg.target.text, part: decl.name.text, symbol });
+      }
+    }
+  }
+}
+
+/** True when this declaration is the one that owns its name (not a reported duplicate). */
+function owns(ctx: BuildContext, ns: Namespace, name: A.Name | undefined, span: Span): boolean {
+  return !!name && ctx.lookup(ns, name.text)?.declSpan === span;
+}
+
+function buildMachine(ctx: BuildContext, decl: A.MachineDecl): void {
+  if (ctx.machine.title !== undefined || ctx.machine.isa !== undefined) {
+    ctx.report('duplicate-name', decl.keyword, 'a file describes one machine: remove this second `machine` line');
+    return;
+  }
+  ctx.machine.title = decl.title?.value ?? '';
+  if (decl.isa) {
+    if (decl.isa.text.toLowerCase() !== 'rv32i') ctx.report('unknown-kind', decl.isa.span, `Phasewright knows the RV32I instruction set only; write \`isa rv32i\``);
+    else ctx.machine.isa = 'rv32i';
+  }
+}
+
+/** Electrical and timing figure names accepted on buses, parts and strobes (see docs/notation.md). */
+export const figureNames = new Set<string>();
+
+function readFigures(ctx: BuildContext, options: A.OptionNode[], what: string): M.Figures {
+  const figures: M.Figures = new Map();
+  for (const option of options) {
+    if (!figureNames.has(option.key.text)) {
+      const guess = closest(option.key.text, figureNames);
+      ctx.report('unknown-kind', option.key.span, `a ${what} has no setting \`${option.key.text}\`` + (guess ? `; did you mean \`${guess}\`?` : ''));
+      continue;
+    }
+    const value = option.value && 'text' in option.value ? Number(option.value.text) : NaN;
+    if (!Number.isFinite(value) || value < 0) {
+      ctx.report('bad-number', option.value?.span ?? option.span, `\`${option.key.text}\` needs a number, e.g. \`${option.key.text}=24\``);
+      continue;
+    }
+    figures.set(option.key.text, { value, span: option.span });
+  }
+  return figures;
+}
+
+function buildBus(ctx: BuildContext, decl: A.BusDecl): void {
+  if (!owns(ctx, 'structure', decl.name, decl.span)) return;
+  const width = ctx.number(decl.width, 'a bus width', 1, 64);
+  if (width === undefined) return;
+  ctx.machine.buses.set(decl.name!.text, {
+    name: decl.name!.text,
+    width,
+    keeper: !!decl.keeper,
+    description: decl.description?.value,
+    symbol: ctx.lookup('structure', decl.name!.text)!,
+    figures: readFigures(ctx, decl.options, 'bus'),
+  });
+}
+
+interface PartArgs {
+  numbers: A.Literal[];
+  words: A.Name[];
+  options: Map<string, A.OptionNode>;
+  arrow?: { target?: A.Name; span: Span };
+  figureOptions: A.OptionNode[];
+}
+
+function splitArgs(ctx: BuildContext, decl: A.PartDecl, allowedOptions: string[]): PartArgs {
+  const args: PartArgs = { numbers: [], words: [], options: new Map(), figureOptions: [] };
+  for (const arg of decl.args) {
+    if (arg.kind === 'number') args.numbers.push(arg.value);
+    else if (arg.kind === 'word') args.words.push(arg.name);
+    else if (arg.kind === 'arrow') args.arrow = { target: arg.target, span: arg.span };
+    else if (allowedOptions.includes(arg.option.key.text)) args.options.set(arg.option.key.text, arg.option);
+    else if (figureNames.has(arg.option.key.text)) args.figureOptions.push(arg.option);
+    else {
+      const guess = closest(arg.option.key.text, [...allowedOptions, ...figureNames]);
+      ctx.report(
+        'unknown-kind',
+        arg.option.key.span,
+        `a ${decl.partKind?.text} part has no setting \`${arg.option.key.text}\`` +
+          (guess ? `; did you mean \`${guess}\`?` : allowedOptions.length ? `; it takes ${allowedOptions.map((o) => `\`${o}=\``).join(', ')}` : ''),
+      );
+    }
+  }
+  return args;
+}
+
+function optionText(option: A.OptionNode | undefined): string | undefined {
+  return option?.value?.text;
+}
+
+function optionNumber(ctx: BuildContext, option: A.OptionNode | undefined, what: string, fallback: number): number {
+  if (!option) return fallback;
+  if (!option.value || !('text' in option.value)) return fallback;
+  const value = parseNumber(option.value.text);
+  if (value === undefined || value > 0xffffffff) {
+    ctx.report('bad-number', option.value.span, `${what} must be a number from 0 to 0xFFFFFFFF`);
+    return fallback;
+  }
+  return value;
+}
+
+function busArg(ctx: BuildContext, name: A.Name | undefined, role: string, partName: string): string | undefined {
+  if (!name) {
+    return undefined;
+  }
+  const symbol = ctx.resolve('structure', name, 'bus', (s) => s.kind === 'bus');
+  if (!symbol && ctx.lookup('structure', name.text)) {
+    ctx.report('wrong-wiring', name.span, `the ${role} of \`${partName}\` must be a bus; \`${name.text}\` is a ${ctx.lookup('structure', name.text)!.kind}`);
+  }
+  return symbol ? name.text : undefined;
+}
+
+function buildPart(ctx: BuildContext, decl: A.PartDecl): void {
+  if (!owns(ctx, 'structure', decl.name, decl.span) || !decl.partKind) return;
+  const name = decl.name!.text;
+  const kindText = decl.partKind.text as M.PartKind;
+  if (!partKinds.includes(kindText)) {
+    const guess = closest(decl.partKind.text, partKinds);
+    ctx.report(
+      'unknown-kind',
+      decl.partKind.span,
+      `\`${decl.partKind.text}\` is not a part kind` + (guess ? `; did you mean \`${guess}\`?` : `; use one of ${partKinds.join(', ')}`),
+      undefined,
+      guess ? [{ title: `Change to \`${guess}\``, edits: [{ span: decl.partKind.span, newText: guess }], preferred: true }] : undefined,
+    );
+    return;
+  }
+  const symbol = ctx.lookup('structure', name)!;
+  const base = { name, description: decl.description?.value, symbol };
+  const widthOf = (args: PartArgs, fallback: number) => (args.numbers[0] ? (ctx.number(args.numbers[0], 'a part width', 1, 64) ?? fallback) : fallback);
+  const tooMany = (args: PartArgs, numbers: number, words: number) => {
+    for (const extra of args.numbers.slice(numbers)) ctx.report('wrong-wiring', extra.span, `a ${kindText} part takes ${numbers ? 'one width' : 'no number'} here; remove \`${extra.text}\``);
+    for (const extra of args.words.slice(words)) ctx.report('wrong-wiring', extra.span, `unexpected \`${extra.text}\` in a ${kindText} part`);
+    if (args.arrow && kindText !== 'compare') ctx.report('wrong-wiring', args.arrow.span, `only a comparator produces a flag with \`->\``);
+  };
+  let part: M.Part | undefined;
+  switch (kindText) {
+    case 'regfile': {
+      const args = splitArgs(ctx, decl, ['x0']);
+      const words = args.words[0]?.text === 'from' ? args.words.slice(2) : args.words;
+      tooMany({ ...args, words }, 1, 0);
+      const x0Text = optionText(args.options.get('x0')) ?? 'hardwired';
+      if (!['hardwired', 'stored', 'guarded'].includes(x0Text)) {
+        ctx.report('unknown-kind', args.options.get('x0')!.span, '`x0=` takes `hardwired` (reads 0, ignores writes), `stored` (a real register) or `guarded` (stored, clock blocked when rd is 0)');
+      }
+      part = { ...base, kind: 'regfile', width: widthOf(args, 32), x0: (['hardwired', 'stored', 'guarded'].includes(x0Text) ? x0Text : 'hardwired') as M.RegfilePart['x0'], figures: readFigures(ctx, args.figureOptions, 'part') };
+      break;
+    }
+    case 'register':
+    case 'instruction': {
+      const args = splitArgs(ctx, decl, ['reset']);
+      tooMany(args, 1, 0);
+      part = { ...base, kind: kindText, width: widthOf(args, 32), reset: optionNumber(ctx, args.options.get('reset'), 'the reset value', 0), figures: readFigures(ctx, args.figureOptions, 'part') };
+      break;
+    }
+    case 'counter': {
+      const args = splitArgs(ctx, decl, ['inc', 'bit0', 'reset']);
+      tooMany(args, 1, 0);
+      const bit0 = optionText(args.options.get('bit0'));
+      if (bit0 !== undefined && bit0 !== 'zero' && bit0 !== 'kept') ctx.report('unknown-kind', args.options.get('bit0')!.span, '`bit0=` takes `zero` (bit 0 always stored as 0, as RV32I jumps need) or `kept`');
+      part = {
+        ...base,
+        kind: 'counter',
+        width: widthOf(args, 32),
+        increment: optionNumber(ctx, args.options.get('inc'), 'the increment', 4),
+        bit0Zero: bit0 === 'zero',
+        reset: optionNumber(ctx, args.options.get('reset'), 'the reset value', 0),
+        figures: readFigures(ctx, args.figureOptions, 'part'),
+      };
+      break;
+    }
+    case 'immediate': {
+      const args = splitArgs(ctx, decl, []);
+      let source: string | undefined;
+      let words = args.words;
+      if (words[0]?.text === 'from') {
+        const sourceName = words[1];
+        words = words.slice(2);
+        if (!sourceName) ctx.report('wrong-wiring', args.words[0].span, 'name the instruction register after `from`, e.g. `from ir`');
+        else {
+          const sym = ctx.resolve('structure', sourceName, 'part', (s) => s.kind === 'part');
+          if (sym) source = sourceName.text;
+        }
+      }
+      tooMany({ ...args, words }, 1, 0);
+      part = { ...base, kind: 'immediate', width: widthOf(args, 32), source: source ?? '', figures: readFigures(ctx, args.figureOptions, 'part') };
+      break;
+    }
+    case 'alu':
+    case 'compare': {
+      const args = splitArgs(ctx, decl, kindText === 'compare' ? ['cond'] : []);
+      tooMany(args, 0, 2);
+      if (args.words.length < 2) {
+        ctx.report('wrong-wiring', decl.partKind.span, `a ${kindText === 'alu' ? 'ALU' : 'comparator'} needs its two operand buses, e.g. \`part ${name} ${kindText} left right\``);
+        return;
+      }
+      const a = busArg(ctx, args.words[0], 'first operand', name);
+      const b = busArg(ctx, args.words[1], 'second operand', name);
+      if (!a || !b) return;
+      const width = ctx.machine.buses.get(a)?.width ?? 32;
+      if (kindText === 'alu') {
+        part = { ...base, kind: 'alu', width, a, b, figures: readFigures(ctx, args.figureOptions, 'part') };
+      } else {
+        if (!args.arrow?.target) {
+          ctx.report('wrong-wiring', decl.partKind.span, `a comparator latches a flag: name it, e.g. \`part ${name} compare ${a} ${b} -> taken\``);
+          return;
+        }
+        const cond = optionText(args.options.get('cond'));
+        if (cond !== undefined && cond !== 'funct3') ctx.report('unknown-kind', args.options.get('cond')!.span, '`cond=` takes `funct3` (the branch condition wired from the instruction); otherwise declare a field `-> ' + name + '`');
+        part = { ...base, kind: 'compare', width, a, b, flag: args.arrow.target.text, condition: cond === 'funct3' ? 'funct3' : 'field', figures: readFigures(ctx, args.figureOptions, 'part') };
+      }
+      break;
+    }
+    case 'memory': {
+      const args = splitArgs(ctx, decl, ['addr']);
+      tooMany(args, 1, 0);
+      const addrOption = args.options.get('addr');
+      const addrName = addrOption?.value && !/^[0-9]/.test(addrOption.value.text) ? (addrOption.value as A.Name) : undefined;
+      if (!addrName) {
+        ctx.report('wrong-wiring', addrOption?.span ?? decl.partKind.span, `a memory port needs its address source, e.g. \`addr=mar\` (a register) or \`addr=result\` (a bus)`);
+        return;
+      }
+      const sym = ctx.resolve('structure', addrName, 'part or bus', (s) => s.kind === 'part' || s.kind === 'bus');
+      if (!sym) return;
+      part = { ...base, kind: 'memory', width: widthOf(args, 32), address: addrName.text, addressFrom: sym.kind === 'bus' ? 'bus' : 'part', figures: readFigures(ctx, args.figureOptions, 'part') };
+      break;
+    }
+    case 'constant': {
+      const args = splitArgs(ctx, decl, ['value']);
+      tooMany(args, 1, 0);
+      if (!args.options.get('value')) {
+        ctx.report('wrong-wiring', decl.partKind.span, `a constant needs its value, e.g. \`part ${name} constant 32 value=4\``);
+      }
+      part = { ...base, kind: 'constant', width: widthOf(args, 32), value: optionNumber(ctx, args.options.get('value'), 'the constant', 0), figures: readFigures(ctx, args.figureOptions, 'part') };
+      break;
+    }
+  }
+  if (part) ctx.machine.parts.set(name, part);
+}
+
+/** Checks what needs every part and field: the IR, immediate sources, comparator conditions. */
+function finishParts(ctx: BuildContext, tree: A.FileNode): void {
+  const irs = [...ctx.machine.parts.values()].filter((p) => p.kind === 'instruction');
+  if (irs.length === 1) ctx.machine.instructionRegister = irs[0].name;
+  else if (irs.length > 1) {
+    for (const extra of irs.slice(1)) {
+      ctx.report('wrong-wiring', extra.symbol.span, `only one instruction register may feed the address lines; \`${irs[0].name}\` is already one`, [{ span: irs[0].symbol.span, message: 'the first instruction register' }]);
+    }
+    ctx.machine.instructionRegister = irs[0].name;
+  }
+  for (const part of ctx.machine.parts.values()) {
+    if (part.kind === 'immediate' && part.source) {
+      const source = ctx.machine.parts.get(part.source);
+      if (source && source.kind !== 'instruction') ctx.report('wrong-wiring', part.symbol.declSpan, `the immediate generator must take its bits from the instruction register, not from the ${source.kind} \`${source.name}\``);
+    }
+    if (part.kind === 'immediate' && !part.source && ctx.machine.instructionRegister) part.source = ctx.machine.instructionRegister;
+    if ((part.kind === 'immediate' || part.kind === 'regfile') && !ctx.machine.instructionRegister) {
+      ctx.report('wrong-wiring', part.symbol.span, `a ${part.kind === 'immediate' ? 'immediate generator' : 'register file'} reads instruction fields: declare an instruction register, e.g. \`part ir instruction 32\``);
+    }
+    if (part.kind === 'compare' && part.condition === 'field' && !part.controlField) {
+      ctx.report('wrong-wiring', part.symbol.span, `the comparator \`${part.name}\` has no condition: add \`cond=funct3\` or declare a field \`-> ${part.name}\` with values eq, ne, lt, ge, ltu, geu`);
+    }
+  }
+  void tree;
+}
+
+function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
+  if (!owns(ctx, 'signal', decl.name, decl.span)) return;
+  const name = decl.name!.text;
+  const width = ctx.number(decl.width, 'a field width', 1, 32);
+  if (width === undefined) return;
+  const field: M.Field = { type: 'field', name, width, values: new Map(), idle: 0, description: decl.description?.value, symbol: ctx.lookup('signal', name)! };
+  let vocabulary: readonly string[] | undefined;
+  if (decl.target) {
+    const sym = ctx.resolve('structure', decl.target.name, 'part', (s) => s.kind === 'part');
+    const part = sym ? ctx.machine.parts.get(decl.target.name.text) : undefined;
+    if (sym && !part) {
+      // The part exists but could not be understood; its own error says why.
+    } else if (!sym && ctx.lookup('structure', decl.target.name.text)) {
+      ctx.report('wrong-wiring', decl.target.span, `a field controls a part, not a ${ctx.lookup('structure', decl.target.name.text)!.kind}`);
+    } else if (part) {
+      vocabulary = controlVocabulary(part.kind);
+      if (!vocabulary) {
+        ctx.report('wrong-wiring', decl.target.span, `a ${part.kind} part has no function to select; fields can control an alu, immediate, memory or compare part`);
+      } else if (part.controlField) {
+        ctx.report('wrong-wiring', decl.target.span, `\`${part.name}\` is already controlled by the field \`${part.controlField}\``, [{ span: ctx.machine.signals.get(part.controlField)!.symbol.span, message: 'the other field' }]);
+      } else if (part.kind === 'compare' && part.condition === 'funct3') {
+        ctx.report('wrong-wiring', decl.target.span, `the comparator \`${part.name}\` takes its condition from funct3 (\`cond=funct3\`); remove that or this field`);
+      } else {
+        part.controlField = name;
+        field.target = part.name;
+      }
+    }
+  }
+  const maxCode = 2 ** width - 1;
+  for (const value of decl.values) {
+    const symbol = ctx.declare('value', value.name, value.span, `${name}/${value.name.text}`);
+    if (!symbol) continue;
+    if (vocabulary && !vocabulary.includes(value.name.text)) {
+      const guess = closest(value.name.text, vocabulary);
+      ctx.report(
+        'wrong-wiring',
+        value.name.span,
+        `\`${value.name.text}\` means nothing to a ${ctx.machine.parts.get(field.target!)!.kind} part; its values are ${vocabulary.join(', ')}` + (guess ? ` (did you mean \`${guess}\`?)` : ''),
+      );
+      continue;
+    }
+    const code = ctx.number(value.code, 'a field code');
+    if (code === undefined) continue;
+    if (code > maxCode) {
+      ctx.report('value-too-wide', value.code!.span, `code ${code} does not fit in the ${width} bit(s) of \`${name}\` (largest is ${maxCode}); widen the field or choose a smaller code`);
+      continue;
+    }
+    field.values.set(value.name.text, { name: value.name.text, code, symbol });
+  }
+  for (const option of decl.options) {
+    if (option.key.text !== 'idle') {
+      ctx.report('unknown-kind', option.key.span, `a field has no setting \`${option.key.text}\`; it takes \`idle=VALUE\``);
+      continue;
+    }
+    const idleName = option.value?.text ?? '';
+    const idle = field.values.get(idleName);
+    if (!idle) {
+      if (option.value) ctx.undefinedName(option.value as A.Name, `value of \`${name}\``, [...field.values.keys()]);
+      continue;
+    }
+    ctx.reference(option.value!.span, idle.symbol);
+    field.idle = idle.code;
+  }
+  ctx.machine.signals.set(name, field);
+}
+
+function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
+  if (!owns(ctx, 'signal', decl.name, decl.span) || !decl.strobeKind) return;
+  const name = decl.name!.text;
+  const kind = decl.strobeKind.text as M.StrobeKind;
+  if (!strobeKinds.includes(kind)) {
+    const guess = closest(decl.strobeKind.text, strobeKinds);
+    ctx.report(
+      'unknown-kind',
+      decl.strobeKind.span,
+      `\`${decl.strobeKind.text}\` is not a strobe kind` + (guess ? `; did you mean \`${guess}\`?` : `; use one of ${strobeKinds.join(', ')}`),
+      undefined,
+      guess ? [{ title: `Change to \`${guess}\``, edits: [{ span: decl.strobeKind.span, newText: guess }], preferred: true }] : undefined,
+    );
+    return;
+  }
+  const strobe: M.Strobe = {
+    type: 'strobe',
+    name,
+    kind,
+    active: decl.level?.text === 'low' ? 'low' : 'high',
+    activeWritten: !!decl.level,
+    description: decl.description?.value,
+    symbol: ctx.lookup('signal', name)!,
+    figures: readFigures(ctx, decl.options, 'strobe'),
+  };
+  const form = strobeForms[kind];
+  const kindSpan = decl.strobeKind.span;
+  if (form === 'none') {
+    if (decl.source || decl.target) ctx.report('wrong-wiring', (decl.source ?? decl.target)!.span, `an \`${kind}\` strobe is not wired to a part or bus; remove \`${(decl.source ?? decl.target)!.name.text}\``);
+    ctx.machine.signals.set(name, strobe);
+    return;
+  }
+  if (form === 'part-to-bus') {
+    if (!decl.source || !decl.target) {
+      ctx.report('wrong-wiring', decl.target?.span ?? decl.source?.span ?? kindSpan, `write which part drives which bus, e.g. \`${kind} ${kind === 'read' ? 'mem' : 'alu'} -> result\``);
+      return;
+    }
+    if (!wirePart(ctx, strobe, decl.source, kind)) return;
+    const bus = busArg(ctx, decl.target.name, 'target', name);
+    if (!bus) return;
+    strobe.bus = bus;
+  } else if (form === 'bus-to-part') {
+    if (kind === 'clock' && decl.source && !decl.target) {
+      // `clock cmp`: a part that loads from its own inputs (the comparator's flag).
+      if (!wirePart(ctx, strobe, decl.source, 'clock-flag')) return;
+    } else {
+      if (!decl.source || !decl.target) {
+        ctx.report('wrong-wiring', decl.source?.span ?? kindSpan, `write which bus loads which part, e.g. \`${kind} result -> ${kind === 'write' ? 'mem' : 'mar'}\``);
+        return;
+      }
+      const bus = busArg(ctx, decl.source.name, 'source', name);
+      if (!bus) return;
+      strobe.bus = bus;
+      if (!wirePart(ctx, strobe, decl.target, kind)) return;
+    }
+  } else if (form === 'part') {
+    if (!decl.source || decl.target) {
+      ctx.report('wrong-wiring', decl.target?.span ?? kindSpan, `a count strobe names just its counter, e.g. \`count pc\``);
+      return;
+    }
+    if (!wirePart(ctx, strobe, decl.source, kind)) return;
+  }
+  const bus = strobe.bus ? ctx.machine.buses.get(strobe.bus) : undefined;
+  const part = strobe.part ? ctx.machine.parts.get(strobe.part) : undefined;
+  if (bus && part && part.kind !== 'regfile' && part.kind !== 'memory' && bus.width !== part.width) {
+    ctx.diagnostics.push({
+      code: 'width-mismatch',
+      severity: 'warning',
+      span: decl.span,
+      message: `\`${part.name}\` is ${part.width} bits wide but the bus \`${bus.name}\` is ${bus.width}; the extra bits ${bus.width > part.width ? 'of the bus are undriven or ignored' : 'of the part are lost'}`,
+    });
+  }
+  ctx.machine.signals.set(name, strobe);
+}
+
+const strobeForms: Record<M.StrobeKind, 'none' | 'part-to-bus' | 'bus-to-part' | 'part'> = {
+  enable: 'part-to-bus',
+  read: 'part-to-bus',
+  write: 'bus-to-part',
+  clock: 'bus-to-part',
+  count: 'part',
+  end: 'none',
+  trap: 'none',
+};
+
+/** Resolves the part (and port) of a strobe and checks the part can do what the strobe asks. */
+function wirePart(ctx: BuildContext, strobe: M.Strobe, ref: A.Ref, role: M.StrobeKind | 'clock-flag'): boolean {
+  const text = ref.name.text;
+  let partName = text;
+  let port: string | undefined;
+  let partSpan = ref.name.span;
+  if (!ctx.lookup('structure', text) && text.includes('.')) {
+    const dot = text.indexOf('.');
+    partName = text.slice(0, dot);
+    port = text.slice(dot + 1);
+    partSpan = { start: ref.name.span.start, end: ref.name.span.start + dot };
+  }
+  const sym = ctx.lookup('structure', partName);
+  if (!sym) {
+    ctx.undefinedName({ text: partName, span: partSpan }, 'part', [...ctx.machine.parts.keys()]);
+    return false;
+  }
+  if (sym.kind !== 'part') {
+    ctx.report('wrong-wiring', ref.span, `\`${partName}\` is a ${sym.kind}; a ${strobe.kind} strobe ${role === 'enable' || role === 'read' ? 'drives a bus from a part' : 'loads a part'} here`);
+    return false;
+  }
+  ctx.reference(partSpan, sym);
+  const part = ctx.machine.parts.get(partName);
+  if (!part) return false;
+  if (ref.index) {
+    if (part.kind !== 'regfile') {
+      ctx.report('wrong-wiring', ref.span, `only a register file has numbered registers; \`${partName}\` is a ${part.kind}`);
+      return false;
+    }
+    const register = ctx.number(ref.index, 'a register number', 0, 31);
+    if (register === undefined) return false;
+    port = `x[${register}]`;
+    strobe.register = register;
+  }
+  strobe.part = partName;
+  strobe.port = port;
+  const fail = (message: string) => {
+    ctx.report('wrong-wiring', ref.span, message);
+    return false;
+  };
+  if (part.kind === 'regfile') {
+    const outPorts = ['rs1', 'rs2'];
+    if (!port) return fail(`say which port of the register file: \`${partName}.rs1\`, \`${partName}.rs2\`, \`${partName}.rd\` or \`${partName}[n]\``);
+    if (strobe.register === undefined && ![...outPorts, 'rd'].includes(port)) return fail(`a register file has ports rs1, rs2 (outputs) and rd (input), or \`${partName}[n]\` for a fixed register; not \`${port}\``);
+    if (role === 'enable' && port === 'rd') return fail(`the rd port is an input: drive the bus from \`${partName}.rs1\` or \`${partName}.rs2\``);
+    if (role === 'clock' && outPorts.includes(port)) return fail(`\`${partName}.${port}\` is an output: load the register file through \`${partName}.rd\``);
+    if (role !== 'enable' && role !== 'clock') return fail(`a register file is driven with \`enable\` and loaded with \`clock\``);
+    return true;
+  }
+  if (port) return fail(`a ${part.kind} part has no ports; write just \`${partName}\``);
+  const can: Record<string, M.PartKind[]> = {
+    enable: ['register', 'counter', 'instruction', 'immediate', 'alu', 'constant'],
+    read: ['memory'],
+    write: ['memory'],
+    clock: ['register', 'counter', 'instruction'],
+    count: ['counter'],
+    'clock-flag': ['compare'],
+  };
+  if (!can[role].includes(part.kind)) {
+    const hint: Record<string, string> = {
+      enable: part.kind === 'memory' ? 'memory data goes onto a bus with a `read` strobe' : 'this part has no output to put on a bus',
+      read: 'only a memory port is read',
+      write: 'only a memory port is written',
+      clock:
+        part.kind === 'compare'
+          ? 'a comparator is clocked with no bus: `clock ' + partName + '`'
+          : part.kind === 'memory'
+            ? 'memory is stored to with a `write` strobe'
+            : 'this part has nothing to load',
+      count: 'only a counter counts',
+      'clock-flag': 'only a comparator loads without a bus; name the bus: `clock BUS -> ' + partName + '`',
+    };
+    return fail(`\`${partName}\` is a ${part.kind}: ${hint[role]}`);
+  }
+  return true;
+}
+
+function buildStores(ctx: BuildContext, tree: A.FileNode): void {
+  let current: M.Store | undefined;
+  const implicitStore = (): M.Store => {
+    const symbol: M.SymbolInfo = { kind: 'store', name: 'main', key: 'main', span: { start: 0, end: 0 }, declSpan: { start: 0, end: 0 } };
+    const store: M.Store = { name: 'main', implicit: true, symbol };
+    ctx.machine.stores.push(store);
+    return store;
+  };
+  for (const decl of tree.decls) {
+    if (decl.kind === 'store') {
+      if (!owns(ctx, 'store', decl.name, decl.span)) {
+        current = undefined;
+        continue;
+      }
+      current = { name: decl.name!.text, implicit: false, description: decl.description?.value, symbol: ctx.lookup('store', decl.name!.text)! };
+      ctx.machine.stores.push(current);
+    } else if (decl.kind === 'word' || decl.kind === 'address') {
+      if (!current) {
+        if (ctx.machine.stores.some((s) => !s.implicit)) {
+          ctx.report('wrong-wiring', decl.keyword, 'this layout comes before any `store`, but the file declares named stores: move it under its `store` line');
+          continue;
+        }
+        current = implicitStore();
+      }
+      if (decl.kind === 'word') buildWord(ctx, current, decl);
+      else buildAddress(ctx, current, decl);
+    }
+  }
+}
+
+function buildWord(ctx: BuildContext, store: M.Store, decl: A.WordDecl): void {
+  if (store.word) {
+    ctx.report('duplicate-name', decl.keyword, `store \`${store.name}\` already has a word layout; a store has one`, [{ span: store.word.span, message: 'the first word layout' }]);
+    return;
+  }
+  const width = ctx.number(decl.width, 'the word width', 1, 256);
+  if (width === undefined) return;
+  const chipWidths: number[] = [];
+  if (decl.chips) {
+    const widths = decl.chips.widths.map((w) => ctx.number(w, 'a chip width', 1, 32));
+    const count = decl.chips.count ? ctx.number(decl.chips.count, 'the number of chips', 1, 64) : 1;
+    if (widths.some((w) => w === undefined) || count === undefined) return;
+    if (decl.chips.count) for (let i = 0; i < count; i++) chipWidths.push(widths[0]!);
+    else chipWidths.push(...(widths as number[]));
+  } else {
+    chipWidths.push(width);
+  }
+  const word: M.WordLayout = { width, chipWidths, unusedLevel: 0, placements: [], span: decl.span };
+  for (const option of decl.options) {
+    if (option.key.text === 'chip') {
+      const chip = option.value ? chipType(option.value.text) : undefined;
+      if (!chip) ctx.report('unknown-kind', option.value?.span ?? option.span, `unknown chip \`${option.value?.text ?? ''}\`; name one of ${knownChipNames.join(', ')}, or write its organisation as DEPTHxWIDTH, e.g. \`chip=8192x8\``);
+      else word.chip = chip;
+    } else if (option.key.text === 'unused') {
+      const level = option.value?.text;
+      if (level !== '0' && level !== '1') ctx.report('bad-number', option.value?.span ?? option.span, '`unused=` takes 0 or 1: the level of word bits no strobe occupies');
+      else word.unusedLevel = level === '1' ? 1 : 0;
+    } else {
+      ctx.report('unknown-kind', option.key.span, `a word layout has no setting \`${option.key.text}\`; it takes \`chip=\` and \`unused=\``);
+    }
+  }
+  for (const placement of decl.placements) {
+    const sym = ctx.resolve('signal', placement.target.name, 'strobe or field', (s) => s.kind === 'strobe' || s.kind === 'field');
+    if (!sym) continue;
+    const lo = ctx.number(placement.lo, 'a bit number', 0, 255);
+    const hi = placement.hi ? ctx.number(placement.hi, 'a bit number', 0, 255) : lo;
+    if (lo === undefined || hi === undefined) continue;
+    if (hi < lo) {
+      ctx.report('bad-number', placement.span, `write the low bit first: \`${placement.target.name.text} ${hi}..${lo}\``);
+      continue;
+    }
+    word.placements.push({ signal: sym.name, lo, hi, span: placement.span });
+  }
+  store.word = word;
+}
+
+function buildAddress(ctx: BuildContext, store: M.Store, decl: A.AddressDecl): void {
+  if (store.address) {
+    ctx.report('duplicate-name', decl.keyword, `store \`${store.name}\` already has an address layout; a store has one`, [{ span: store.address.span, message: 'the first address layout' }]);
+    return;
+  }
+  const width = ctx.number(decl.width, 'the number of address lines', 1, 24);
+  if (width === undefined) return;
+  const address: M.AddressLayout = { width, sources: [], span: decl.span };
+  for (const source of decl.sources) {
+    const resolved = ctx.input(source.input, { step: true, field: true });
+    if (!resolved) continue;
+    const lo = ctx.number(source.lo, 'an address line', 0, 63);
+    const hi = source.hi ? ctx.number(source.hi, 'an address line', 0, 63) : lo;
+    if (lo === undefined || hi === undefined) continue;
+    if (hi < lo) {
+      ctx.report('bad-number', source.span, `write the low line first: \`${source.input.name.text} ${hi}..${lo}\``);
+      continue;
+    }
+    address.sources.push({ input: resolved.input, label: resolved.label, lo, hi, span: source.span });
+  }
+  store.address = address;
+  const stepBits = address.sources.filter((s) => s.input.kind === 'step').reduce((n, s) => Math.max(n, s.hi - s.lo + 1), 0);
+  if (stepBits > (ctx.machine.stepBits ?? 0)) ctx.machine.stepBits = stepBits;
+}
+
+export { parseBits };

@@ -1,0 +1,233 @@
+// Builds decode maps, phases and classes: step lines with their guards and actions, phases
+// expanded where classes `use` them. Resolves strobe, field, value and map names in actions.
+import type * as A from '../syntax/ast';
+import type { Span } from '../text/span';
+import { closest } from '../text/suggest';
+import type { BuildContext } from './build';
+import { parseBits } from './numbers';
+import type * as M from './types';
+import { inputWidth } from './vocabulary';
+
+export function buildBodies(ctx: BuildContext, tree: A.FileNode): void {
+  for (const decl of tree.decls) if (decl.kind === 'map') buildMap(ctx, decl);
+  for (const decl of tree.decls) if (decl.kind === 'phase') buildPhase(ctx, decl);
+  for (const decl of tree.decls) if (decl.kind === 'class') buildClass(ctx, decl);
+}
+
+function owned(ctx: BuildContext, ns: 'map' | 'phase' | 'class', name: A.Name | undefined, span: Span): boolean {
+  return !!name && ctx.lookup(ns, name.text)?.declSpan === span;
+}
+
+function buildMap(ctx: BuildContext, decl: A.MapDecl): void {
+  if (!owned(ctx, 'map', decl.name, decl.span)) return;
+  const name = decl.name!.text;
+  const map: M.DecodeMap = { name, inputs: [], rows: [], description: decl.description?.value, symbol: ctx.lookup('map', name)! };
+  let inputsOk = decl.inputs.length > 0;
+  for (const input of decl.inputs) {
+    const resolved = ctx.input(input, {});
+    if (!resolved || resolved.input.kind === 'field' || resolved.input.kind === 'step') {
+      inputsOk = false;
+      continue;
+    }
+    map.inputs.push({ input: resolved.input, label: resolved.label, width: inputWidth(resolved.input), span: input.span });
+  }
+  let field: M.Field | undefined;
+  if (decl.output) {
+    const sym = ctx.resolve('signal', decl.output.name, 'field', (s) => s.kind === 'field');
+    if (!sym && ctx.lookup('signal', decl.output.name.text)) {
+      ctx.report('wrong-wiring', decl.output.span, `a map sets a field; \`${decl.output.name.text}\` is a one-bit strobe`);
+    }
+    const signal = sym ? ctx.machine.signals.get(sym.name) : undefined;
+    if (signal?.type === 'field') {
+      field = signal;
+      map.output = field.name;
+    }
+  } else if (decl.name) {
+    ctx.report('wrong-wiring', decl.name.span, `say which field the map sets, e.g. \`map ${name} (funct3) -> alu.fn\``);
+  }
+  if (inputsOk) {
+    for (const row of decl.rows) {
+      const patterns: string[] = [];
+      let ok = true;
+      row.patterns.forEach((lit, i) => {
+        const input = map.inputs[i];
+        const bits = parseBits(lit.text);
+        const expanded = bits === '-' && input ? '-'.repeat(input.width) : bits;
+        if (!input) return;
+        if (expanded === undefined || expanded.length !== input.width) {
+          ctx.report('bad-number', lit.span, `\`${input.label}\` has ${input.width} bit(s): write ${input.width} of 0, 1 or - (any), e.g. \`${'0'.repeat(input.width)}\``);
+          ok = false;
+          return;
+        }
+        patterns.push(expanded);
+      });
+      if (!ok || !row.value || !field) continue;
+      const value = field.values.get(row.value.text);
+      if (!value) {
+        ctx.undefinedName(row.value, `value of \`${field.name}\``, [...field.values.keys()]);
+        continue;
+      }
+      ctx.reference(row.value.span, value.symbol);
+      map.rows.push({ patterns, value: value.name, code: value.code, span: row.span });
+    }
+  }
+  ctx.machine.maps.set(name, map);
+}
+
+function buildPhase(ctx: BuildContext, decl: A.PhaseDecl): void {
+  if (!owned(ctx, 'phase', decl.name, decl.span)) return;
+  const phase: M.Phase = { name: decl.name!.text, description: decl.description?.value, steps: [], symbol: ctx.lookup('phase', decl.name!.text)! };
+  for (const item of decl.body) {
+    if (item.kind === 'step') {
+      const alt = buildStep(ctx, item);
+      if (alt) phase.steps.push(alt);
+    }
+  }
+  ctx.machine.phases.set(phase.name, phase);
+}
+
+function buildClass(ctx: BuildContext, decl: A.ClassDecl): void {
+  if (!owned(ctx, 'class', decl.name, decl.span)) return;
+  const cls: M.ClassDef = { name: decl.name!.text, description: decl.description?.value, steps: new Map(), symbol: ctx.lookup('class', decl.name!.text)! };
+  for (const option of decl.options) {
+    if (option.key.text !== 'opcode') {
+      ctx.report('unknown-kind', option.key.span, `a class has no setting \`${option.key.text}\`; it takes \`opcode=\` and the seven opcode bits`);
+      continue;
+    }
+    const text = option.value?.text ?? '';
+    let opcode: number | undefined;
+    if (/^[01]{7}$/.test(text)) opcode = parseInt(text, 2);
+    else if (/^0x[0-9a-f]{1,2}$/i.test(text)) opcode = parseInt(text.slice(2), 16);
+    if (opcode === undefined || opcode > 0x7f) {
+      ctx.report('bad-number', option.value?.span ?? option.span, 'write the opcode as seven bits, e.g. `opcode=0110011` (instruction bits 6..0)');
+      continue;
+    }
+    cls.opcode = opcode;
+    cls.opcodeSpan = option.value!.span;
+  }
+  const add = (alt: M.StepAlt) => {
+    const list = cls.steps.get(alt.step);
+    if (list) list.push(alt);
+    else cls.steps.set(alt.step, [alt]);
+  };
+  let nextStep = 0;
+  for (const item of decl.body) {
+    if (item.kind === 'use') {
+      if (!item.phase) continue;
+      const sym = ctx.resolve('phase', item.phase, 'phase');
+      const phase = sym ? ctx.machine.phases.get(sym.name) : undefined;
+      if (!phase) continue;
+      const at = item.at ? ctx.number(item.at, 'a step number', 0, 1023) : nextStep;
+      if (at === undefined) continue;
+      let last = at - 1;
+      for (const step of phase.steps) {
+        add({ ...step, step: at + step.step, phase: { name: phase.name, useSpan: item.span } });
+        last = Math.max(last, at + step.step);
+      }
+      nextStep = Math.max(nextStep, last + 1);
+    } else {
+      const alt = buildStep(ctx, item);
+      if (!alt) continue;
+      add(alt);
+      nextStep = Math.max(nextStep, alt.step + 1);
+    }
+  }
+  ctx.machine.classes.push(cls);
+}
+
+function buildStep(ctx: BuildContext, line: A.StepLine): M.StepAlt | undefined {
+  const step = ctx.number(line.number, 'a step number', 0, 1023);
+  if (step === undefined) return undefined;
+  const alt: M.StepAlt = { step, guard: null, isElse: false, actions: [], span: line.span, numberSpan: line.number.span };
+  if (line.guard?.elseKeyword) alt.isElse = true;
+  else if (line.guard) alt.guard = buildGuard(ctx, line.guard);
+  for (const action of line.actions) {
+    const built = buildAction(ctx, action);
+    if (built) alt.actions.push(built);
+  }
+  return alt;
+}
+
+function buildGuard(ctx: BuildContext, guard: A.GuardNode): M.GuardLiteral[] {
+  const literals: M.GuardLiteral[] = [];
+  for (const term of guard.terms) {
+    const resolved = ctx.input(term.input, {});
+    if (!resolved || resolved.input.kind === 'field' || resolved.input.kind === 'step') continue;
+    const width = inputWidth(resolved.input);
+    let bits: string | undefined;
+    if (term.pattern) {
+      bits = parseBits(term.pattern.text);
+      if (bits === '-') bits = '-'.repeat(width);
+      if (bits === undefined || bits.length !== width) {
+        ctx.report('bad-number', term.pattern.span, `\`${resolved.label}\` has ${width} bit(s): write ${width} of 0, 1 or - (any)`);
+        continue;
+      }
+      if (term.negated) {
+        if (width !== 1) {
+          ctx.report('bad-number', term.negated, `\`!\` tests a one-bit input; for \`${resolved.label}\` write the bits you want instead`);
+          continue;
+        }
+        bits = bits === '1' ? '0' : bits === '0' ? '1' : bits;
+      }
+    } else if (width === 1) {
+      bits = term.negated ? '0' : '1';
+    } else {
+      ctx.report('bad-number', term.span, `\`${resolved.label}\` has ${width} bits: compare it with a pattern, e.g. \`${resolved.label}=${'0'.repeat(width)}\``);
+      continue;
+    }
+    literals.push({ input: resolved.input, label: resolved.label, bits, span: term.span });
+  }
+  return literals;
+}
+
+function buildAction(ctx: BuildContext, action: A.ActionNode): M.Action | undefined {
+  const target = action.target.name;
+  const sym = ctx.lookup('signal', target.text);
+  if (!sym || (sym.kind !== 'strobe' && sym.kind !== 'field')) {
+    ctx.undefinedName(target, 'strobe or field', [...ctx.machine.signals.keys()]);
+    return undefined;
+  }
+  ctx.reference(target.span, sym);
+  const signal = ctx.machine.signals.get(sym.name);
+  if (!signal) return undefined;
+  if (signal.type === 'strobe') {
+    if (action.equals) {
+      ctx.report('wrong-wiring', action.span, `\`${signal.name}\` is a strobe: list its name to assert it, without \`=\``, undefined, [
+        { title: `Assert \`${signal.name}\``, edits: [{ span: action.span, newText: signal.name }], preferred: true },
+      ]);
+    }
+    return { signal: signal.name, span: action.span };
+  }
+  if (!action.equals || !action.value) {
+    if (!action.equals) {
+      ctx.report('wrong-wiring', action.span, `\`${signal.name}\` is a field: give it a value, e.g. \`${signal.name}=${[...signal.values.keys()][0] ?? 'VALUE'}\``);
+    }
+    return undefined;
+  }
+  const valueName = action.value.text;
+  const value = signal.values.get(valueName);
+  if (value) {
+    ctx.reference(action.value.span, value.symbol);
+    return { signal: signal.name, value: { kind: 'code', name: value.name, code: value.code }, span: action.span };
+  }
+  const mapSym = ctx.lookup('map', valueName);
+  if (mapSym) {
+    ctx.reference(action.value.span, mapSym);
+    const map = ctx.machine.maps.get(valueName);
+    if (map && map.output && map.output !== signal.name) {
+      ctx.report('wrong-wiring', action.value.span, `the map \`${valueName}\` sets \`${map.output}\`, not \`${signal.name}\``);
+      return undefined;
+    }
+    return { signal: signal.name, value: { kind: 'map', map: valueName }, span: action.span };
+  }
+  const candidates = [...signal.values.keys(), ...[...ctx.machine.maps.values()].filter((m) => m.output === signal.name).map((m) => m.name)];
+  const guess = closest(valueName, candidates);
+  ctx.report(
+    'undefined-name',
+    action.value.span,
+    `\`${signal.name}\` has no value or map named \`${valueName}\`` + (guess ? `; did you mean \`${guess}\`?` : `; its values are ${[...signal.values.keys()].join(', ')}`),
+    undefined,
+    guess ? [{ title: `Change to \`${guess}\``, edits: [{ span: action.value.span, newText: guess }], preferred: true }] : undefined,
+  );
+  return undefined;
+}

@@ -1,0 +1,287 @@
+// The semantic model of one machine: what the checks, the encoder, the simulator and the
+// editor features read. It is built from a possibly broken syntax tree, so every collection
+// holds only what could be understood; problems were reported while building it. Names map to
+// the first declaration of that name (later duplicates are reported and left out).
+import type { Span } from '../text/span';
+
+export type Level = 'high' | 'low';
+
+export type SymbolKind = 'bus' | 'part' | 'port' | 'flag' | 'strobe' | 'field' | 'value' | 'map' | 'phase' | 'class' | 'store';
+
+/** A declared name. `key` identifies it uniquely (values are `field/value`, ports `part.port`). */
+export interface SymbolInfo {
+  kind: SymbolKind;
+  name: string;
+  key: string;
+  /** The span of the name where it is declared. */
+  span: Span;
+  /** The whole declaration (line or block). */
+  declSpan: Span;
+}
+
+/** A use of a declared name, at `span` (the name's text only). */
+export interface Reference {
+  span: Span;
+  symbol: SymbolInfo;
+}
+
+export interface Bus {
+  name: string;
+  width: number;
+  keeper: boolean;
+  description?: string;
+  symbol: SymbolInfo;
+  figures: Figures;
+}
+
+export type PartKind = 'regfile' | 'register' | 'counter' | 'instruction' | 'immediate' | 'alu' | 'compare' | 'memory' | 'constant';
+
+interface PartBase {
+  name: string;
+  width: number;
+  description?: string;
+  symbol: SymbolInfo;
+  /** The field that selects this part's operation, format, size or condition, if any. */
+  controlField?: string;
+  figures: Figures;
+}
+
+export interface RegfilePart extends PartBase {
+  kind: 'regfile';
+  /** hardwired: reads 0, ignores writes; stored: a real register; guarded: stored, with its clock blocked when rd = 0. */
+  x0: 'hardwired' | 'stored' | 'guarded';
+}
+export interface RegisterPart extends PartBase {
+  kind: 'register' | 'instruction';
+  reset: number;
+}
+export interface CounterPart extends PartBase {
+  kind: 'counter';
+  increment: number;
+  /** RV32I jump targets clear bit 0; a counter with bit0=zero stores it as 0. */
+  bit0Zero: boolean;
+  reset: number;
+}
+export interface ImmediatePart extends PartBase {
+  kind: 'immediate';
+  /** The instruction register whose bits it rearranges. */
+  source: string;
+}
+export interface AluPart extends PartBase {
+  kind: 'alu';
+  a: string;
+  b: string;
+}
+export interface ComparePart extends PartBase {
+  kind: 'compare';
+  a: string;
+  b: string;
+  flag: string;
+  /** `funct3`: the condition is wired to the instruction's funct3 (RV32I branch encoding); else a field. */
+  condition: 'funct3' | 'field';
+}
+export interface MemoryPart extends PartBase {
+  kind: 'memory';
+  /** A register part or a bus that supplies the byte address. */
+  address: string;
+  addressFrom: 'part' | 'bus';
+}
+export interface ConstantPart extends PartBase {
+  kind: 'constant';
+  value: number;
+}
+
+export type Part = RegfilePart | RegisterPart | CounterPart | ImmediatePart | AluPart | ComparePart | MemoryPart | ConstantPart;
+
+/** A one-bit flag produced by a part (a comparator) and usable as an address input. */
+export interface Flag {
+  name: string;
+  part: string;
+  symbol: SymbolInfo;
+}
+
+export type StrobeKind = 'enable' | 'read' | 'write' | 'clock' | 'count' | 'end' | 'trap';
+
+/** Electrical and timing figures (`name=value`), kept as numbers with their spans. */
+export type Figures = Map<string, { value: number; span: Span }>;
+
+export interface Strobe {
+  type: 'strobe';
+  name: string;
+  kind: StrobeKind;
+  active: Level;
+  /** True when `active` was written; the default is high. */
+  activeWritten: boolean;
+  description?: string;
+  /** The part driven, loaded, counted, read or written. */
+  part?: string;
+  /** Regfile port: rs1, rs2, rd, or `x[n]` for a fixed register. */
+  port?: string;
+  /** For `x[n]` ports. */
+  register?: number;
+  /** The bus driven (enable, read) or loaded from (clock, write). */
+  bus?: string;
+  symbol: SymbolInfo;
+  figures: Figures;
+}
+
+export interface FieldValue {
+  name: string;
+  code: number;
+  symbol: SymbolInfo;
+}
+
+export interface Field {
+  type: 'field';
+  name: string;
+  width: number;
+  target?: string;
+  values: Map<string, FieldValue>;
+  /** Code the field holds where no step sets it (the fill word's value). */
+  idle: number;
+  description?: string;
+  symbol: SymbolInfo;
+}
+
+export type Signal = Strobe | Field;
+
+/** An address input variable: instruction-register bits, a flag, or the step counter. */
+export type InputVar = { kind: 'ir'; hi: number; lo: number } | { kind: 'flag'; name: string } | { kind: 'step' };
+
+export interface Placement {
+  signal: string;
+  lo: number;
+  hi: number;
+  span: Span;
+}
+
+export interface ChipType {
+  name: string;
+  /** Number of addresses (words) each chip holds. */
+  depth: number;
+  /** Data bits per chip. */
+  width: number;
+}
+
+export interface WordLayout {
+  width: number;
+  chipWidths: number[];
+  chip?: ChipType;
+  /** Level of word bits no signal occupies. */
+  unusedLevel: 0 | 1;
+  placements: Placement[];
+  span: Span;
+}
+
+export interface AddressSource {
+  /** What feeds these address lines. `field` is a field of another store (an entry-point decoder). */
+  input: InputVar | { kind: 'field'; name: string };
+  /** Display name as written (`funct3`, `ir[20]`, `taken`). */
+  label: string;
+  lo: number;
+  hi: number;
+  span: Span;
+}
+
+export interface AddressLayout {
+  width: number;
+  sources: AddressSource[];
+  span: Span;
+}
+
+export interface Store {
+  name: string;
+  implicit: boolean;
+  description?: string;
+  word?: WordLayout;
+  address?: AddressLayout;
+  symbol: SymbolInfo;
+}
+
+/** One condition on an address input: its bits, most significant first, with `-` for any. */
+export interface GuardLiteral {
+  input: InputVar;
+  label: string;
+  bits: string;
+  span: Span;
+}
+
+export type ActionValue = { kind: 'code'; name: string; code: number } | { kind: 'map'; map: string };
+
+export interface Action {
+  signal: string;
+  value?: ActionValue;
+  span: Span;
+}
+
+/** One alternative of a step: its guard (null = always) and what it asserts. */
+export interface StepAlt {
+  step: number;
+  guard: GuardLiteral[] | null;
+  isElse: boolean;
+  actions: Action[];
+  /** The step line. */
+  span: Span;
+  numberSpan: Span;
+  /** Set when the step comes from a phase through `use`. */
+  phase?: { name: string; useSpan: Span };
+}
+
+export interface MapRow {
+  patterns: string[];
+  value: string;
+  code: number;
+  span: Span;
+}
+
+export interface DecodeMap {
+  name: string;
+  inputs: { input: InputVar; label: string; width: number; span: Span }[];
+  output?: string;
+  rows: MapRow[];
+  description?: string;
+  symbol: SymbolInfo;
+}
+
+export interface Phase {
+  name: string;
+  description?: string;
+  steps: StepAlt[];
+  symbol: SymbolInfo;
+}
+
+export interface ClassDef {
+  name: string;
+  /** The 7-bit major opcode, when given and valid. */
+  opcode?: number;
+  opcodeSpan?: Span;
+  description?: string;
+  /** Alternatives by step number, phases expanded. */
+  steps: Map<number, StepAlt[]>;
+  symbol: SymbolInfo;
+}
+
+export interface Machine {
+  title?: string;
+  isa?: string;
+  buses: Map<string, Bus>;
+  parts: Map<string, Part>;
+  flags: Map<string, Flag>;
+  signals: Map<string, Signal>;
+  stores: Store[];
+  maps: Map<string, DecodeMap>;
+  phases: Map<string, Phase>;
+  classes: ClassDef[];
+  symbols: SymbolInfo[];
+  references: Reference[];
+  /** Width of the step counter: the widest `step` address source of any store. */
+  stepBits?: number;
+  /** The instruction register, when exactly one is declared. */
+  instructionRegister?: string;
+}
+
+/** Where a signal sits: the store, its bits, and the chips those bits land in. */
+export interface SignalLocation {
+  store: Store;
+  placement: Placement;
+}

@@ -1,0 +1,252 @@
+// The syntax tree of a control-table file. Every node carries the exact span it was parsed
+// from; optional fields are missing when the user has not typed them yet, so every later
+// stage must accept partial trees. The tree says nothing about meaning: names are not
+// resolved and numbers are kept as written (a `101` is a pattern in a guard, a count elsewhere).
+import type { Span } from '../text/span';
+
+export interface Name {
+  text: string;
+  span: Span;
+}
+
+/** A number or bit pattern as written; its meaning depends on where it stands. */
+export interface Literal {
+  text: string;
+  span: Span;
+}
+
+export interface StringLit {
+  /** The text between the quotes, escapes resolved. */
+  value: string;
+  span: Span;
+}
+
+/** A reference to a declared thing: `alu`, `x.rs1`, or an indexed register `x[0]`. */
+export interface Ref {
+  name: Name;
+  index?: Literal;
+  span: Span;
+}
+
+/** `key=value` on a declaration line (`x0=hardwired`, `chip=28C64`, `opcode=0110011`). */
+export interface OptionNode {
+  key: Name;
+  value?: Name | Literal;
+  span: Span;
+}
+
+/** An address input as written: `step`, `funct3`, `taken`, `ir[20]`, `ir[14:12]`. */
+export interface InputRef {
+  name: Name;
+  /** For `ir[hi]` or `ir[hi:lo]`. */
+  bitHi?: Literal;
+  bitLo?: Literal;
+  span: Span;
+}
+
+interface DeclBase {
+  span: Span;
+  keyword: Span;
+  description?: StringLit;
+}
+
+export interface MachineDecl extends DeclBase {
+  kind: 'machine';
+  title?: StringLit;
+  isa?: Name;
+}
+
+export interface BusDecl extends DeclBase {
+  kind: 'bus';
+  name?: Name;
+  width?: Literal;
+  keeper?: Span;
+  options: OptionNode[];
+}
+
+export type PartArg =
+  | { kind: 'word'; name: Name; span: Span }
+  | { kind: 'number'; value: Literal; span: Span }
+  | { kind: 'option'; option: OptionNode; span: Span }
+  | { kind: 'arrow'; target?: Name; span: Span };
+
+export interface PartDecl extends DeclBase {
+  kind: 'part';
+  name?: Name;
+  partKind?: Name;
+  args: PartArg[];
+}
+
+export interface StrobeDecl extends DeclBase {
+  kind: 'strobe';
+  name?: Name;
+  strobeKind?: Name;
+  /** What comes before the arrow (or the only operand, for `count pc`). */
+  source?: Ref;
+  arrow?: Span;
+  target?: Ref;
+  activeKeyword?: Span;
+  level?: Name;
+  /** Electrical and timing figures (`load=12`); see docs/notation.md. */
+  options: OptionNode[];
+}
+
+export interface FieldValueNode {
+  name: Name;
+  code?: Literal;
+  span: Span;
+}
+
+export interface FieldDecl extends DeclBase {
+  kind: 'field';
+  name?: Name;
+  width?: Literal;
+  arrow?: Span;
+  target?: Ref;
+  options: OptionNode[];
+  values: FieldValueNode[];
+  open?: Span;
+  close?: Span;
+}
+
+export interface StoreDecl extends DeclBase {
+  kind: 'store';
+  name?: Name;
+}
+
+export interface ChipSpec {
+  span: Span;
+  /** `4 x 8`: count and one width. `8 + 8 + 16`: widths only. */
+  count?: Literal;
+  widths: Literal[];
+}
+
+export interface Placement {
+  target: Ref;
+  lo?: Literal;
+  hi?: Literal;
+  span: Span;
+}
+
+export interface WordDecl extends DeclBase {
+  kind: 'word';
+  width?: Literal;
+  chips?: ChipSpec;
+  options: OptionNode[];
+  placements: Placement[];
+}
+
+export interface AddressSource {
+  input: InputRef;
+  lo?: Literal;
+  hi?: Literal;
+  span: Span;
+}
+
+export interface AddressDecl extends DeclBase {
+  kind: 'address';
+  width?: Literal;
+  sources: AddressSource[];
+}
+
+export interface MapRow {
+  patterns: Literal[];
+  value?: Name;
+  span: Span;
+}
+
+export interface MapDecl extends DeclBase {
+  kind: 'map';
+  name?: Name;
+  inputs: InputRef[];
+  arrow?: Span;
+  output?: Ref;
+  rows: MapRow[];
+}
+
+export interface GuardTerm {
+  negated?: Span;
+  input: InputRef;
+  pattern?: Literal;
+  span: Span;
+}
+
+export interface GuardNode {
+  terms: GuardTerm[];
+  /** Set for `N else:`, the alternative taken when no other guard of the step matches. */
+  elseKeyword?: Span;
+  span: Span;
+}
+
+export interface ActionNode {
+  target: Ref;
+  equals?: Span;
+  /** A value name of the field, or the name of a decode map. */
+  value?: Name;
+  span: Span;
+}
+
+export interface StepLine {
+  kind: 'step';
+  number: Literal;
+  guard?: GuardNode;
+  colon?: Span;
+  actions: ActionNode[];
+  span: Span;
+}
+
+export interface UseLine {
+  kind: 'use';
+  keyword: Span;
+  phase?: Name;
+  at?: Literal;
+  span: Span;
+}
+
+export type BodyItem = StepLine | UseLine;
+
+export interface PhaseDecl extends DeclBase {
+  kind: 'phase';
+  name?: Name;
+  body: BodyItem[];
+}
+
+export interface ClassDecl extends DeclBase {
+  kind: 'class';
+  name?: Name;
+  options: OptionNode[];
+  body: BodyItem[];
+}
+
+export type Decl =
+  | MachineDecl
+  | BusDecl
+  | PartDecl
+  | StrobeDecl
+  | FieldDecl
+  | StoreDecl
+  | WordDecl
+  | AddressDecl
+  | MapDecl
+  | PhaseDecl
+  | ClassDecl;
+
+export interface FileNode {
+  decls: Decl[];
+  span: Span;
+}
+
+/** Words that start a declaration when they begin a line. */
+export const declarationKeywords = [
+  'machine',
+  'bus',
+  'part',
+  'strobe',
+  'field',
+  'store',
+  'word',
+  'address',
+  'map',
+  'phase',
+  'class',
+] as const;

@@ -1,0 +1,1 @@
+// placeholder entry until the language server lands; see issue 3.
