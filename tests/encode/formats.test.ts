@@ -20,6 +20,7 @@ import {
   readIntelHex,
   readMemh,
   readSRecord,
+  splitWordsIntoChips,
   sum16,
   verifyReadBack,
   writeIntelHex,
@@ -346,5 +347,33 @@ describe('checksums', () => {
     }
     // A 16-bit word 0xFFFF counts as two bytes of FF.
     expect(imageSum16({ widthBits: 16, words: new Uint16Array([0xffff]) })).toBe(0x1fe);
+  });
+});
+
+describe('splitting control words into chips', () => {
+  const values = (images: ChipImage[]): string[][] =>
+    images.map((image) => Array.from(image.words, (word) => word.toString(16).toUpperCase()));
+
+  it('gives chip 0 the least significant bits, then upwards', () => {
+    const words = new Uint32Array([0x89abcdef, 0x01234567]);
+    expect(values(splitWordsIntoChips(words, 1, [8, 8, 8, 8]))).toEqual([['EF', '67'], ['CD', '45'], ['AB', '23'], ['89', '1']]);
+    expect(values(splitWordsIntoChips(words, 1, [16, 16]))).toEqual([['CDEF', '4567'], ['89AB', '123']]);
+    expect(values(splitWordsIntoChips(words, 1, [8, 16, 8]))).toEqual([['EF', '67'], ['ABCD', '2345'], ['89', '1']]);
+    expect(splitWordsIntoChips(words, 1, [8, 8, 8, 8]).map((image) => image.widthBits)).toEqual([8, 8, 8, 8]);
+    expect(splitWordsIntoChips(words, 1, [16])[0]!.words).toBeInstanceOf(Uint16Array);
+  });
+
+  it('takes chips across the 32-bit lanes of wide words', () => {
+    // One 40-bit word 0x12_89ABCDEF stored as two lanes, low lane first.
+    const words = new Uint32Array([0x89abcdef, 0x12]);
+    expect(values(splitWordsIntoChips(words, 2, [8, 16, 16]))).toEqual([['EF'], ['ABCD'], ['1289']]);
+    expect(values(splitWordsIntoChips(words, 2, [32, 8]))).toEqual([['89ABCDEF'], ['12']]);
+    expect(values(splitWordsIntoChips(words, 2, [16, 16, 16, 8]))).toEqual([['CDEF'], ['89AB'], ['12'], ['0']]);
+  });
+
+  it('refuses widths and layouts it cannot represent', () => {
+    expect(() => splitWordsIntoChips(new Uint32Array(2), 1, [8, 12])).toThrow(/chip width 12 bits is not supported/);
+    expect(() => splitWordsIntoChips(new Uint32Array(3), 2, [8])).toThrow(/3 lane values is not a whole number of 2-lane words/);
+    expect(() => splitWordsIntoChips(new Uint32Array(2), 0, [8])).toThrow(/at least one 32-bit lane/);
   });
 });

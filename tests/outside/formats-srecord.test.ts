@@ -9,6 +9,7 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import {
   imageBytes,
+  splitWordsIntoChips,
   writeBinary,
   writeIntelHex,
   writeSRecord,
@@ -100,6 +101,11 @@ describe.skipIf(!canRun)('byte lanes of a 32-bit store', () => {
     widthBits: 8 as const,
     words: Uint8Array.from(store.words, (word) => (word >>> (8 * lane)) & 0xff),
   }));
+
+  it('our chip splitter gives the same lanes as the plain shift-and-mask above', () => {
+    const split = splitWordsIntoChips(store.words, 1, [8, 8, 8, 8]);
+    split.forEach((chip, lane) => expect(Buffer.compare(Buffer.from(chip.words), Buffer.from(lanes[lane]!.words))).toBe(0));
+  });
 
   it('srec_cat -split 4 N gives exactly our lane images', () => {
     put('full32.bin', writeBinary(store));

@@ -301,6 +301,20 @@ export function writeOutputSet(request: OutputSetRequest): OutputSetReport {
   const now = request.now ?? (() => new Date());
   const safe = { fs };
 
+  const seenNames = new Map<string, string>();
+  for (const spec of request.files) {
+    const displayPath = path.join(folder, spec.name);
+    const checked = checkOutputName(spec.name);
+    if (!checked.ok) throw new OutputError(displayPath, checked.reason);
+    const key = spec.name.toLowerCase();
+    if (key === manifestFileName) throw new OutputError(displayPath, 'that name is reserved for the output manifest');
+    const clash = seenNames.get(key);
+    if (clash !== undefined) {
+      throw new OutputError(displayPath, `the build produces both ${clash} and ${spec.name}, which are the same file on some systems`);
+    }
+    seenNames.set(key, spec.name);
+  }
+
   try {
     const stats = fs.lstatSync(folder);
     if (!stats.isDirectory() && !(stats.isSymbolicLink() && isDirectory(fs, folder))) {
@@ -316,20 +330,6 @@ export function writeOutputSet(request: OutputSetRequest): OutputSetReport {
     } catch (mkdirError) {
       throw new OutputError(folder, `the output folder cannot be created (${mkdirError instanceof Error ? mkdirError.message : String(mkdirError)})`, 'create');
     }
-  }
-
-  const seenNames = new Map<string, string>();
-  for (const spec of request.files) {
-    const displayPath = path.join(folder, spec.name);
-    const checked = checkOutputName(spec.name);
-    if (!checked.ok) throw new OutputError(displayPath, checked.reason);
-    const key = spec.name.toLowerCase();
-    if (key === manifestFileName) throw new OutputError(displayPath, 'that name is reserved for the output manifest');
-    const clash = seenNames.get(key);
-    if (clash !== undefined) {
-      throw new OutputError(displayPath, `the build produces both ${clash} and ${spec.name}, which are the same file on some systems`);
-    }
-    seenNames.set(key, spec.name);
   }
 
   const previous = readManifest(folder, fs);

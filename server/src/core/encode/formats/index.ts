@@ -24,6 +24,7 @@ export { parseIntelHex, readIntelHex, writeIntelHex, writeIntelHexBytes, type In
 export { parseSRecord, readSRecord, writeSRecord, writeSRecordBytes, type SRecordContents, type SRecordWriteOptions } from './srec';
 export { parseMemh, readMemh, writeMemh, type MemhContents, type MemhWriteOptions } from './memh';
 export { readBinary, writeBinary } from './bin';
+export { splitWordsIntoChips } from './chips';
 export type { LineEnding } from './ascii';
 
 /** Options every writer accepts; each format uses the ones that mean something to it. */
@@ -109,7 +110,7 @@ export function isImageFormatName(value: string): value is ImageFormatName {
 export function verifyReadBack(format: ImageFormatName, written: Uint8Array, image: ChipImage): FormatResult<void> {
   const read = imageFormats[format].read(written, image.widthBits);
   if (!read.ok) {
-    return failure(format, `the ${imageFormats[format].title} text we produced does not read back: ${read.error.message}`);
+    return failure(format, `the ${imageFormats[format].title} file we produced does not read back: ${read.error.message}`);
   }
   const address = firstDifference(read.value, image);
   if (address >= 0) {
