@@ -1,0 +1,180 @@
+// Names and declarations: undefined (with the closest name suggested and a fix), duplicate,
+// unused, unknown kinds and settings, wrong wiring, bad numbers, width mismatches.
+import { describe, expect, it } from 'vitest';
+import { analyse } from '../../server/src/core/analysis';
+import { dedent, expectDiagnostics } from '../support/annotated';
+
+const base = dedent(`
+  bus result 8
+  part a register 8
+  part b register 8
+  strobe a.oe enable a -> result active low
+  strobe b.ck clock result -> b
+  strobe done end
+  word 8 as 1 x 8
+    a.oe 0  b.ck 1  done 2
+  address 1
+    step 0
+`);
+
+function applyFix(text: string, fix: { edits: { span: { start: number; end: number }; newText: string }[] }): string {
+  const edits = [...fix.edits].sort((x, y) => y.span.start - x.span.start);
+  for (const e of edits) text = text.slice(0, e.span.start) + e.newText + text.slice(e.span.end);
+  return text;
+}
+
+describe('undefined-name', () => {
+  it('suggests the closest declared name and offers it as a fix', () => {
+    const a = expectDiagnostics(
+      base +
+        dedent(`
+          class OP opcode=0110011
+            0: a.oe, a.ce, b.ck, done
+          #          ^^^^ undefined-name: did you mean \`a.oe\`?
+        `),
+      ['undefined-name'],
+    );
+    const fixed = applyFix(a.text, a.diagnostics.find((d) => d.code === 'undefined-name')!.fixes![0]);
+    expect(fixed).toContain('0: a.oe, a.oe, b.ck, done');
+  });
+
+  it('covers field values, maps, phases, parts and buses', () => {
+    expectDiagnostics(
+      dedent(`
+        bus left 8
+        bus result 8
+        part alu alu left rezult
+        #                 ^^^^^^ undefined-name: did you mean \`result\`?
+        part r register 8
+        strobe r.ck clock result -> r
+        strobe r.oe enable r -> left
+        strobe q.oe enable q -> left
+        #                  ^ undefined-name: no part is named \`q\`
+        field f 2 { one=1 two=2 }
+        class OP opcode=0110011
+          use fetsh
+        #     ^^^^^ undefined-name
+          0: r.oe, f=tree, r.ck
+        #            ^^^^ undefined-name: has no value or map named \`tree\`
+      `),
+      ['undefined-name'],
+    );
+  });
+
+  it('is silent when every name is declared, including forward references', () => {
+    expectDiagnostics(
+      dedent(`
+        class OP opcode=0110011
+          0: a.oe, b.ck, done
+      `) + base,
+      ['undefined-name'],
+    );
+  });
+});
+
+describe('duplicate-name and unused-name', () => {
+  it('duplicate-name points at the second declaration with the first as related', () => {
+    const a = expectDiagnostics(
+      base.replace('strobe done end', 'strobe done end\nstrobe a.oe enable b -> result\n#      ^^^^ duplicate-name: already declared as a strobe'),
+      ['duplicate-name'],
+    );
+    const d = a.diagnostics.find((x) => x.code === 'duplicate-name')!;
+    expect(a.text.slice(d.related![0].span.start, d.related![0].span.end)).toBe('a.oe');
+  });
+
+  it('buses and parts share names; strobes live apart from them', () => {
+    expectDiagnostics(
+      dedent(`
+        bus a 8
+        part a register 8
+        #    ^ duplicate-name
+        strobe result end
+      `),
+      ['duplicate-name'],
+    );
+  });
+
+  it('unused-name warns, and its fix removes the strobe and its placement', () => {
+    const text = base.replace('strobe done end', 'strobe done end\nstrobe b.oe enable b -> result active low').replace('done 2', 'done 2\n  b.oe 3') + 'class OP opcode=0110011\n  0: a.oe, b.ck, done\n';
+    const a = analyse(text);
+    const d = a.diagnostics.filter((x) => x.code === 'unused-name');
+    expect(d.map((x) => [x.severity, x.message])).toEqual([['warning', 'strobe `b.oe` is never used']]);
+    const fixed = applyFix(a.text, d[0].fixes![0]);
+    expect(fixed).not.toContain('b.oe');
+    expect(analyse(fixed).diagnostics).toEqual([]);
+  });
+});
+
+describe('declarations', () => {
+  it('unknown-kind: part kinds, strobe kinds, settings and chips, with suggestions', () => {
+    expectDiagnostics(
+      dedent(`
+        bus result 8
+        part a regster 8
+        #      ^^^^^^^ unknown-kind: did you mean \`register\`?
+        part c counter 8 incr=4
+        #                ^^^^ unknown-kind: did you mean \`inc\`?
+        strobe c.oe enabel c -> result
+        #           ^^^^^^ unknown-kind: did you mean \`enable\`?
+        word 8 as 1 x 8 chip=28C99
+        #                    ^^^^^ unknown-kind: unknown chip
+      `),
+      ['unknown-kind'],
+    );
+  });
+
+  it('wrong-wiring: ports used the wrong way, fields on parts without a function, bad value names', () => {
+    expectDiagnostics(
+      dedent(`
+        bus result 32
+        part ir instruction 32
+        part x regfile 32
+        part r register 32
+        part alu alu result result
+        strobe x.rd.oe enable x.rd -> result
+        #                     ^^^^ wrong-wiring: the rd port is an input
+        strobe x.rs1.ck clock result -> x.rs1
+        #                               ^^^^^ wrong-wiring: is an output
+        strobe r.inc count r
+        #                  ^ wrong-wiring: only a counter counts
+        field r.mode 2 -> r { a=0 }
+        #                 ^ wrong-wiring: has no function to select
+        field alu.fn 4 -> alu { add=0 plus=1 }
+        #                             ^^^^ wrong-wiring: means nothing to a alu part
+      `),
+      ['wrong-wiring'],
+    );
+  });
+
+  it('bad-number: malformed widths, patterns of the wrong length, reversed ranges', () => {
+    expectDiagnostics(
+      dedent(`
+        bus result 3z
+        #          ^^ bad-number: is not a number
+        strobe a end
+        word 8 as 1 x 8
+          a 3..1
+        # ^^^^^^ bad-number: write the low bit first
+        map m (funct3) -> f
+          01 one
+        # ^^ bad-number: has 3 bit(s)
+      `),
+      ['bad-number'],
+    );
+  });
+
+  it('width-mismatch warns when a part and its bus differ', () => {
+    const a = analyse(base.replace('part a register 8', 'part a register 16'));
+    expect(a.diagnostics.filter((d) => d.code === 'width-mismatch').map((d) => d.severity)).toEqual(['warning']);
+    expect(analyse(base).diagnostics.filter((d) => d.code === 'width-mismatch')).toEqual([]);
+  });
+});
+
+describe('severity settings', () => {
+  it('change or silence a code', () => {
+    const text = base + 'class OP opcode=0110011\n  0: a.oe, a.oe, b.ck, done\n';
+    expect(analyse(text).diagnostics.map((d) => d.severity)).toEqual(['warning']);
+    expect(analyse(text, { severities: { 'repeated-strobe': 'error' } }).diagnostics.map((d) => d.severity)).toEqual(['error']);
+    expect(analyse(text, { severities: { 'repeated-strobe': 'off' } }).diagnostics).toEqual([]);
+  });
+});
