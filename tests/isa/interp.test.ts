@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { encodeInstruction, type EncodeOperands } from '../../server/src/core/isa/rv32i';
 import { LinuxUserEnvironment } from '../../server/src/core/isa/environment';
-import { Rv32iReference, SparseMemory, describeStop } from '../../server/src/core/isa/interp';
+import { Rv32iReference, SparseMemory, describeStop, type Memory } from '../../server/src/core/isa/interp';
 
 const BASE = 0x1000;
 
@@ -178,5 +178,48 @@ describe('run()', () => {
     machine.run(1);
     expect(machine.pc).toBe(BASE);
     expect(machine.instructionsRetired).toBe(1002);
+  });
+});
+
+describe('instruction fetch', () => {
+  // Without FENCE.I (Zifencei) the spec does not promise that stores become visible to fetch, but
+  // qemu user mode and a simple bus machine both see them at once, and so must we: the fast fetch
+  // path reads the live page, not a copy.
+  it('executes an instruction stored just ahead of the pc (self-modifying code)', () => {
+    const addi = encodeInstruction('addi', { rd: 6, rs1: 0, imm: 42 });
+    if (!addi.ok) throw new Error(addi.error);
+    const machine = machineWith([
+      ['sw', { rs1: 1, rs2: 2, imm: 4 }], // overwrites the next instruction
+      ['addi', { rd: 6, rs1: 0, imm: 1 }],
+    ]);
+    machine.x[1] = BASE;
+    machine.x[2] = addi.word;
+    machine.run(2);
+    expect(machine.x[6]).toBe(42);
+  });
+
+  it('any Memory implementation works, not only SparseMemory', () => {
+    const backing = new SparseMemory();
+    const fetches: number[] = [];
+    const logging: Memory = {
+      load8: (a) => backing.load8(a),
+      load16: (a) => backing.load16(a),
+      load32: (a) => {
+        fetches.push(a);
+        return backing.load32(a);
+      },
+      store8: (a, v) => backing.store8(a, v),
+      store16: (a, v) => backing.store16(a, v),
+      store32: (a, v) => backing.store32(a, v),
+      readBytes: (a, n) => backing.readBytes(a, n),
+      writeBytes: (a, b) => backing.writeBytes(a, b),
+    };
+    const words = [encodeInstruction('addi', { rd: 1, imm: 7 }), encodeInstruction('slli', { rd: 1, rs1: 1, imm: 4 })];
+    words.forEach((w, i) => w.ok && backing.store32(BASE + 4 * i, w.word));
+    const machine = new Rv32iReference(logging);
+    machine.pc = BASE;
+    expect(machine.run(2)).toEqual({ instructionsExecuted: 2, stop: null });
+    expect(machine.x[1]).toBe(7 << 4);
+    expect(fetches).toEqual([BASE, BASE + 4]);
   });
 });

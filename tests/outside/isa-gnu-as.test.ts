@@ -4,9 +4,9 @@
 // `objdump -d -M no-aliases,numeric` gives the reference disassembly text. A second part feeds
 // thousands of pseudo-random words through `.insn` and objdump and compares which are legal.
 import { execFileSync } from 'node:child_process';
-import { readFileSync, writeFileSync } from 'node:fs';
+import { readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { haveTools } from '../support/tools';
 import { scratchDir } from '../isa/support/riscv-tools';
 import { disassemble } from '../../server/src/core/isa/disasm';
@@ -16,6 +16,16 @@ const AS = 'riscv64-unknown-elf-as';
 const OBJCOPY = 'riscv64-unknown-elf-objcopy';
 const OBJDUMP = 'riscv64-unknown-elf-objdump';
 const toolsPresent = haveTools([AS, OBJCOPY, OBJDUMP], 'binutils-riscv64-unknown-elf');
+
+// One scratch folder for the whole file, removed afterwards.
+let scratch: string | null = null;
+function scratchFolder(): string {
+  scratch ??= scratchDir('isa-gnu-as');
+  return scratch;
+}
+afterAll(() => {
+  if (scratch) rmSync(scratch, { recursive: true, force: true });
+});
 
 interface Case {
   asm: string;
@@ -162,7 +172,7 @@ describe.skipIf(!toolsPresent)('RV32I layer against GNU as / objdump 2.40', () =
   let objdump: ObjdumpLine[] = [];
 
   beforeAll(() => {
-    const dir = scratchDir('isa-gnu-as');
+    const dir = scratchFolder();
     const source = ['.text', '.option norelax', ...CASES.map((c) => c.asm), ''].join('\n');
     ({ words, objdump } = assemble(dir, 'each', source));
   });
@@ -208,7 +218,7 @@ describe.skipIf(!toolsPresent)('RV32I layer against GNU as / objdump 2.40', () =
   // relative syntax (`.+16`), so the text must assemble back to the very same words, with
   // numeric and with ABI register names.
   it.each(['numeric', 'abi'] as const)('our disassembly (%s register names) assembles back to the same words', (style) => {
-    const dir = scratchDir('isa-roundtrip');
+    const dir = scratchFolder();
     const text = words.map((word) => disassemble(word, undefined, { registerNames: style }));
     const again = assemble(dir, `roundtrip-${style}`, ['.text', '.option norelax', ...text, ''].join('\n'));
     expect(again.words.map((w) => w.toString(16))).toEqual(words.map((w) => w.toString(16)));
@@ -248,7 +258,7 @@ describe.skipIf(!toolsPresent)('random words: legality and text against objdump'
       if ((word & 0x7f) === 0x73 && next() % 2 === 0) word = next() % 2 ? 0x00000073 : 0x00100073;
       randomWords.push(word >>> 0);
     }
-    const dir = scratchDir('isa-random');
+    const dir = scratchFolder();
     const source = ['.text', ...randomWords.map((w) => `.insn 0x${w.toString(16).padStart(8, '0')}`), ''].join('\n');
     const { words, objdump } = assemble(dir, 'random', source);
     expect(words).toEqual(randomWords);

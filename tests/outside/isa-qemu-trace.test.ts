@@ -113,6 +113,7 @@ describe.skipIf(!toolsPresent)('register state after every instruction equals qe
       traces.set(program.name, merged);
       mergedCounts.set(program.name, raw.length - merged.length);
     }
+    rmSync(dir, { recursive: true, force: true });
   }, 120_000);
 
   it('parses one full register dump per instruction', () => {

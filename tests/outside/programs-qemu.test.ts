@@ -2,15 +2,20 @@
 // runs under qemu-riscv32 user mode (all extensions off) and under our reference interpreter:
 // stdout, stderr and the way the program ends must be identical. qemu is the outside reference;
 // the programs' own printed checks tie the values to published numbers (see each source).
+import { execFileSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { haveTools } from '../support/tools';
 import { QEMU, runQemu, runReference, type QemuRun, type ReferenceRun } from '../isa/support/riscv-tools';
 import { buildPrograms, type BuiltProgram } from '../programs/build.mjs';
-import { parseElf } from '../../server/src/core/isa/elf';
+import { parseElf, symbolAt } from '../../server/src/core/isa/elf';
+import { createReferenceMachine } from '../../server/src/core/isa/interp';
+import { RV32I_INSTRUCTIONS, matchInstruction } from '../../server/src/core/isa/rv32i';
 
 const toolsPresent =
-  haveTools(['riscv64-unknown-elf-gcc'], 'gcc-riscv64-unknown-elf') && haveTools([QEMU], 'qemu-user');
+  haveTools(['riscv64-unknown-elf-gcc'], 'gcc-riscv64-unknown-elf') &&
+  haveTools(['riscv64-unknown-elf-nm'], 'binutils-riscv64-unknown-elf') &&
+  haveTools([QEMU], 'qemu-user');
 
 /** How a run ended, in one comparable string: qemu's exit status or signal, our stop reason. */
 function qemuEnding(run: QemuRun): string {
@@ -45,6 +50,23 @@ describe.skipIf(!toolsPresent)('test programs: qemu-riscv32 and our interpreter 
       const parsed = parseElf(new Uint8Array(readFileSync(program.elfPath)));
       expect(parsed.ok && parsed.image.warnings, program.name).toEqual([]);
       expect(parsed.ok && parsed.image.entry, program.name).toBe(0x10000);
+    }
+  });
+
+  // Symbol addresses as the GNU linker placed them, read back with `riscv64-unknown-elf-nm`.
+  it('symbol tables agree with riscv64-unknown-elf-nm', () => {
+    for (const name of ['selfcheck', 'crc_sieve']) {
+      const program = programs.find((p) => p.name === name)!;
+      const parsed = parseElf(new Uint8Array(readFileSync(program.elfPath)));
+      if (!parsed.ok) throw new Error(parsed.error);
+      const nmLines = execFileSync('riscv64-unknown-elf-nm', [program.elfPath], { encoding: 'utf8' }).trim().split('\n');
+      const fromNm = new Map(nmLines.map((line) => line.split(/\s+/)).map(([address, _type, symbol]) => [symbol!, parseInt(address!, 16)]));
+      for (const wanted of name === 'selfcheck' ? ['_start', 'check', 'hexout', 'words', 'linebuf'] : ['_start', 'main', 'print_hex', '__udivsi3']) {
+        const ours = parsed.image.symbols.find((s) => s.name === wanted);
+        expect(ours?.address, `${name}: ${wanted}`).toBe(fromNm.get(wanted));
+      }
+      const main = parsed.image.symbols.find((s) => s.name === (name === 'selfcheck' ? 'check' : 'main'))!;
+      expect(symbolAt(parsed.image, main.address + 8)?.name).toBe(main.name);
     }
   });
 
@@ -112,6 +134,28 @@ describe.skipIf(!toolsPresent)('test programs: qemu-riscv32 and our interpreter 
     expect(long.machine.instructionsRetired).toBeGreaterThan(10_000_000);
     expect(short.machine.instructionsRetired).toBeLessThan(1_000_000);
     expect(short.stdout.toString('latin1')).toMatch(/^rounds 1\nchecksum 0x[0-9a-f]{8}\n$/);
+  });
+
+  // The brief for these programs: together they execute every RV32I instruction.
+  it('selfcheck executes 39 different instructions and ebreak the 40th', () => {
+    const executedBy = (name: string): Set<string> => {
+      const program = programs.find((p) => p.name === name)!;
+      const created = createReferenceMachine(new Uint8Array(readFileSync(program.elfPath)));
+      if (!created.ok) throw new Error(created.error);
+      const seen = new Set<string>();
+      for (let steps = 0; steps < 1_000_000; steps++) {
+        const result = created.machine.step();
+        const spec = matchInstruction(result.word);
+        if (spec) seen.add(spec.mnemonic);
+        if (result.stop) break;
+      }
+      return seen;
+    };
+    const selfcheck = executedBy('selfcheck');
+    expect(selfcheck.size).toBe(39);
+    expect(selfcheck.has('ebreak')).toBe(false);
+    const all = new Set([...selfcheck, ...executedBy('ebreak')]);
+    expect([...all].sort()).toEqual(RV32I_INSTRUCTIONS.map((i) => i.mnemonic).sort());
   });
 
   // The comparison must be able to fail: change one instruction in our machine's memory (the

@@ -13,6 +13,7 @@
 //   disassembleParts(word, pc?, options?) -> { spec, mnemonic, operands } (spec null when illegal)
 //   registerName(index, style) -> 'x5' or 't0'
 //   ABI_REGISTER_NAMES -> the psABI names x0..x31 map to
+//   hex32(value) -> eight lower-case hex digits, for listings and trace displays
 import { immB, immI, immJ, immS, matchInstruction, rdField, rs1Field, rs2Field, type InstructionSpec } from './rv32i';
 
 export type RegisterNameStyle = 'numeric' | 'abi';

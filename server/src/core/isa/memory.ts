@@ -10,7 +10,8 @@
 //
 // Public API:
 //   interface Memory          load8/load16/load32, store8/store16/store32, readBytes, writeBytes
-//   class SparseMemory        the fast implementation; also clone(), pageAddresses(), mappedBytes
+//   class SparseMemory        the fast implementation; also clone(), pageAddresses(), mappedBytes,
+//                             wordsOfPage() (live word view of a page, for fast instruction fetch)
 //   PAGE_SIZE_BYTES           4096
 //   interface MemoryWrite     { address, size, value } record of one store, used by step()
 
@@ -46,11 +47,17 @@ const OFFSET_MASK = PAGE_SIZE_BYTES - 1;
 // A small direct-mapped cache of page lookups sits in front of the Map: code, stack and data
 // pages stay cached together, so the hot path is two array reads instead of a hash lookup.
 const CACHE_SLOTS = 256;
+const EMPTY_BYTES = new Uint8Array(0);
+const EMPTY_WORDS = new Int32Array(0);
+// Word views are only used when the host stores an Int32Array little-endian, like RISC-V memory.
+const LITTLE_ENDIAN_HOST = new Uint8Array(new Uint32Array([1]).buffer)[0] === 1;
 
 export class SparseMemory implements Memory {
   private readonly pages = new Map<number, Uint8Array>();
   private readonly cacheTags = new Int32Array(CACHE_SLOTS).fill(-1);
-  private readonly cachePages: Uint8Array[] = new Array<Uint8Array>(CACHE_SLOTS).fill(new Uint8Array(0));
+  private readonly cachePages: Uint8Array[] = new Array<Uint8Array>(CACHE_SLOTS).fill(EMPTY_BYTES);
+  // Word views of the same pages: an aligned word access is then one typed-array read.
+  private readonly cacheWords: Int32Array[] = new Array<Int32Array>(CACHE_SLOTS).fill(EMPTY_WORDS);
 
   /** Page holding `address` if it has been written, else undefined. */
   private pageIfMapped(address: number): Uint8Array | undefined {
@@ -58,11 +65,15 @@ export class SparseMemory implements Memory {
     const slot = index & (CACHE_SLOTS - 1);
     if (this.cacheTags[slot] === index) return this.cachePages[slot];
     const page = this.pages.get(index);
-    if (page) {
-      this.cacheTags[slot] = index;
-      this.cachePages[slot] = page;
-    }
+    if (page) this.cache(index, page);
     return page;
+  }
+
+  private cache(index: number, page: Uint8Array): void {
+    const slot = index & (CACHE_SLOTS - 1);
+    this.cacheTags[slot] = index;
+    this.cachePages[slot] = page;
+    this.cacheWords[slot] = new Int32Array(page.buffer, page.byteOffset, PAGE_SIZE_BYTES / 4);
   }
 
   private pageForWrite(address: number): Uint8Array {
@@ -71,10 +82,24 @@ export class SparseMemory implements Memory {
     const index = address >>> PAGE_SHIFT;
     const page = new Uint8Array(PAGE_SIZE_BYTES);
     this.pages.set(index, page);
-    const slot = index & (CACHE_SLOTS - 1);
-    this.cacheTags[slot] = index;
-    this.cachePages[slot] = page;
+    this.cache(index, page);
     return page;
+  }
+
+  /**
+   * The page holding `address` as 1024 words, for instruction fetch; undefined when the page was
+   * never written or the host is big-endian (then the word view would have the wrong byte order).
+   * The array is the live backing store, so later stores (self-modifying code) are visible.
+   */
+  wordsOfPage(address: number): Int32Array | undefined {
+    if (!LITTLE_ENDIAN_HOST) return undefined;
+    const index = address >>> PAGE_SHIFT;
+    const slot = index & (CACHE_SLOTS - 1);
+    if (this.cacheTags[slot] === index) return this.cacheWords[slot];
+    const page = this.pages.get(index);
+    if (!page) return undefined;
+    this.cache(index, page);
+    return this.cacheWords[slot];
   }
 
   load8(address: number): number {
@@ -92,6 +117,11 @@ export class SparseMemory implements Memory {
   }
 
   load32(address: number): number {
+    if ((address & 3) === 0 && LITTLE_ENDIAN_HOST) {
+      const index = address >>> PAGE_SHIFT;
+      const slot = index & (CACHE_SLOTS - 1);
+      if (this.cacheTags[slot] === index) return this.cacheWords[slot]![(address & OFFSET_MASK) >>> 2]!;
+    }
     const offset = address & OFFSET_MASK;
     if (offset <= PAGE_SIZE_BYTES - 4) {
       const page = this.pageIfMapped(address);
@@ -122,6 +152,14 @@ export class SparseMemory implements Memory {
   }
 
   store32(address: number, value: number): void {
+    if ((address & 3) === 0 && LITTLE_ENDIAN_HOST) {
+      const index = address >>> PAGE_SHIFT;
+      const slot = index & (CACHE_SLOTS - 1);
+      if (this.cacheTags[slot] === index) {
+        this.cacheWords[slot]![(address & OFFSET_MASK) >>> 2] = value;
+        return;
+      }
+    }
     const offset = address & OFFSET_MASK;
     if (offset <= PAGE_SIZE_BYTES - 4) {
       const page = this.pageForWrite(address);
