@@ -1,7 +1,10 @@
 // Command dispatch and the usage text. Each command lives in its own module under commands/.
 import type { Io } from './io';
+import { VERSION } from './version';
 import { checkCommand } from './commands/check';
 import { explainCommand } from './commands/explain';
+import { buildCommand } from './commands/build';
+import { diffCommand } from './commands/diff';
 
 export interface Command {
   name: string;
@@ -10,7 +13,7 @@ export interface Command {
   run(args: string[], io: Io): Promise<number>;
 }
 
-const commands: Command[] = [checkCommand, explainCommand];
+const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCommand];
 
 export function usage(): string {
   const lines = ['Phasewright: control tables for microcoded RV32I processors built from discrete logic.', '', 'Usage:'];
@@ -41,5 +44,4 @@ export function registerCommand(command: Command): void {
   commands.push(command);
 }
 
-declare const __PHASEWRIGHT_VERSION__: string | undefined;
-export const VERSION = typeof __PHASEWRIGHT_VERSION__ === 'string' ? __PHASEWRIGHT_VERSION__ : '0.1.0';
+export { VERSION } from './version';

@@ -1,0 +1,73 @@
+// `phasewright build FILE [--out DIR] [--format LIST] [--store NAME] [--force] [--config FILE]`:
+// writes the control-store images. Exit 0 on success, 1 when the table has errors (nothing
+// written) or an output could not be written safely, 2 on usage or input file errors.
+import { resolve } from 'node:path';
+import { parseArgs } from '../args';
+import { buildImages, describeBuild } from '../buildImages';
+import type { Command } from '../commands';
+import { loadSeverityConfig } from '../config';
+import { readSource } from '../readSource';
+import { buildFormats, type BuildFormat } from '../../core/encode/plan';
+import { OutputError } from '../output/safeWriter';
+import { ManifestError } from '../output/manifest';
+
+export const buildCommand: Command = {
+  name: 'build',
+  summary: 'write control-store images (HEX, S-record, binary, $readmemh, listing)',
+  usage: 'build FILE [--out DIR] [--format ihex,srec,bin,memh,list] [--store NAME] [--force]',
+  async run(args, io) {
+    const parsed = parseArgs(args, { flags: ['force'], values: ['out', 'format', 'store', 'config'] });
+    if (parsed.errors.length || parsed.positionals.length !== 1) {
+      io.err(`phasewright build: ${parsed.errors[0] ?? 'give one .pwt file'}\nusage: phasewright ${this.usage}\n`);
+      return 2;
+    }
+    const file = parsed.positionals[0];
+    const formatsOption = parsed.options.get('format');
+    let formats: BuildFormat[] | undefined;
+    if (typeof formatsOption === 'string') {
+      formats = formatsOption.split(',').map((f) => f.trim()).filter(Boolean) as BuildFormat[];
+      const bad = formats.find((f) => !buildFormats.includes(f));
+      if (bad || formats.length === 0) {
+        io.err(`phasewright build: unknown format '${bad ?? ''}'; choose from ${buildFormats.join(', ')}\n`);
+        return 2;
+      }
+    }
+    const configPath = parsed.options.get('config');
+    const config = typeof configPath === 'string' ? loadSeverityConfig(resolve(io.cwd, configPath)) : { ok: true as const, severities: undefined };
+    if (!config.ok) {
+      io.err(`phasewright build: ${config.reason}\n`);
+      return 2;
+    }
+    const source = readSource(resolve(io.cwd, file));
+    if (!source.ok) {
+      io.err(`phasewright build: ${source.reason.replace(resolve(io.cwd, file), file)}\n`);
+      return 2;
+    }
+    const outOption = parsed.options.get('out');
+    const outDir = typeof outOption === 'string' ? outOption : 'out';
+    const store = parsed.options.get('store');
+    try {
+      const result = buildImages({
+        text: source.text,
+        sourcePath: file,
+        outDir: resolve(io.cwd, outDir),
+        formats,
+        stores: typeof store === 'string' ? [store] : undefined,
+        force: parsed.options.has('force'),
+        severities: config.severities,
+      });
+      if (!result.ok) {
+        io.err(`phasewright build: ${result.reason}\n`);
+        return 1;
+      }
+      io.out(describeBuild(result, outDir));
+      return 0;
+    } catch (err) {
+      if (err instanceof OutputError || err instanceof ManifestError) {
+        io.err(`phasewright build: ${err.message}\n`);
+        return 1;
+      }
+      throw err;
+    }
+  },
+};

@@ -1,0 +1,116 @@
+// The control-store listing: a text file a person reads beside the ROM images. One line per
+// address the table uses: the address, what its lines carry (step, flags, instruction bits),
+// the class, the word in hex per chip, and the asserted strobes and field values by name,
+// read back from the encoded bits (so the listing shows what will be burned). Runs of
+// addresses holding the fill word are one line each.
+import type { Machine } from '../model/types';
+import { toBinary, toHex } from '../model/numbers';
+import { decodeWord, type EncodedMachine, type EncodedStore } from './encoder';
+import { pointInputs } from './universe';
+
+export interface ListingOptions {
+  source: string;
+}
+
+/** Bits of a word from `lowBit`, `width` wide, as an unsigned number. */
+export function wordBits(enc: EncodedStore, address: number, lowBit: number, width: number): number {
+  let value = 0;
+  const base = address * enc.lanes;
+  for (let i = width - 1; i >= 0; i--) {
+    const bit = lowBit + i;
+    value = value * 2 + ((enc.words[base + (bit >>> 5)] >>> (bit & 31)) & 1);
+  }
+  return value;
+}
+
+/** The word at `address` as hex per chip, chip 0 first. */
+export function chipHex(enc: EncodedStore, address: number): string[] {
+  const out: string[] = [];
+  let low = 0;
+  for (const width of enc.store.word!.chipWidths) {
+    out.push(toHex(wordBits(enc, address, low, width), Math.ceil(width / 4)));
+    low += width;
+  }
+  return out;
+}
+
+/** What each address source carries at `address`, as `name=bits`. */
+export function describeAddress(enc: EncodedStore, address: number): string {
+  return enc.store
+    .address!.sources.map((s) => {
+      const width = s.hi - s.lo + 1;
+      const value = Math.floor(address / 2 ** s.lo) % 2 ** width;
+      return `${s.label}=${s.input.kind === 'step' ? String(value) : toBinary(value, width)}`;
+    })
+    .join(' ');
+}
+
+/**
+ * Strobes asserted and field values at an address, read from the encoded word. Fields are
+ * shown when the step sets them (`setFields`) or when they differ from their idle code.
+ */
+export function describeWord(machine: Machine, enc: EncodedStore, address: number, setFields?: Set<string>): string {
+  const { asserted, fields } = decodeWord(machine, enc, address);
+  const items = [...asserted];
+  for (const [name, code] of fields) {
+    const field = machine.signals.get(name);
+    if (field?.type !== 'field') continue;
+    if (!setFields?.has(name) && code === field.idle) continue;
+    const value = [...field.values.values()].find((v) => v.code === code)?.name;
+    items.push(`${name}=${value ?? code}`);
+  }
+  return items.join(' ');
+}
+
+export function writeListing(machine: Machine, encoded: EncodedMachine, enc: EncodedStore, options: ListingOptions): string {
+  const store = enc.store;
+  const word = store.word!;
+  const nAddresses = 2 ** enc.addressBits;
+  const addressDigits = Math.max(4, Math.ceil(enc.addressBits / 4));
+  const chipNames = word.chipWidths.map((_, i) => `chip${i}`);
+  const lines: string[] = [];
+  lines.push('# Phasewright control-store listing');
+  lines.push(`# machine: ${machine.title || '(untitled)'}    source: ${options.source}    store: ${store.name}`);
+  lines.push(`# ${enc.addressBits} address lines (${nAddresses} words); ${word.width}-bit word as ${word.chipWidths.map((w) => `${w}`).join(' + ')} bits${word.chip ? ` in ${word.chip.name} chips` : ''}; chip 0 holds bit 0`);
+  lines.push(`# address lines: ${store.address!.sources.map((s) => `${s.label} ${s.lo === s.hi ? s.lo : `${s.lo}..${s.hi}`}`).join('  ')}`);
+  lines.push(`# ${enc.usedCount} words from the table, ${nAddresses - enc.usedCount} hold the fill word (every strobe inactive): ${chipHexOf(enc, enc.fillWord).join(' ')}`);
+  lines.push('# Fields are shown where a step sets them or where they differ from their idle code.');
+  lines.push('# Check the images against your chips\' data sheets before programming them.');
+  lines.push('#');
+  lines.push(`# ${'address'.padEnd(addressDigits + 2)}  ${'inputs'.padEnd(describeAddress(enc, 0).length)}  ${'class'.padEnd(10)} ${chipNames.map((n, i) => n.padEnd(Math.max(n.length, Math.ceil(word.chipWidths[i] / 4)))).join(' ')}  asserted`);
+  let fillStart = -1;
+  const flushFill = (end: number) => {
+    if (fillStart < 0) return;
+    const range = fillStart === end - 1 ? `0x${toHex(fillStart, addressDigits)}` : `0x${toHex(fillStart, addressDigits)}-0x${toHex(end - 1, addressDigits)}`;
+    lines.push(`  ${range}  fill (${end - fillStart} word${end - fillStart > 1 ? 's' : ''})`);
+    fillStart = -1;
+  };
+  for (let address = 0; address < nAddresses; address++) {
+    const point = enc.origin[address];
+    if (point < 0) {
+      if (fillStart < 0) fillStart = address;
+      continue;
+    }
+    flushFill(address);
+    const decoded = encoded.decoder.decode(pointInputs(encoded.universe, point));
+    const hex = chipHex(enc, address).map((h, i) => h.padEnd(Math.max(chipNames[i].length, h.length)));
+    lines.push(`  0x${toHex(address, addressDigits)}  ${describeAddress(enc, address)}  ${(decoded.cls?.name ?? '-').padEnd(10)} ${hex.join(' ')}  ${describeWord(machine, enc, address, new Set(decoded.fieldCodes.keys()))}`);
+  }
+  flushFill(nAddresses);
+  return lines.join('\n') + '\n';
+}
+
+function chipHexOf(enc: EncodedStore, word: Uint32Array): string[] {
+  const out: string[] = [];
+  let low = 0;
+  for (const width of enc.store.word!.chipWidths) {
+    let value = 0;
+    for (let i = width - 1; i >= 0; i--) {
+      const bit = low + i;
+      value = value * 2 + ((word[bit >>> 5] >>> (bit & 31)) & 1);
+    }
+    out.push(toHex(value, Math.ceil(width / 4)));
+    low += width;
+  }
+  return out;
+}

@@ -1,0 +1,135 @@
+// Plans a build: which files to write for which stores and chips, with their contents
+// (chip images, listings). Pure; the CLI and the language server hand the plan to the safe
+// output writer. Chips narrower than 8, 16 or 32 bits are padded to the next of those widths
+// in the files (the unused high data bits are 0), since the formats carry whole bytes.
+import type { Machine, Store } from '../model/types';
+import { encodeMachine, type EncodedMachine, type EncodedStore } from './encoder';
+import { type ChipImage, type ChipWidth, type ImageFormatName, imageFormats } from './formats';
+import { splitWordsIntoChips } from './formats/chips';
+import { writeListing } from './listing';
+
+export type BuildFormat = ImageFormatName | 'list';
+export const buildFormats: BuildFormat[] = ['ihex', 'srec', 'bin', 'memh', 'list'];
+
+export interface PlannedImage {
+  kind: 'image';
+  name: string;
+  format: ImageFormatName;
+  store: string;
+  chip: number;
+  image: ChipImage;
+}
+
+export interface PlannedText {
+  kind: 'text';
+  name: string;
+  format: 'list';
+  store: string;
+  text: string;
+}
+
+export type PlannedFile = PlannedImage | PlannedText;
+
+export interface StoreSummary {
+  store: string;
+  addressBits: number;
+  wordBits: number;
+  chipWidths: number[];
+  chipName?: string;
+  usedWords: number;
+  fillWords: number;
+}
+
+export interface BuildPlan {
+  files: PlannedFile[];
+  stores: StoreSummary[];
+  encoded: EncodedMachine;
+  /** Plain-language reasons nothing could be planned for a store. */
+  problems: string[];
+}
+
+export interface PlanOptions {
+  /** File name stem, usually the source file's name without `.pwt`. */
+  stem: string;
+  source: string;
+  formats?: BuildFormat[];
+  stores?: string[];
+}
+
+export function paddedWidth(width: number): ChipWidth {
+  return width <= 8 ? 8 : width <= 16 ? 16 : 32;
+}
+
+export function chipImagesOf(enc: EncodedStore): ChipImage[] {
+  const widths = enc.store.word!.chipWidths;
+  // Split at the declared widths, then widen each image to a width the formats carry.
+  const images: ChipImage[] = [];
+  let low = 0;
+  for (const width of widths) {
+    const padded = paddedWidth(width);
+    const lanesForChip = splitWordsIntoChips(shiftWords(enc, low), enc.lanes, [padded])[0];
+    const mask = width >= 32 ? 0xffffffff : 2 ** width - 1;
+    for (let i = 0; i < lanesForChip.words.length; i++) lanesForChip.words[i] = (lanesForChip.words[i] & mask) >>> 0;
+    images.push(lanesForChip);
+    low += width;
+  }
+  return images;
+}
+
+/** The store's words shifted right by `low` bits, same lane layout. */
+function shiftWords(enc: EncodedStore, low: number): Uint32Array {
+  if (low === 0) return enc.words;
+  const out = new Uint32Array(enc.words.length);
+  const laneShift = low >>> 5;
+  const bitShift = low & 31;
+  const nWords = enc.words.length / enc.lanes;
+  for (let w = 0; w < nWords; w++) {
+    const base = w * enc.lanes;
+    for (let l = 0; l < enc.lanes; l++) {
+      const src = l + laneShift;
+      const lo = src < enc.lanes ? enc.words[base + src] >>> bitShift : 0;
+      const hi = bitShift && src + 1 < enc.lanes ? enc.words[base + src + 1] << (32 - bitShift) : 0;
+      out[base + l] = (lo | hi) >>> 0;
+    }
+  }
+  return out;
+}
+
+export function planBuild(machine: Machine, options: PlanOptions): BuildPlan {
+  const formats = options.formats ?? buildFormats;
+  const problems: string[] = [];
+  const wanted = machine.stores.filter((s) => !options.stores || options.stores.includes(s.name));
+  for (const s of wanted) {
+    if (!s.word) problems.push(`store ${s.name} has no word layout`);
+    if (!s.address) problems.push(`store ${s.name} has no address layout`);
+  }
+  const encoded = encodeMachine(machine, { stores: wanted.map((s) => s.name) });
+  if (encoded.stores.length === 0 && wanted.length > 0 && problems.length === 0) {
+    problems.push(`the address inputs of all stores together take ${encoded.universe.bits} bits; Phasewright encodes up to 24`);
+  }
+  const files: PlannedFile[] = [];
+  const stores: StoreSummary[] = [];
+  for (const enc of encoded.stores) {
+    const store: Store = enc.store;
+    const images = chipImagesOf(enc);
+    stores.push({
+      store: store.name,
+      addressBits: enc.addressBits,
+      wordBits: enc.wordBits,
+      chipWidths: store.word!.chipWidths,
+      chipName: store.word!.chip?.name,
+      usedWords: enc.usedCount,
+      fillWords: 2 ** enc.addressBits - enc.usedCount,
+    });
+    for (const format of formats) {
+      if (format === 'list') {
+        files.push({ kind: 'text', name: `${options.stem}.${store.name}.lst`, format: 'list', store: store.name, text: writeListing(machine, encoded, enc, { source: options.source }) });
+        continue;
+      }
+      images.forEach((image, chip) => {
+        files.push({ kind: 'image', name: `${options.stem}.${store.name}.chip${chip}${imageFormats[format].extension}`, format, store: store.name, chip, image });
+      });
+    }
+  }
+  return { files, stores, encoded, problems };
+}
