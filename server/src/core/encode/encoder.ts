@@ -168,8 +168,8 @@ function signalAtBit(placed: PlacedSignal[], bit: number): string | undefined {
   return placed.find((p) => bit >= p.lo && bit < p.lo + p.width)?.signal.name;
 }
 
-/** The address of `store` that a universe point drives; -1 if a field source has no value there. */
-function addressOf(store: Store, universe: Universe, inputs: ReturnType<typeof pointInputs>, decoded: PointDecode, machine: Machine): number {
+/** The address of `store` that a universe point drives. */
+export function addressOf(store: Store, universe: Universe, inputs: ReturnType<typeof pointInputs>, decoded: PointDecode, machine: Machine): number {
   let address = 0;
   for (const s of store.address!.sources) {
     const lines = s.hi - s.lo + 1;
