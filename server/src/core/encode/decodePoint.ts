@@ -2,7 +2,7 @@
 // apply and which field codes its decode maps give. Points no class, step, alternative or map
 // row covers hold the fill word, and say why.
 import { matchesBits } from '../model/numbers';
-import type { ClassDef, Machine, StepAlt } from '../model/types';
+import type { ClassDef, DecodeMap, Machine, StepAlt } from '../model/types';
 import { type PointInputs } from './universe';
 
 export type FillReason = 'no-class' | 'no-step' | 'no-alternative' | 'no-map-row';
@@ -19,6 +19,8 @@ export interface PointDecode {
 /** Prepared lookups so decoding a point does not search the whole model each time. */
 export class PointDecoder {
   private readonly byOpcode = new Map<number, ClassDef>();
+  /** Shared results: points with the same alternative and map rows decode to one object. */
+  private readonly shared = new Map<StepAlt, Map<string, PointDecode>>();
 
   constructor(private readonly machine: Machine) {
     for (const cls of machine.classes) if (cls.opcode !== undefined && !this.byOpcode.has(cls.opcode)) this.byOpcode.set(cls.opcode, cls);
@@ -67,17 +69,7 @@ export class PointDecoder {
         continue;
       }
       const map = this.machine.maps.get(action.value.map);
-      const row = map?.rows.find((r) =>
-        map.inputs.every((input, i) => {
-          const v = input.input;
-          if (v.kind === 'flag') {
-            const f = inputs.flags.get(v.name);
-            return r.patterns[i] === '-' || f === undefined || String(f) === r.patterns[i];
-          }
-          if (v.kind !== 'ir') return true;
-          return matchesBits(r.patterns[i], (inputs.ir >>> v.lo) & ((1 << (v.hi - v.lo + 1)) - 1));
-        }),
-      );
+      const row = map?.rows.find((r) => rowMatches(map.inputs, r.patterns, inputs));
       if (!row) {
         result.alt = undefined;
         result.fillReason = 'no-map-row';
@@ -85,6 +77,34 @@ export class PointDecoder {
         return result;
       }
       result.fieldCodes.set(action.signal, row.code);
+    }
+    return result;
+  }
+
+  /**
+   * Like `decode`, but returns one shared, read-only object for all points whose alternative
+   * and decode-map rows are the same (the encoder's hot path), and undefined for fill points.
+   */
+  decodeShared(inputs: PointInputs): PointDecode | undefined {
+    const cls = this.classFor(inputs);
+    const alts = cls?.steps.get(inputs.step);
+    if (!alts) return undefined;
+    const alt = this.pick(alts, inputs);
+    if (!alt) return undefined;
+    let key = '';
+    for (const action of alt.actions) {
+      if (action.value?.kind !== 'map') continue;
+      const map = this.machine.maps.get(action.value.map);
+      const index = map ? map.rows.findIndex((r) => rowMatches(map.inputs, r.patterns, inputs)) : -1;
+      if (index < 0) return undefined;
+      key += `${index},`;
+    }
+    let byKey = this.shared.get(alt);
+    if (!byKey) this.shared.set(alt, (byKey = new Map()));
+    let result = byKey.get(key);
+    if (!result) {
+      result = this.decode(inputs);
+      byKey.set(key, result);
     }
     return result;
   }
@@ -100,6 +120,19 @@ export class PointDecoder {
     }
     return elseAlt;
   }
+}
+
+function rowMatches(mapInputs: DecodeMap['inputs'], patterns: string[], inputs: PointInputs): boolean {
+  for (let i = 0; i < mapInputs.length; i++) {
+    const v = mapInputs[i].input;
+    if (v.kind === 'flag') {
+      const f = inputs.flags.get(v.name);
+      if (!(patterns[i] === '-' || f === undefined || String(f) === patterns[i])) return false;
+    } else if (v.kind === 'ir') {
+      if (!matchesBits(patterns[i], (inputs.ir >>> v.lo) & ((1 << (v.hi - v.lo + 1)) - 1))) return false;
+    }
+  }
+  return true;
 }
 
 function holds(lit: NonNullable<StepAlt['guard']>[number], inputs: PointInputs): boolean {

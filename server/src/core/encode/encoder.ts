@@ -6,9 +6,10 @@
 // store and disagree on a bit both care about, that store cannot hold its signals: the
 // disagreement is returned (the store-ambiguous check reports it). It takes a model the
 // checks have passed; it re-implements no check.
-import type { Field, Machine, Store, Strobe } from '../model/types';
+import type { Field, Machine, StepAlt, Store, Strobe } from '../model/types';
 import { type PointDecode, PointDecoder } from './decodePoint';
-import { type Universe, pointInputs, universeOf } from './universe';
+import { PointIndex, addressTable, lookupAddress } from './pointIndex';
+import { type Universe, pointInputs, pointInputsInto, universeOf } from './universe';
 
 export interface EncodedStore {
   store: Store;
@@ -57,18 +58,27 @@ export function encodeMachine(machine: Machine, options: { stores?: string[] } =
   if (universe.bits > maxUniverseBits) return { universe, stores: [], ambiguities, decoder };
   const nPoints = 2 ** universe.bits;
   const prepared = targets.map((store, i) => ({ enc: stores[i], placed: placedSignals(machine, store), care: new Uint32Array(stores[i].words.length), seenAmbiguity: new Set<string>() }));
-  const scratch = prepared.map((p) => ({ word: new Uint32Array(p.enc.lanes), care: new Uint32Array(p.enc.lanes) }));
+  // Points with the same alternative and map rows share one decode object, and so one word
+  // per store: build each word once.
+  const wordCache = prepared.map(() => new Map<PointDecode, { word: Uint32Array; care: Uint32Array }>());
+  const inputs = pointInputs(universe, 0);
+  const fast = new PointIndex(machine, universe);
+  const addressTables = prepared.map((p) => addressTable(p.enc.store, universe));
   for (let point = 0; point < nPoints; point++) {
-    const inputs = pointInputs(universe, point);
-    const decoded = decoder.decode(inputs);
-    if (!decoded.alt) continue;
-    const asserted = new Set(decoded.alt.actions.map((a) => a.signal));
+    const decoded = fast.decode(point, () => decoder.decodeShared(pointInputsInto(universe, point, inputs)));
+    if (!decoded) continue;
     for (let s = 0; s < prepared.length; s++) {
       const { enc, placed, care, seenAmbiguity } = prepared[s];
-      const { word, care: pointCare } = scratch[s];
-      const address = addressOf(enc.store, universe, inputs, decoded, machine);
+      let cached = wordCache[s].get(decoded);
+      if (!cached) {
+        cached = { word: new Uint32Array(enc.lanes), care: new Uint32Array(enc.lanes) };
+        buildWord(enc, placed, decoded, new Set(decoded.alt!.actions.map((a) => a.signal)), cached.word, cached.care);
+        wordCache[s].set(decoded, cached);
+      }
+      const table = addressTables[s];
+      const address = table ? lookupAddress(table, point) : addressOf(enc.store, universe, pointInputsInto(universe, point, inputs), decoded, machine);
       if (address < 0 || address >= enc.origin.length) continue;
-      buildWord(enc, placed, decoded, asserted, word, pointCare);
+      const { word, care: pointCare } = cached;
       const base = address * enc.lanes;
       if (enc.origin[address] < 0) {
         for (let l = 0; l < enc.lanes; l++) {
@@ -106,7 +116,8 @@ function prepareStore(machine: Machine, store: Store): EncodedStore {
   const fillWord = fillWordOf(machine, store, lanes);
   const nAddresses = 2 ** addressBits;
   const words = new Uint32Array(nAddresses * lanes);
-  for (let a = 0; a < nAddresses; a++) words.set(fillWord, a * lanes);
+  if (lanes === 1) words.fill(fillWord[0]);
+  else for (let a = 0; a < nAddresses; a++) words.set(fillWord, a * lanes);
   const origin = new Int32Array(nAddresses).fill(-1);
   return { store, addressBits, wordBits, lanes, words, origin, fillWord, usedCount: 0 };
 }
@@ -149,6 +160,16 @@ export function fillWordOf(machine: Machine, store: Store, lanes = Math.max(1, M
 function buildWord(enc: EncodedStore, placed: PlacedSignal[], decoded: PointDecode, asserted: Set<string>, word: Uint32Array, care: Uint32Array): void {
   word.set(enc.fillWord);
   care.fill(0);
+  laySignals(placed, asserted, decoded.fieldCodes, word, care);
+}
+
+/**
+ * Writes the placed signals of one step alternative over a word that holds the fill word:
+ * every placed strobe at its active or inactive level by its own polarity, every field the
+ * step sets at its code. Fields without a code keep the fill word's idle code and stay out of
+ * `care` (the step does not care about them).
+ */
+function laySignals(placed: PlacedSignal[], asserted: ReadonlySet<string>, fieldCodes: ReadonlyMap<string, number>, word: Uint32Array, care: Uint32Array): void {
   for (const { signal, lo, width } of placed) {
     if (signal.type === 'strobe') {
       const on = asserted.has(signal.name);
@@ -156,7 +177,7 @@ function buildWord(enc: EncodedStore, placed: PlacedSignal[], decoded: PointDeco
       setBits(word, lo, width, level);
       setBits(care, lo, width, 0xffffffff);
     } else {
-      const code = decoded.fieldCodes.get(signal.name);
+      const code = fieldCodes.get(signal.name);
       if (code === undefined) continue;
       setBits(word, lo, width, code);
       setBits(care, lo, width, 0xffffffff);
@@ -164,27 +185,53 @@ function buildWord(enc: EncodedStore, placed: PlacedSignal[], decoded: PointDeco
   }
 }
 
+/**
+ * The word `store` holds wherever the step alternative `alt` applies, laid exactly as the
+ * encoder lays it. `mapCodes` gives, for each decode map the alternative uses, the code the
+ * map yields at the address in question (one row's code); a field set through a map missing
+ * from `mapCodes` keeps its idle code. Returns the word's 32-bit lanes (bit b in lane b >> 5).
+ */
+export function wordForAlternative(machine: Machine, store: Store, alt: StepAlt, mapCodes: ReadonlyMap<string, number> = new Map()): Uint32Array {
+  const lanes = Math.max(1, Math.ceil(store.word!.width / 32));
+  const word = fillWordOf(machine, store, lanes);
+  const asserted = new Set<string>();
+  const fieldCodes = new Map<string, number>();
+  for (const action of alt.actions) {
+    if (!action.value) asserted.add(action.signal);
+    else if (action.value.kind === 'code') fieldCodes.set(action.signal, action.value.code);
+    else {
+      const code = mapCodes.get(action.value.map);
+      if (code !== undefined) fieldCodes.set(action.signal, code);
+    }
+  }
+  laySignals(placedSignals(machine, store), asserted, fieldCodes, word, new Uint32Array(lanes));
+  return word;
+}
+
 function signalAtBit(placed: PlacedSignal[], bit: number): string | undefined {
   return placed.find((p) => bit >= p.lo && bit < p.lo + p.width)?.signal.name;
 }
 
-/** The address of `store` that a universe point drives. */
+/** The address of `store` that a universe point drives. Address widths are at most 24 bits. */
 export function addressOf(store: Store, universe: Universe, inputs: ReturnType<typeof pointInputs>, decoded: PointDecode, machine: Machine): number {
   let address = 0;
-  for (const s of store.address!.sources) {
+  const sources = store.address!.sources;
+  for (let k = 0; k < sources.length; k++) {
+    const s = sources[k];
     const lines = s.hi - s.lo + 1;
     let value: number;
-    if (s.input.kind === 'step') value = inputs.step;
-    else if (s.input.kind === 'ir') value = inputs.ir >>> s.input.lo;
-    else if (s.input.kind === 'flag') value = inputs.flags.get(s.input.name) ?? 0;
+    const input = s.input;
+    if (input.kind === 'step') value = inputs.step;
+    else if (input.kind === 'ir') value = inputs.ir >>> input.lo;
+    else if (input.kind === 'flag') value = inputs.flags.get(input.name) ?? 0;
     else {
-      const field = machine.signals.get(s.input.name);
-      value = decoded.fieldCodes.get(s.input.name) ?? (field?.type === 'field' ? field.idle : 0);
+      const field = machine.signals.get(input.name);
+      value = decoded.fieldCodes.get(input.name) ?? (field?.type === 'field' ? field.idle : 0);
     }
-    for (let i = 0; i < lines; i++) if ((value >>> i) & 1) address += 2 ** (s.lo + i);
+    address |= (value & ((1 << lines) - 1)) << s.lo;
   }
   void universe;
-  return address;
+  return address >>> 0;
 }
 
 /** Reads a word of an encoded store back into its strobes and field codes (for listings and tests). */

@@ -6,7 +6,7 @@
 import type { Machine } from '../model/types';
 import { toBinary, toHex } from '../model/numbers';
 import { decodeWord, type EncodedMachine, type EncodedStore } from './encoder';
-import { pointInputs } from './universe';
+import { pointInputs, pointInputsInto } from './universe';
 
 export interface ListingOptions {
   source: string;
@@ -43,6 +43,28 @@ export function describeAddress(enc: EncodedStore, address: number): string {
       return `${s.label}=${s.input.kind === 'step' ? String(value) : toBinary(value, width)}`;
     })
     .join(' ');
+}
+
+const hexChars = '0123456789ABCDEF';
+
+function hexDigits(value: number, digits: number): string {
+  let out = '';
+  for (let i = digits - 1; i >= 0; i--) out += hexChars[(value >>> (i * 4)) & 15];
+  return out;
+}
+
+/** A fast `describeAddress` for one store: each source's text per value, computed once. */
+function addressDescriber(enc: EncodedStore): (address: number) => string {
+  const parts = enc.store.address!.sources.map((s) => {
+    const width = s.hi - s.lo + 1;
+    const texts = Array.from({ length: 2 ** width }, (_, value) => `${s.label}=${s.input.kind === 'step' ? String(value) : toBinary(value, width)}`);
+    return { lo: s.lo, mask: 2 ** width - 1, texts };
+  });
+  return (address) => {
+    let text = parts[0]?.texts[(address >>> parts[0].lo) & parts[0].mask] ?? '';
+    for (let i = 1; i < parts.length; i++) text += ' ' + parts[i].texts[(address >>> parts[i].lo) & parts[i].mask];
+    return text;
+  };
 }
 
 /**
@@ -85,6 +107,10 @@ export function writeListing(machine: Machine, encoded: EncodedMachine, enc: Enc
     lines.push(`  ${range}  fill (${end - fillStart} word${end - fillStart > 1 ? 's' : ''})`);
     fillStart = -1;
   };
+  // Many addresses hold the same word for the same step: describe each (decode, word) once.
+  const described = new Map<unknown, Map<number | string, string>>();
+  const inputs = pointInputs(encoded.universe, 0);
+  const inputsText = addressDescriber(enc);
   for (let address = 0; address < nAddresses; address++) {
     const point = enc.origin[address];
     if (point < 0) {
@@ -92,9 +118,17 @@ export function writeListing(machine: Machine, encoded: EncodedMachine, enc: Enc
       continue;
     }
     flushFill(address);
-    const decoded = encoded.decoder.decode(pointInputs(encoded.universe, point));
-    const hex = chipHex(enc, address).map((h, i) => h.padEnd(Math.max(chipNames[i].length, h.length)));
-    lines.push(`  0x${toHex(address, addressDigits)}  ${describeAddress(enc, address)}  ${(decoded.cls?.name ?? '-').padEnd(10)} ${hex.join(' ')}  ${describeWord(machine, enc, address, new Set(decoded.fieldCodes.keys()))}`);
+    const decoded = encoded.decoder.decodeShared(pointInputsInto(encoded.universe, point, inputs));
+    let byWord = described.get(decoded);
+    if (!byWord) described.set(decoded, (byWord = new Map()));
+    const wordKey = enc.lanes === 1 ? enc.words[address] : Array.from(enc.words.subarray(address * enc.lanes, (address + 1) * enc.lanes)).join(',');
+    let tail = byWord.get(wordKey);
+    if (tail === undefined) {
+      const hex = chipHex(enc, address).map((h, i) => h.padEnd(Math.max(chipNames[i].length, h.length)));
+      tail = `${(decoded?.cls?.name ?? '-').padEnd(10)} ${hex.join(' ')}  ${describeWord(machine, enc, address, new Set(decoded?.fieldCodes.keys() ?? []))}`;
+      byWord.set(wordKey, tail);
+    }
+    lines.push('  0x' + hexDigits(address, addressDigits) + '  ' + inputsText(address) + '  ' + tail);
   }
   flushFill(nAddresses);
   return lines.join('\n') + '\n';

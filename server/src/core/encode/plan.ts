@@ -5,7 +5,6 @@
 import type { Machine, Store } from '../model/types';
 import { encodeMachine, type EncodedMachine, type EncodedStore } from './encoder';
 import { type ChipImage, type ChipWidth, type ImageFormatName, imageFormats } from './formats';
-import { splitWordsIntoChips } from './formats/chips';
 import { writeListing } from './listing';
 
 export type BuildFormat = ImageFormatName | 'list';
@@ -61,38 +60,25 @@ export function paddedWidth(width: number): ChipWidth {
 }
 
 export function chipImagesOf(enc: EncodedStore): ChipImage[] {
-  const widths = enc.store.word!.chipWidths;
-  // Split at the declared widths, then widen each image to a width the formats carry.
+  const nWords = enc.words.length / enc.lanes;
   const images: ChipImage[] = [];
   let low = 0;
-  for (const width of widths) {
-    const padded = paddedWidth(width);
-    const lanesForChip = splitWordsIntoChips(shiftWords(enc, low), enc.lanes, [padded])[0];
+  for (const width of enc.store.word!.chipWidths) {
+    const widthBits = paddedWidth(width);
+    const words = widthBits === 8 ? new Uint8Array(nWords) : widthBits === 16 ? new Uint16Array(nWords) : new Uint32Array(nWords);
+    const lane = low >>> 5;
+    const shift = low & 31;
+    const spills = shift + width > 32 && lane + 1 < enc.lanes;
     const mask = width >= 32 ? 0xffffffff : 2 ** width - 1;
-    for (let i = 0; i < lanesForChip.words.length; i++) lanesForChip.words[i] = (lanesForChip.words[i] & mask) >>> 0;
-    images.push(lanesForChip);
+    for (let address = 0, base = lane; address < nWords; address++, base += enc.lanes) {
+      let value = enc.words[base] >>> shift;
+      if (spills) value |= enc.words[base + 1] << (32 - shift);
+      words[address] = (value & mask) >>> 0;
+    }
+    images.push({ widthBits, words });
     low += width;
   }
   return images;
-}
-
-/** The store's words shifted right by `low` bits, same lane layout. */
-function shiftWords(enc: EncodedStore, low: number): Uint32Array {
-  if (low === 0) return enc.words;
-  const out = new Uint32Array(enc.words.length);
-  const laneShift = low >>> 5;
-  const bitShift = low & 31;
-  const nWords = enc.words.length / enc.lanes;
-  for (let w = 0; w < nWords; w++) {
-    const base = w * enc.lanes;
-    for (let l = 0; l < enc.lanes; l++) {
-      const src = l + laneShift;
-      const lo = src < enc.lanes ? enc.words[base + src] >>> bitShift : 0;
-      const hi = bitShift && src + 1 < enc.lanes ? enc.words[base + src + 1] << (32 - bitShift) : 0;
-      out[base + l] = (lo | hi) >>> 0;
-    }
-  }
-  return out;
 }
 
 export function planBuild(machine: Machine, options: PlanOptions): BuildPlan {

@@ -39,16 +39,24 @@ export interface PointInputs {
 }
 
 export function pointInputs(universe: Universe, point: number): PointInputs {
-  const step = point & ((1 << universe.stepBits) - 1);
+  return pointInputsInto(universe, point, { step: 0, ir: 0, irMask: 0, flags: new Map() });
+}
+
+/** Fills `target` with the inputs of a point; the hot loops reuse one object this way. */
+export function pointInputsInto(universe: Universe, point: number, target: PointInputs): PointInputs {
+  target.step = point & ((1 << universe.stepBits) - 1);
   let ir = 0;
   let irMask = 0;
   let bit = universe.stepBits;
-  for (const pos of universe.irBits) {
+  const irBits = universe.irBits;
+  for (let i = 0; i < irBits.length; i++) {
+    const pos = irBits[i];
     irMask |= 1 << pos;
     if ((point >>> bit) & 1) ir |= 1 << pos;
     bit++;
   }
-  const flags = new Map<string, number>();
-  for (const flag of universe.flags) flags.set(flag, (point >>> bit++) & 1);
-  return { step, ir: ir >>> 0, irMask: irMask >>> 0, flags };
+  target.ir = ir >>> 0;
+  target.irMask = irMask >>> 0;
+  for (const flag of universe.flags) target.flags.set(flag, (point >>> bit++) & 1);
+  return target;
 }
