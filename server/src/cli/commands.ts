@@ -5,6 +5,7 @@ import { checkCommand } from './commands/check';
 import { explainCommand } from './commands/explain';
 import { buildCommand } from './commands/build';
 import { diffCommand } from './commands/diff';
+import { budgetCommand } from './commands/budget';
 
 export interface Command {
   name: string;
@@ -13,7 +14,7 @@ export interface Command {
   run(args: string[], io: Io): Promise<number>;
 }
 
-const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCommand];
+const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand];
 
 export function usage(): string {
   const lines = ['Phasewright: control tables for microcoded RV32I processors built from discrete logic.', '', 'Usage:'];

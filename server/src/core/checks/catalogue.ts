@@ -213,6 +213,30 @@ export const catalogue: CodeInfo[] = [
     title: 'two rows of a decode map match the same inputs with different values',
     explanation: 'Decode-map rows must be disjoint where their values differ, or the field\'s code is undefined for those inputs. Narrow the patterns.',
   },
+  {
+    code: 'strobe-overload',
+    severity: 'error',
+    title: 'a control line drives more load than the control store can',
+    explanation: 'From your figures: the inputs a strobe reaches (loads x in_ua, times cards for a register file) plus its LED need more current than the control store\'s outputs are rated for (drive_ma on the word). The line sags out of its logic levels and the chip heats. Buffer the line or reduce its load. This is an estimate from entered figures; check the data sheets and measure.',
+  },
+  {
+    code: 'bus-overload',
+    severity: 'error',
+    title: 'a bus driver is rated for less than the bus loads it with',
+    explanation: 'From your figures: each bus line is loaded by every other part on the bus (inputs, idle drivers\' leakage), the keeper\'s overdrive current and an indicator LED. A driver rated (drive_ma) below that load cannot hold valid levels. Each driver is checked on its own, so the lightest is flagged first as the load grows. Use a stronger driver or a buffer. An estimate: check the data sheets and measure.',
+  },
+  {
+    code: 'supply-budget',
+    severity: 'error',
+    title: 'the indicator LEDs exceed the supply budget',
+    explanation: 'Each LED draws (Vsupply - Vf) / R; with every LED lit (a bus of all ones, every strobe asserted) the total must stay within supply_ma. Also reported: LEDs whose forward voltage is at or above the supply, which never light. Raise the resistors, light fewer LEDs or use a bigger supply; follow the supply\'s data sheet and local practice for bench work.',
+  },
+  {
+    code: 'step-timing',
+    severity: 'error',
+    title: 'the planned step clock is faster than the slowest step allows',
+    explanation: 'For every step the longest path runs from the control word changing (access_ns) through the enabled drivers (en_ns), the ALU or other logic (tpd_ns) and the bus (settle_ns) to the setup time (tsu_ns) of the part that loads at the closing edge. A clock period shorter than that path latches values before they settle. Slow the clock (the message gives the fastest safe one before margin) or shorten the path. Estimates from entered figures: real boards need margin and measurement.',
+  },
 ];
 
 const byCode = new Map(catalogue.map((c) => [c.code, c]));

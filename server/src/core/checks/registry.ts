@@ -22,6 +22,10 @@ import { unplacedSignal } from './unplacedSignal';
 import { unusedName } from './unusedName';
 import { x0StoredWrite } from './x0StoredWrite';
 import { x0Write } from './x0Write';
+import { strobeOverload } from './strobeOverload';
+import { busOverload } from './busOverload';
+import { supplyBudget } from './supplyBudget';
+import { stepTiming } from './stepTiming';
 
 export const checks: Check[] = [
   busContention,
@@ -44,5 +48,9 @@ export const checks: Check[] = [
   chipCapacity,
   notAddressable,
   storeAmbiguous,
+  strobeOverload,
+  busOverload,
+  supplyBudget,
+  stepTiming,
   unusedName,
 ];

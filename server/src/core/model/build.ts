@@ -12,6 +12,7 @@ import { parseBits, parseNumber } from './numbers';
 import type * as M from './types';
 import { controlVocabulary, instructionFields, partKinds, strobeKinds } from './vocabulary';
 import { buildBodies } from './buildSteps';
+import { type FigureHost, figureInfo, figureNamesFor } from '../budget/figures';
 
 export interface BuildResult {
   machine: M.Machine;
@@ -38,6 +39,7 @@ const namespaceOf: Record<M.SymbolKind, Namespace> = {
 export class BuildContext {
   readonly diagnostics: Diagnostic[] = [];
   readonly machine: M.Machine = {
+    figures: new Map(),
     buses: new Map(),
     parts: new Map(),
     flags: new Map(),
@@ -240,26 +242,31 @@ function buildMachine(ctx: BuildContext, decl: A.MachineDecl): void {
     return;
   }
   ctx.machine.title = decl.title?.value ?? '';
+  ctx.machine.figures = readFigures(ctx, decl.options, 'machine');
   if (decl.isa) {
     if (decl.isa.text.toLowerCase() !== 'rv32i') ctx.report('unknown-kind', decl.isa.span, `Phasewright knows the RV32I instruction set only; write \`isa rv32i\``);
     else ctx.machine.isa = 'rv32i';
   }
 }
 
-/** Electrical and timing figure names accepted on buses, parts and strobes (see docs/notation.md). */
-export const figureNames = new Set<string>();
-
-function readFigures(ctx: BuildContext, options: A.OptionNode[], what: string): M.Figures {
+/** Reads `name=number` figures (docs/budget.md) for one kind of declaration. */
+function readFigures(ctx: BuildContext, options: A.OptionNode[], host: FigureHost): M.Figures {
   const figures: M.Figures = new Map();
+  const allowed = figureNamesFor(host);
   for (const option of options) {
-    if (!figureNames.has(option.key.text)) {
-      const guess = closest(option.key.text, figureNames);
-      ctx.report('unknown-kind', option.key.span, `a ${what} has no setting \`${option.key.text}\`` + (guess ? `; did you mean \`${guess}\`?` : ''));
+    const info = figureInfo(option.key.text);
+    if (!info || !info.hosts.includes(host)) {
+      const guess = closest(option.key.text, allowed);
+      ctx.report(
+        'unknown-kind',
+        option.key.span,
+        `a ${host === 'word' ? 'word layout' : host} has no setting \`${option.key.text}\`` + (guess ? `; did you mean \`${guess}\`?` : allowed.length ? `; its figures are ${allowed.join(', ')}` : ''),
+      );
       continue;
     }
     const value = option.value && 'text' in option.value ? Number(option.value.text) : NaN;
     if (!Number.isFinite(value) || value < 0) {
-      ctx.report('bad-number', option.value?.span ?? option.span, `\`${option.key.text}\` needs a number, e.g. \`${option.key.text}=24\``);
+      ctx.report('bad-number', option.value?.span ?? option.span, `\`${option.key.text}\` needs a number in ${info.unit}, e.g. \`${option.key.text}=24\``);
       continue;
     }
     figures.set(option.key.text, { value, span: option.span });
@@ -296,9 +303,9 @@ function splitArgs(ctx: BuildContext, decl: A.PartDecl, allowedOptions: string[]
     else if (arg.kind === 'word') args.words.push(arg.name);
     else if (arg.kind === 'arrow') args.arrow = { target: arg.target, span: arg.span };
     else if (allowedOptions.includes(arg.option.key.text)) args.options.set(arg.option.key.text, arg.option);
-    else if (figureNames.has(arg.option.key.text)) args.figureOptions.push(arg.option);
+    else if (figureInfo(arg.option.key.text)?.hosts.includes('part')) args.figureOptions.push(arg.option);
     else {
-      const guess = closest(arg.option.key.text, [...allowedOptions, ...figureNames]);
+      const guess = closest(arg.option.key.text, [...allowedOptions, ...figureNamesFor('part')]);
       ctx.report(
         'unknown-kind',
         arg.option.key.span,
@@ -765,7 +772,7 @@ function buildWord(ctx: BuildContext, store: M.Store, decl: A.WordDecl): void {
   } else {
     chipWidths.push(width);
   }
-  const word: M.WordLayout = { width, chipWidths, unusedLevel: 0, placements: [], span: decl.span };
+  const word: M.WordLayout = { width, chipWidths, unusedLevel: 0, placements: [], span: decl.span, figures: new Map() };
   for (const option of decl.options) {
     if (option.key.text === 'chip') {
       const chip = option.value ? chipType(option.value.text) : undefined;
@@ -775,8 +782,11 @@ function buildWord(ctx: BuildContext, store: M.Store, decl: A.WordDecl): void {
       const level = option.value?.text;
       if (level !== '0' && level !== '1') ctx.report('bad-number', option.value?.span ?? option.span, '`unused=` takes 0 or 1: the level of word bits no strobe occupies');
       else word.unusedLevel = level === '1' ? 1 : 0;
+    } else if (figureInfo(option.key.text)?.hosts.includes('word')) {
+      word.figures = new Map([...word.figures, ...readFigures(ctx, [option], 'word')]);
     } else {
-      ctx.report('unknown-kind', option.key.span, `a word layout has no setting \`${option.key.text}\`; it takes \`chip=\` and \`unused=\``);
+      const guess = closest(option.key.text, ['chip', 'unused', ...figureNamesFor('word')]);
+      ctx.report('unknown-kind', option.key.span, `a word layout has no setting \`${option.key.text}\`` + (guess ? `; did you mean \`${guess}\`?` : '; it takes `chip=`, `unused=`, `access_ns=` and `drive_ma=`'));
     }
   }
   for (const placement of decl.placements) {

@@ -171,6 +171,8 @@ export interface WordLayout {
   unusedLevel: 0 | 1;
   placements: Placement[];
   span: Span;
+  /** Control-store figures: access time, output drive. */
+  figures: Figures;
 }
 
 export interface AddressSource {
@@ -264,6 +266,8 @@ export interface ClassDef {
 export interface Machine {
   title?: string;
   isa?: string;
+  /** Machine-wide figures from the `machine` line: supply, budget, planned clock. */
+  figures: Figures;
   buses: Map<string, Bus>;
   parts: Map<string, Part>;
   flags: Map<string, Flag>;

@@ -54,6 +54,8 @@ export interface MachineDecl extends DeclBase {
   kind: 'machine';
   title?: StringLit;
   isa?: Name;
+  /** Machine-wide figures: supply voltage and budget, planned step clock. */
+  options: OptionNode[];
 }
 
 export interface BusDecl extends DeclBase {

@@ -232,12 +232,13 @@ class Parser {
   /** machine = "machine" [string] ["isa" name] */
   private parseMachine(): A.MachineDecl {
     const keyword = this.keywordSpan();
-    const decl: A.MachineDecl = { kind: 'machine', keyword, span: keyword };
+    const decl: A.MachineDecl = { kind: 'machine', keyword, span: keyword, options: [] };
     decl.title = this.optionalString();
     if (this.atWord('isa')) {
       this.next();
       decl.isa = this.expectName('the instruction set after `isa`, e.g. `isa rv32i`');
     }
+    while (this.at(T.Ident) && this.peek(1).kind === T.Equals) decl.options.push(this.parseOption());
     this.endLine('the machine line');
     return this.finish(decl, keyword.start);
   }

@@ -74,6 +74,13 @@ export function scan(text: string): Token[] {
     }
     if (isDigit(ch)) {
       while (pos < n && isAlnum(text.charCodeAt(pos))) pos++;
+      // A decimal fraction (`1.8` volts); `0..2` stays a range because a digit must follow the dot.
+      if (text.charCodeAt(pos) === 46 && isDigit(text.charCodeAt(pos + 1)) && /^[0-9]+$/.test(text.slice(start, pos))) {
+        pos++;
+        while (pos < n && isDigit(text.charCodeAt(pos))) pos++;
+        push(T.Number, start, pos);
+        continue;
+      }
       // A run of 0/1 followed by a dash that is not an arrow is a bit pattern with don't-cares.
       let allBits = true;
       for (let i = start; i < pos; i++) if (!isBitOrDash(text.charCodeAt(i))) allBits = false;

@@ -1,0 +1,96 @@
+// `phasewright budget FILE`: the fan-out, bus load, LED current and step timing tables from the
+// figures in the table, the fastest safe step clock and the path that limits it. Exit 1 when a
+// budget check fails (overload, supply, timing), 0 otherwise, 2 on usage or file errors.
+import { resolve } from 'node:path';
+import { analyse, errorCount } from '../../core/analysis';
+import { budgetOf, type LineLoad } from '../../core/budget/budget';
+import { parseArgs } from '../args';
+import type { Command } from '../commands';
+import { readSource } from '../readSource';
+import { renderDiagnostic } from '../render';
+
+const budgetCodes = ['strobe-overload', 'bus-overload', 'supply-budget', 'step-timing'];
+
+export const budgetCommand: Command = {
+  name: 'budget',
+  summary: 'fan-out, bus load, LED current and step timing from entered figures',
+  usage: 'budget FILE',
+  async run(args, io) {
+    const parsed = parseArgs(args, {});
+    if (parsed.errors.length || parsed.positionals.length !== 1) {
+      io.err(`phasewright budget: ${parsed.errors[0] ?? 'give one .pwt file'}\nusage: phasewright ${this.usage}\n`);
+      return 2;
+    }
+    const file = parsed.positionals[0];
+    const source = readSource(resolve(io.cwd, file));
+    if (!source.ok) {
+      io.err(`phasewright budget: ${source.reason.replace(resolve(io.cwd, file), file)}\n`);
+      return 2;
+    }
+    const analysis = analyse(source.text);
+    const other = analysis.diagnostics.filter((d) => d.severity === 'error' && !budgetCodes.includes(d.code));
+    if (other.length) {
+      io.err(`phasewright budget: ${file} has ${errorCount(other)} error(s) besides the budget; run \`phasewright check ${file}\` first\n`);
+      return 2;
+    }
+    const b = budgetOf(analysis.machine);
+    const out: string[] = [];
+    out.push(`Budget for ${analysis.machine.title || file} (${file})`);
+    out.push('These are estimates from the figures entered in the table. Real boards need margin, measurement and');
+    out.push('the manufacturers\' data sheets; supply and bench work follow local practice.');
+    out.push('');
+    out.push('Control lines (each strobe is one control-store output)');
+    out.push(table(['strobe', 'inputs', 'LED mA', 'load mA', 'driver', 'rating mA', 'margin mA'], b.strobes.map((r) => loadRow(r, r.name))));
+    out.push('');
+    out.push('Bus lines (load on each line, for each part that drives the bus)');
+    out.push(table(['bus', 'driver', 'inputs', 'LED mA', 'load mA', 'rating mA', 'margin mA'], b.buses.map((r) => [r.name, r.driver, String(r.inputs), ma(r.ledMa), ma(r.loadMa), ma(r.driveMa), margin(r)])));
+    out.push('');
+    out.push('Indicator LEDs (current per LED = (supply - forward voltage) / resistor)');
+    out.push(table(['where', 'LEDs', 'mA each', 'mA all lit'], b.leds.map((g) => [g.where, String(g.count), g.perLedMa.toFixed(2), g.totalMa.toFixed(1)])));
+    out.push(`  all LEDs lit: ${b.ledTotalMa.toFixed(1)} mA${b.supplyMa !== undefined ? ` of a ${b.supplyMa} mA budget (${((100 * b.ledTotalMa) / b.supplyMa).toFixed(0)}%)` : ' (no supply_ma budget declared)'}`);
+    out.push('');
+    out.push('Step timing (longest path from the control word changing to the closing edge)');
+    const paths = [...b.paths].sort((x, y) => y.totalNs - x.totalNs);
+    out.push(table(['step', 'ns', 'path'], paths.map((p) => [`${p.owner} step ${p.step}${p.guard ? ` (${p.guard})` : ''}`, p.totalNs.toFixed(0), `${p.segments.map((s) => `${s.what} ${s.ns}`).join(' + ')} -> ${p.endpoint}`])));
+    if (b.limiting && b.maxClockKhz !== undefined) {
+      out.push('');
+      out.push(`Fastest safe step clock: ${b.maxClockKhz.toFixed(0)} kHz (period ${b.limiting.totalNs.toFixed(0)} ns), limited by step ${b.limiting.step} of ${b.limiting.owner}${b.limiting.guard ? ` (${b.limiting.guard})` : ''} before ${b.limiting.endpoint}. Leave margin.`);
+      if (b.plannedKhz !== undefined) out.push(`Planned step clock: ${b.plannedKhz} kHz (period ${(1e6 / b.plannedKhz).toFixed(0)} ns): ${b.plannedKhz <= b.maxClockKhz ? `${((1 - b.plannedKhz / b.maxClockKhz) * 100).toFixed(0)}% slower than the limit` : 'TOO FAST'}.`);
+    }
+    if (b.missing.length) {
+      out.push('');
+      out.push('Missing figures (those rows are incomplete):');
+      for (const m of b.missing.slice(0, 30)) out.push(`  - ${m}`);
+      if (b.missing.length > 30) out.push(`  ... ${b.missing.length - 30} more`);
+    }
+    const problems = analysis.diagnostics.filter((d) => budgetCodes.includes(d.code));
+    if (problems.length) {
+      out.push('');
+      out.push('Problems:');
+      for (const d of problems) out.push(renderDiagnostic(file, analysis, d));
+    }
+    io.out(out.join('\n') + '\n');
+    return problems.some((d) => d.severity === 'error') ? 1 : 0;
+  },
+};
+
+function ma(value: number | undefined): string {
+  return value === undefined ? '?' : value.toFixed(2);
+}
+
+function margin(row: LineLoad): string {
+  if (row.marginMa === undefined) return '?';
+  return row.marginMa < 0 ? `${row.marginMa.toFixed(2)} OVER` : row.marginMa.toFixed(2);
+}
+
+function loadRow(r: LineLoad, name: string): string[] {
+  return [name, String(r.inputs), ma(r.ledMa), ma(r.loadMa), r.driver, ma(r.driveMa), margin(r)];
+}
+
+function table(headers: string[], rows: string[][]): string {
+  if (rows.length === 0) return '  (none)';
+  const widths = headers.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
+  const numeric = headers.map((_, i) => rows.every((r) => /^[-0-9.?]/.test(r[i]) && !/[a-z]{3}/i.test(r[i].replace(' OVER', ''))));
+  const fmt = (cells: string[]) => '  ' + cells.map((c, i) => (numeric[i] && i > 0 ? c.padStart(widths[i]) : c.padEnd(widths[i]))).join('  ').trimEnd();
+  return [fmt(headers), ...rows.map(fmt)].join('\n');
+}

@@ -1,0 +1,307 @@
+// The electrical and timing budget of a table, from the figures the user entered: the load on
+// every control line and bus line against its driver's rating, the LED current (each
+// indicator and all lit at once) against the supply budget, and for every step the longest
+// path from the control word changing to the closing clock edge, which bounds the step clock.
+// These are estimates from entered figures; real boards need margin and measurement.
+import type { Bus, Figures, Machine, Part, StepAlt, Strobe } from '../model/types';
+import type { Span } from '../text/span';
+
+export interface LineLoad {
+  /** Strobe name, or `bus name` for a bus row. */
+  name: string;
+  kind: 'strobe' | 'bus';
+  /** Chip inputs the line reaches (for a bus: per bus line). */
+  inputs: number;
+  /** Input current of those inputs, plus keeper and LED current, in mA. */
+  loadMa?: number;
+  ledMa: number;
+  /** What drives the line: `store main` for a strobe, the driving part for a bus. */
+  driver: string;
+  driveMa?: number;
+  marginMa?: number;
+  /** Where to report: the strobe or bus declaration (for a bus row: the driver's enable strobe). */
+  span: Span;
+  /** Parts whose inputs the line reaches. */
+  reaches: string[];
+  /** Figures needed for this row that the table does not give. */
+  missing: string[];
+}
+
+export interface LedGroup {
+  where: string;
+  count: number;
+  perLedMa: number;
+  totalMa: number;
+  span: Span;
+  /** Set when the supply voltage does not exceed the LED's forward voltage. */
+  dark?: boolean;
+}
+
+export interface PathSegment {
+  what: string;
+  ns: number;
+}
+
+export interface StepPath {
+  owner: string;
+  step: number;
+  guard: string;
+  /** The load whose path is longest in this step, e.g. `x.rd.ck`. */
+  endpoint: string;
+  segments: PathSegment[];
+  totalNs: number;
+  span: Span;
+}
+
+export interface Budget {
+  strobes: LineLoad[];
+  buses: LineLoad[];
+  leds: LedGroup[];
+  ledTotalMa: number;
+  supplyMa?: number;
+  supplyV?: number;
+  paths: StepPath[];
+  limiting?: StepPath;
+  /** Fastest step clock the longest path allows, in kHz. */
+  maxClockKhz?: number;
+  plannedKhz?: number;
+  /** Figures the table would need for a complete budget, in plain words. */
+  missing: string[];
+}
+
+const fig = (figures: Figures | undefined, name: string): number | undefined => figures?.get(name)?.value;
+
+/** LED current in mA by Ohm's law: I = (Vsupply - Vf) / R. */
+export function ledCurrentMa(supplyV: number, forwardV: number, ohms: number): number {
+  if (ohms <= 0 || supplyV <= forwardV) return 0;
+  return ((supplyV - forwardV) / ohms) * 1000;
+}
+
+const cache = new WeakMap<Machine, Budget>();
+
+/** The budget of a machine, computed once per model (the checks and hover share it). */
+export function budgetOf(machine: Machine): Budget {
+  let budget = cache.get(machine);
+  if (!budget) cache.set(machine, (budget = computeBudget(machine)));
+  return budget;
+}
+
+export function computeBudget(machine: Machine): Budget {
+  const supplyV = fig(machine.figures, 'supply_v');
+  const missing = new Set<string>();
+  const leds: LedGroup[] = [];
+  /** Records an LED group and returns the current of one of its LEDs. */
+  const ledOf = (figures: Figures, where: string, span: Span): number => {
+    const count = fig(figures, 'leds') ?? 0;
+    if (!count) return 0;
+    const vf = fig(figures, 'led_vf');
+    const ohm = fig(figures, 'led_ohm');
+    if (supplyV === undefined || vf === undefined || ohm === undefined) {
+      missing.add(`LED figures for ${where} (supply_v on the machine line, led_vf and led_ohm)`);
+      return 0;
+    }
+    const perLed = ledCurrentMa(supplyV, vf, ohm);
+    leds.push({ where, count, perLedMa: perLed, totalMa: perLed * count, span, dark: supplyV <= vf });
+    return perLed;
+  };
+
+  const storeOf = new Map<string, { name: string; figures: Figures }>();
+  for (const store of machine.stores) for (const p of store.word?.placements ?? []) if (store.word) storeOf.set(p.signal, { name: store.name, figures: store.word.figures });
+
+  const strobes: LineLoad[] = [];
+  for (const signal of machine.signals.values()) {
+    if (signal.type !== 'strobe') continue;
+    strobes.push(strobeLoad(machine, signal, storeOf.get(signal.name), ledOf(signal.figures, `strobe ${signal.name}`, signal.symbol.span)));
+  }
+  const buses: LineLoad[] = [];
+  for (const bus of machine.buses.values()) {
+    const ledMa = ledOf(bus.figures, `bus ${bus.name}`, bus.symbol.span);
+    buses.push(...busLoads(machine, bus, ledMa));
+  }
+  for (const part of machine.parts.values()) ledOf(part.figures, `part ${part.name}`, part.symbol.span);
+  for (const row of [...strobes, ...buses]) for (const m of row.missing) missing.add(m);
+
+  const paths = stepPaths(machine, missing);
+  const limiting = paths.reduce<StepPath | undefined>((a, b) => (!a || b.totalNs > a.totalNs ? b : a), undefined);
+  const ledTotalMa = leds.reduce((a, l) => a + l.totalMa, 0);
+  return {
+    strobes,
+    buses,
+    leds,
+    ledTotalMa,
+    supplyMa: fig(machine.figures, 'supply_ma'),
+    supplyV,
+    paths,
+    limiting,
+    maxClockKhz: limiting && limiting.totalNs > 0 ? 1e6 / limiting.totalNs : undefined,
+    plannedKhz: fig(machine.figures, 'clock_khz'),
+    missing: [...missing],
+  };
+}
+
+/** Inputs one control line of a part reaches: `loads` per card, times `cards` for a register file. */
+function inputsOfPart(part: Part): number {
+  const loads = fig(part.figures, 'loads') ?? 1;
+  return part.kind === 'regfile' ? loads * (fig(part.figures, 'cards') ?? 1) : loads;
+}
+
+function strobeLoad(machine: Machine, strobe: Strobe, store: { name: string; figures: Figures } | undefined, ledMa: number): LineLoad {
+  const part = strobe.part ? machine.parts.get(strobe.part) : undefined;
+  const inputs = fig(strobe.figures, 'loads') ?? (part ? inputsOfPart(part) : 1);
+  const inUa = fig(strobe.figures, 'in_ua') ?? (part ? fig(part.figures, 'in_ua') : undefined);
+  const driveMa = store ? fig(store.figures, 'drive_ma') : undefined;
+  const rowMissing: string[] = [];
+  if (inUa === undefined) rowMissing.push(`input current (in_ua) for ${part ? `part ${part.name}` : `strobe ${strobe.name}`}`);
+  if (store && driveMa === undefined) rowMissing.push(`control-store output drive (drive_ma on the word of store ${store.name})`);
+  const loadMa = inUa === undefined ? undefined : (inputs * inUa) / 1000 + ledMa;
+  return {
+    name: strobe.name,
+    kind: 'strobe',
+    inputs,
+    loadMa,
+    ledMa,
+    driver: store ? `store ${store.name}` : 'no store',
+    driveMa,
+    marginMa: loadMa !== undefined && driveMa !== undefined ? driveMa - loadMa : undefined,
+    span: strobe.symbol.span,
+    reaches: part ? [part.name] : [],
+    missing: rowMissing,
+  };
+}
+
+/** One row per driver of the bus: the per-line load every driver must carry. */
+function busLoads(machine: Machine, bus: Bus, ledMa: number): LineLoad[] {
+  const readers = new Map<string, Part>();
+  const drivers = new Map<string, { part: Part; strobe: Strobe }>();
+  for (const signal of machine.signals.values()) {
+    if (signal.type !== 'strobe' || signal.bus !== bus.name || !signal.part) continue;
+    const part = machine.parts.get(signal.part);
+    if (!part) continue;
+    if (signal.kind === 'enable' || signal.kind === 'read') {
+      if (!drivers.has(part.name)) drivers.set(part.name, { part, strobe: signal });
+    } else readers.set(part.name, part);
+  }
+  for (const part of machine.parts.values()) {
+    if ((part.kind === 'alu' || part.kind === 'compare') && (part.a === bus.name || part.b === bus.name)) readers.set(part.name, part);
+    if (part.kind === 'memory' && part.addressFrom === 'bus' && part.address === bus.name) readers.set(part.name, part);
+  }
+  const rows: LineLoad[] = [];
+  for (const { part: driver, strobe } of drivers.values()) {
+    // Every other part on the bus loads the line: readers with their inputs, idle drivers
+    // with their off-state leakage, and the keeper needs its overdrive current.
+    const loaded = [...readers.values(), ...[...drivers.values()].map((d) => d.part)].filter((p, i, all) => p !== driver && all.indexOf(p) === i);
+    const rowMissing: string[] = [];
+    let loadUa = 0;
+    let inputs = 0;
+    for (const p of loaded) {
+      const inUa = fig(p.figures, 'in_ua');
+      const n = inputsOfPart(p);
+      inputs += n;
+      if (inUa === undefined) rowMissing.push(`input current (in_ua) for part ${p.name}`);
+      else loadUa += n * inUa;
+    }
+    const holdUa = bus.keeper ? fig(bus.figures, 'hold_ua') : 0;
+    if (bus.keeper && holdUa === undefined) rowMissing.push(`keeper overdrive current (hold_ua) for bus ${bus.name}`);
+    const driveMa = fig(driver.figures, 'drive_ma');
+    if (driveMa === undefined) rowMissing.push(`output drive (drive_ma) for part ${driver.name}`);
+    const complete = rowMissing.filter((m) => !m.startsWith('output drive')).length === 0;
+    const loadMa = complete ? (loadUa + (holdUa ?? 0)) / 1000 + ledMa : undefined;
+    rows.push({
+      name: bus.name,
+      kind: 'bus',
+      inputs,
+      loadMa,
+      ledMa,
+      driver: driver.name,
+      driveMa,
+      marginMa: loadMa !== undefined && driveMa !== undefined ? driveMa - loadMa : undefined,
+      span: strobe.symbol.span,
+      reaches: loaded.map((p) => p.name),
+      missing: rowMissing,
+    });
+  }
+  return rows;
+}
+
+/** Longest path of every step alternative (phase steps once), from control word to clock edge. */
+function stepPaths(machine: Machine, missing: Set<string>): StepPath[] {
+  const accessValues = machine.stores.map((s) => fig(s.word?.figures, 'access_ns')).filter((v): v is number => v !== undefined);
+  if (accessValues.length === 0) {
+    if (machine.stores.some((s) => s.word)) missing.add('control-store access time (access_ns on the word layout)');
+    return [];
+  }
+  const access = Math.max(...accessValues);
+  const paths: StepPath[] = [];
+  const seen = new Set<number>();
+  const visit = (alt: StepAlt, owner: string) => {
+    if (seen.has(alt.span.start)) return;
+    seen.add(alt.span.start);
+    const path = longestPath(machine, alt, access, missing);
+    if (path) paths.push({ owner, step: alt.step, guard: alt.isElse ? 'else' : (alt.guard ?? []).map((g) => `${g.label}=${g.bits}`).join(' & '), ...path, span: alt.numberSpan });
+  };
+  for (const phase of machine.phases.values()) for (const alt of phase.steps) visit(alt, `phase ${phase.name}`);
+  for (const cls of machine.classes) for (const alts of cls.steps.values()) for (const alt of alts) if (!alt.phase) visit(alt, `class ${cls.name}`);
+  return paths;
+}
+
+interface Arrival {
+  ns: number;
+  segments: PathSegment[];
+}
+
+function longestPath(machine: Machine, alt: StepAlt, access: number, missing: Set<string>): Omit<StepPath, 'owner' | 'step' | 'guard' | 'span'> | undefined {
+  const strobes = alt.actions.map((a) => machine.signals.get(a.signal)).filter((s): s is Strobe => s?.type === 'strobe');
+  const need = (part: Part, name: string): number => {
+    const v = fig(part.figures, name);
+    if (v === undefined) missing.add(`${name} for part ${part.name}`);
+    return v ?? 0;
+  };
+  const start: Arrival = { ns: access, segments: [{ what: 'control store access', ns: access }] };
+  const busArrival = new Map<string, Arrival | undefined>();
+  const arrivalOnBus = (busName: string, depth = 0): Arrival | undefined => {
+    if (busArrival.has(busName)) return busArrival.get(busName);
+    busArrival.set(busName, undefined);
+    let best: Arrival | undefined;
+    for (const s of strobes) {
+      if (s.bus !== busName || (s.kind !== 'enable' && s.kind !== 'read') || !s.part) continue;
+      const part = machine.parts.get(s.part);
+      if (!part) continue;
+      let arrival: Arrival = { ns: start.ns + need(part, 'en_ns'), segments: [...start.segments, { what: `${s.name} enable`, ns: need(part, 'en_ns') }] };
+      if ((part.kind === 'alu' || part.kind === 'compare') && depth < 4) {
+        const inputs = [arrivalOnBus(part.a, depth + 1), arrivalOnBus(part.b, depth + 1), start].filter((a): a is Arrival => !!a);
+        const latest = inputs.reduce((a, b) => (b.ns > a.ns ? b : a));
+        const through = { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} ${part.kind === 'alu' ? 'ALU' : 'comparator'}`, ns: need(part, 'tpd_ns') }] };
+        if (through.ns > arrival.ns) arrival = through;
+      } else if (part.kind === 'immediate' || part.kind === 'memory') {
+        const through = { ns: start.ns + need(part, 'tpd_ns'), segments: [...start.segments, { what: `${part.name} ${part.kind === 'memory' ? 'memory read' : 'immediate'}`, ns: need(part, 'tpd_ns') }] };
+        if (through.ns > arrival.ns) arrival = through;
+      }
+      if (!best || arrival.ns > best.ns) best = arrival;
+    }
+    if (best) {
+      const settle = fig(machine.buses.get(busName)?.figures, 'settle_ns') ?? 0;
+      if (settle) best = { ns: best.ns + settle, segments: [...best.segments, { what: `${busName} settling`, ns: settle }] };
+    }
+    busArrival.set(busName, best);
+    return best;
+  };
+  let worst: { arrival: Arrival; endpoint: string } | undefined;
+  for (const s of strobes) {
+    if (!s.part) continue;
+    const part = machine.parts.get(s.part);
+    if (!part) continue;
+    let arrival: Arrival | undefined;
+    if ((s.kind === 'clock' || s.kind === 'write') && s.bus) arrival = arrivalOnBus(s.bus);
+    else if (s.kind === 'clock' && part.kind === 'compare') {
+      const inputs = [arrivalOnBus(part.a), arrivalOnBus(part.b), start].filter((a): a is Arrival => !!a);
+      const latest = inputs.reduce((a, b) => (b.ns > a.ns ? b : a));
+      arrival = { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} comparator`, ns: need(part, 'tpd_ns') }] };
+    } else if (s.kind === 'count') arrival = start;
+    if (!arrival) continue;
+    const setup = need(part, 'tsu_ns');
+    const total = { ns: arrival.ns + setup, segments: [...arrival.segments, { what: `${s.name} setup`, ns: setup }] };
+    if (!worst || total.ns > worst.arrival.ns) worst = { arrival: total, endpoint: s.name };
+  }
+  if (!worst) return { endpoint: '(nothing loaded)', segments: start.segments, totalNs: start.ns };
+  return { endpoint: worst.endpoint, segments: worst.arrival.segments, totalNs: worst.arrival.ns };
+}
