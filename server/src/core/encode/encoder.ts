@@ -23,6 +23,11 @@ export interface EncodedStore {
   fillWord: Uint32Array;
   /** Addresses holding a word from the table (the rest hold the fill word). */
   usedCount: number;
+  /**
+   * Bits some step cares about at each address (same layout as `words`): strobes everywhere a
+   * step applies, fields only where a step sets them; 0 where the fill word stands.
+   */
+  care: Uint32Array;
 }
 
 export interface Ambiguity {
@@ -57,7 +62,7 @@ export function encodeMachine(machine: Machine, options: { stores?: string[] } =
   const ambiguities: Ambiguity[] = [];
   if (universe.bits > maxUniverseBits) return { universe, stores: [], ambiguities, decoder };
   const nPoints = 2 ** universe.bits;
-  const prepared = targets.map((store, i) => ({ enc: stores[i], placed: placedSignals(machine, store), care: new Uint32Array(stores[i].words.length), seenAmbiguity: new Set<string>() }));
+  const prepared = targets.map((store, i) => ({ enc: stores[i], placed: placedSignals(machine, store), care: stores[i].care, seenAmbiguity: new Set<string>() }));
   // Points with the same alternative and map rows share one decode object, and so one word
   // per store: build each word once.
   const wordCache = prepared.map(() => new Map<PointDecode, { word: Uint32Array; care: Uint32Array }>());
@@ -119,7 +124,7 @@ function prepareStore(machine: Machine, store: Store): EncodedStore {
   if (lanes === 1) words.fill(fillWord[0]);
   else for (let a = 0; a < nAddresses; a++) words.set(fillWord, a * lanes);
   const origin = new Int32Array(nAddresses).fill(-1);
-  return { store, addressBits, wordBits, lanes, words, origin, fillWord, usedCount: 0 };
+  return { store, addressBits, wordBits, lanes, words, origin, fillWord, usedCount: 0, care: new Uint32Array(nAddresses * lanes) };
 }
 
 function placedSignals(machine: Machine, store: Store): PlacedSignal[] {
