@@ -123,6 +123,40 @@ export function cofactorInputs(cover: readonly Cube[], p: Cube, space: CubeSpace
   return result;
 }
 
+/**
+ * The cofactor, with respect to the input part of p, of the cubes of output bit `outputBit`
+ * found in `lists`, leaving out the cube object `skip` and null entries. It is the same as
+ * cofactorInputs(coverOfOutput(...)) without building the intermediate arrays.
+ */
+export function cofactorOfOutputExcept(
+  p: Cube,
+  outputBit: number,
+  skip: Cube | null,
+  lists: readonly (readonly (Cube | null)[])[],
+  space: CubeSpace,
+): Cube[] {
+  const mask = space.inputMask;
+  const widenZeros = ~p.zeros & mask;
+  const widenOnes = ~p.ones & mask;
+  const result: Cube[] = [];
+  for (const list of lists) {
+    for (const c of list) {
+      if (c === null || c === skip || (c.outs & outputBit) === 0) continue;
+      if ((((c.zeros & p.zeros) | (c.ones & p.ones)) & mask) !== mask) continue;
+      result.push({ zeros: c.zeros | widenZeros, ones: c.ones | widenOnes, outs: c.outs });
+    }
+  }
+  return result;
+}
+
+/** Whether the cubes of `lists` other than `skip` cover cube p, for every output of p. */
+export function coveredByOthers(p: Cube, skip: Cube | null, lists: readonly (readonly (Cube | null)[])[], space: CubeSpace): boolean {
+  for (const outputIndex of bitIndexes(p.outs & space.outputMask)) {
+    if (!tautology(cofactorOfOutputExcept(p, 1 << outputIndex, skip, lists, space), space)) return false;
+  }
+  return true;
+}
+
 /** The cubes of a cover that are terms of output bit `outputBit`. */
 export function coverOfOutput(cover: readonly Cube[], outputBit: number): Cube[] {
   return cover.filter((c) => (c.outs & outputBit) !== 0);
@@ -248,10 +282,7 @@ export function coversInputs(cover: readonly Cube[], p: Cube, space: CubeSpace):
 
 /** Whether a multi-output cover covers cube p: for every output of p, p's inputs are covered by that output's cubes. */
 export function coversCube(cover: readonly Cube[], p: Cube, space: CubeSpace): boolean {
-  for (const outputIndex of bitIndexes(p.outs & space.outputMask)) {
-    if (!coversInputs(coverOfOutput(cover, 1 << outputIndex), p, space)) return false;
-  }
-  return true;
+  return coveredByOthers(p, null, [cover], space);
 }
 
 /** Removes cubes contained in another cube of the list (and duplicates), keeping the first of equals. */
@@ -320,7 +351,7 @@ export function complement(cover: readonly Cube[], space: CubeSpace): Cube[] {
   const result: Cube[] = [];
   for (let outputIndex = 0; outputIndex < space.nOutputs; outputIndex++) {
     const bit = 1 << outputIndex;
-    result.push(...complementInputs(coverOfOutput(cover, bit), space, bit));
+    for (const c of complementInputs(coverOfOutput(cover, bit), space, bit)) result.push(c);
   }
   return result;
 }

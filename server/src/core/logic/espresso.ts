@@ -14,6 +14,8 @@ import {
   contains,
   coverOfOutput,
   coversCube,
+  coveredByOthers,
+  cofactorOfOutputExcept,
   inputSize,
   isInputUniversal,
   isInputVoid,
@@ -30,7 +32,7 @@ import { solveUnateCover } from './unateCover';
 
 export interface EspressoProblem {
   readonly space: CubeSpace;
-  /** A cover of the ON-set; it may also cover don't-care points. */
+  /** A cover of the ON-set; it may also cover don't-care points (points in `dc` are don't-cares even when listed here). */
   readonly on: readonly Cube[];
   /** A cover of the don't-care set. */
   readonly dc: readonly Cube[];
@@ -345,8 +347,19 @@ function weightOrder(cover: readonly Cube[], space: CubeSpace): number[] {
   return cover.map((_, index) => index).sort((a, b) => weights[a] - weights[b] || a - b);
 }
 
+/** Collects every prime EXPAND produces during a run, without duplicates. */
+export class PrimePool {
+  private readonly byKey = new Map<string, Cube>();
+  add(prime: Cube): void {
+    this.byKey.set(`${prime.zeros},${prime.ones},${prime.outs}`, prime);
+  }
+  primes(): Cube[] {
+    return [...this.byKey.values()];
+  }
+}
+
 /** EXPAND: replaces every cube by a prime containing it; cubes swallowed on the way disappear. */
-export function expand(cover: readonly Cube[], off: readonly Cube[], space: CubeSpace): Cube[] {
+export function expand(cover: readonly Cube[], off: readonly Cube[], space: CubeSpace, pool?: PrimePool): Cube[] {
   const ordered = weightOrder(cover, space).map((index) => cover[index]);
   const alive = new Uint8Array(ordered.length).fill(1);
   const primes: Cube[] = [];
@@ -355,6 +368,7 @@ export function expand(cover: readonly Cube[], off: readonly Cube[], space: Cube
     alive[index] = 0;
     primes.push(expandCube(ordered[index], ordered, alive, off, space));
   }
+  if (pool) for (const prime of primes) pool.add(prime);
   return removeContained(primes);
 }
 
@@ -409,12 +423,13 @@ export function irredundantIndexes(cover: readonly Cube[], dc: readonly Cube[], 
   const relativelyEssential: number[] = [];
   const redundant: number[] = [];
   cover.forEach((c, index) => {
-    const others = [...cover.filter((_, i) => i !== index), ...dc];
-    (coversCube(others, c, space) ? redundant : relativelyEssential).push(index);
+    (coveredByOthers(c, c, [cover, dc], space) ? redundant : relativelyEssential).push(index);
   });
   if (redundant.length === 0) return relativelyEssential;
-  const essentialCubes = [...relativelyEssential.map((i) => cover[i]), ...dc];
-  const partial = redundant.filter((index) => !coversCube(essentialCubes, cover[index], space));
+  // The fixed part: relatively essential cubes plus don't-cares (kept as two lists, the
+  // don't-care list can be long).
+  const fixedLists = [relativelyEssential.map((i) => cover[i]), dc];
+  const partial = redundant.filter((index) => !coveredByOthers(cover[index], null, fixedLists, space));
   if (partial.length === 0) return relativelyEssential;
 
   const rows = new Map<string, number[]>();
@@ -423,7 +438,7 @@ export function irredundantIndexes(cover: readonly Cube[], dc: readonly Cube[], 
     const p = cover[partial[column]];
     for (const outputIndex of bitIndexes(p.outs & space.outputMask)) {
       const bit = 1 << outputIndex;
-      const fixedCubes = cofactorInputs(coverOfOutput(essentialCubes, bit), p, space);
+      const fixedCubes = cofactorOfOutputExcept(p, bit, null, fixedLists, space);
       const tagged: TaggedCube[] = [];
       partial.forEach((index, otherColumn) => {
         if (otherColumn === column || (cover[index].outs & bit) === 0) return;
@@ -445,8 +460,8 @@ export function irredundantIndexes(cover: readonly Cube[], dc: readonly Cube[], 
     keptPartial = [...partial];
     const bySize = [...partial].sort((a, b) => inputSize(cover[a], space) - inputSize(cover[b], space));
     for (const index of bySize) {
-      const rest = [...essentialCubes, ...keptPartial.filter((k) => k !== index).map((k) => cover[k])];
-      if (coversCube(rest, cover[index], space)) keptPartial = keptPartial.filter((k) => k !== index);
+      const rest = keptPartial.filter((k) => k !== index).map((k) => cover[k]);
+      if (coveredByOthers(cover[index], null, [...fixedLists, rest], space)) keptPartial = keptPartial.filter((k) => k !== index);
     }
   }
   return [...relativelyEssential, ...keptPartial].sort((a, b) => a - b);
@@ -498,14 +513,14 @@ export function essentialIndexes(cover: readonly Cube[], dc: readonly Cube[], sp
 // which gives the next EXPAND room to move to a different, hopefully better, prime.
 // ---------------------------------------------------------------------------------------------
 
-/** The smallest cube holding the points of c not covered by `others`, or null if there are none. */
-function reduceCube(c: Cube, others: readonly Cube[], space: CubeSpace): Cube | null {
+/** The smallest cube holding the points of c not covered by the other cubes of `lists`, or null if there are none. */
+function reduceCube(c: Cube, lists: readonly (readonly (Cube | null)[])[], space: CubeSpace): Cube | null {
   let zeros = 0;
   let ones = 0;
   let outs = 0;
   for (const outputIndex of bitIndexes(c.outs & space.outputMask)) {
     const bit = 1 << outputIndex;
-    const cofactor = cofactorInputs(coverOfOutput(others, bit), c, space);
+    const cofactor = cofactorOfOutputExcept(c, bit, c, lists, space);
     const smallest = smallestCubeContainingComplement(cofactor, space);
     if (!smallest) continue;
     zeros |= c.zeros & smallest.zeros;
@@ -516,19 +531,30 @@ function reduceCube(c: Cube, others: readonly Cube[], space: CubeSpace): Cube | 
   return { zeros, ones, outs };
 }
 
-export function reduce(cover: readonly Cube[], dc: readonly Cube[], space: CubeSpace): Cube[] {
+/** The order REDUCE visits cubes in; alternating orders keeps the loop from circling one local minimum. */
+export type ReduceOrder = 'largest-first' | 'weight';
+
+function reduceOrder(cover: readonly Cube[], space: CubeSpace, order: ReduceOrder): number[] {
+  const indexes = cover.map((_, index) => index);
+  if (order === 'weight') {
+    // Cubes made of common parts first (the reverse of EXPAND's order).
+    return weightOrder(cover, space).reverse();
+  }
+  // The largest cube first, then the others by increasing distance from it: cubes near the
+  // largest one shrink while it still overlaps them.
+  const size = (c: Cube) => inputSize(c, space) * popcount(c.outs & space.outputMask);
+  let largest = 0;
+  for (const index of indexes) if (size(cover[index]) > size(cover[largest])) largest = index;
+  const distance = (c: Cube) =>
+    popcount(space.inputMask & ~((c.zeros & cover[largest].zeros) | (c.ones & cover[largest].ones))) +
+    ((c.outs & cover[largest].outs) === 0 ? 1 : 0);
+  return indexes.sort((a, b) => (a === largest ? -1 : b === largest ? 1 : distance(cover[a]) - distance(cover[b]) || size(cover[b]) - size(cover[a]) || a - b));
+}
+
+export function reduce(cover: readonly Cube[], dc: readonly Cube[], space: CubeSpace, order: ReduceOrder = 'largest-first'): Cube[] {
   const current: (Cube | null)[] = [...cover];
-  // Largest cubes first: they have the most room to shrink.
-  const order = cover
-    .map((_, index) => index)
-    .sort((a, b) => inputSize(cover[b], space) * popcount(cover[b].outs) - inputSize(cover[a], space) * popcount(cover[a].outs) || a - b);
-  for (const index of order) {
-    const others: Cube[] = [];
-    current.forEach((c, i) => {
-      if (c && i !== index) others.push(c);
-    });
-    others.push(...dc);
-    current[index] = reduceCube(current[index]!, others, space);
+  for (const index of reduceOrder(cover, space, order)) {
+    current[index] = reduceCube(current[index]!, [current, dc], space);
   }
   return current.filter((c): c is Cube => c !== null);
 }
@@ -538,11 +564,10 @@ export function reduce(cover: readonly Cube[], dc: readonly Cube[], space: CubeS
 // towards each other, and keep new primes that cover two or more of them.
 // ---------------------------------------------------------------------------------------------
 
-export function lastGasp(cover: readonly Cube[], dc: readonly Cube[], off: readonly Cube[], space: CubeSpace): Cube[] | null {
+export function lastGasp(cover: readonly Cube[], dc: readonly Cube[], off: readonly Cube[], space: CubeSpace, pool?: PrimePool): Cube[] | null {
   const reduced: Cube[] = [];
   cover.forEach((c, index) => {
-    const others = [...cover.filter((_, i) => i !== index), ...dc];
-    const r = reduceCube(c, others, space);
+    const r = reduceCube(c, [cover, dc], space);
     if (r && !sameCube(r, c)) reduced.push(r);
   });
   if (reduced.length < 2) return null;
@@ -551,6 +576,7 @@ export function lastGasp(cover: readonly Cube[], dc: readonly Cube[], off: reado
     const alive = new Uint8Array(reduced.length).fill(1);
     alive[index] = 0;
     const prime = expandCube(reduced[index], reduced, alive, off, space);
+    pool?.add(prime);
     const coveredCount = reduced.filter((r) => contains(prime, r)).length;
     if (coveredCount >= 2 && !newPrimes.some((p) => sameCube(p, prime))) newPrimes.push(prime);
   }
@@ -580,15 +606,26 @@ export function makeSparse(cover: readonly Cube[], dc: readonly Cube[], space: C
   return cover.map((c, index) => ({ zeros: c.zeros, ones: c.ones, outs: outs[index] })).filter((c) => c.outs !== 0);
 }
 
-/** Runs Espresso-II and returns a cover of the ON-set inside ON ∪ DC. */
-export function espresso(problem: EspressoProblem): Cube[] {
+export interface EspressoOptions {
+  /** When given, receives every prime produced on the way (for a later covering step). */
+  readonly pool?: PrimePool;
+}
+
+/**
+ * Runs Espresso-II and returns a cover of the ON-set inside ON ∪ DC: EXPAND and IRREDUNDANT,
+ * essential primes set aside as don't-cares, REDUCE/EXPAND/IRREDUNDANT while the cost drops
+ * (each idle pass retried once with the other REDUCE order), LAST_GASP, and finally the
+ * output parts made sparse so no output carries a term it does not need.
+ */
+export function espresso(problem: EspressoProblem, options: EspressoOptions = {}): Cube[] {
+  const pool = options.pool;
   const space = problem.space;
   const on = problem.on.filter((c) => !isInputVoid(c, space) && (c.outs & space.outputMask) !== 0);
   if (on.length === 0) return [];
   const dc = problem.dc.filter((c) => !isInputVoid(c, space) && (c.outs & space.outputMask) !== 0);
   const off = splitOutputs(problem.off ?? complement([...on, ...dc], space), space);
 
-  let cover = expand(on, off, space);
+  let cover = expand(on, off, space, pool);
   cover = irredundant(cover, dc, space);
   const essentials = new Set(essentialIndexes(cover, dc, space));
   const essentialCubes = cover.filter((_, index) => essentials.has(index));
@@ -596,16 +633,19 @@ export function espresso(problem: EspressoProblem): Cube[] {
   const dcWithEssentials = [...dc, ...essentialCubes];
 
   for (;;) {
-    for (;;) {
+    // Iterate while the cost drops; a pass that does not help is retried once with the other
+    // REDUCE order before giving up.
+    let order: ReduceOrder = 'largest-first';
+    let idlePasses = 0;
+    while (idlePasses < 2) {
       const before = coverCost(cover, space);
-      const next = irredundant(expand(reduce(cover, dcWithEssentials, space), off, space), dcWithEssentials, space);
-      if (coverCost(next, space) >= before) {
-        if (coverCost(next, space) === before) cover = next;
-        break;
-      }
-      cover = next;
+      const next = irredundant(expand(reduce(cover, dcWithEssentials, space, order), off, space, pool), dcWithEssentials, space);
+      const after = coverCost(next, space);
+      if (after <= before) cover = next;
+      idlePasses = after < before ? 0 : idlePasses + 1;
+      order = order === 'largest-first' ? 'weight' : 'largest-first';
     }
-    const gasp = lastGasp(cover, dcWithEssentials, off, space);
+    const gasp = lastGasp(cover, dcWithEssentials, off, space, pool);
     if (gasp && coverCost(gasp, space) < coverCost(cover, space)) {
       cover = gasp;
       continue;

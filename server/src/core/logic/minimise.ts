@@ -1,13 +1,16 @@
 // The entry point that turns a truth table into minimised sums of products, one per output:
-// builds cube covers from the table's bitsets, picks exact minimisation (up to
-// MAX_EXACT_INPUTS inputs) or Espresso, optionally picks the output polarity with fewer
-// terms, optionally shares terms between outputs, and verifies every result exhaustively
-// against the table before returning it. It deliberately knows nothing about devices.
+// builds cube covers from the table's bitsets, picks the method (exact up to MAX_EXACT_INPUTS
+// inputs; Espresso above, then a covering step over the primes Espresso met, and exact
+// minimisation on the inputs an output really depends on when they are few; the smallest
+// verified cover wins), optionally picks the output polarity with fewer terms, optionally
+// shares terms between outputs, and verifies every result exhaustively against the table
+// before returning it. It deliberately knows nothing about devices.
 import { bitIndexes, lowMask, popcount } from './bits';
 import { type Cube, type CubeSpace, makeSpace, termFromCube } from './cube';
 import { LogicInputError, LogicInvariantError } from './errors';
-import { espresso } from './espresso';
-import { MAX_EXACT_INPUTS, minimiseExact } from './qm';
+import { PrimePool, espresso } from './espresso';
+import { solveUnateCover } from './unateCover';
+import { MAX_EXACT_INPUTS, MAX_QM_INPUTS, minimiseExact } from './qm';
 import { type ProductTerm, type TruthTable, checkTable, validBitsOfWord, verifyCover, wordsFor } from './truthTable';
 
 export interface MinimiseOptions {
@@ -104,6 +107,28 @@ function orBits(a: Uint32Array, b: Uint32Array): Uint32Array {
   return result;
 }
 
+/** Above this many ON minterms Espresso starts from region cubes instead of single minterms. */
+const MINTERM_START_LIMIT = 4096;
+
+/**
+ * The ON cover Espresso starts from. Single minterms let EXPAND choose every direction freely
+ * (better results on irregular functions in our trials); big ON-sets start from the region
+ * cubes so that the first EXPAND does not face hundreds of thousands of cubes.
+ */
+function startCover(f: FunctionBits, outs: number, space: CubeSpace): Cube[] {
+  const minterms: Cube[] = [];
+  for (let wordIndex = 0; wordIndex < f.on.length; wordIndex++) {
+    let word = f.on[wordIndex];
+    while (word !== 0) {
+      const minterm = wordIndex * 32 + (31 - Math.clz32(word & -word));
+      word &= word - 1;
+      minterms.push({ zeros: space.inputMask & ~minterm, ones: space.inputMask & minterm, outs });
+      if (minterms.length > MINTERM_START_LIMIT) return regionCover(orBits(f.on, f.dc), f.on, f.nInputs, outs, space);
+    }
+  }
+  return minterms;
+}
+
 /** ON, don't-care and OFF covers of several single-output functions, output j tagged with bit j. */
 function coversOf(functions: readonly FunctionBits[], space: CubeSpace): { on: Cube[]; dc: Cube[]; off: Cube[] } {
   const on: Cube[] = [];
@@ -112,9 +137,10 @@ function coversOf(functions: readonly FunctionBits[], space: CubeSpace): { on: C
   functions.forEach((f, outputIndex) => {
     const bit = 1 << outputIndex;
     const offSet = offBits(f);
-    on.push(...regionCover(orBits(f.on, f.dc), f.on, f.nInputs, bit, space));
-    dc.push(...regionCover(f.dc, f.dc, f.nInputs, bit, space));
-    off.push(...regionCover(offSet, offSet, f.nInputs, bit, space));
+    // Loops, not push(...cubes): a spread of a few hundred thousand cubes overflows the stack.
+    for (const c of startCover(f, bit, space)) on.push(c);
+    for (const c of regionCover(f.dc, f.dc, f.nInputs, bit, space)) dc.push(c);
+    for (const c of regionCover(offSet, offSet, f.nInputs, bit, space)) off.push(c);
   });
   return { on, dc, off };
 }
@@ -205,32 +231,96 @@ function liftTerm(term: ProductTerm, kept: readonly number[]): ProductTerm {
   return { care: care >>> 0, value: value >>> 0 };
 }
 
+/** Most ON minterms for which the prime-pool covering step is attempted. */
+const POOL_ROW_LIMIT = 20000;
+
+/** Branch-and-bound nodes for covering steps inside the automatic strategy. */
+const COVER_NODE_LIMIT = 2000;
+
+/** Above MAX_EXACT_INPUTS, exact minimisation is only tried when the function has at most this many primes. */
+const EXACT_ATTEMPT_PRIME_LIMIT = 1500;
+
+/**
+ * Espresso, followed by a covering step over every prime EXPAND produced during the run, with
+ * one row per ON minterm: IRREDUNDANT only chooses among the primes of the current cover, so
+ * primes dropped in earlier iterations can sometimes make a smaller cover. The smaller of the
+ * two covers is kept.
+ */
 function minimiseEspressoSingle(f: FunctionBits): SingleResult {
   const space = makeSpace(f.nInputs, 1);
   const covers = coversOf([f], space);
-  const cover = espresso({ space, ...covers });
-  return { terms: cover.map((c) => termFromCube(c, space)), method: 'espresso', provedMinimal: false };
+  const pool = new PrimePool();
+  const cover = espresso({ space, ...covers }, { pool });
+  const result: SingleResult = { terms: cover.map((c) => termFromCube(c, space)), method: 'espresso', provedMinimal: false };
+  const pooled = coverFromPool(f, pool.primes().map((c) => termFromCube(c, space)));
+  return pooled ? better(result, { terms: pooled, method: 'espresso', provedMinimal: false }) : result;
 }
 
-function minimiseSingle(f: FunctionBits, method: 'auto' | 'exact' | 'espresso'): SingleResult {
-  if (method === 'exact' || (method === 'auto' && f.nInputs <= MAX_EXACT_INPUTS)) {
-    if (f.nInputs > MAX_EXACT_INPUTS) {
-      throw new LogicInputError(`exact minimisation handles at most ${MAX_EXACT_INPUTS} inputs; the table has ${f.nInputs} (use method "auto" or "espresso")`);
+function coverFromPool(f: FunctionBits, primes: ProductTerm[]): ProductTerm[] | null {
+  if (primes.length === 0) return null;
+  const rowOf = new Map<number, number>();
+  for (let wordIndex = 0; wordIndex < f.on.length; wordIndex++) {
+    let word = f.on[wordIndex];
+    while (word !== 0) {
+      rowOf.set(wordIndex * 32 + (31 - Math.clz32(word & -word)), rowOf.size);
+      word &= word - 1;
+      if (rowOf.size > POOL_ROW_LIMIT) return null;
     }
-    const exact = minimiseExact(f.on, f.dc, f.nInputs);
-    return { terms: exact.terms, method: 'exact', provedMinimal: exact.provedMinimal };
+  }
+  const rows: number[][] = Array.from({ length: rowOf.size }, () => []);
+  const full = lowMask(f.nInputs);
+  primes.forEach((prime, column) => {
+    const free = full & ~prime.care;
+    let subset = 0;
+    do {
+      const rowIndex = rowOf.get(prime.value | subset);
+      if (rowIndex !== undefined) rows[rowIndex].push(column);
+      subset = (subset - free) & free;
+    } while (subset !== 0);
+  });
+  if (rows.some((row) => row.length === 0)) return null;
+  const solution = solveUnateCover(rows, primes.length, { nodeLimit: COVER_NODE_LIMIT });
+  return solution.columns.map((column) => primes[column]);
+}
+
+function exactResult(f: FunctionBits, nodeLimit: number, maxPrimes?: number): SingleResult | null {
+  const exact = minimiseExact(f.on, f.dc, f.nInputs, { nodeLimit, maxPrimes });
+  return exact && { terms: exact.terms, method: 'exact', provedMinimal: exact.provedMinimal };
+}
+
+/**
+ * One output, one polarity. 'exact' insists on the exact method; 'espresso' runs Espresso
+ * only; 'auto' is exact up to MAX_EXACT_INPUTS inputs (falling back to the better of the best
+ * cover found and Espresso when the covering search cannot prove a minimum), and Espresso
+ * above, improved where possible by exact minimisation on the inputs the output really needs.
+ */
+function minimiseSingle(f: FunctionBits, method: 'auto' | 'exact' | 'espresso'): SingleResult {
+  if (method === 'exact') {
+    if (f.nInputs > MAX_EXACT_INPUTS) {
+      throw new LogicInputError(
+        `exact minimisation handles at most ${MAX_EXACT_INPUTS} inputs; the table has ${f.nInputs} (use method "auto" or "espresso")`,
+      );
+    }
+    return exactResult(f, 50000)!;
+  }
+  if (method === 'espresso') return minimiseEspressoSingle(f);
+  if (f.nInputs <= MAX_EXACT_INPUTS) {
+    const exact = exactResult(f, COVER_NODE_LIMIT)!;
+    return exact.provedMinimal ? exact : better(exact, minimiseEspressoSingle(f));
   }
   let result = minimiseEspressoSingle(f);
-  if (method === 'auto') {
-    // Many control outputs depend on few address lines: minimise exactly on those alone when
-    // they are few enough, and keep whichever cover is smaller.
-    const { kept, reduced } = reduceSupport(f);
-    if (reduced.nInputs <= MAX_EXACT_INPUTS) {
-      const exact = minimiseExact(reduced.on, reduced.dc, reduced.nInputs);
+  // Many control outputs depend on few address lines: minimise exactly on those alone when
+  // they are few enough, and keep whichever cover is smaller.
+  const { kept, reduced } = reduceSupport(f);
+  if (reduced.nInputs <= MAX_QM_INPUTS) {
+    const limit = reduced.nInputs <= MAX_EXACT_INPUTS ? undefined : EXACT_ATTEMPT_PRIME_LIMIT;
+    const exact = exactResult(reduced, COVER_NODE_LIMIT, limit);
+    if (exact) {
+      const onFullTable = reduced.nInputs === f.nInputs;
       const lifted: SingleResult = {
         terms: exact.terms.map((term) => liftTerm(term, kept)),
-        method: 'exact-on-support',
-        provedMinimal: false,
+        method: onFullTable ? 'exact' : 'exact-on-support',
+        provedMinimal: onFullTable && exact.provedMinimal,
       };
       result = better(result, lifted);
     }

@@ -1,14 +1,24 @@
-// Exact two-level minimisation of one output for tables of up to MAX_EXACT_INPUTS inputs:
-// Quine–McCluskey prime generation done as a dynamic programme over all 3^n cubes, then a
-// minimum cover of the ON minterms by primes (essentials, dominance, branch and bound).
-// It deliberately handles only one output at a time and only small input counts; larger
-// functions go to the Espresso heuristic.
+// Exact two-level minimisation of one output (up to MAX_QM_INPUTS inputs; the method of choice
+// up to MAX_EXACT_INPUTS): Quine–McCluskey prime generation done as a dynamic programme over
+// all 3^n cubes, then a minimum cover of the ON minterms by primes (essentials, dominance,
+// branch and bound within a node budget, reported when it runs out). It deliberately handles
+// one output at a time and only small input counts; larger functions go to Espresso.
 import { LogicInputError } from './errors';
 import type { ProductTerm } from './truthTable';
 import { solveUnateCover } from './unateCover';
 
-/** Above this many inputs the 4^n implicant table (1 MiB at 10 inputs) is not worth building. */
+/** Up to this many inputs exact minimisation is the method of choice (a 1 MiB implicant table). */
 export const MAX_EXACT_INPUTS = 10;
+
+/** The hard limit of this module: the implicant table takes 4^n bytes (16 MiB at 12 inputs). */
+export const MAX_QM_INPUTS = 12;
+
+export interface ExactOptions {
+  /** Branch-and-bound nodes for the covering step. */
+  readonly nodeLimit?: number;
+  /** Give up (return null) when the function has more primes than this. */
+  readonly maxPrimes?: number;
+}
 
 export interface ExactResult {
   readonly terms: ProductTerm[];
@@ -19,13 +29,15 @@ export interface ExactResult {
 
 /**
  * Minimises the function whose ON and don't-care minterms are the set bits of `on` and `dc`
- * (bitsets over 2^nInputs minterms). Returns a cover with the fewest product terms, ties
- * broken towards fewer literals by preferring bigger primes in the covering search.
+ * (bitsets over 2^nInputs minterms). Returns a cover with the fewest product terms (proven
+ * when `provedMinimal`), ties broken towards fewer literals by preferring bigger primes in the
+ * covering search; null only when `maxPrimes` was exceeded.
  */
-export function minimiseExact(on: Uint32Array, dc: Uint32Array, nInputs: number, nodeLimit = 50000): ExactResult {
-  if (nInputs > MAX_EXACT_INPUTS) {
-    throw new LogicInputError(`exact minimisation handles at most ${MAX_EXACT_INPUTS} inputs; this function has ${nInputs}`);
+export function minimiseExact(on: Uint32Array, dc: Uint32Array, nInputs: number, options: ExactOptions = {}): ExactResult | null {
+  if (nInputs > MAX_QM_INPUTS) {
+    throw new LogicInputError(`exact minimisation handles at most ${MAX_QM_INPUTS} inputs; this function has ${nInputs}`);
   }
+  const maxPrimes = options.maxPrimes ?? Infinity;
   const nMinterms = 1 << nInputs;
   const full = nMinterms - 1;
   const bitOf = (set: Uint32Array, minterm: number) => (set[minterm >>> 5] >>> (minterm & 31)) & 1;
@@ -72,7 +84,10 @@ export function minimiseExact(on: Uint32Array, dc: Uint32Array, nInputs: number,
             break;
           }
         }
-        if (prime) primes.push({ care: fixed, value });
+        if (prime) {
+          primes.push({ care: fixed, value });
+          if (primes.length > maxPrimes) return null;
+        }
       }
       value = (value - fixed) & fixed;
     } while (value !== 0);
@@ -92,7 +107,7 @@ export function minimiseExact(on: Uint32Array, dc: Uint32Array, nInputs: number,
       subset = (subset - free) & free;
     } while (subset !== 0);
   });
-  const solution = solveUnateCover(rows, primes.length, { nodeLimit });
+  const solution = solveUnateCover(rows, primes.length, { nodeLimit: options.nodeLimit ?? 2000 });
   return {
     terms: solution.columns.map((column) => primes[column]),
     provedMinimal: solution.optimal,

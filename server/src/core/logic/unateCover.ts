@@ -1,7 +1,8 @@
 // Minimum unate covering with unit column costs: choose the fewest columns so that every row
-// holds at least one chosen column. Reductions (essential columns, row dominance, column
-// dominance) then branch-and-bound with an independent-row lower bound, bounded by a node
-// budget after which the best cover found so far is returned and marked as not proven minimal.
+// holds at least one chosen column. The matrix is first reduced (essential columns, row
+// dominance, column dominance) and split into independent blocks; each block is then solved
+// by branch and bound with an independent-row lower bound, within a node budget after which
+// the best cover found so far is returned and marked as not proven minimal.
 // It deliberately knows nothing about cubes; rows are plain lists of column numbers.
 import { popcount } from './bits';
 import { invariant } from './errors';
@@ -14,12 +15,15 @@ export interface CoverSolution {
 }
 
 export interface CoverOptions {
-  /** Branch-and-bound nodes to explore before settling for the best cover found. */
+  /** Branch-and-bound nodes to explore (over all blocks) before settling for the best cover found. */
   readonly nodeLimit?: number;
 }
 
-/** Rows over which dominance checks are still affordable at every node. */
+/** Above this many rows the quadratic dominance checks are skipped. */
 const DOMINANCE_ROW_LIMIT = 3000;
+
+/** Inside the search, nodes with at most this many rows get the full reductions too. */
+const NODE_DOMINANCE_ROW_LIMIT = 400;
 
 type Bitset = Uint32Array;
 
@@ -27,26 +31,24 @@ function hasBit(set: Bitset, index: number): boolean {
   return (set[index >>> 5] & (1 << (index & 31))) !== 0;
 }
 
-function bitsetCount(set: Bitset): number {
+function countWithin(row: Bitset, allowed: Bitset): number {
   let count = 0;
-  for (let i = 0; i < set.length; i++) count += popcount(set[i]);
+  for (let i = 0; i < row.length; i++) count += popcount(row[i] & allowed[i]);
   return count;
 }
 
-function isSubset(a: Bitset, b: Bitset): boolean {
-  for (let i = 0; i < a.length; i++) if ((a[i] & ~b[i]) !== 0) return false;
-  return true;
+function firstWithin(row: Bitset, allowed: Bitset): number {
+  for (let i = 0; i < row.length; i++) {
+    const word = row[i] & allowed[i];
+    if (word !== 0) return i * 32 + (31 - Math.clz32(word & -word));
+  }
+  return -1;
 }
 
-function intersectsSet(a: Bitset, b: Bitset): boolean {
-  for (let i = 0; i < a.length; i++) if ((a[i] & b[i]) !== 0) return true;
-  return false;
-}
-
-function members(set: Bitset): number[] {
+function membersWithin(row: Bitset, allowed: Bitset): number[] {
   const result: number[] = [];
-  for (let i = 0; i < set.length; i++) {
-    let word = set[i];
+  for (let i = 0; i < row.length; i++) {
+    let word = row[i] & allowed[i];
     while (word !== 0) {
       result.push(i * 32 + (31 - Math.clz32(word & -word)));
       word &= word - 1;
@@ -55,50 +57,50 @@ function members(set: Bitset): number[] {
   return result;
 }
 
-interface SearchState {
-  best: number[];
-  nodes: number;
-  readonly nodeLimit: number;
-  exhausted: boolean;
-  readonly nWords: number;
+function isSubsetWithin(a: Bitset, b: Bitset, allowed: Bitset): boolean {
+  for (let i = 0; i < a.length; i++) if ((a[i] & allowed[i] & ~b[i]) !== 0) return false;
+  return true;
 }
 
 /**
- * Reduces a matrix in place of a copy: returns the remaining rows and the columns forced in,
- * or null when some row can no longer be covered.
+ * Root reductions until nothing changes: returns the rows still open, the columns forced in,
+ * and the columns still allowed.
  */
-function reduceMatrix(inputRows: Bitset[], nWords: number): { rows: Bitset[]; forced: number[] } | null {
+function reduceRoot(inputRows: Bitset[], allowed: Bitset, rowDominance = true): { rows: Bitset[]; forced: number[] } {
   let rows = inputRows;
   const forced: number[] = [];
-  for (;;) {
-    let changed = false;
-    // Essential columns: a row with a single column forces it.
+  for (let changed = true; changed; ) {
+    changed = false;
+    // Essential columns: a row with a single allowed column forces it.
+    const forcedNow = new Set<number>();
     for (const row of rows) {
-      const count = bitsetCount(row);
-      if (count === 0) return null;
-      if (count === 1) {
-        const column = members(row)[0];
-        forced.push(column);
-        rows = rows.filter((r) => !hasBit(r, column));
-        changed = true;
-        break;
-      }
+      const count = countWithin(row, allowed);
+      invariant(count > 0, 'covering problem with a row no column can cover');
+      if (count === 1) forcedNow.add(firstWithin(row, allowed));
     }
-    if (changed) continue;
+    if (forcedNow.size > 0) {
+      for (const column of forcedNow) forced.push(column);
+      rows = rows.filter((row) => ![...forcedNow].some((column) => hasBit(row, column)));
+      changed = true;
+      continue;
+    }
     if (rows.length === 0 || rows.length > DOMINANCE_ROW_LIMIT) break;
-    // Row dominance: a row that contains another row is satisfied whenever that row is.
-    const sorted = [...rows].sort((a, b) => bitsetCount(a) - bitsetCount(b));
-    const keptRows: Bitset[] = [];
-    for (const row of sorted) {
-      if (!keptRows.some((k) => isSubset(k, row))) keptRows.push(row);
+    if (rowDominance) {
+      // Row dominance: a row containing another row is satisfied whenever that row is.
+      const counts = new Map(rows.map((row) => [row, countWithin(row, allowed)]));
+      const sorted = [...rows].sort((a, b) => counts.get(a)! - counts.get(b)!);
+      const keptRows: Bitset[] = [];
+      for (const row of sorted) {
+        if (!keptRows.some((k) => isSubsetWithin(k, row, allowed))) keptRows.push(row);
+      }
+      if (keptRows.length !== rows.length) changed = true;
+      rows = keptRows;
     }
-    if (keptRows.length !== rows.length) changed = true;
-    rows = keptRows;
     // Column dominance: a column whose rows are a subset of another column's rows is never needed.
-    const columnRows = new Map<number, Bitset>();
     const rowWords = Math.ceil(rows.length / 32);
+    const columnRows = new Map<number, Uint32Array>();
     rows.forEach((row, rowIndex) => {
-      for (const column of members(row)) {
+      for (const column of membersWithin(row, allowed)) {
         let set = columnRows.get(column);
         if (!set) {
           set = new Uint32Array(rowWords);
@@ -107,48 +109,58 @@ function reduceMatrix(inputRows: Bitset[], nWords: number): { rows: Bitset[]; fo
         set[rowIndex >>> 5] |= 1 << (rowIndex & 31);
       }
     });
-    const columns = [...columnRows.keys()].sort((a, b) => a - b);
-    const dropped = new Set<number>();
-    for (const a of columns) {
-      const rowsOfA = columnRows.get(a)!;
-      // Only columns sharing a's first row can dominate a.
-      const firstRow = members(rowsOfA)[0];
-      for (const b of members(rows[firstRow])) {
-        if (a === b || dropped.has(b)) continue;
+    const everyRow = new Uint32Array(rowWords).fill(0xffffffff);
+    for (const [a, rowsOfA] of [...columnRows].sort((x, y) => x[0] - y[0])) {
+      const firstRow = firstWithin(rowsOfA, everyRow);
+      for (const b of membersWithin(rows[firstRow], allowed)) {
+        if (a === b) continue;
         const rowsOfB = columnRows.get(b)!;
-        if (isSubset(rowsOfA, rowsOfB)) {
-          // Equal columns: keep the lower-numbered one so the choice is deterministic.
-          if (isSubset(rowsOfB, rowsOfA) && a < b) continue;
-          dropped.add(a);
-          break;
-        }
+        if (!isSubsetWithin(rowsOfA, rowsOfB, everyRow)) continue;
+        // Equal columns: keep the lower-numbered one so the choice is deterministic.
+        if (isSubsetWithin(rowsOfB, rowsOfA, everyRow) && a < b) continue;
+        allowed[a >>> 5] &= ~(1 << (a & 31));
+        changed = true;
+        break;
       }
     }
-    if (dropped.size > 0) {
-      const keepMask = new Uint32Array(nWords).fill(0xffffffff);
-      for (const column of dropped) keepMask[column >>> 5] &= ~(1 << (column & 31));
-      rows = rows.map((row) => row.map((word, i) => word & keepMask[i]) as Bitset);
-      changed = true;
-    }
-    if (!changed) break;
   }
   return { rows, forced };
 }
 
-/** Rows pairwise sharing no column: each needs its own chosen column. */
-function independentRowBound(rows: Bitset[]): number {
-  const sorted = [...rows].sort((a, b) => bitsetCount(a) - bitsetCount(b));
-  const chosen: Bitset[] = [];
-  for (const row of sorted) if (!chosen.some((c) => intersectsSet(c, row))) chosen.push(row);
-  return chosen.length;
+/** Splits rows into blocks that share no column, so each block can be solved on its own. */
+function independentBlocks(rows: Bitset[], allowed: Bitset): Bitset[][] {
+  const parent = new Map<number, number>();
+  const find = (x: number): number => {
+    let root = x;
+    while (parent.get(root)! !== root) root = parent.get(root)!;
+    parent.set(x, root);
+    return root;
+  };
+  for (const row of rows) {
+    const columns = membersWithin(row, allowed);
+    for (const column of columns) if (!parent.has(column)) parent.set(column, column);
+    for (const column of columns.slice(1)) {
+      const a = find(columns[0]);
+      const b = find(column);
+      if (a !== b) parent.set(b, a);
+    }
+  }
+  const blocks = new Map<number, Bitset[]>();
+  for (const row of rows) {
+    const root = find(firstWithin(row, allowed));
+    const block = blocks.get(root);
+    if (block) block.push(row);
+    else blocks.set(root, [row]);
+  }
+  return [...blocks.values()];
 }
 
-function greedyCover(rows: Bitset[]): number[] {
+function greedyCover(rows: Bitset[], allowed: Bitset): number[] {
   let remaining = rows;
   const chosen: number[] = [];
   while (remaining.length > 0) {
     const counts = new Map<number, number>();
-    for (const row of remaining) for (const column of members(row)) counts.set(column, (counts.get(column) ?? 0) + 1);
+    for (const row of remaining) for (const column of membersWithin(row, allowed)) counts.set(column, (counts.get(column) ?? 0) + 1);
     let bestColumn = -1;
     let bestCount = 0;
     for (const [column, count] of counts) {
@@ -157,49 +169,104 @@ function greedyCover(rows: Bitset[]): number[] {
         bestCount = count;
       }
     }
-    invariant(bestColumn >= 0, 'greedy cover found an empty row');
+    invariant(bestColumn >= 0, 'greedy cover met a row without columns');
     chosen.push(bestColumn);
     remaining = remaining.filter((row) => !hasBit(row, bestColumn));
+  }
+  // Drop chosen columns that later choices made unnecessary.
+  for (let k = chosen.length - 1; k >= 0; k--) {
+    const others = chosen.filter((_, i) => i !== k);
+    if (rows.every((row) => others.some((column) => hasBit(row, column)))) chosen.splice(k, 1);
   }
   return chosen;
 }
 
-function search(rows: Bitset[], chosen: number[], state: SearchState): void {
+interface SearchState {
+  best: number[];
+  nodes: number;
+  readonly nodeLimit: number;
+  exhausted: boolean;
+}
+
+/** Rows pairwise sharing no allowed column: each needs its own chosen column. */
+function independentRowBound(rows: Bitset[], allowed: Bitset, counts: number[]): number {
+  const order = rows.map((_, index) => index).sort((a, b) => counts[a] - counts[b]);
+  const used = new Uint32Array(allowed.length);
+  let bound = 0;
+  for (const index of order) {
+    const row = rows[index];
+    let clash = false;
+    for (let i = 0; i < row.length; i++) {
+      if ((row[i] & allowed[i] & used[i]) !== 0) {
+        clash = true;
+        break;
+      }
+    }
+    if (clash) continue;
+    bound++;
+    for (let i = 0; i < row.length; i++) used[i] |= row[i] & allowed[i];
+  }
+  return bound;
+}
+
+function search(inputRows: Bitset[], parentAllowed: Bitset, chosen: number[], state: SearchState): void {
   if (state.nodes >= state.nodeLimit) {
     state.exhausted = true;
     return;
   }
   state.nodes++;
-  const reduced = reduceMatrix(rows, state.nWords);
-  if (!reduced) return;
-  const picked = [...chosen, ...reduced.forced];
+  let allowed = parentAllowed;
+  let rows = inputRows;
+  const picked = [...chosen];
+  if (rows.length <= NODE_DOMINANCE_ROW_LIMIT) {
+    // Small enough for the full reductions, which shrink cyclic cores far better than essentials alone.
+    allowed = allowed.slice();
+    for (const row of rows) if (countWithin(row, allowed) === 0) return;
+    const reduced = reduceRoot(rows, allowed, rows.length <= 64);
+    rows = reduced.rows;
+    for (const column of reduced.forced) picked.push(column);
+  } else {
+    // Essential columns under the current exclusions.
+    for (;;) {
+      let essential = -1;
+      for (const row of rows) {
+        const count = countWithin(row, allowed);
+        if (count === 0) return;
+        if (count === 1) {
+          essential = firstWithin(row, allowed);
+          break;
+        }
+      }
+      if (essential < 0) break;
+      picked.push(essential);
+      rows = rows.filter((row) => !hasBit(row, essential));
+    }
+  }
   if (picked.length >= state.best.length) return;
-  if (reduced.rows.length === 0) {
+  if (rows.length === 0) {
     state.best = picked;
     return;
   }
-  if (picked.length + independentRowBound(reduced.rows) >= state.best.length) return;
+  const counts = rows.map((row) => countWithin(row, allowed));
+  if (picked.length + independentRowBound(rows, allowed, counts) >= state.best.length) return;
   // Branch on the shortest row: one of its columns must be chosen.
-  let branchRow = reduced.rows[0];
-  for (const row of reduced.rows) if (bitsetCount(row) < bitsetCount(branchRow)) branchRow = row;
-  const frequency = (column: number) => reduced.rows.filter((r) => hasBit(r, column)).length;
-  const branchColumns = members(branchRow).sort((a, b) => frequency(b) - frequency(a) || a - b);
-  let remainingRows = reduced.rows;
+  let branchIndex = 0;
+  for (let index = 1; index < rows.length; index++) if (counts[index] < counts[branchIndex]) branchIndex = index;
+  const branchColumns = membersWithin(rows[branchIndex], allowed);
+  const frequency = new Map(branchColumns.map((column) => [column, rows.filter((row) => hasBit(row, column)).length]));
+  branchColumns.sort((a, b) => frequency.get(b)! - frequency.get(a)! || a - b);
+  let branchAllowed = allowed;
   for (const column of branchColumns) {
     search(
-      remainingRows.filter((r) => !hasBit(r, column)),
+      rows.filter((row) => !hasBit(row, column)),
+      branchAllowed,
       [...picked, column],
       state,
     );
     if (state.exhausted) return;
-    // Later branches need not consider this column again: covers using it were searched.
-    const clearWord = column >>> 5;
-    const clearBit = ~(1 << (column & 31));
-    remainingRows = remainingRows.map((r) => {
-      const copy = r.slice();
-      copy[clearWord] &= clearBit;
-      return copy;
-    });
+    // Later branches need not use this column again: covers using it were all searched.
+    branchAllowed = branchAllowed.slice();
+    branchAllowed[column >>> 5] &= ~(1 << (column & 31));
   }
 }
 
@@ -218,19 +285,21 @@ export function solveUnateCover(rows: readonly (readonly number[])[], nColumns: 
     }
     return set;
   });
-  const reduced = reduceMatrix(bitRows, nWords);
-  invariant(reduced, 'covering problem without a solution');
-  const greedy = [...reduced.forced, ...greedyCover(reduced.rows)];
-  const state: SearchState = {
-    best: greedy,
-    nodes: 0,
-    nodeLimit: options.nodeLimit ?? 20000,
-    exhausted: false,
-    nWords,
-  };
-  if (reduced.rows.length > 0 && reduced.forced.length + independentRowBound(reduced.rows) < greedy.length) {
-    search(reduced.rows, reduced.forced, state);
+  const allowed = new Uint32Array(nWords).fill(0xffffffff);
+  const reduced = reduceRoot(bitRows, allowed);
+  const chosen = [...reduced.forced];
+  let optimal = true;
+  let budget = options.nodeLimit ?? 20000;
+  const blocks = independentBlocks(reduced.rows, allowed).sort((a, b) => a.length - b.length);
+  for (const block of blocks) {
+    const state: SearchState = { best: greedyCover(block, allowed), nodes: 0, nodeLimit: budget, exhausted: false };
+    const counts = block.map((row) => countWithin(row, allowed));
+    if (independentRowBound(block, allowed, counts) < state.best.length) {
+      search(block, allowed, [], state);
+      budget = Math.max(0, budget - state.nodes);
+      if (state.exhausted) optimal = false;
+    }
+    for (const column of state.best) chosen.push(column);
   }
-  const columns = [...new Set(state.best)].sort((a, b) => a - b);
-  return { columns, optimal: !state.exhausted };
+  return { columns: [...new Set(chosen)].sort((a, b) => a - b), optimal };
 }
