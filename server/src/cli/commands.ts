@@ -6,6 +6,7 @@ import { explainCommand } from './commands/explain';
 import { buildCommand } from './commands/build';
 import { diffCommand } from './commands/diff';
 import { budgetCommand } from './commands/budget';
+import { fitCommand } from './commands/fit';
 
 export interface Command {
   name: string;
@@ -14,7 +15,7 @@ export interface Command {
   run(args: string[], io: Io): Promise<number>;
 }
 
-const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand];
+const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand, fitCommand];
 
 export function usage(): string {
   const lines = ['Phasewright: control tables for microcoded RV32I processors built from discrete logic.', '', 'Usage:'];

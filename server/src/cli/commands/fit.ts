@@ -1,0 +1,170 @@
+// `phasewright fit FILE --device gal16v8|gal22v10 [--store NAME] [--outputs a,b] [--pins FILE]
+// [--out DIR] [--keep-fill] [--vectors N]`: minimises each control output of a store over its
+// address lines, fits the outputs into as many GAL devices as needed, and writes one JEDEC fuse
+// map per device plus the equations as text and as a Verilog module. Every fuse map is read
+// back and checked against the truth table before it is reported. Exit 0 when everything
+// fits, 1 when an output cannot fit (nothing is written) or the table has errors, 2 on usage.
+import { basename, extname, resolve } from 'node:path';
+import { readFileSync } from 'node:fs';
+import { analyse, errorCount } from '../../core/analysis';
+import { encodeMachine } from '../../core/encode/encoder';
+import { storeTruthTable } from '../../core/encode/storeTable';
+import { buildGalImage, checkGalImage, equationsText, fitDevices, minimise, verilogModule, type DeviceName } from '../../core/logic';
+import { parseArgs } from '../args';
+import type { Command } from '../commands';
+import { readSource, describeFsError } from '../readSource';
+import { writeOutputSet, ManifestError } from '../output/manifest';
+import { OutputError } from '../output/safeWriter';
+import { VERSION } from '../version';
+
+const deviceNames: Record<string, DeviceName> = { gal16v8: 'GAL16V8', gal22v10: 'GAL22V10' };
+
+export const fitCommand: Command = {
+  name: 'fit',
+  summary: 'minimise a store\'s outputs and write GAL fuse maps (JEDEC), equations and Verilog',
+  usage: 'fit FILE --device gal16v8|gal22v10 [--store NAME] [--outputs LIST] [--pins FILE] [--out DIR] [--keep-fill]',
+  async run(args, io) {
+    const parsed = parseArgs(args, { flags: ['keep-fill'], values: ['device', 'store', 'outputs', 'pins', 'out', 'vectors', 'mode'] });
+    const deviceOption = parsed.options.get('device');
+    if (parsed.errors.length || parsed.positionals.length !== 1 || typeof deviceOption !== 'string') {
+      io.err(`phasewright fit: ${parsed.errors[0] ?? (parsed.positionals.length !== 1 ? 'give one .pwt file' : 'choose a device with --device gal16v8 or --device gal22v10')}\nusage: phasewright ${this.usage}\n`);
+      return 2;
+    }
+    const device = deviceNames[deviceOption.toLowerCase()];
+    if (!device) {
+      io.err(`phasewright fit: unknown device '${deviceOption}'; choose gal16v8 or gal22v10\n`);
+      return 2;
+    }
+    const file = parsed.positionals[0];
+    const source = readSource(resolve(io.cwd, file));
+    if (!source.ok) {
+      io.err(`phasewright fit: ${source.reason.replace(resolve(io.cwd, file), file)}\n`);
+      return 2;
+    }
+    let pins: Record<string, number> | undefined;
+    const pinsOption = parsed.options.get('pins');
+    if (typeof pinsOption === 'string') {
+      const loaded = loadPins(resolve(io.cwd, pinsOption));
+      if (!loaded.ok) {
+        io.err(`phasewright fit: ${loaded.reason}\n`);
+        return 2;
+      }
+      pins = loaded.pins;
+    }
+    const vectorsOption = parsed.options.get('vectors');
+    const maxVectors = typeof vectorsOption === 'string' ? Number(vectorsOption) : undefined;
+    if (maxVectors !== undefined && !(Number.isInteger(maxVectors) && maxVectors >= 0)) {
+      io.err(`phasewright fit: --vectors takes a whole number (0 for none)\n`);
+      return 2;
+    }
+    const analysis = analyse(source.text);
+    const errors = errorCount(analysis.diagnostics);
+    if (errors) {
+      io.err(`phasewright fit: ${file} has ${errors} error(s); nothing was fitted. Run \`phasewright check ${file}\` first.\n`);
+      return 1;
+    }
+    const machine = analysis.machine;
+    const storeOption = parsed.options.get('store');
+    const storeName = typeof storeOption === 'string' ? storeOption : machine.stores.find((s) => s.name === 'main')?.name ?? machine.stores[0]?.name;
+    const store = machine.stores.find((s) => s.name === storeName);
+    if (!store) {
+      io.err(`phasewright fit: no store named '${storeName ?? ''}'; the file has ${machine.stores.map((s) => s.name).join(', ') || 'no stores'}\n`);
+      return 1;
+    }
+    const encoded = encodeMachine(machine, { stores: [store.name] });
+    const enc = encoded.stores[0];
+    if (!enc) {
+      io.err(`phasewright fit: store ${store.name} cannot be encoded (it needs a word and an address layout)\n`);
+      return 1;
+    }
+    const outputsOption = parsed.options.get('outputs');
+    const wanted = typeof outputsOption === 'string' ? outputsOption.split(',').map((s) => s.trim()).filter(Boolean) : undefined;
+    const { table, unreachable } = storeTruthTable(machine, encoded, enc, { keepFill: parsed.options.has('keep-fill'), outputs: wanted });
+    if (table.outputs.length === 0) {
+      io.err(`phasewright fit: no outputs selected${wanted ? ` (--outputs ${wanted.join(',')} matches no signal of store ${store.name})` : ''}\n`);
+      return 2;
+    }
+    const started = Date.now();
+    const minimised = minimise(table, { polarity: 'best' });
+    const fit = fitDevices(minimised, { device, pins, mode: typeof parsed.options.get('mode') === 'string' ? (parsed.options.get('mode') as string) : undefined });
+    const lines: string[] = [];
+    lines.push(`store ${store.name}: ${table.nInputs} address inputs, ${table.outputs.length} outputs; ${unreachable} of ${2 ** table.nInputs} addresses are never reached and left as don't-cares${parsed.options.has('keep-fill') ? ' (no: --keep-fill keeps the fill word)' : ''}`);
+    lines.push(`minimised in ${Date.now() - started} ms: ${minimised.outputs.reduce((n, o) => n + o.terms.length, 0)} product terms in all`);
+    if (!fit.ok) {
+      lines.push(`does not fit ${device} devices:`);
+      for (const p of fit.problems) {
+        lines.push(`  - ${p.message}`);
+        for (const o of p.options) lines.push(`      option: ${o}`);
+      }
+      io.out(lines.join('\n') + '\n');
+      io.err('phasewright fit: nothing was written\n');
+      return 1;
+    }
+    const stem = `${basename(file, extname(file)) || 'table'}.${store.name}`;
+    const images = fit.devices.map((d) => ({ device: d, image: buildGalImage(table, d, fit.devices.length, { designName: `${machine.title || stem} ${store.name} ${device} ${d.index + 1}/${fit.devices.length}`, maxVectors, notes: [`phasewright ${VERSION}`] }) }));
+    for (const { device: d, image } of images) {
+      const check = checkGalImage(table, d, image.jedec);
+      if (!check.ok) throw new Error(`fuse map of device ${d.index + 1} failed its own check: ${check.message}`);
+    }
+    const outOption = parsed.options.get('out');
+    const outDir = typeof outOption === 'string' ? outOption : 'out';
+    try {
+      const report = writeOutputSet({
+        folder: resolve(io.cwd, outDir),
+        sourceFile: basename(file),
+        version: VERSION,
+        files: [
+          ...images.map(({ device: d, image }) => ({ name: `${stem}.${device.toLowerCase()}-${d.index + 1}.jed`, format: 'jedec', store: store.name, chip: d.index, bytes: Buffer.from(image.jedec, 'latin1') })),
+          { name: `${stem}.eqn`, format: 'equations', store: store.name, bytes: Buffer.from(equationsText(minimised, `${machine.title || stem}, store ${store.name}`), 'utf8') },
+          { name: `${stem}.v`, format: 'verilog', store: store.name, bytes: Buffer.from(verilogModule(minimised, `${stem.replace(/[^A-Za-z0-9_]/g, '_')}_logic`), 'utf8') },
+        ],
+      });
+      // Read each fuse map back from disk and check it against the truth table once more.
+      for (const [i, { device: d }] of images.entries()) {
+        const onDisk = readFileSync(report.files[i].absolutePath, 'latin1');
+        const check = checkGalImage(table, d, onDisk);
+        if (!check.ok) throw new OutputError(report.files[i].displayPath, `the written fuse map does not match the table: ${check.message}`);
+      }
+      lines.push(`fits ${fit.devices.length} ${device} device${fit.devices.length > 1 ? 's' : ''} (${fit.devices[0].mode} mode):`);
+      for (const d of fit.devices) {
+        lines.push(`  device ${d.index + 1}: inputs ${d.inputs.map((i) => `${i.name}@${i.pin}`).join(' ')}`);
+        for (const o of d.outputs) lines.push(`    pin ${String(o.pin).padStart(2)}  ${o.name.padEnd(16)} ${String(o.terms.length).padStart(2)}/${o.capacity} terms${o.inverted ? '  (active-low output: the equation gives its complement)' : ''}`);
+        for (const c of d.cautions) lines.push(`    caution: ${c}`);
+      }
+      lines.push(`wrote to ${outDir}:`);
+      for (const f of report.files) lines.push(`  ${f.entry.name}  ${f.sizeBytes} bytes  sha256 ${f.sha256.slice(0, 16)}`);
+      lines.push('Caution: check the fuse maps against the device data sheets and your programmer before burning; test a programmed device with the vectors in the file.');
+      io.out(lines.join('\n') + '\n');
+      return 0;
+    } catch (err) {
+      if (err instanceof OutputError || err instanceof ManifestError) {
+        io.err(`phasewright fit: ${err.message}\n`);
+        return 1;
+      }
+      throw err;
+    }
+  },
+};
+
+/** A pins file: JSON `{ "signal": pin, ... }`, signals being outputs (`x.rs1.oe`, `alu.fn[2]`) or inputs (`step[0]`). */
+function loadPins(path: string): { ok: true; pins: Record<string, number> } | { ok: false; reason: string } {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (err) {
+    return { ok: false, reason: describeFsError(path, err) };
+  }
+  let data: unknown;
+  try {
+    data = JSON.parse(text);
+  } catch (err) {
+    return { ok: false, reason: `${path} is not valid JSON: ${(err as Error).message}` };
+  }
+  if (!data || typeof data !== 'object' || Array.isArray(data)) return { ok: false, reason: `${path} must hold an object of signal: pin` };
+  const pins: Record<string, number> = {};
+  for (const [name, pin] of Object.entries(data)) {
+    if (!Number.isInteger(pin) || (pin as number) < 1 || (pin as number) > 24) return { ok: false, reason: `${path}: pin of '${name}' must be a whole number from 1 to 24` };
+    pins[name] = pin as number;
+  }
+  return { ok: true, pins };
+}
