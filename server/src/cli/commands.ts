@@ -5,6 +5,7 @@ import { checkCommand } from './commands/check';
 import { explainCommand } from './commands/explain';
 import { buildCommand } from './commands/build';
 import { diffCommand } from './commands/diff';
+import { runCommand as runProgramCommand } from './commands/run';
 import { budgetCommand } from './commands/budget';
 import { fitCommand } from './commands/fit';
 
@@ -15,7 +16,7 @@ export interface Command {
   run(args: string[], io: Io): Promise<number>;
 }
 
-const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand, fitCommand];
+const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand, fitCommand, runProgramCommand];
 
 export function usage(): string {
   const lines = ['Phasewright: control tables for microcoded RV32I processors built from discrete logic.', '', 'Usage:'];

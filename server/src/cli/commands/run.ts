@@ -1,0 +1,151 @@
+// `phasewright run FILE PROGRAM [--trace OUT.vcd] [--trace-steps N] [--max-steps N]
+// [--no-reference] [--load-address ADDR]`: runs an RV32I program through the table's encoded
+// control store, step by step, in lock-step with the RV32I reference interpreter unless
+// --no-reference. The program's stdout and stderr go to ours, its exit code is ours; a summary
+// (how it ended, instructions, steps, CPI per class, wall time, instructions per second) and any
+// divergence or fault report follow on stderr. Exit codes: see core/sim/session.ts (2 when
+// nothing ran, 3 divergence, 4 machine stopped, 124 step limit, 132 illegal instruction,
+// 133 EBREAK, else the program's own). The trace is a VCD file written atomically and read back.
+//
+// The program's output bytes are passed on as UTF-8 text (the CLI's output channel carries
+// text): ASCII and valid UTF-8 come out unchanged, other bytes as U+FFFD.
+import { mkdirSync, readFileSync, statSync } from 'node:fs';
+import { basename, dirname, resolve } from 'node:path';
+import { parseNumber } from '../../core/model/numbers';
+import { figuresOf, formatFigures } from '../../core/sim/summary';
+import { DEFAULT_MAX_STEPS, EXIT_REFUSED, endingText, exitCodeOf, prepareRun } from '../../core/sim/session';
+import { VcdTrace } from '../../core/sim/vcd';
+import type { RunEnding } from '../../core/sim/lockstep';
+import { parseArgs } from '../args';
+import type { Command } from '../commands';
+import { OutputError, writeFileSafely } from '../output/safeWriter';
+import { describeFsError, readSource } from '../readSource';
+import { VERSION } from '../version';
+
+/** Largest program file accepted (the ELF loader's own limit on loaded bytes is the same). */
+const MAX_PROGRAM_BYTES = 256 * 1024 * 1024;
+/** Steps dumped into a trace by default; about 200 bytes each on the demo machine. */
+export const DEFAULT_TRACE_STEPS = 100_000;
+/** Steps between output flushes. */
+const CHUNK_STEPS = 4_000_000;
+
+function readProgram(path: string, shown: string): { ok: true; bytes: Uint8Array } | { ok: false; reason: string } {
+  try {
+    const stat = statSync(path);
+    if (stat.isDirectory()) return { ok: false, reason: `${shown} is a directory; give an ELF file or a raw binary image` };
+    if (stat.size > MAX_PROGRAM_BYTES) return { ok: false, reason: `${shown} is ${(stat.size / 1024 / 1024).toFixed(0)} MB; programs larger than ${MAX_PROGRAM_BYTES / 1024 / 1024} MB are refused` };
+    return { ok: true, bytes: new Uint8Array(readFileSync(path)) };
+  } catch (err) {
+    return { ok: false, reason: describeFsError(shown, err) };
+  }
+}
+
+function positiveNumber(text: string | true | undefined, name: string, fallback: number): number | string {
+  if (text === undefined) return fallback;
+  const value = typeof text === 'string' ? parseNumber(text) : undefined;
+  if (value === undefined || value <= 0) return `--${name} needs a positive number, e.g. --${name} 1000000`;
+  return value;
+}
+
+export const runCommand: Command = {
+  name: 'run',
+  summary: 'run an RV32I program through the table, checked against a reference RV32I model',
+  usage: 'run FILE PROGRAM [--trace OUT.vcd] [--trace-steps N] [--max-steps N] [--no-reference] [--load-address ADDR]',
+  async run(args, io) {
+    const parsed = parseArgs(args, { flags: ['no-reference'], values: ['trace', 'trace-steps', 'max-steps', 'load-address'] });
+    if (parsed.errors.length || parsed.positionals.length !== 2) {
+      io.err(`phasewright run: ${parsed.errors[0] ?? 'give a .pwt file and a program (ELF, or a raw image with --load-address)'}\nusage: phasewright ${this.usage}\n`);
+      return EXIT_REFUSED;
+    }
+    const [file, programFile] = parsed.positionals;
+    const maxSteps = positiveNumber(parsed.options.get('max-steps'), 'max-steps', DEFAULT_MAX_STEPS);
+    const traceSteps = positiveNumber(parsed.options.get('trace-steps'), 'trace-steps', DEFAULT_TRACE_STEPS);
+    for (const problem of [maxSteps, traceSteps]) {
+      if (typeof problem === 'string') {
+        io.err(`phasewright run: ${problem}\n`);
+        return EXIT_REFUSED;
+      }
+    }
+    let loadAddress: number | undefined;
+    const addressOption = parsed.options.get('load-address');
+    if (addressOption !== undefined) {
+      loadAddress = typeof addressOption === 'string' ? parseNumber(addressOption) : undefined;
+      if (loadAddress === undefined || loadAddress > 0xffffffff) {
+        io.err(`phasewright run: --load-address needs a 32-bit address, e.g. --load-address 0x10000\n`);
+        return EXIT_REFUSED;
+      }
+    }
+    const traceOption = parsed.options.get('trace');
+    const source = readSource(resolve(io.cwd, file));
+    if (!source.ok) {
+      io.err(`phasewright run: ${source.reason.replace(resolve(io.cwd, file), file)}\n`);
+      return EXIT_REFUSED;
+    }
+    const program = readProgram(resolve(io.cwd, programFile), programFile);
+    if (!program.ok) {
+      io.err(`phasewright run: ${program.reason}\n`);
+      return EXIT_REFUSED;
+    }
+    const prepared = prepareRun({ text: source.text, sourceName: file, program: program.bytes, loadAddress, reference: !parsed.options.has('no-reference') });
+    if (!prepared.ok) {
+      io.err(`phasewright run: ${prepared.reason}\n`);
+      return EXIT_REFUSED;
+    }
+    for (const warning of prepared.warnings) io.err(`phasewright run: note: ${warning}\n`);
+    const run = prepared.run;
+    const sim = run.sim;
+    const trace = typeof traceOption === 'string' ? new VcdTrace(sim, { maxSteps: traceSteps as number, date: new Date().toUTCString(), version: `Phasewright ${VERSION} bus-level simulator` }) : null;
+    if (trace) sim.observer = trace.observe;
+
+    const decoders = { out: new TextDecoder('utf-8'), err: new TextDecoder('utf-8') };
+    const flushed = { out: 0, err: 0 };
+    const flush = (final: boolean) => {
+      const out = sim.environment.stdout();
+      const err = sim.environment.stderr();
+      if (out.length > flushed.out || final) io.out(decoders.out.decode(out.subarray(flushed.out), { stream: !final }));
+      if (err.length > flushed.err || final) io.err(decoders.err.decode(err.subarray(flushed.err), { stream: !final }));
+      flushed.out = out.length;
+      flushed.err = err.length;
+    };
+
+    const started = performance.now();
+    let ending: RunEnding | null = null;
+    let remaining = maxSteps as number;
+    while (remaining > 0) {
+      // While tracing, stop exactly where the dump is full, then run on without the observer (faster).
+      const tracing = trace !== null && sim.observer !== null;
+      const chunk = Math.min(remaining, CHUNK_STEPS, tracing ? Math.max(1, (traceSteps as number) - trace!.steps) : CHUNK_STEPS);
+      const before = sim.steps;
+      ending = run.advance(chunk);
+      remaining -= sim.steps - before;
+      flush(false);
+      if (ending) break;
+      if (tracing && trace!.steps >= (traceSteps as number)) {
+        sim.observer = null;
+        trace!.truncated = true;
+      }
+      if (sim.steps === before) break; // nothing can run (cannot happen while the run has not ended)
+    }
+    const wallMs = performance.now() - started;
+    flush(true);
+
+    let code = exitCodeOf(ending);
+    const lines: string[] = [];
+    if (ending && (ending.kind === 'divergence' || ending.kind === 'fault')) lines.push(ending.report.text.trimEnd());
+    lines.push(`phasewright run: ${endingText(ending, maxSteps as number)}${run.reference ? '' : ' (no reference comparison)'}`);
+    if (trace) {
+      const path = resolve(io.cwd, traceOption as string);
+      try {
+        mkdirSync(dirname(path), { recursive: true });
+        const written = writeFileSafely(dirname(path), { name: basename(path), bytes: Buffer.from(trace.text(), 'latin1') });
+        lines.push(`trace: ${traceOption} (${trace.steps} steps${trace.truncated ? `, the first ${traceSteps} only; raise --trace-steps for more` : ''}, ${written.sizeBytes} bytes)`);
+      } catch (err) {
+        const message = err instanceof OutputError ? err.message : `cannot write ${traceOption}: ${describeFsError(traceOption as string, err)}`;
+        lines.push(`phasewright run: ${message}`);
+        code = EXIT_REFUSED;
+      }
+    }
+    io.err(lines.join('\n') + '\n' + formatFigures(figuresOf(sim), wallMs));
+    return code;
+  },
+};

@@ -1,0 +1,436 @@
+// The fast path of the simulator: the micro-ops of a one-store machine compiled into
+// JavaScript (through the standard Function constructor) with every bus number, mask, ALU
+// function, immediate format and memory size folded in as a constant. The interpreter in
+// simulator.ts stays the definition of what a step does; the compiled code does the same for
+// the common case and hands every unusual step back to it untouched: a word that traps or
+// faults, a load that would read an undefined value. Handing back is safe because a step
+// changes nothing but bus values before its closing edge, and the interpreter recomputes those
+// from the same state. tests/sim/compiled.test.ts runs programs through both and requires
+// identical results.
+//
+// The unit compiled is a CHAIN: the steps that follow one another while the address's static
+// part (the instruction register's bits and the flags on the address lines) stays the same. From
+// a given address the chain is fixed: each step's word is known, and whether it ends the
+// instruction (the step counter returns to 0) or changes an input (then the chain stops). On the
+// demo table one chain runs an instruction's execute steps, its `end`, and the next
+// instruction's fetch up to the instruction register's load: one call per instruction, straight
+// code inside. Chains are compiled on first use, one small function each (shared by every
+// address with the same steps), so V8 optimizes each separately and cheaply; a loop calls them.
+//
+// Deliberately not here: machines with several stores or very many distinct words (they run on
+// the interpreter), traces and bus recording (interpreter only), any report.
+import {
+  D_ALU,
+  D_CONSTANT,
+  D_IMMEDIATE,
+  D_MEM_BUS,
+  D_MEM_PART,
+  D_PART,
+  D_REG_FIXED,
+  D_REG_RS1,
+  D_REG_RS2,
+  DRIVER_WORDS,
+  EDGE_WORDS,
+  E_CLOCK,
+  E_COMPARE,
+  E_COUNT,
+  E_MEM_WRITE_BUS,
+  E_MEM_WRITE_PART,
+  E_REG_FIXED,
+  E_REG_RD,
+  HEADER_END,
+  HEADER_STOP,
+  HEADER_TRAP,
+  U_DRIVERS,
+  U_FLOAT_MASK,
+  U_NEED_MASK,
+} from './microops';
+import { CONDITION_FROM_FUNCT3, SIZE_WORD, compareHolds, conditionOfFunct3 } from './operations';
+import type { SimPlan } from './plan';
+
+/** What the compiled stepping loop returns: why it stopped. */
+export const FAST_BUDGET = 0; // the step budget is used up, or what is left of it is shorter than the next chain
+export const FAST_SLOW_STEP = 1; // the next step needs the interpreter
+export const FAST_RETIRED = 2; // an instruction retired and the caller asked to hear of it (or an exit is pending)
+export const FAST_WRAP = 3; // the step counter wrapped without `end`
+
+/** The state the compiled code works on: the simulator's own arrays and fields. */
+export interface FastState {
+  step: number;
+  definedMask: number;
+  steps: number;
+  instructionsRetired: number;
+  instructionPc: number;
+  lastRetireStep: number;
+  lastRetiredWord: number;
+  lastWriteCount: number;
+  writeCount: number;
+  instructionLoaded: boolean;
+  readonly pendingExitSet: boolean;
+  readonly busValue: Int32Array;
+  readonly partValue: Int32Array;
+  readonly regs: Int32Array;
+  readonly flags: Uint8Array;
+  readonly memory: { load8(a: number): number; load16(a: number): number; load32(a: number): number; wordsOfPage(a: number): Int32Array | undefined };
+  readonly logAddress: Int32Array;
+  readonly classInstructions: Float64Array;
+  readonly classSteps: Float64Array;
+  readonly retiredByKey: Uint32Array;
+  storeMemory(size: number, address: number, value: number): void;
+}
+
+export interface FastStepper {
+  /** Runs up to `maxSteps` steps; returns a FAST_* status. */
+  run(maxSteps: number, stopAtRetire: boolean): number;
+  /** How many distinct chains have been compiled so far. */
+  chains(): number;
+}
+
+// What one word does to the step (bits), or WORD_SLOW alone.
+const WORD_END = 1; // the word ends the instruction
+const WORD_INPUTS = 2; // the instruction register or a flag changed: the address's static part must be recomputed
+const WORD_SLOW = 4; // the interpreter must run this step (traps, faults)
+
+// Why a chain returned (io[IO_STATUS] holds the same).
+const CHAIN_DONE = 0; // its steps ran; the next step continues with the same static part
+const CHAIN_INPUTS = 1; // its last step changed the instruction register or a flag
+const CHAIN_RETIRED = 2; // an instruction retired and the caller wants to know
+const CHAIN_SLOW = 3; // the current step needs the interpreter (nothing of it was done)
+const CHAIN_WRAP = 4; // the step counter wrapped without `end`
+
+// The chains share their state with the loop through io: the step counter, the defined-bus mask
+// and the number of steps the chain ran.
+const IO_STEP = 0;
+const IO_DEFINED = 1;
+const IO_STEPS = 2;
+
+/** Largest number of distinct words compiled; larger tables use the interpreter. */
+export const MAX_COMPILED_WORDS = 4096;
+/** Most steps in one chain (a table whose steps never change an input still returns to the loop). */
+const MAX_CHAIN_STEPS = 16;
+
+/** Whether the fast path can run this machine at all. */
+export function canCompile(plan: SimPlan): boolean {
+  return plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
+}
+
+const ALU_EXPRESSIONS: ((a: string, b: string) => string)[] = [
+  (a, b) => `((${a} + ${b}) | 0)`,
+  (a, b) => `((${a} - ${b}) | 0)`,
+  (a, b) => `(${a} << (${b} & 31))`,
+  (a, b) => `(${a} < ${b} ? 1 : 0)`,
+  (a, b) => `((${a} >>> 0) < (${b} >>> 0) ? 1 : 0)`,
+  (a, b) => `(${a} ^ ${b})`,
+  (a, b) => `((${a} >>> (${b} & 31)) | 0)`,
+  (a, b) => `(${a} >> (${b} & 31))`,
+  (a, b) => `(${a} | ${b})`,
+  (a, b) => `(${a} & ${b})`,
+  (a) => a,
+  (_a, b) => b,
+];
+
+// Immediate formats i s b u j (RISC-V Unprivileged ISA 2.3), as in isa/rv32i.ts.
+const IMMEDIATE_EXPRESSIONS: ((w: string) => string)[] = [
+  (w) => `(${w} >> 20)`,
+  (w) => `(((${w} >> 25) << 5) | ((${w} >>> 7) & 0x1f))`,
+  (w) => `(((${w} >> 31) << 12) | (((${w} >>> 7) & 1) << 11) | (((${w} >>> 25) & 0x3f) << 5) | (((${w} >>> 8) & 0xf) << 1))`,
+  (w) => `(${w} & -4096)`,
+  (w) => `(((${w} >> 31) << 20) | (${w} & 0x000ff000) | (((${w} >>> 20) & 1) << 11) | (((${w} >>> 21) & 0x3ff) << 1))`,
+];
+
+// Memory sizes byte half word ubyte uhalf: loads sign- or zero-extend.
+const LOAD_EXPRESSIONS: ((address: string) => string)[] = [
+  (x) => `((memory.load8(${x} >>> 0) << 24) >> 24)`,
+  (x) => `((memory.load16(${x} >>> 0) << 16) >> 16)`,
+  (x) => `memory.load32(${x} >>> 0)`, // replaced by a cached reader where the caller provides one
+  (x) => `memory.load8(${x} >>> 0)`,
+  (x) => `memory.load16(${x} >>> 0)`,
+];
+
+// Word reads (every instruction fetch among them) go through the live word view of the page the
+// same read found last time (one cache per place in the code, so a fetch and a data read do not
+// evict each other), as the reference interpreter's fetch does; stores land in the same array, so
+// a program that writes its own code is seen at once. Misaligned or unmapped reads take the
+// general path.
+function wordReader(index: number): string[] {
+  return [
+    `let pageTag${index} = -1, pageWords${index} = null;`,
+    `function loadWord${index}(a) {`,
+    `  if ((a & 3) === 0 && (a >>> 12) === pageTag${index}) return pageWords${index}[(a & 0xfff) >>> 2];`,
+    `  const words = (a & 3) === 0 ? memory.wordsOfPage(a) : undefined;`,
+    '  if (words === undefined) return memory.load32(a);',
+    `  pageTag${index} = a >>> 12;`,
+    `  pageWords${index} = words;`,
+    '  return words[(a & 0xfff) >>> 2];',
+    '}',
+  ];
+}
+
+/** The names the generated code can reach, and their values for a simulator. */
+function environmentOf(plan: SimPlan, state: FastState, io: Int32Array): [string[], unknown[]] {
+  const classSlots = Int16Array.from(plan.classOfOpcode, (c) => (c < 0 ? plan.machine.classes.length : c));
+  const names = ['state', 'io', 'busValue', 'partValue', 'regs', 'flags', 'memory', 'logAddress', 'classOfOpcode', 'classInstructions', 'classSteps', 'retiredByKey', 'compareHolds', 'conditionOfFunct3'];
+  const values = [state, io, state.busValue, state.partValue, state.regs, state.flags, state.memory, state.logAddress, classSlots, state.classInstructions, state.classSteps, state.retiredByKey, compareHolds, conditionOfFunct3];
+  return [names, values];
+}
+
+type Chain = (sp: number, stopAtRetire: boolean) => number;
+
+/**
+ * The compiled stepping loop of a one-store machine working on `state`, or null when the
+ * machine is not one the fast path handles. It runs chains until the budget is used up, an
+ * instruction retires (when asked), or a step needs the interpreter.
+ */
+export function compileStepper(plan: SimPlan, state: FastState): FastStepper | null {
+  if (!canCompile(plan)) return null;
+  const store = plan.stores[0];
+  const io = new Int32Array(3);
+  const [names, values] = environmentOf(plan, state, io);
+  const chainAt: (Chain | undefined)[] = new Array(store.wordOfAddress.length);
+  /** The most steps the chain at each address runs (0: not compiled yet). */
+  const chainSteps = new Int32Array(store.wordOfAddress.length);
+  const chainsBySteps = new Map<string, Chain>();
+  /** The chain that starts at `address` (step counter `step`), compiled on first use. */
+  const chainFor = (address: number, step: number): Chain => {
+    const { key, lines, steps } = chainSource(plan, address, step);
+    let chain = chainsBySteps.get(key);
+    if (!chain) {
+      chain = new Function(...names, lines.join('\n'))(...values) as Chain;
+      chainsBySteps.set(key, chain);
+    }
+    chainAt[address] = chain;
+    chainSteps[address] = steps;
+    return chain;
+  };
+  const irPart = plan.irPart;
+  const staticExpression = [String(store.constantPart), ...store.irSources.map((s) => `(((ir >>> ${s.inputLo}) & ${s.lineMask}) << ${s.addressLo})`), ...store.flagSources.map((s) => `((flags[${s.flag}] & ${s.lineMask}) << ${s.addressLo})`)].join(' + ');
+  const loop = [
+    '"use strict";',
+    'return function fastSteps(maxSteps, stopAtRetire) {',
+    `  let step = state.step, ir = partValue[${irPart}], n = 0, status = ${FAST_BUDGET};`,
+    `  let sp = ${staticExpression};`,
+    `  io[${IO_DEFINED}] = state.definedMask;`,
+    '  while (n < maxSteps) {',
+    '    const address = sp + stepPart[step];',
+    '    const chain = chainAt[address] ?? chainFor(address, step);',
+    // A chain runs to its end; one longer than the budget left is for the interpreter (exact).
+    '    if (chainSteps[address] > maxSteps - n) break;',
+    '    const r = chain(sp, stopAtRetire);',
+    `    n += io[${IO_STEPS}];`,
+    `    step = io[${IO_STEP}];`,
+    `    if (r === ${CHAIN_DONE}) continue;`,
+    `    if (r === ${CHAIN_INPUTS}) { ir = partValue[${irPart}]; sp = ${staticExpression}; continue; }`,
+    `    status = r === ${CHAIN_RETIRED} ? ${FAST_RETIRED} : r === ${CHAIN_SLOW} ? ${FAST_SLOW_STEP} : ${FAST_WRAP};`,
+    '    break;',
+    '  }',
+    `  state.step = step; state.definedMask = io[${IO_DEFINED}]; state.steps += n;`,
+    '  return status;',
+    '};',
+  ];
+  const run = new Function('state', 'io', 'partValue', 'flags', 'stepPart', 'chainAt', 'chainSteps', 'chainFor', loop.join('\n'))(state, io, state.partValue, state.flags, store.stepPart, chainAt, chainSteps, chainFor) as FastStepper['run'];
+  // Calls that run no step pass through the function's exit, so V8 has type feedback for that
+  // code before it optimizes the loop (else the first return deoptimizes it). V8 keeps feedback
+  // only from a function's first few calls on, hence several calls.
+  for (let i = 0; i < 16; i++) run(0, false);
+  return { run, chains: () => chainsBySteps.size };
+}
+
+/**
+ * The source of the chain starting at `address` with the step counter at `step`, and a key
+ * naming its steps (addresses with the same key share one function). The chain's steps follow
+ * from the table: each word's effect on the step is known while compiling.
+ */
+function chainSource(plan: SimPlan, address: number, firstStep: number): { key: string; lines: string[]; steps: number } {
+  const mo = plan.microOps;
+  const code = mo.code.data;
+  const store = plan.stores[0];
+  const sp = address - store.stepPart[firstStep];
+  const readers: string[] = [];
+  let nReaders = 0;
+  const wordLoad = (address: string) => {
+    readers.push(...wordReader(nReaders));
+    return `loadWord${nReaders++}(${address})`;
+  };
+  const lines: string[] = ['return function chain(sp, stopAtRetire) {', `  let defined = io[${IO_DEFINED}];`, `  const ir = partValue[${plan.irPart}];`];
+  const keyParts: string[] = [];
+  const leave = (status: number, nextStep: number, stepsRun: number) => `{ io[${IO_STEP}] = ${nextStep}; io[${IO_DEFINED}] = defined; io[${IO_STEPS}] = ${stepsRun}; return ${status}; }`;
+  let step = firstStep;
+  let count = 0;
+  for (;;) {
+    const word = store.wordOfAddress[sp + store.stepPart[step]];
+    const body = wordBody(plan, code, mo.byKey![word], leave(CHAIN_SLOW, step, count), wordLoad);
+    if (body.result === WORD_SLOW) {
+      // The interpreter runs this word; the loop comes back here for it.
+      lines.push(`  ${leave(count === 0 ? CHAIN_SLOW : CHAIN_DONE, step, count)}`);
+      keyParts.push(`${step}:${word}:slow`);
+      break;
+    }
+    keyParts.push(`${step}:${word}`);
+    lines.push(`  logAddress[${step}] = sp + ${store.stepPart[step]};`, '  {');
+    lines.push(...body.lines.map((l) => `    ${l}`), '  }');
+    count++;
+    if (body.result & WORD_END) {
+      lines.push(
+        `  classInstructions[classOfOpcode[ir & 0x7f]]++;`,
+        `  classSteps[classOfOpcode[ir & 0x7f]] += ${step + 1};`,
+        '  retiredByKey[(ir & 0x7f) | (((ir >>> 12) & 7) << 7) | (((ir >>> 25) & 0x7f) << 10) | (((ir >>> 20) & 1) << 17)]++;',
+        '  state.instructionsRetired++;',
+        '  state.lastWriteCount = state.writeCount;',
+        '  state.writeCount = 0;',
+        `  state.lastRetireStep = ${step};`,
+        '  state.lastRetiredWord = ir >>> 0;',
+        `  state.instructionPc = partValue[${plan.pcPart}] >>> 0;`,
+      );
+      step = 0;
+      lines.push(`  if (stopAtRetire || state.pendingExitSet) ${leave(CHAIN_RETIRED, 0, count)}`);
+    } else if (step + 1 === plan.nSteps) {
+      lines.push(`  ${leave(CHAIN_WRAP, 0, count)}`);
+      break;
+    } else {
+      step++;
+    }
+    if (body.result & WORD_INPUTS) {
+      lines.push(`  ${leave(CHAIN_INPUTS, step, count)}`);
+      break;
+    }
+    if (count >= MAX_CHAIN_STEPS) {
+      lines.push(`  ${leave(CHAIN_DONE, step, count)}`);
+      break;
+    }
+  }
+  lines.push('};');
+  return { key: keyParts.join(' '), lines: ['"use strict";', ...readers, ...lines], steps: Math.max(1, count) };
+}
+
+/**
+ * The statements of one word: they read `ir` and `defined` and update `defined`. When a value
+ * the closing edge needs turns out undefined they restore `defined` and run `slowExit` (which
+ * must leave the statements). `result` says what the word does to the step (WORD_END,
+ * WORD_INPUTS bits), or WORD_SLOW when the interpreter must always run it (traps, faults).
+ */
+function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: string, wordLoad?: (address: string) => string): { lines: string[]; result: number } {
+  const load = (size: number, address: string) => (size === SIZE_WORD && wordLoad ? wordLoad(`${address} >>> 0`) : LOAD_EXPRESSIONS[size](address));
+  const irPart = plan.irPart;
+  const out: string[] = [];
+  const header = code[base];
+  if (header & (HEADER_STOP | HEADER_TRAP)) return { lines: [], result: WORD_SLOW };
+  const floatMask = code[base + U_FLOAT_MASK];
+  const needMask = code[base + U_NEED_MASK];
+  const nDrivers = code[base + U_DRIVERS];
+  const nBuses = plan.busNames.length;
+  // Definedness known while compiling: true (a driver that always gives a value drove the bus in
+  // this step), false (it floats, or an unnamed code drives it); absent: decided at run time
+  // from `defined` (a bus held by keepers, or computed from one).
+  const known = new Map<number, boolean>();
+  for (let bus = 0; bus < nBuses; bus++) if (floatMask & (1 << bus)) known.set(bus, false);
+  const statements: string[] = [];
+  if (floatMask) statements.push(`defined &= ${~floatMask};`);
+  // Buses driven in this step live in locals b<N>; the others are read from busValue.
+  const local = new Set<number>();
+  const busRead = (bus: number) => (local.has(bus) ? `b${bus}` : `busValue[${bus}]`);
+  /** Definedness of a value computed from `inputs`: a known boolean, or a run-time expression (bit 0). */
+  const definednessOf = (inputs: number[]): boolean | string => {
+    if (inputs.some((bus) => known.get(bus) === false)) return false;
+    const open = inputs.filter((bus) => !known.has(bus));
+    return open.length === 0 ? true : open.map((bus) => `(defined >>> ${bus})`).join(' & ');
+  };
+  let p = base + U_DRIVERS + 1;
+  for (let k = 0; k < nDrivers; k++, p += DRIVER_WORDS) {
+    const [op, bus, a, b, c] = [code[p], code[p + 1], code[p + 2], code[p + 3], code[p + 4]];
+    let value: string;
+    let definedness: boolean | string = true;
+    switch (op) {
+      case D_REG_RS1:
+        value = `regs[${a * 32} + ((ir >>> 15) & 31)]`;
+        break;
+      case D_REG_RS2:
+        value = `regs[${a * 32} + ((ir >>> 20) & 31)]`;
+        break;
+      case D_REG_FIXED:
+        value = `regs[${a * 32 + b}]`;
+        break;
+      case D_PART:
+        value = a === irPart ? 'ir' : `partValue[${a}]`;
+        break;
+      case D_IMMEDIATE:
+        value = IMMEDIATE_EXPRESSIONS[a](b === irPart ? 'ir' : `partValue[${b}]`);
+        break;
+      case D_ALU:
+        value = ALU_EXPRESSIONS[a](busRead(b), busRead(c));
+        definedness = definednessOf(a === 10 ? [b] : a === 11 ? [c] : [b, c]);
+        break;
+      case D_MEM_PART:
+        value = load(a, `partValue[${b}]`);
+        break;
+      case D_MEM_BUS:
+        value = load(a, busRead(b));
+        definedness = definednessOf([b]);
+        break;
+      case D_CONSTANT:
+        value = String(a | 0);
+        break;
+      default:
+        value = '0';
+        definedness = false;
+    }
+    const mask = plan.busMask[bus];
+    const masked = mask === -1 ? value : `(${value} & ${mask})`;
+    statements.push(local.has(bus) ? `b${bus} = ${masked};` : `let b${bus} = ${masked};`);
+    local.add(bus);
+    // Only keepers hold a value into later steps; a bus without them is read in this step only (the local).
+    if (plan.busKeeper[bus]) statements.push(`busValue[${bus}] = b${bus};`);
+    if (definedness === true) statements.push(`defined |= ${1 << bus};`);
+    else if (definedness === false) statements.push(`defined &= ${~(1 << bus)};`);
+    else statements.push(`defined = ((${definedness}) & 1) !== 0 ? defined | ${1 << bus} : defined & ${~(1 << bus)};`);
+    if (typeof definedness === 'boolean') known.set(bus, definedness);
+    else known.delete(bus);
+  }
+  // Every bus the closing edge loads from must be defined: known ones are settled now.
+  let openNeed = 0;
+  for (let bus = 0; bus < nBuses; bus++) {
+    if (!(needMask & (1 << bus))) continue;
+    if (known.get(bus) === false) return { lines: [], result: WORD_SLOW }; // always a fault: the interpreter reports it
+    if (!known.has(bus)) openNeed |= 1 << bus;
+  }
+  if (openNeed) out.push('const defined0 = defined;');
+  out.push(...statements);
+  if (openNeed) out.push(`if ((defined & ${openNeed}) !== ${openNeed}) { defined = defined0; ${slowExit} }`);
+  const nEdges = code[p++];
+  let inputsChanged = false;
+  for (let k = 0; k < nEdges; k++, p += EDGE_WORDS) {
+    const [op, bus, a, b, c] = [code[p], code[p + 1], code[p + 2], code[p + 3], code[p + 4]];
+    switch (op) {
+      case E_MEM_WRITE_PART:
+        out.push(`state.storeMemory(${a}, partValue[${b}], ${busRead(bus)});`);
+        break;
+      case E_MEM_WRITE_BUS:
+        out.push(`state.storeMemory(${a}, ${busRead(b)}, ${busRead(bus)});`);
+        break;
+      case E_REG_RD:
+        // A write to x0 that the register file ignores goes to the spare entry after the files:
+        // the same store either way, so V8 never meets a store it has not seen (rd = 0 is common).
+        out.push(b !== 0 ? `regs[${a * 32} + ((ir >>> 7) & 31)] = ${busRead(bus)};` : `regs[(ir & 0xf80) !== 0 ? ${a * 32} + ((ir >>> 7) & 31) : regs.length - 1] = ${busRead(bus)};`);
+        break;
+      case E_REG_FIXED:
+        if (c !== 0) out.push(`regs[${a * 32 + b}] = ${busRead(bus)};`);
+        break;
+      case E_COMPARE: {
+        const cond = a === CONDITION_FROM_FUNCT3 ? 'conditionOfFunct3(ir >>> 12)' : String(a);
+        out.push(`flags[${bus}] = compareHolds(${cond}, ${busRead(b)}, ${busRead(c)});`);
+        inputsChanged = true;
+        break;
+      }
+      case E_COUNT:
+        out.push(`partValue[${a}] = (partValue[${a}] + ${b}) & ${c};`);
+        break;
+      case E_CLOCK:
+        out.push(b === -1 ? `partValue[${a}] = ${busRead(bus)};` : `partValue[${a}] = ${busRead(bus)} & ${b};`);
+        if (c !== 0) {
+          inputsChanged = true;
+          out.push('state.instructionLoaded = true;');
+        }
+        break;
+    }
+  }
+  return { lines: out, result: (header & HEADER_END ? WORD_END : 0) | (inputsChanged ? WORD_INPUTS : 0) };
+}

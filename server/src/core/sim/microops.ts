@@ -1,0 +1,361 @@
+// Micro-ops: what one control word (one per store, read back from the encoded bits) makes the
+// machine do in one step, compiled into one flat Int32Array the stepping loops walk without
+// allocating (layout: U_* below), with a MicroOpInfo beside each for reports and traces.
+// A micro-op lists
+//   - the buses nobody drives that have no keepers (they float: their value becomes undefined),
+//   - the drivers, in an order where every driver that reads a bus (an ALU, a memory port
+//     addressed by a bus) comes after that bus's own driver,
+//   - the closing-edge actions, ordered so everything that reads old state (a memory write's
+//     address register, the register file's rd select from the instruction register) happens
+//     before anything that changes it: faults, memory writes, register-file writes, flag
+//     latches, counts, register clocks,
+//   - whether the word ends the instruction or traps.
+// Problems a word has whatever the data (two drivers on one bus, a driver reading its own bus
+// through other parts, a control field code that names no operation) are found here once; the
+// hot loop only checks a flag.
+//
+// Deliberately not here: values (simulator.ts computes them) and reports (describe.ts).
+import type { Field, Part, Strobe } from '../model/types';
+import { GrowableInt32 } from './growable';
+import { CONDITION_FROM_FUNCT3, SIZE_WORD, aluFunctionNumber, aluOperandsUsed, conditionNumber, immediateFormatNumber, memorySizeNumber } from './operations';
+import type { SimPlan } from './plan';
+
+// Driver operations. Operands a, b, c as listed. The hot loop in simulator.ts switches on the
+// literal numbers (module constants are not folded into switch cases in bundled code): keep
+// both in step.
+export const D_UNDEFINED = 0; // drives a value nobody can know (an unnamed control code); reason in notes
+export const D_REG_RS1 = 1; // A = register file
+export const D_REG_RS2 = 2; // A = register file
+export const D_REG_FIXED = 3; // A = register file, B = register number
+export const D_PART = 4; // A = part (register, counter, instruction register)
+export const D_IMMEDIATE = 5; // A = format, B = source part (the instruction register)
+export const D_ALU = 6; // A = function, B = bus a, C = bus b
+export const D_MEM_PART = 7; // A = size, B = address part
+export const D_MEM_BUS = 8; // A = size, B = address bus
+export const D_CONSTANT = 9; // A = value
+
+// Closing-edge operations, in the order they are applied.
+export const E_FAULT = 0; // stop before any update; the message is in MicroOpInfo.edges
+export const E_MEM_WRITE_PART = 1; // bus = data, A = size, B = address part
+export const E_MEM_WRITE_BUS = 2; // bus = data, A = size, B = address bus
+export const E_REG_RD = 3; // bus = data, A = register file, B = 1 when x0 is writable through rd
+export const E_REG_FIXED = 4; // bus = data, A = register file, B = register number, C = 1 when writable
+export const E_COMPARE = 5; // bus slot = flag, A = condition (or CONDITION_FROM_FUNCT3), B = bus a, C = bus b
+export const E_COUNT = 6; // A = part, B = increment, C = mask
+export const E_CLOCK = 7; // bus = data, A = part, B = mask, C = 1 for the instruction register
+
+/** Layout of a compiled micro-op in `MicroOps.code`, from its base offset. */
+export const U_HEADER = 0; // bit 0: stops the machine (contention or loop), bit 1: end, bit 2: trap
+export const U_INDEX = 1; // micro-op number (for the step log and reports)
+export const U_FLOAT_MASK = 2; // buses that float in this step (undriven, no keepers), one bit each
+export const U_NEED_MASK = 3; // buses the closing edge loads from: they must hold defined values
+export const U_DRIVERS = 4; // number of drivers; then 5 words each: op, bus, a, b, c
+export const DRIVER_WORDS = 5;
+// After the drivers: the number of edge actions, then 5 words each: op, bus (the flag for a
+// compare), a, b, c.
+export const EDGE_WORDS = 5;
+export const HEADER_STOP = 1;
+export const HEADER_END = 2;
+export const HEADER_TRAP = 4;
+
+/** Most buses a machine may have: definedness is one bit per bus in a 32-bit word. */
+export const MAX_BUSES = 31;
+
+/** What a micro-op does, by name, for reports and traces. */
+export interface MicroOpInfo {
+  /** Offset of the micro-op in `code`. */
+  base: number;
+  /** Distinct-word number of each store (evaluation order). */
+  words: number[];
+  asserted: string[];
+  fields: Map<string, number>;
+  /** Drivers in settle order (as in `code`): strobe, bus, part, and why the value is unknown for an unnamed code. */
+  drivers: { strobe: string; bus: number; part: string; note?: string }[];
+  /** Edge actions in the order applied (as in `code`): strobe, and the message of a fault entry. */
+  edges: { strobe: string; fault?: string }[];
+  contention: { bus: number; strobes: string[] }[];
+  /** A combinational loop through buses, described; empty when there is none. */
+  loop: string;
+  /** Buses driven in this step (1) or not (0). */
+  driven: Uint8Array;
+}
+
+interface DriverSpec {
+  op: number;
+  bus: number;
+  a: number;
+  b: number;
+  c: number;
+  strobe: string;
+  reads: number[];
+  note?: string;
+}
+
+interface EdgeSpec {
+  op: number;
+  bus: number;
+  a: number;
+  b: number;
+  c: number;
+  strobe: string;
+  /** Buses this action loads from (they must be defined). */
+  reads: number[];
+  fault?: string;
+}
+
+export class MicroOps {
+  count = 0;
+  /** Every compiled micro-op, back to back (layout: U_* above). */
+  readonly code = new GrowableInt32(1024);
+  readonly info: MicroOpInfo[] = [];
+  /** Multiplier of each store's word number in the combined key. */
+  readonly strides: number[] = [];
+  /** Combined key -> base offset of the micro-op in `code` (-1 not compiled yet), when the key space fits an array. */
+  readonly byKey: Int32Array | null;
+  private readonly byKeyMap = new Map<number, number>();
+  private readonly fieldNames = new Map<string, Map<number, string>>();
+
+  constructor(private readonly plan: SimPlan) {
+    let space = 1;
+    for (const s of plan.stores) {
+      this.strides.push(space);
+      space *= s.words.length;
+    }
+    this.byKey = space <= 1 << 22 ? new Int32Array(space).fill(-1) : null;
+    for (const signal of plan.machine.signals.values()) {
+      if (signal.type === 'field') this.fieldNames.set(signal.name, new Map([...signal.values.values()].map((v) => [v.code, v.name])));
+    }
+    // One store: every word is known now, so the hot loop never has to stop to compile.
+    if (plan.stores.length === 1) for (let w = 0; w < plan.stores[0].words.length; w++) this.lookup(w, [w]);
+  }
+
+  /** The base offset in `code` of the micro-op for a combined key (sum of word number x stride), compiled on first use. */
+  lookup(key: number, words: number[]): number {
+    if (this.byKey) {
+      const found = this.byKey[key];
+      if (found >= 0) return found;
+    } else {
+      const found = this.byKeyMap.get(key);
+      if (found !== undefined) return found;
+    }
+    const base = this.compile(words);
+    if (this.byKey) this.byKey[key] = base;
+    else this.byKeyMap.set(key, base);
+    return base;
+  }
+
+  /** Name of the value a field's code stands for, or undefined when no value has that code. */
+  valueName(field: string, code: number): string | undefined {
+    return this.fieldNames.get(field)?.get(code);
+  }
+
+  /** The code a field holds in this micro-op (its idle code when no store holds it). */
+  private fieldCode(fields: Map<string, number>, fieldName: string): number {
+    const code = fields.get(fieldName);
+    if (code !== undefined) return code;
+    const field = this.plan.machine.signals.get(fieldName) as Field | undefined;
+    return field?.idle ?? 0;
+  }
+
+  /** The value name of a part's control field in this micro-op, or undefined when the part has no field. */
+  private controlValue(part: Part, fields: Map<string, number>): { name?: string; code: number; field: string } | undefined {
+    if (!part.controlField) return undefined;
+    const code = this.fieldCode(fields, part.controlField);
+    return { name: this.valueName(part.controlField, code), code, field: part.controlField };
+  }
+
+  private compile(words: number[]): number {
+    const plan = this.plan;
+    const machine = plan.machine;
+    const asserted: string[] = [];
+    const fields = new Map<string, number>();
+    words.forEach((w, s) => {
+      const word = plan.stores[s].words[w];
+      asserted.push(...word.asserted);
+      for (const [name, code] of word.fields) fields.set(name, code);
+    });
+    const drivers: DriverSpec[] = [];
+    const edges: EdgeSpec[] = [];
+    let header = 0;
+    for (const name of asserted) {
+      const strobe = machine.signals.get(name) as Strobe;
+      if (strobe.kind === 'end') header |= HEADER_END;
+      else if (strobe.kind === 'trap') header |= HEADER_TRAP;
+      else if (strobe.kind === 'enable' || strobe.kind === 'read') {
+        const driver = this.driverOf(strobe, fields);
+        if (driver) drivers.push(driver);
+      } else {
+        const edge = this.edgeOf(strobe, fields);
+        if (edge) edges.push(edge);
+      }
+    }
+    const nBuses = plan.busNames.length;
+    const driven = new Uint8Array(nBuses);
+    const byBus = new Map<number, DriverSpec[]>();
+    for (const d of drivers) {
+      driven[d.bus] = 1;
+      byBus.set(d.bus, [...(byBus.get(d.bus) ?? []), d]);
+    }
+    const contention = [...byBus].filter(([, list]) => list.length > 1).map(([bus, list]) => ({ bus, strobes: list.map((d) => d.strobe) }));
+    const { ordered, loop } = settleOrder(drivers, plan.busNames);
+    if (contention.length > 0 || loop !== '') header |= HEADER_STOP;
+    let floatMask = 0;
+    for (let bus = 0; bus < nBuses; bus++) if (!driven[bus] && !plan.busKeeper[bus]) floatMask |= 1 << bus;
+    let needMask = 0;
+    for (const e of edges) for (const bus of e.reads) needMask |= 1 << bus;
+    edges.sort((x, y) => x.op - y.op);
+    const index = this.count++;
+    const code = this.code;
+    const base = code.length;
+    code.push(header);
+    code.push(index);
+    code.push(floatMask);
+    code.push(needMask);
+    code.push(ordered.length);
+    for (const d of ordered) for (const v of [d.op, d.bus, d.a, d.b, d.c]) code.push(v);
+    code.push(edges.length);
+    for (const e of edges) for (const v of [e.op, e.bus, e.a, e.b, e.c]) code.push(v);
+    this.info.push({
+      base,
+      words: [...words],
+      asserted,
+      fields,
+      drivers: ordered.map((d) => ({ strobe: d.strobe, bus: d.bus, part: (machine.signals.get(d.strobe) as Strobe).part ?? '', note: d.note })),
+      edges: edges.map((e) => ({ strobe: e.strobe, fault: e.fault })),
+      contention,
+      loop,
+      driven,
+    });
+    return base;
+  }
+
+  private driverOf(strobe: Strobe, fields: Map<string, number>): DriverSpec | undefined {
+    const plan = this.plan;
+    const bus = plan.busIndex.get(strobe.bus ?? '');
+    const part = plan.machine.parts.get(strobe.part ?? '');
+    if (bus === undefined || !part) return undefined;
+    const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: [] as number[] };
+    const undefinedDriver = (note: string): DriverSpec => ({ ...base, op: D_UNDEFINED, note });
+    switch (part.kind) {
+      case 'regfile': {
+        const file = plan.regfileIndex.get(part.name)!;
+        if (strobe.register !== undefined) return { ...base, op: D_REG_FIXED, a: file, b: strobe.register };
+        return { ...base, op: strobe.port === 'rs2' ? D_REG_RS2 : D_REG_RS1, a: file };
+      }
+      case 'register':
+      case 'counter':
+      case 'instruction':
+        return { ...base, op: D_PART, a: plan.partIndex.get(part.name)! };
+      case 'constant':
+        return { ...base, op: D_CONSTANT, a: part.value & plan.partMask[plan.partIndex.get(part.name)!] };
+      case 'immediate': {
+        const control = this.controlValue(part, fields);
+        if (!control) return undefinedDriver(`the immediate generator \`${part.name}\` has no field selecting its format`);
+        const format = control.name === undefined ? -1 : immediateFormatNumber(control.name);
+        if (format < 0) return undefinedDriver(`\`${control.field}\` holds code ${control.code}, which names no immediate format`);
+        return { ...base, op: D_IMMEDIATE, a: format, b: plan.partIndex.get(part.source) ?? plan.irPart };
+      }
+      case 'alu': {
+        const control = this.controlValue(part, fields);
+        if (!control) return undefinedDriver(`the ALU \`${part.name}\` has no field selecting its function`);
+        const fn = control.name === undefined ? -1 : aluFunctionNumber(control.name);
+        if (fn < 0) return undefinedDriver(`\`${control.field}\` holds code ${control.code}, which names no ALU function`);
+        const a = plan.busIndex.get(part.a)!;
+        const b = plan.busIndex.get(part.b)!;
+        const used = aluOperandsUsed(fn);
+        const reads = [...(used & 1 ? [a] : []), ...(used & 2 ? [b] : [])];
+        return { ...base, op: D_ALU, a: fn, b: a, c: b, reads };
+      }
+      case 'memory': {
+        const control = this.controlValue(part, fields);
+        const size = control ? (control.name === undefined ? -1 : memorySizeNumber(control.name)) : SIZE_WORD;
+        if (size < 0) return undefinedDriver(`\`${control!.field}\` holds code ${control!.code}, which names no memory size`);
+        if (part.addressFrom === 'bus') {
+          const addressBus = plan.busIndex.get(part.address)!;
+          return { ...base, op: D_MEM_BUS, a: size, b: addressBus, reads: [addressBus] };
+        }
+        return { ...base, op: D_MEM_PART, a: size, b: plan.partIndex.get(part.address)! };
+      }
+      default:
+        return undefinedDriver(`a ${part.kind} part cannot drive a bus`);
+    }
+  }
+
+  private edgeOf(strobe: Strobe, fields: Map<string, number>): EdgeSpec | undefined {
+    const plan = this.plan;
+    const part = plan.machine.parts.get(strobe.part ?? '');
+    if (!part) return undefined;
+    const bus = strobe.bus === undefined ? -1 : (plan.busIndex.get(strobe.bus) ?? -1);
+    const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: bus >= 0 ? [bus] : [] };
+    const fault = (message: string): EdgeSpec => ({ ...base, op: E_FAULT, fault: message, reads: [] });
+    if (strobe.kind === 'write') {
+      if (part.kind !== 'memory') return fault(`\`${strobe.name}\` writes to \`${part.name}\`, which is not a memory`);
+      const control = this.controlValue(part, fields);
+      const size = control ? (control.name === undefined ? -1 : memorySizeNumber(control.name)) : SIZE_WORD;
+      if (size < 0) return fault(`\`${control!.field}\` holds code ${control!.code}, which names no memory size, while \`${strobe.name}\` writes memory`);
+      if (part.addressFrom === 'bus') {
+        const addressBus = plan.busIndex.get(part.address)!;
+        return { ...base, op: E_MEM_WRITE_BUS, a: size, b: addressBus, reads: [bus, addressBus] };
+      }
+      return { ...base, op: E_MEM_WRITE_PART, a: size, b: plan.partIndex.get(part.address)! };
+    }
+    if (strobe.kind === 'count') {
+      if (part.kind !== 'counter') return fault(`\`${strobe.name}\` counts \`${part.name}\`, which is not a counter`);
+      const p = plan.partIndex.get(part.name)!;
+      return { ...base, op: E_COUNT, a: p, b: part.increment, c: plan.partMask[p] & (part.bit0Zero ? ~1 : -1), reads: [] };
+    }
+    // clock
+    if (part.kind === 'regfile') {
+      const file = plan.regfileIndex.get(part.name)!;
+      if (strobe.register !== undefined) {
+        const writable = strobe.register !== 0 || part.x0 !== 'hardwired' ? 1 : 0;
+        return { ...base, op: E_REG_FIXED, a: file, b: strobe.register, c: writable };
+      }
+      return { ...base, op: E_REG_RD, a: file, b: part.x0 === 'stored' ? 1 : 0 };
+    }
+    if (part.kind === 'compare') {
+      let cond = CONDITION_FROM_FUNCT3;
+      if (part.condition !== 'funct3') {
+        const control = this.controlValue(part, fields);
+        cond = control?.name === undefined ? -1 : conditionNumber(control.name);
+        if (cond < 0) return fault(control ? `\`${control.field}\` holds code ${control.code}, which names no comparator condition, while \`${strobe.name}\` latches the flag` : `the comparator \`${part.name}\` has no condition`);
+      }
+      const a = plan.busIndex.get(part.a)!;
+      const b = plan.busIndex.get(part.b)!;
+      return { ...base, op: E_COMPARE, bus: plan.flagIndex.get(part.flag) ?? 0, a: cond, b: a, c: b, reads: [a, b] };
+    }
+    if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') {
+      const p = plan.partIndex.get(part.name)!;
+      const mask = plan.partMask[p] & (part.kind === 'counter' && part.bit0Zero ? ~1 : -1);
+      return { ...base, op: E_CLOCK, a: p, b: mask, c: p === plan.irPart ? 1 : 0 };
+    }
+    return fault(`\`${strobe.name}\` clocks \`${part.name}\`, a ${part.kind} part that cannot load`);
+  }
+}
+
+/**
+ * Orders drivers so each one that reads a bus comes after the driver of that bus (undriven buses
+ * hold their value from the step's start). A cycle is a combinational loop: returned described.
+ */
+function settleOrder(drivers: DriverSpec[], busNames: string[]): { ordered: DriverSpec[]; loop: string } {
+  const pending = [...drivers];
+  const ordered: DriverSpec[] = [];
+  const settled = new Set<number>();
+  for (let bus = 0; bus < busNames.length; bus++) if (!drivers.some((d) => d.bus === bus)) settled.add(bus);
+  let progress = true;
+  while (pending.length && progress) {
+    progress = false;
+    for (let i = 0; i < pending.length; i++) {
+      const d = pending[i];
+      if (!d.reads.every((b) => settled.has(b))) continue;
+      ordered.push(d);
+      pending.splice(i--, 1);
+      // A bus counts as settled once all its drivers are placed (two drivers is contention, reported apart).
+      if (!pending.some((p) => p.bus === d.bus)) settled.add(d.bus);
+      progress = true;
+    }
+  }
+  if (pending.length === 0) return { ordered, loop: '' };
+  const loop = pending.map((d) => `\`${d.strobe}\` drives ${busNames[d.bus]} from ${d.reads.map((b) => busNames[b]).join(' and ')}`).join('; ');
+  return { ordered: [...ordered, ...pending], loop: `combinational loop: ${loop}` };
+}

@@ -1,0 +1,831 @@
+// The bus-level simulator: runs a machine step by step from its ENCODED control stores, the
+// way the board would run with the chips burned from `phasewright build`. Each step
+//   1. forms every store's address from the step counter, the instruction register's bits, the
+//      flags and (for an entry-point decoder) other stores' fields, and reads its word;
+//   2. lets the enabled drivers put their values on their buses (a bus nobody drives keeps its
+//      last value if it has keepers, else floats and its value is undefined); combinational
+//      parts (ALU, immediate generator, memory read data) settle from the bus values;
+//   3. hands the instruction to the environment if the word traps (ecall: Linux write/exit
+//      through the register file; ebreak: stop; anything else: illegal);
+//   4. applies every closing-edge action from the values before the edge (edge-triggered):
+//      memory writes, register-file writes, flag latches, counts, register clocks;
+//   5. returns the step counter to 0 after a word with `end` (the instruction retires), else
+//      counts it up; wrapping without `end` means the instruction has no (finished) class.
+// Two drivers on one bus, a load of an undefined value, a combinational loop or a control code
+// that names no operation stop the machine with a fault naming the step, strobes and values.
+//
+// Reset state (as createReferenceMachine and qemu-riscv32 start a program): the program counter
+// (see plan.ts for which part that is) holds the entry point, every other register and counter
+// its `reset=` value (0 by default), the instruction register too (0 by default), the register
+// file 0 except x2 (sp) = DEFAULT_STACK_POINTER, flags 0, step 0, every bus undefined (keepers
+// hold nothing yet).
+//
+// Speed: the micro-ops are compiled into one Int32Array (microops.ts) and bus definedness is one
+// bit per bus in an integer; this interpreter keeps the step counter and instruction register in
+// locals, switches on literal operation numbers and allocates nothing per step. For one-store
+// machines, chains of steps are also compiled to JavaScript (compile.ts) and run instead, handing
+// back to this interpreter every step that is not plain (traps, faults, possibly undefined
+// values); traces and bus recording always use the interpreter.
+//
+// Deliberately not here: comparing with the reference (lockstep.ts), text reports (describe.ts),
+// VCD output (vcd.ts), loading programs (program.ts).
+import { DEFAULT_STACK_POINTER } from '../isa/elf';
+import { LinuxUserEnvironment, type MachineAccess } from '../isa/environment';
+import type { Memory, SparseMemory } from '../isa/memory';
+import {
+  D_ALU,
+  D_CONSTANT,
+  D_IMMEDIATE,
+  D_MEM_BUS,
+  D_MEM_PART,
+  D_PART,
+  D_REG_FIXED,
+  D_REG_RS1,
+  D_REG_RS2,
+  DRIVER_WORDS,
+  EDGE_WORDS,
+  E_COMPARE,
+  E_FAULT,
+  E_MEM_WRITE_BUS,
+  U_DRIVERS,
+  U_INDEX,
+  type MicroOpInfo,
+} from './microops';
+import { FAST_BUDGET, FAST_RETIRED, FAST_SLOW_STEP, FAST_WRAP, canCompile, compileStepper, type FastStepper } from './compile';
+import { aluCompute, compareHolds, conditionOfFunct3, immediateOf, sizeBytes } from './operations';
+import type { SimPlan } from './plan';
+
+/** Something the table makes the hardware do that cannot work, found while running. */
+export type MachineFault =
+  | { kind: 'contention'; buses: { bus: string; drivers: { strobe: string; value: number | undefined }[] }[] }
+  | { kind: 'combinational-loop'; message: string }
+  | { kind: 'undefined-value'; strobe: string; bus: string; why: string }
+  | { kind: 'control-code'; strobe: string; message: string };
+
+export type SimStop =
+  | { kind: 'exit'; exitCode: number; status: number }
+  | { kind: 'ebreak'; pc: number }
+  | { kind: 'illegal-instruction'; pc: number; word: number; why: 'no-class' | 'no-end' | 'monitor' | 'no-fetch'; message: string }
+  | { kind: 'unsupported-syscall'; pc: number; syscallNumber: number }
+  | { kind: 'output-limit'; pc: number; outputLimitBytes: number }
+  | { kind: 'fault'; pc: number; word: number; step: number; fault: MachineFault };
+
+export type RunOutcome =
+  /** An instruction retired (only when asked to stop at retirements). */
+  | { kind: 'retired' }
+  /** The machine stopped; `retired` says whether the last instruction retired first (exit does). */
+  | { kind: 'stopped'; stop: SimStop; retired: boolean }
+  /** The step budget ran out; the machine can continue. */
+  | { kind: 'budget' };
+
+export interface SimulatorOptions {
+  /** Initial sp (default DEFAULT_STACK_POINTER). */
+  stackPointer?: number;
+  environment?: LinuxUserEnvironment;
+  /** Record the bus values of every step of the current instruction (for divergence reports). */
+  recordBuses?: boolean;
+  /** Use the compiled stepping function where it applies (default true); false runs the interpreter only. */
+  compiled?: boolean;
+}
+
+/** Most memory writes one instruction's record keeps (RV32I makes at most one). */
+const MAX_RECORDED_WRITES = 16;
+/** Steps per call of the stepping loops (see run()). */
+const CHUNK_STEPS = 1 << 16;
+
+export class BusSimulator implements MachineAccess {
+  readonly busValue: Int32Array;
+  /** Bit b set when bus b holds a defined value. */
+  definedMask = 0;
+  readonly partValue: Int32Array;
+  /** Register files, 32 entries each: register r of file f at f * 32 + r (and one spare entry at the end). */
+  readonly regs: Int32Array;
+  readonly flags: Uint8Array;
+  step = 0;
+  /** Total steps run, and instructions retired. */
+  steps = 0;
+  instructionsRetired = 0;
+  /** The program counter's value when the current instruction's step 0 began. */
+  instructionPc = 0;
+  /** The step counter's value in the `end` step of the instruction that retired last, and its word. */
+  lastRetireStep = 0;
+  lastRetiredWord = 0;
+  stopReason: SimStop | null = null;
+  /** Called after the buses settle in every step, before the closing edge (traces use it); gets the micro-op's number. */
+  observer: ((sim: BusSimulator, uop: number) => void) | null = null;
+  /** The environment that serves system calls (a scratch one while an instruction is replayed). */
+  private env: LinuxUserEnvironment;
+  /** Retired instructions and their steps per class (index in machine.classes; the last slot: no class). */
+  readonly classInstructions: Float64Array;
+  readonly classSteps: Float64Array;
+  /** Retirements by (opcode, funct3, funct7, bit 20); see mnemonicKey(). */
+  readonly retiredByKey = new Uint32Array(1 << 18);
+  /** EBREAKs handed to the environment (they stop the machine and never retire). */
+  ebreaks = 0;
+  /** Steps run by the compiled code (the rest ran on the interpreter). */
+  compiledSteps = 0;
+  /** The step log of the current instruction, indexed by step: micro-op number, store addresses. */
+  readonly logUop: Int32Array;
+  readonly logAddress: Int32Array;
+  /** With recordBuses: every bus value and the definedness mask of each step of the current instruction. */
+  readonly logBusValue: Int32Array;
+  readonly logDefined: Int32Array;
+  recordBuses: boolean;
+  /** Memory writes of the instruction that retired last (valid right after a retirement). */
+  readonly writeAddress = new Int32Array(MAX_RECORDED_WRITES);
+  readonly writeSize = new Int32Array(MAX_RECORDED_WRITES);
+  readonly writeValue = new Int32Array(MAX_RECORDED_WRITES);
+  lastWriteCount = 0;
+  /** Writes of the unfinished instruction so far (internal; the compiled stepper updates it). */
+  writeCount = 0;
+  /** Whether the instruction register has ever loaded (internal; for the wrap message). */
+  instructionLoaded = false;
+  /** Lock-step support: keep the state at each instruction's start so the instruction can be replayed with its bus values recorded. */
+  checkpointing = false;
+  private checkpointValid = false;
+  private readonly saved: { regs: Int32Array; partValue: Int32Array; flags: Uint8Array; busValue: Int32Array; definedMask: number; instructionPc: number; instructionLoaded: boolean };
+  private readonly undoAddress = new Int32Array(MAX_RECORDED_WRITES);
+  private readonly undoSize = new Int32Array(MAX_RECORDED_WRITES);
+  private readonly undoOld = new Int32Array(MAX_RECORDED_WRITES);
+  private undoCount = 0;
+  private readonly staticParts: Int32Array;
+  private pendingExit: { exitCode: number; status: number } | null = null;
+  private readonly nStores: number;
+  private useCompiled: boolean;
+  private compiled: FastStepper | null = null;
+  constructor(
+    readonly plan: SimPlan,
+    readonly memory: SparseMemory,
+    entry: number,
+    options: SimulatorOptions = {},
+  ) {
+    const nBuses = plan.busNames.length;
+    this.busValue = new Int32Array(nBuses);
+    this.partValue = new Int32Array(plan.parts.length);
+    // One spare entry after the register files takes the writes to x0 they ignore (compiled code).
+    this.regs = new Int32Array(32 * Math.max(1, plan.regfiles.length) + 1);
+    this.flags = new Uint8Array(plan.flagNames.length);
+    this.env = options.environment ?? new LinuxUserEnvironment();
+    this.recordBuses = options.recordBuses ?? false;
+    this.useCompiled = (options.compiled ?? true) && canCompile(plan);
+    this.nStores = plan.stores.length;
+    this.staticParts = new Int32Array(this.nStores);
+    const nClasses = plan.machine.classes.length;
+    this.classInstructions = new Float64Array(nClasses + 1);
+    this.classSteps = new Float64Array(nClasses + 1);
+    this.logUop = new Int32Array(plan.nSteps);
+    this.logAddress = new Int32Array(plan.nSteps * this.nStores);
+    this.logBusValue = new Int32Array(plan.nSteps * nBuses);
+    this.logDefined = new Int32Array(plan.nSteps);
+    plan.parts.forEach((part, i) => {
+      if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') this.partValue[i] = part.reset & plan.partMask[i];
+    });
+    this.partValue[plan.pcPart] = entry & plan.partMask[plan.pcPart];
+    this.instructionPc = this.partValue[plan.pcPart] >>> 0;
+    for (let f = 0; f < plan.regfiles.length; f++) this.regs[f * 32 + 2] = options.stackPointer ?? DEFAULT_STACK_POINTER;
+    this.refreshStaticParts();
+    this.saved = { regs: this.regs.slice(), partValue: this.partValue.slice(), flags: this.flags.slice(), busValue: this.busValue.slice(), definedMask: 0, instructionPc: 0, instructionLoaded: false };
+  }
+
+  /** The environment serving this machine's system calls (its captured stdout and stderr). */
+  get environment(): LinuxUserEnvironment {
+    return this.env;
+  }
+
+  // ---- MachineAccess, for the environment's system calls (the first register file).
+  readRegister(index: number): number {
+    return this.regs[index & 31];
+  }
+  writeRegister(index: number, value: number): void {
+    if (index !== 0 || this.plan.regfiles[0]?.x0 === 'stored') this.regs[index & 31] = value;
+  }
+
+  get pc(): number {
+    return this.partValue[this.plan.pcPart] >>> 0;
+  }
+  get ir(): number {
+    return this.partValue[this.plan.irPart] >>> 0;
+  }
+  isBusDefined(bus: number): boolean {
+    return ((this.definedMask >>> bus) & 1) === 1;
+  }
+  /**
+   * The micro-op that ran in `step` of the current instruction. With one store it follows from
+   * the logged address (the compiled code logs only that); with several the log holds it.
+   */
+  uopAtStep(step: number): number {
+    const plan = this.plan;
+    return plan.stores.length === 1 ? plan.stores[0].wordOfAddress[this.logAddress[step]] : this.logUop[step];
+  }
+
+  /** The information of a micro-op by its number. */
+  microOp(uop: number): MicroOpInfo {
+    return this.plan.microOps.info[uop];
+  }
+  /** Whether an exit system call waits for its instruction to retire (internal, for the compiled stepper). */
+  get pendingExitSet(): boolean {
+    return this.pendingExit !== null;
+  }
+
+  private refreshStaticParts(): void {
+    const ir = this.partValue[this.plan.irPart];
+    for (let s = 0; s < this.nStores; s++) this.staticParts[s] = this.plan.staticPart(s, ir, this.flags);
+  }
+
+  /** The micro-op (its base in the code) of the current step with several stores: combined, compiled on first use. */
+  private multiStoreUop(step: number): number {
+    const stores = this.plan.stores;
+    const microOps = this.plan.microOps;
+    const words: number[] = [];
+    let key = 0;
+    for (let s = 0; s < stores.length; s++) {
+      const sp = stores[s];
+      let address = this.staticParts[s] + sp.stepPart[step];
+      for (const f of sp.fieldSources) address += f.byWord[words[f.fromStore]];
+      this.logAddress[step * this.nStores + s] = address;
+      const w = sp.wordOfAddress[address];
+      words.push(w);
+      key += w * microOps.strides[s];
+    }
+    return microOps.lookup(key, words);
+  }
+
+  private stopWith(stop: SimStop, retired = false): RunOutcome {
+    this.stopReason = stop;
+    return { kind: 'stopped', stop, retired };
+  }
+
+  /**
+   * Runs up to `maxSteps` steps. With `stopAtRetire`, returns after each retired instruction
+   * (lock-step); otherwise runs until the machine stops or the budget is used up.
+   */
+  run(maxSteps: number, stopAtRetire = false): RunOutcome {
+    // The interpreter runs in short calls: V8 then optimizes it as an ordinary function and
+    // re-optimizes it after a rare path (a trap, a fault) deoptimizes it, which a single
+    // long-running loop (on-stack replacement) stops doing after a few such events.
+    let remaining = maxSteps;
+    for (;;) {
+      if (this.stopReason) return { kind: 'stopped', stop: this.stopReason, retired: false };
+      const before = this.steps;
+      const fast = this.fastStepper();
+      let outcome: RunOutcome = { kind: 'budget' };
+      if (fast) {
+        const status = fast.run(remaining, stopAtRetire);
+        this.compiledSteps += this.steps - before;
+        const left = remaining - (this.steps - before);
+        if (status === FAST_RETIRED) {
+          outcome = this.pendingExit ? this.takeExit() : RETIRED;
+        } else if (status === FAST_WRAP) {
+          outcome = this.stopWith(this.wrapStop());
+        } else if (status === FAST_SLOW_STEP && left > 0) {
+          // The interpreter runs the step the compiled code handed back.
+          outcome = this.runSteps(1, stopAtRetire);
+        } else if (status === FAST_BUDGET && left > 0) {
+          // Fewer steps are left than the next chain has: the interpreter runs them exactly.
+          outcome = this.runSteps(left, stopAtRetire);
+        }
+      } else {
+        outcome = this.runSteps(Math.min(remaining, CHUNK_STEPS), stopAtRetire);
+      }
+      remaining -= this.steps - before;
+      if (outcome.kind !== 'budget' || remaining <= 0) return outcome;
+    }
+  }
+
+  /** The compiled stepping loop, when it applies now (not while a trace observer or bus recording is on). */
+  private fastStepper(): FastStepper | null {
+    if (!this.useCompiled || this.observer !== null || this.recordBuses) return null;
+    if (!this.compiled) {
+      try {
+        this.compiled = compileStepper(this.plan, this);
+      } catch {
+        // A host that forbids generating code (a content security policy) runs the interpreter.
+        this.compiled = null;
+      }
+      if (!this.compiled) this.useCompiled = false;
+    }
+    return this.compiled;
+  }
+
+  /** Distinct chains of steps compiled so far (0 while everything ran on the interpreter). */
+  get compiledChains(): number {
+    return this.compiled?.chains() ?? 0;
+  }
+
+  private takeExit(): RunOutcome {
+    const exit = this.pendingExit!;
+    this.pendingExit = null;
+    return this.stopWith({ kind: 'exit', exitCode: exit.exitCode, status: exit.status }, true);
+  }
+
+  private runSteps(maxSteps: number, stopAtRetire: boolean): RunOutcome {
+    if (this.stopReason) return { kind: 'stopped', stop: this.stopReason, retired: false };
+    const plan = this.plan;
+    const mo = plan.microOps;
+    const memory: Memory = this.memory;
+    const busValue = this.busValue;
+    const busMask = plan.busMask;
+    const partValue = this.partValue;
+    const regs = this.regs;
+    const flags = this.flags;
+    const irPart = plan.irPart;
+    const pcPart = plan.pcPart;
+    const nSteps = plan.nSteps;
+    const nBuses = busValue.length;
+    const classOfOpcode = plan.classOfOpcode;
+    const noClass = plan.machine.classes.length;
+    const logUop = this.logUop;
+    const logAddress = this.logAddress;
+    const recordBuses = this.recordBuses;
+    const observer = this.observer;
+    const byKey = mo.byKey;
+    const single = this.nStores === 1 && byKey !== null;
+    const wordOf0 = plan.stores[0].wordOfAddress;
+    const stepPart0 = plan.stores[0].stepPart;
+    // The compiled stepper keeps its own copy of the address's static part: start from the state.
+    this.refreshStaticParts();
+    let code = mo.code.data;
+    let defined = this.definedMask;
+    let step = this.step;
+    let ir = partValue[irPart];
+    let static0 = this.staticParts[0];
+    let stepsRun = 0;
+    while (stepsRun < maxSteps) {
+      stepsRun++;
+      // 1. Address and control word.
+      let base: number;
+      if (single) {
+        const address = static0 + stepPart0[step];
+        logAddress[step] = address;
+        base = byKey[wordOf0[address]];
+      } else {
+        base = this.multiStoreUop(step);
+        code = mo.code.data; // compiling a new micro-op may have grown the code
+      }
+      const header = code[base];
+      const uop = code[base + 1];
+      logUop[step] = uop;
+      if ((header & 1) !== 0) {
+        this.step = step;
+        this.steps += stepsRun;
+        this.definedMask = defined;
+        return this.stopWith(this.staticFault(base));
+      }
+      // 2. Buses: floating ones lose their value, then the drivers in settle order.
+      defined &= ~code[base + 2];
+      let p = base + 5;
+      const driversEnd = p + code[base + 4] * 5;
+      for (; p < driversEnd; p += 5) {
+        const bus = code[p + 1];
+        let value = 0;
+        let ok = 1;
+        // Operation numbers as in microops.ts (D_*).
+        switch (code[p]) {
+          case 1: // D_REG_RS1
+            value = regs[(code[p + 2] << 5) | ((ir >>> 15) & 31)];
+            break;
+          case 2: // D_REG_RS2
+            value = regs[(code[p + 2] << 5) | ((ir >>> 20) & 31)];
+            break;
+          case 3: // D_REG_FIXED
+            value = regs[(code[p + 2] << 5) | code[p + 3]];
+            break;
+          case 4: // D_PART
+            value = partValue[code[p + 2]];
+            break;
+          case 5: // D_IMMEDIATE
+            value = immediateOf(code[p + 2], partValue[code[p + 3]]);
+            break;
+          case 6: {
+            // D_ALU: an operand the function ignores may be undefined.
+            const fn = code[p + 2];
+            const a = code[p + 3];
+            const b = code[p + 4];
+            value = aluCompute(fn, busValue[a], busValue[b]);
+            ok = (fn === 10 ? defined >>> a : fn === 11 ? defined >>> b : (defined >>> a) & (defined >>> b)) & 1;
+            break;
+          }
+          case 7: // D_MEM_PART
+            value = readMemory(memory, code[p + 2], partValue[code[p + 3]]);
+            break;
+          case 8: // D_MEM_BUS
+            value = readMemory(memory, code[p + 2], busValue[code[p + 3]]);
+            ok = (defined >>> code[p + 3]) & 1;
+            break;
+          case 9: // D_CONSTANT
+            value = code[p + 2];
+            break;
+          default: // D_UNDEFINED
+            ok = 0;
+        }
+        busValue[bus] = value & busMask[bus];
+        defined = ok !== 0 ? defined | (1 << bus) : defined & ~(1 << bus);
+      }
+      if (recordBuses) {
+        const at = step * nBuses;
+        for (let b = 0; b < nBuses; b++) this.logBusValue[at + b] = busValue[b];
+        this.logDefined[step] = defined;
+      }
+      if (observer !== null) {
+        this.step = step;
+        this.definedMask = defined;
+        observer(this, uop);
+      }
+      // 3. Trap: the environment serves the instruction before the closing edge.
+      if ((header & 4) !== 0) {
+        this.step = step;
+        this.definedMask = defined;
+        const stop = this.serviceTrap();
+        if (stop !== null) {
+          this.steps += stepsRun;
+          return this.stopWith(stop);
+        }
+      }
+      // 4. Closing edge. Every value loaded must be defined, and a fault entry (sorted first)
+      // stops the step: both are checked before anything changes.
+      const nEdges = code[p++];
+      if ((code[base + 3] & ~defined) !== 0 || (nEdges !== 0 && code[p] === 0)) {
+        this.step = step;
+        this.steps += stepsRun;
+        this.definedMask = defined;
+        return this.stopWith(this.edgeFault(base));
+      }
+      const edgesEnd = p + nEdges * 5;
+      let inputsChanged = false;
+      for (; p < edgesEnd; p += 5) {
+        // Operation numbers as in microops.ts (E_*).
+        switch (code[p]) {
+          case 1: // E_MEM_WRITE_PART
+            this.storeMemory(code[p + 2], partValue[code[p + 3]], busValue[code[p + 1]]);
+            break;
+          case 2: // E_MEM_WRITE_BUS
+            this.storeMemory(code[p + 2], busValue[code[p + 3]], busValue[code[p + 1]]);
+            break;
+          case 3: {
+            // E_REG_RD: rd from the instruction register as it was before this edge.
+            const rd = (ir >>> 7) & 31;
+            if (rd !== 0 || code[p + 3] !== 0) regs[(code[p + 2] << 5) | rd] = busValue[code[p + 1]];
+            break;
+          }
+          case 4: // E_REG_FIXED
+            if (code[p + 4] !== 0) regs[(code[p + 2] << 5) | code[p + 3]] = busValue[code[p + 1]];
+            break;
+          case 5: {
+            // E_COMPARE: the condition from funct3 (6) or from the field.
+            const cond = code[p + 2] === 6 ? conditionOfFunct3(ir >>> 12) : code[p + 2];
+            flags[code[p + 1]] = compareHolds(cond, busValue[code[p + 3]], busValue[code[p + 4]]);
+            inputsChanged = true;
+            break;
+          }
+          case 6: {
+            // E_COUNT
+            const part = code[p + 2];
+            partValue[part] = (partValue[part] + code[p + 3]) & code[p + 4];
+            break;
+          }
+          case 7: // E_CLOCK
+            partValue[code[p + 2]] = busValue[code[p + 1]] & code[p + 3];
+            if (code[p + 4] !== 0) {
+              inputsChanged = true;
+              this.instructionLoaded = true;
+            }
+            break;
+        }
+      }
+      // The instruction that retires in this step is the one whose bits were in place during it.
+      const retiring = ir;
+      if (inputsChanged) {
+        ir = partValue[irPart];
+        this.refreshStaticParts();
+        static0 = this.staticParts[0];
+      }
+      // 5. Step counter.
+      if ((header & 2) !== 0) {
+        const cls = classOfOpcode[retiring & 0x7f];
+        const slot = cls < 0 ? noClass : cls;
+        this.classInstructions[slot]++;
+        this.classSteps[slot] += step + 1;
+        this.retiredByKey[mnemonicKey(retiring)]++;
+        this.lastRetiredWord = retiring >>> 0;
+        this.instructionsRetired++;
+        this.lastWriteCount = this.writeCount;
+        this.writeCount = 0;
+        this.lastRetireStep = step;
+        step = 0;
+        this.instructionPc = partValue[pcPart] >>> 0;
+        if (this.pendingExit !== null || stopAtRetire) {
+          this.step = step;
+          this.steps += stepsRun;
+          this.definedMask = defined;
+          return this.pendingExit === null ? RETIRED : this.takeExit();
+        }
+      } else if (++step === nSteps) {
+        this.step = 0;
+        this.steps += stepsRun;
+        this.definedMask = defined;
+        return this.stopWith(this.wrapStop());
+      }
+    }
+    this.step = step;
+    this.steps += stepsRun;
+    this.definedMask = defined;
+    return { kind: 'budget' };
+  }
+
+  /** A memory write at a closing edge, recorded for the lock-step comparison (internal). */
+  storeMemory(size: number, address: number, value: number): void {
+    const bytes = sizeBytes(size);
+    const at = address >>> 0;
+    if (this.checkpointing) {
+      if (this.undoCount >= MAX_RECORDED_WRITES) this.checkpointValid = false;
+      else {
+        this.undoAddress[this.undoCount] = at;
+        this.undoSize[this.undoCount] = bytes;
+        this.undoOld[this.undoCount++] = bytes === 1 ? this.memory.load8(at) : bytes === 2 ? this.memory.load16(at) : this.memory.load32(at);
+      }
+    }
+    if (bytes === 1) this.memory.store8(at, value);
+    else if (bytes === 2) this.memory.store16(at, value);
+    else this.memory.store32(at, value);
+    if (this.writeCount < MAX_RECORDED_WRITES) {
+      this.writeAddress[this.writeCount] = at;
+      this.writeSize[this.writeCount] = bytes;
+      this.writeValue[this.writeCount] = bytes === 4 ? value : value & (bytes === 1 ? 0xff : 0xffff);
+    }
+    this.writeCount++;
+  }
+
+  /** Memory writes of the last retired instruction (or, with `pending`, of the unfinished one), as the reference reports them. */
+  writes(pending = false): { address: number; size: 1 | 2 | 4; value: number }[] {
+    const out: { address: number; size: 1 | 2 | 4; value: number }[] = [];
+    const count = pending ? this.writeCount : this.lastWriteCount;
+    for (let i = 0; i < Math.min(count, MAX_RECORDED_WRITES); i++) {
+      out.push({ address: this.writeAddress[i] >>> 0, size: this.writeSize[i] as 1 | 2 | 4, value: this.writeValue[i] >>> 0 });
+    }
+    return out;
+  }
+
+  /** Remembers the state at the start of an instruction (call with the step counter at 0). */
+  checkpoint(): void {
+    // Plain loops: these arrays are short, and this runs once per instruction in lock-step.
+    const saved = this.saved;
+    copyInto(saved.regs, this.regs);
+    copyInto(saved.partValue, this.partValue);
+    copyInto(saved.flags, this.flags);
+    copyInto(saved.busValue, this.busValue);
+    saved.definedMask = this.definedMask;
+    saved.instructionPc = this.instructionPc;
+    saved.instructionLoaded = this.instructionLoaded;
+    this.undoCount = 0;
+    this.checkpointValid = this.step === 0;
+  }
+
+  /**
+   * Runs the instruction since the last checkpoint again, recording every step's bus values
+   * (for a report), and ends in the same state as before. System calls go to a scratch
+   * environment, so output is not written twice, and the run's figures are left as they were.
+   * Returns false when there is no usable checkpoint.
+   */
+  replayInstruction(): boolean {
+    if (!this.checkpointValid) return false;
+    const counters = { step: this.step, steps: this.steps, retired: this.instructionsRetired, ebreaks: this.ebreaks, lastRetireStep: this.lastRetireStep, lastWriteCount: this.lastWriteCount, writeCount: this.writeCount, stop: this.stopReason, pendingExit: this.pendingExit };
+    const classInstructions = this.classInstructions.slice();
+    const classSteps = this.classSteps.slice();
+    const writes = { address: this.writeAddress.slice(), size: this.writeSize.slice(), value: this.writeValue.slice() };
+    for (let i = this.undoCount - 1; i >= 0; i--) {
+      const at = this.undoAddress[i];
+      const old = this.undoOld[i];
+      if (this.undoSize[i] === 1) this.memory.store8(at, old);
+      else if (this.undoSize[i] === 2) this.memory.store16(at, old);
+      else this.memory.store32(at, old);
+    }
+    const saved = this.saved;
+    this.regs.set(saved.regs);
+    this.partValue.set(saved.partValue);
+    this.flags.set(saved.flags);
+    this.busValue.set(saved.busValue);
+    this.definedMask = saved.definedMask;
+    this.instructionPc = saved.instructionPc;
+    this.instructionLoaded = saved.instructionLoaded;
+    this.step = 0;
+    this.stopReason = null;
+    this.pendingExit = null;
+    this.writeCount = 0;
+    this.undoCount = 0;
+    const env = this.env;
+    const record = this.recordBuses;
+    const observer = this.observer;
+    this.env = new LinuxUserEnvironment({ outputLimitBytes: env.outputLimitBytes });
+    this.recordBuses = true;
+    this.observer = null;
+    const outcome = this.runSteps(this.plan.nSteps + 1, true);
+    if (outcome.kind === 'retired' || (outcome.kind === 'stopped' && outcome.retired)) this.retiredByKey[mnemonicKey(this.lastRetiredWord)]--;
+    this.env = env;
+    this.recordBuses = record;
+    this.observer = observer;
+    this.step = counters.step;
+    this.steps = counters.steps;
+    this.instructionsRetired = counters.retired;
+    this.ebreaks = counters.ebreaks;
+    this.lastRetireStep = counters.lastRetireStep;
+    this.lastWriteCount = counters.lastWriteCount;
+    this.writeCount = counters.writeCount;
+    this.stopReason = counters.stop;
+    this.pendingExit = counters.pendingExit;
+    this.classInstructions.set(classInstructions);
+    this.classSteps.set(classSteps);
+    this.writeAddress.set(writes.address);
+    this.writeSize.set(writes.size);
+    this.writeValue.set(writes.value);
+    return true;
+  }
+
+  private serviceTrap(): SimStop | null {
+    const word = this.ir;
+    const pc = this.instructionPc;
+    if (word === 0x00000073) {
+      const outcome = this.env.handleEcall(this);
+      switch (outcome.kind) {
+        case 'continue':
+          return null;
+        case 'exit':
+          this.pendingExit = { exitCode: outcome.exitCode, status: outcome.status };
+          return null;
+        case 'unsupported-syscall':
+          return { kind: 'unsupported-syscall', pc, syscallNumber: outcome.syscallNumber };
+        case 'output-limit':
+          return { kind: 'output-limit', pc, outputLimitBytes: outcome.outputLimitBytes };
+      }
+    }
+    if (word === 0x00100073) {
+      this.ebreaks++;
+      return { kind: 'ebreak', pc };
+    }
+    return { kind: 'illegal-instruction', pc, word, why: 'monitor', message: 'the table traps this word, but the monitor serves only ecall (0x00000073) and ebreak (0x00100073)' };
+  }
+
+  private wrapStop(): SimStop {
+    const word = this.ir;
+    const pc = this.instructionPc;
+    const steps = this.plan.nSteps;
+    if (!this.instructionLoaded) {
+      return { kind: 'illegal-instruction', pc, word, why: 'no-fetch', message: `the machine never fetched an instruction: from reset (instruction register ${hex(word)}) the table ran all ${steps} steps without \`end\`; the steps at reset must fetch` };
+    }
+    const cls = this.plan.classOfOpcode[word & 0x7f];
+    if (cls < 0) return { kind: 'illegal-instruction', pc, word, why: 'no-class', message: `illegal instruction (the table has no class for it): the fill word ran for all ${steps} steps of the step counter` };
+    return { kind: 'illegal-instruction', pc, word, why: 'no-end', message: `class ${this.plan.machine.classes[cls].name} ran all ${steps} steps of the step counter without \`end\` for this word` };
+  }
+
+  /** The value (and whether it is defined) the k-th driver of the micro-op at `base` puts on its bus, from the buses as they are now. */
+  driverValue(base: number, k: number): { value: number; defined: boolean } {
+    const code = this.plan.microOps.code.data;
+    const p = base + U_DRIVERS + 1 + k * DRIVER_WORDS;
+    const [op, bus, a, b, c] = [code[p], code[p + 1], code[p + 2], code[p + 3], code[p + 4]];
+    const ir = this.partValue[this.plan.irPart];
+    let value = 0;
+    let defined = true;
+    switch (op) {
+      case D_REG_RS1:
+        value = this.regs[(a << 5) | ((ir >>> 15) & 31)];
+        break;
+      case D_REG_RS2:
+        value = this.regs[(a << 5) | ((ir >>> 20) & 31)];
+        break;
+      case D_REG_FIXED:
+        value = this.regs[(a << 5) | b];
+        break;
+      case D_PART:
+        value = this.partValue[a];
+        break;
+      case D_IMMEDIATE:
+        value = immediateOf(a, this.partValue[b]);
+        break;
+      case D_ALU:
+        value = aluCompute(a, this.busValue[b], this.busValue[c]);
+        defined = a === 10 ? this.isBusDefined(b) : a === 11 ? this.isBusDefined(c) : this.isBusDefined(b) && this.isBusDefined(c);
+        break;
+      case D_MEM_PART:
+        value = readMemory(this.memory, a, this.partValue[b]);
+        break;
+      case D_MEM_BUS:
+        value = readMemory(this.memory, a, this.busValue[b]);
+        defined = this.isBusDefined(b);
+        break;
+      case D_CONSTANT:
+        value = a;
+        break;
+      default:
+        defined = false;
+    }
+    return { value: value & this.plan.busMask[bus], defined };
+  }
+
+  private infoAt(base: number): MicroOpInfo {
+    return this.plan.microOps.info[this.plan.microOps.code.data[base + U_INDEX]];
+  }
+
+  private staticFault(base: number): SimStop {
+    const plan = this.plan;
+    const info = this.infoAt(base);
+    const stopBase = { kind: 'fault' as const, pc: this.instructionPc, word: this.ir, step: this.step };
+    if (info.contention.length === 0) return { ...stopBase, fault: { kind: 'combinational-loop', message: info.loop } };
+    // Settle the buses as far as they settle, then ask each fighting driver what it drives.
+    for (let bus = 0; bus < plan.busNames.length; bus++) if (!info.driven[bus] && !plan.busKeeper[bus]) this.definedMask &= ~(1 << bus);
+    info.drivers.forEach((d, k) => {
+      const { value, defined } = this.driverValue(base, k);
+      this.busValue[d.bus] = value;
+      this.definedMask = defined ? this.definedMask | (1 << d.bus) : this.definedMask & ~(1 << d.bus);
+    });
+    const buses = info.contention.map(({ bus, strobes }) => ({
+      bus: plan.busNames[bus],
+      drivers: strobes.map((strobe) => {
+        const k = info.drivers.findIndex((d) => d.strobe === strobe);
+        const { value, defined } = this.driverValue(base, k);
+        return { strobe, value: defined ? value >>> 0 : undefined };
+      }),
+    }));
+    return { ...stopBase, fault: { kind: 'contention', buses } };
+  }
+
+  private edgeFault(base: number): SimStop {
+    const plan = this.plan;
+    const code = plan.microOps.code.data;
+    const info = this.infoAt(base);
+    const stopBase = { kind: 'fault' as const, pc: this.instructionPc, word: this.ir, step: this.step };
+    const first = base + U_DRIVERS + 1 + info.drivers.length * DRIVER_WORDS + 1;
+    for (let k = 0; k < info.edges.length; k++) {
+      const p = first + k * EDGE_WORDS;
+      const op = code[p];
+      const strobe = info.edges[k].strobe;
+      if (op === E_FAULT) return { ...stopBase, fault: { kind: 'control-code', strobe, message: info.edges[k].fault ?? 'the word asks for an operation the part cannot do' } };
+      const reads = op === E_COMPARE ? [code[p + 3], code[p + 4]] : op === E_MEM_WRITE_BUS ? [code[p + 1], code[p + 3]] : code[p + 1] >= 0 && op !== 6 ? [code[p + 1]] : [];
+      const bad = reads.find((bus) => !this.isBusDefined(bus));
+      if (bad !== undefined) return { ...stopBase, fault: { kind: 'undefined-value', strobe, bus: plan.busNames[bad], why: this.whyUndefined(base, bad) } };
+    }
+    return { ...stopBase, fault: { kind: 'control-code', strobe: '', message: 'the closing edge could not be applied' } };
+  }
+
+  /** Why bus `bus` holds no defined value in the micro-op at `base`, in words. */
+  whyUndefined(base: number, bus: number, depth = 0): string {
+    const plan = this.plan;
+    const code = plan.microOps.code.data;
+    const info = this.infoAt(base);
+    const name = plan.busNames[bus];
+    const k = info.drivers.findIndex((d) => d.bus === bus);
+    if (k < 0) {
+      if (!plan.busKeeper[bus]) return `nothing drives \`${name}\` in this step and it has no keepers, so its lines float`;
+      return `nothing drives \`${name}\` in this step, and its keepers hold no value: nothing has driven it since reset`;
+    }
+    const driver = info.drivers[k];
+    if (driver.note) return `\`${driver.strobe}\` drives \`${name}\`, but ${driver.note}`;
+    const p = base + U_DRIVERS + 1 + k * DRIVER_WORDS;
+    const op = code[p];
+    if (depth > 4) return `\`${driver.strobe}\` drives \`${name}\` from undefined inputs`;
+    if (op === D_ALU) {
+      const input = !this.isBusDefined(code[p + 3]) ? code[p + 3] : code[p + 4];
+      return `\`${driver.strobe}\` drives \`${name}\` from the ALU, whose input \`${plan.busNames[input]}\` is undefined: ${this.whyUndefined(base, input, depth + 1)}`;
+    }
+    if (op === D_MEM_BUS) {
+      const input = code[p + 3];
+      return `\`${driver.strobe}\` drives \`${name}\` from memory addressed by \`${plan.busNames[input]}\`, which is undefined: ${this.whyUndefined(base, input, depth + 1)}`;
+    }
+    return `\`${driver.strobe}\` drives \`${name}\` with an undefined value`;
+  }
+}
+
+function copyInto<T extends Int32Array | Uint8Array>(target: T, source: T): void {
+  for (let i = 0; i < source.length; i++) target[i] = source[i];
+}
+
+/** The outcome of a retirement: one shared object, since lock-step sees one per instruction. */
+const RETIRED: RunOutcome = Object.freeze({ kind: 'retired' });
+
+function readMemory(memory: Memory, size: number, address: number): number {
+  const at = address >>> 0;
+  switch (size) {
+    case 0:
+      return (memory.load8(at) << 24) >> 24;
+    case 1:
+      return (memory.load16(at) << 16) >> 16;
+    case 2:
+      return memory.load32(at);
+    case 3:
+      return memory.load8(at);
+    default:
+      return memory.load16(at);
+  }
+}
+
+/** The retirement-count key of a word: opcode, funct3, funct7 and bit 20 (which tells ebreak from ecall). */
+export function mnemonicKey(word: number): number {
+  return (word & 0x7f) | (((word >>> 12) & 7) << 7) | (((word >>> 25) & 0x7f) << 10) | (((word >>> 20) & 1) << 17);
+}
+
+/** A representative instruction word for a key (the other fields 0). */
+export function wordOfMnemonicKey(key: number): number {
+  return ((key & 0x7f) | (((key >>> 7) & 7) << 12) | (((key >>> 10) & 0x7f) << 25) | (((key >>> 17) & 1) << 20)) >>> 0;
+}
+
+function hex(value: number): string {
+  return `0x${(value >>> 0).toString(16).padStart(8, '0')}`;
+}
