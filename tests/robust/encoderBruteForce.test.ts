@@ -3,7 +3,7 @@
 // independent, deliberately simple evaluator computes every ROM word from the generated
 // description itself; the encoded store must match it at every address.
 import fc from 'fast-check';
-import { describe, expect, it } from 'vitest';
+import { describe, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { encodeMachine } from '../../server/src/core/encode/encoder';
 

@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { parse } from '../../server/src/core/syntax/parser';
 import { scan } from '../../server/src/core/syntax/scanner';
-import { T } from '../../server/src/core/syntax/tokens';
+import { T, tokenNames } from '../../server/src/core/syntax/tokens';
 import { analyse } from '../../server/src/core/analysis';
 import { dedent } from '../support/annotated';
 
@@ -28,8 +28,11 @@ describe('scanner', () => {
   });
 
   it('tells names, numbers, patterns, ranges and arrows apart', () => {
-    const kinds = scan('x.rs1.oe OP-IMM 0x1F 1-0 - 0..2 a->b 101').filter((t) => t.kind !== T.Whitespace).map((t) => `${T[t.kind]}:${t.text}`);
-    expect(kinds).toEqual(['Ident:x.rs1.oe', 'Ident:OP-IMM', 'Number:0x1F', 'Pattern:1-0', 'Pattern:-', 'Number:0', 'DotDot:..', 'Number:2', 'Ident:a', 'Arrow:->', 'Ident:b', 'Number:101', 'Eof:']);
+    const kinds = scan('x.rs1.oe OP-IMM 0x1F 1-0 - 0..2 a->b 101 1.8').filter((t) => t.kind !== T.Whitespace).map((t) => `${tokenNames[t.kind]}:${t.text}`);
+    expect(kinds).toEqual([
+      'name:x.rs1.oe', 'name:OP-IMM', 'number:0x1F', 'bit pattern:1-0', 'bit pattern:-', 'number:0', "'..':..", 'number:2',
+      'name:a', "'->':->", 'name:b', 'number:101', 'number:1.8', 'end of file:',
+    ]);
   });
 });
 
