@@ -153,10 +153,10 @@ function shapeFor(lines: number): Shape {
     registersPerBus,
     fields,
     mapsPerField: clamp(lines / 5000, 1, 8),
-    phases: clamp(lines / 120, 4, 600),
+    phases: clamp(lines / 80, 4, 800),
     phaseSteps: 6,
     classes: clamp(lines / 400, 11, 32),
-    stepBits: lines > 12000 ? 10 : lines > 3000 ? 8 : 6,
+    stepBits: lines > 1200 ? 10 : 6,
   };
 }
 
@@ -248,11 +248,22 @@ export function generateTable(options: GenerateOptions): string {
     return actions.join(', ');
   };
   const guards = ['if taken', 'if funct3=1--', 'if f7b5', 'if !taken'];
-  /** Lines of one step number: plain, or guarded with an else. */
+  /** Disjoint pairs of guards for three-way steps (the third line is the `else`). */
+  const pairs = [
+    ['if taken & f7b5', 'if taken & !f7b5'],
+    ['if funct3=00-', 'if funct3=01-'],
+    ['if !taken & funct3=1--', 'if taken & funct3=0--'],
+  ];
+  /** Lines of one step number: plain, guarded with an else, or two guards and an else. */
   const stepLines = (step: number, indent: string): string[] => {
-    if (rnd.next(5) < 3) {
+    const roll = rnd.next(10);
+    if (roll < 4) {
       const guard = guards[rnd.next(guards.length)];
       return [`${indent}${step} ${guard}: ${workActions()}`, `${indent}${step} else: ${workActions()}`];
+    }
+    if (roll < 7) {
+      const [a, b] = pairs[rnd.next(pairs.length)];
+      return [`${indent}${step} ${a}: ${workActions()}`, `${indent}${step} ${b}: ${workActions()}`, `${indent}${step} else: ${workActions()}`];
     }
     return [`${indent}${step}: ${workActions()}`];
   };

@@ -3,7 +3,7 @@
 // `{ "phasewright.severity": { ... } }`, so one file serves the editor and the CLI.
 import { readFileSync } from 'node:fs';
 import type { SeverityConfig } from '../core/analysis';
-import { codeInfo } from '../core/checks/catalogue';
+import { readSeverityTable } from '../core/checks/severitySettings';
 import { describeFsError } from './readSource';
 
 export type ConfigResult = { ok: true; severities: SeverityConfig | undefined } | { ok: false; reason: string };
@@ -28,14 +28,8 @@ export function parseSeverityConfig(data: unknown, source: string): ConfigResult
   const obj = (data ?? {}) as Record<string, unknown>;
   const table = (obj.severities ?? obj['phasewright.severity'] ?? undefined) as Record<string, unknown> | undefined;
   if (table === undefined) return { ok: false, reason: `${source} has no "severities" (or "phasewright.severity") object` };
-  if (typeof table !== 'object' || table === null || Array.isArray(table)) return { ok: false, reason: `${source}: "severities" must be an object of code: level` };
-  const severities: SeverityConfig = {};
-  for (const [code, level] of Object.entries(table)) {
-    if (!codeInfo(code)) return { ok: false, reason: `${source}: unknown diagnostic code '${code}' (run 'phasewright explain' for the list)` };
-    if (level !== 'error' && level !== 'warning' && level !== 'info' && level !== 'off') {
-      return { ok: false, reason: `${source}: '${code}' must be "error", "warning", "info" or "off", not ${JSON.stringify(level)}` };
-    }
-    severities[code] = level;
-  }
-  return { ok: true, severities };
+  // The language server reads the same table through the same function (core/checks/severitySettings).
+  const read = readSeverityTable(table);
+  if (read.problems.length) return { ok: false, reason: `${source}: ${read.problems[0]}` };
+  return { ok: true, severities: read.severities };
 }

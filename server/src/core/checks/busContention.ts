@@ -10,7 +10,9 @@ export const busContention: Check = {
   codes: ['bus-contention'],
   run(ctx) {
     for (const { alt, owner } of writtenAlternatives(ctx.machine)) {
+      if (alt.actions.length < 2) continue;
       for (const [bus, actions] of driversByBus(ctx.machine, alt)) {
+        if (actions.length < 2) continue;
         const distinct = [...new Map(actions.map((a) => [a.signal, a])).values()];
         if (distinct.length < 2) continue;
         const names = distinct.map((a) => `\`${a.signal}\``).join(' and ');

@@ -3,15 +3,18 @@
 // Otherwise the counter wraps and the processor never fetches the next instruction.
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 import type { Fix } from '../text/diagnostic';
-import { type Check, type CheckContext, strobeOf } from './context';
+import { type Check, type CheckContext } from './context';
 import { bitsOf, describeScenario, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from './inputSpace';
 
 export const classEnd: Check = {
   codes: ['class-no-end'],
   run(ctx) {
+    // The names of the end-of-instruction strobes (usually one): an action ends the
+    // instruction exactly when it asserts one of them.
+    const endStrobes = [...ctx.machine.signals.values()].filter((s) => s.type === 'strobe' && s.kind === 'end').map((s) => s.name);
     for (const cls of ctx.machine.classes) {
       if (cls.steps.size === 0) continue;
-      const ends = (alt: StepAlt) => alt.actions.some((a) => strobeOf(ctx.machine, a)?.kind === 'end');
+      const ends = (alt: StepAlt) => alt.actions.some((a) => endStrobes.includes(a.signal));
       const allAlts = [...cls.steps.values()].flat();
       if (!allAlts.some(ends)) {
         ctx.report(
@@ -40,7 +43,9 @@ export const classEnd: Check = {
 
 /** Describes the first instruction and input combination that runs past the last step. */
 function firstStuckPath(machine: Machine, cls: ClassDef, ends: (alt: StepAlt) => boolean): string | undefined {
-  const steps = [...cls.steps.keys()].sort((a, b) => a - b);
+  // A step none of whose alternatives ends the instruction lets every path continue, so only
+  // steps with an end strobe can stop a path; the others need no scenario at all.
+  const steps = [...cls.steps.keys()].sort((a, b) => a - b).filter((step) => cls.steps.get(step)!.some(ends));
   const { irMask, flags } = guardInputs([...cls.steps.values()].flat());
   const free = bitsOf(irMask);
   if (free.length + flags.length > 16) return undefined;
@@ -52,10 +57,11 @@ function firstStuckPath(machine: Machine, cls: ClassDef, ends: (alt: StepAlt) =>
     // a path survives a step if any flag value lets it continue.
     for (const irScenario of scenarios(cube, freeHere, [])) {
       let alive = true;
+      const flagScenarios = [...scenarios(irScenario.ir, [], flags)];
       for (const step of steps) {
         const alts = cls.steps.get(step)!;
         let continues = false;
-        for (const scenario of scenarios(irScenario.ir, [], flags)) {
+        for (const scenario of flagScenarios) {
           const matching = matchingAlternatives(alts, scenario);
           if (matching.length === 0 || !matching.every(ends)) continues = true;
         }

@@ -6,6 +6,7 @@ export const clockConflict: Check = {
   codes: ['clock-conflict'],
   run(ctx) {
     for (const { alt, owner } of writtenAlternatives(ctx.machine)) {
+      if (alt.actions.length < 2) continue;
       const loads = new Map<string, { signal: string; bus?: string; kind: string; span: typeof alt.span }[]>();
       for (const action of alt.actions) {
         const strobe = strobeOf(ctx.machine, action);

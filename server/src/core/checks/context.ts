@@ -33,17 +33,45 @@ export interface OwnedAlt {
   owner: string;
 }
 
-/** Every step alternative once, where it is written. */
-export function* writtenAlternatives(machine: Machine): Generator<OwnedAlt> {
-  for (const phase of machine.phases.values()) for (const alt of phase.steps) yield { alt, owner: `phase ${phase.name}` };
-  for (const cls of machine.classes) {
-    for (const alts of cls.steps.values()) for (const alt of alts) if (!alt.phase) yield { alt, owner: `class ${cls.name}` };
-  }
+/** Every step alternative once, where it is written. Built once per model and shared by the checks. */
+export function writtenAlternatives(machine: Machine): readonly OwnedAlt[] {
+  return walks(machine).written;
 }
 
 /** Every step alternative of every class, phases expanded. */
-export function* classAlternatives(machine: Machine): Generator<{ cls: ClassDef; alt: StepAlt }> {
-  for (const cls of machine.classes) for (const alts of cls.steps.values()) for (const alt of alts) yield { cls, alt };
+export function classAlternatives(machine: Machine): readonly { cls: ClassDef; alt: StepAlt }[] {
+  return walks(machine).byClass;
+}
+
+interface Walks {
+  written: OwnedAlt[];
+  byClass: { cls: ClassDef; alt: StepAlt }[];
+  drivers: WeakMap<StepAlt, Map<string, Action[]>>;
+}
+
+const walkCache = new WeakMap<Machine, Walks>();
+
+function walks(machine: Machine): Walks {
+  let cached = walkCache.get(machine);
+  if (cached) return cached;
+  const written: OwnedAlt[] = [];
+  const byClass: { cls: ClassDef; alt: StepAlt }[] = [];
+  for (const phase of machine.phases.values()) {
+    const owner = `phase ${phase.name}`;
+    for (const alt of phase.steps) written.push({ alt, owner });
+  }
+  for (const cls of machine.classes) {
+    const owner = `class ${cls.name}`;
+    for (const alts of cls.steps.values()) {
+      for (const alt of alts) {
+        if (!alt.phase) written.push({ alt, owner });
+        byClass.push({ cls, alt });
+      }
+    }
+  }
+  cached = { written, byClass, drivers: new WeakMap() };
+  walkCache.set(machine, cached);
+  return cached;
 }
 
 export function strobeOf(machine: Machine, action: Action): Strobe | undefined {
@@ -51,9 +79,13 @@ export function strobeOf(machine: Machine, action: Action): Strobe | undefined {
   return signal?.type === 'strobe' ? signal : undefined;
 }
 
-/** The actions of an alternative that put a value on each bus (enables and memory reads). */
+/** The actions of an alternative that put a value on each bus (enables and memory reads). Do not modify the result: it is shared. */
 export function driversByBus(machine: Machine, alt: StepAlt): Map<string, Action[]> {
+  const cache = walks(machine).drivers;
+  const cached = cache.get(alt);
+  if (cached) return cached;
   const result = new Map<string, Action[]>();
+  cache.set(alt, result);
   for (const action of alt.actions) {
     const strobe = strobeOf(machine, action);
     if (!strobe || !strobe.bus || (strobe.kind !== 'enable' && strobe.kind !== 'read')) continue;

@@ -7,6 +7,10 @@ export const fieldConflict: Check = {
   codes: ['field-conflict'],
   run(ctx) {
     for (const { alt, owner } of writtenAlternatives(ctx.machine)) {
+      // Two values need at least two actions with `=`.
+      let valued = 0;
+      for (const action of alt.actions) if (action.value) valued++;
+      if (valued < 2) continue;
       const seen = new Map<string, (typeof alt.actions)[number]>();
       for (const action of alt.actions) {
         if (!action.value) continue;

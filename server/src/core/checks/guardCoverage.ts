@@ -5,7 +5,7 @@
 // encodings reach are allowed: they fall to the fill word by design.
 import type { StepAlt } from '../model/types';
 import { type Check, type CheckContext } from './context';
-import { bitsOf, describeScenario, guardInputs, instructionCube, instructionsOfClass, intersects, literalHolds, scenarios } from './inputSpace';
+import { bitsOf, compiledGuards, compiledHolds, describeScenario, forEachScenario, guardInputs, instructionCube, instructionsOfClass, intersects } from './inputSpace';
 
 export const guardCoverage: Check = {
   codes: ['guard-gap', 'guard-overlap'],
@@ -24,19 +24,30 @@ export const guardCoverage: Check = {
         let gapExample: string | undefined;
         let gapCount = 0;
         const affected = new Set<string>();
-        for (const scenario of scenarios({ mask: 0, value: 0 }, free, flags)) {
-          const matching = nonElse.filter((a) => (a.guard ?? []).every((lit) => literalHolds(lit, scenario) === true));
-          if (matching.length > 1) {
-            overlap(ctx, reportedOverlaps, matching[0], matching[1], `step ${step} of class ${cls.name}: both lines apply when ${describeScenario(scenario, irMask, flags) || 'always'}`);
+        const guards = compiledGuards(nonElse);
+        forEachScenario({ mask: 0, value: 0 }, free, flags, (scenario) => {
+          // The first two lines that apply, and how many do.
+          let matching = 0;
+          let first: StepAlt | undefined;
+          let second: StepAlt | undefined;
+          for (let i = 0; i < nonElse.length; i++) {
+            if (!compiledHolds(guards[i], scenario)) continue;
+            const alt = nonElse[i];
+            matching++;
+            if (!first) first = alt;
+            else second ??= alt;
           }
-          if (matching.length === 0 && elses.length === 0) {
+          if (matching > 1) {
+            overlap(ctx, reportedOverlaps, first!, second!, `step ${step} of class ${cls.name}: both lines apply when ${describeScenario(scenario, irMask, flags) || 'always'}`);
+          }
+          if (matching === 0 && elses.length === 0) {
             const reached = legal.filter((spec) => intersects(instructionCube(spec), scenario.ir));
-            if (reached.length === 0) continue;
+            if (reached.length === 0) return;
             gapCount++;
             gapExample ??= describeScenario(scenario, irMask, flags);
             for (const spec of reached) affected.add(spec.mnemonic);
           }
-        }
+        });
         if (gapCount > 0) {
           const last = alts[alts.length - 1];
           ctx.report(

@@ -38,7 +38,17 @@ export function intersect(a: Cube, b: Cube): Cube | undefined {
  * ch. 24 listing): opcode, funct3 and funct7 where fixed; ECALL and EBREAK fix all of bits
  * 31..7 (imm, rs1 = 0, funct3 = 0, rd = 0).
  */
+const instructionCubes = new WeakMap<InstructionSpec, Cube>();
+
 export function instructionCube(spec: InstructionSpec): Cube {
+  const cached = instructionCubes.get(spec);
+  if (cached) return cached;
+  const cube = computeInstructionCube(spec);
+  instructionCubes.set(spec, cube);
+  return cube;
+}
+
+function computeInstructionCube(spec: InstructionSpec): Cube {
   let cube: Cube = { mask: 0x7f, value: spec.opcode };
   if (spec.funct3 !== null) cube = intersect(cube, cubeOfBits(14, 12, spec.funct3.toString(2).padStart(3, '0')))!;
   if (spec.funct7 !== null) cube = intersect(cube, cubeOfBits(31, 25, spec.funct7.toString(2).padStart(7, '0')))!;
@@ -73,9 +83,62 @@ export function literalHolds(lit: GuardLiteral, scenario: Scenario): boolean | u
   return ((scenario.ir.value & cube.mask) >>> 0) === cube.value;
 }
 
+/**
+ * A guard prepared for repeated tests: its instruction-bit literals merged into one cube and
+ * its flag literals listed. `never` when no scenario can satisfy it (contradictory literals,
+ * or a literal on an input a scenario never fixes).
+ */
+export interface CompiledGuard {
+  never: boolean;
+  ir: Cube;
+  flags: { name: string; bits: string }[];
+}
+
+const compiledGuardCache = new WeakMap<StepAlt, CompiledGuard>();
+
+function compiledGuard(alt: StepAlt): CompiledGuard {
+  let compiled = compiledGuardCache.get(alt);
+  if (compiled) return compiled;
+  compiled = { never: false, ir: { mask: 0, value: 0 }, flags: [] };
+  for (const lit of alt.guard ?? []) {
+    if (lit.input.kind === 'flag') compiled.flags.push({ name: lit.input.name, bits: lit.bits });
+    else if (lit.input.kind === 'ir') {
+      const merged = intersect(compiled.ir, cubeOfBits(lit.input.hi, lit.input.lo, lit.bits));
+      if (merged) compiled.ir = merged;
+      else compiled.never = true;
+    } else compiled.never = true;
+  }
+  compiledGuardCache.set(alt, compiled);
+  return compiled;
+}
+
+/**
+ * Whether every literal of an alternative's guard holds in a scenario: the same as
+ * `(alt.guard ?? []).every((lit) => literalHolds(lit, scenario) === true)`, prepared once.
+ */
+export function guardHolds(alt: StepAlt, scenario: Scenario): boolean {
+  return compiledHolds(compiledGuard(alt), scenario);
+}
+
+/** For loops that test the same alternatives many times: their guards, prepared once. */
+export function compiledGuards(alts: readonly StepAlt[]): CompiledGuard[] {
+  return alts.map(compiledGuard);
+}
+
+export function compiledHolds(guard: CompiledGuard, scenario: Scenario): boolean {
+  if (guard.never) return false;
+  const mask = guard.ir.mask;
+  if (((mask & scenario.ir.mask) >>> 0) !== mask || ((scenario.ir.value & mask) >>> 0) !== guard.ir.value) return false;
+  for (const flag of guard.flags) {
+    const value = scenario.flags.get(flag.name);
+    if (value === undefined || (flag.bits !== '-' && flag.bits !== String(value))) return false;
+  }
+  return true;
+}
+
 /** The alternatives of one step that apply in a scenario fixing every input their guards test. */
 export function matchingAlternatives(alts: StepAlt[], scenario: Scenario): StepAlt[] {
-  const guarded = alts.filter((a) => !a.isElse && (a.guard === null || a.guard.every((lit) => literalHolds(lit, scenario) === true)));
+  const guarded = alts.filter((a) => !a.isElse && (a.guard === null || guardHolds(a, scenario)));
   if (guarded.length > 0) return guarded;
   return alts.filter((a) => a.isElse);
 }
@@ -87,10 +150,15 @@ export function guardInputs(alts: StepAlt[]): { irMask: number; flags: string[] 
   for (const alt of alts) {
     for (const lit of alt.guard ?? []) {
       if (lit.input.kind === 'flag') flags.add(lit.input.name);
-      else if (lit.input.kind === 'ir') irMask |= cubeOfBits(lit.input.hi, lit.input.lo, '0'.repeat(lit.input.hi - lit.input.lo + 1)).mask;
+      else if (lit.input.kind === 'ir') irMask |= bitRangeMask(lit.input.hi, lit.input.lo);
     }
   }
   return { irMask: irMask >>> 0, flags: [...flags].sort() };
+}
+
+/** The mask of instruction bits hi..lo (the same as cubeOfBits(hi, lo, '00..0').mask). */
+function bitRangeMask(hi: number, lo: number): number {
+  return (2 ** (hi + 1) - 2 ** lo) >>> 0;
 }
 
 /** Bit positions set in a mask, low first. */
@@ -99,6 +167,8 @@ export function bitsOf(mask: number): number[] {
   for (let i = 0; i < 32; i++) if ((mask >>> i) & 1) bits.push(i);
   return bits;
 }
+
+const noFlags: Map<string, number> = new Map();
 
 /**
  * Every scenario over the given free instruction bits and flags, refining `base`. Capped: more
@@ -114,9 +184,33 @@ export function* scenarios(base: Cube, freeBits: number[], flags: string[]): Gen
       mask |= 1 << bit;
       if ((combo >> i) & 1) value |= 1 << bit;
     });
-    const flagValues = new Map<string, number>();
+    // Scenarios without flags share one empty map (nobody writes to it).
+    const flagValues = flags.length ? new Map<string, number>() : noFlags;
     flags.forEach((flag, i) => flagValues.set(flag, (combo >> (freeBits.length + i)) & 1));
     yield { ir: { mask: mask >>> 0, value: value >>> 0 }, flags: flagValues };
+  }
+}
+
+/**
+ * The same scenarios as `scenarios`, in the same order, handed to `visit` one after another in
+ * a single reused object: for hot loops that look at each scenario and let it go (a visitor
+ * must copy what it wants to keep).
+ */
+export function forEachScenario(base: Cube, freeBits: number[], flags: string[], visit: (scenario: Scenario) => void): void {
+  const n = freeBits.length + flags.length;
+  if (n > 16) return;
+  const scenario: Scenario = { ir: { mask: 0, value: 0 }, flags: flags.length ? new Map<string, number>() : noFlags };
+  for (let combo = 0; combo < 1 << n; combo++) {
+    let mask = base.mask;
+    let value = base.value;
+    for (let i = 0; i < freeBits.length; i++) {
+      mask |= 1 << freeBits[i];
+      if ((combo >> i) & 1) value |= 1 << freeBits[i];
+    }
+    scenario.ir.mask = mask >>> 0;
+    scenario.ir.value = value >>> 0;
+    for (let i = 0; i < flags.length; i++) scenario.flags.set(flags[i], (combo >> (freeBits.length + i)) & 1);
+    visit(scenario);
   }
 }
 

@@ -25,33 +25,44 @@ export const instructionCoverage: Check = {
       );
     }
     const reported = new Set<string>();
+    // Many steps use the same map under the same guard: decide each combination once.
+    const uncovered = new Map<string, string | undefined>();
+    const firstUncoveredOnce = (map: DecodeMap, cube: Cube) => {
+      const key = `${map.name}:${cube.mask}:${cube.value}`;
+      if (!uncovered.has(key)) uncovered.set(key, firstUncovered(map, cube));
+      return uncovered.get(key);
+    };
     for (const cls of machine.classes) {
+      // Only alternatives that use a decode map can leave an instruction undecoded.
+      const withMaps = [...cls.steps.values()].flat().filter((alt) => alt.actions.some((a) => a.value?.kind === 'map'));
+      if (withMaps.length === 0) continue;
+      // The instruction bits each alternative's guard fixes (flag terms do not narrow them);
+      // undefined when its terms contradict each other.
+      const altCubes = withMaps.map((alt) =>
+        (alt.guard ?? []).reduce<Cube | undefined>((acc, lit) => (acc && lit.input.kind === 'ir' ? intersect(acc, cubeOfBits(lit.input.hi, lit.input.lo, lit.bits)) : acc), { mask: 0, value: 0 }),
+      );
       for (const spec of RV32I_INSTRUCTIONS) {
         if (spec.opcode !== cls.opcode) continue;
         const cube = instructionCube(spec);
-        for (const alts of cls.steps.values()) {
-          for (const alt of alts) {
-            const guardCube = (alt.guard ?? []).reduce<Cube | undefined>(
-              (acc, lit) => (acc && lit.input.kind === 'ir' ? intersect(acc, cubeOfBits(lit.input.hi, lit.input.lo, lit.bits)) : acc),
-              cube,
+        for (const [index, alt] of withMaps.entries()) {
+          const altCube = altCubes[index];
+          const guardCube = altCube && intersect(cube, altCube);
+          if (!guardCube) continue;
+          for (const action of alt.actions) {
+            if (action.value?.kind !== 'map') continue;
+            const map = machine.maps.get(action.value.map);
+            if (!map) continue;
+            const missing = firstUncoveredOnce(map, guardCube);
+            if (!missing) continue;
+            const key = `${action.span.start}:${spec.mnemonic}`;
+            if (reported.has(key)) continue;
+            reported.add(key);
+            ctx.report(
+              'instruction-uncovered',
+              action.span,
+              `decode map \`${map.name}\` has no row for ${spec.mnemonic} (${missing}), used in step ${alt.step} of class ${cls.name}: its addresses would hold the fill word; add a row for it`,
+              [{ span: map.symbol.span, message: `map \`${map.name}\`` }],
             );
-            if (!guardCube) continue;
-            for (const action of alt.actions) {
-              if (action.value?.kind !== 'map') continue;
-              const map = machine.maps.get(action.value.map);
-              if (!map) continue;
-              const missing = firstUncovered(map, guardCube);
-              if (!missing) continue;
-              const key = `${action.span.start}:${spec.mnemonic}`;
-              if (reported.has(key)) continue;
-              reported.add(key);
-              ctx.report(
-                'instruction-uncovered',
-                action.span,
-                `decode map \`${map.name}\` has no row for ${spec.mnemonic} (${missing}), used in step ${alt.step} of class ${cls.name}: its addresses would hold the fill word; add a row for it`,
-                [{ span: map.symbol.span, message: `map \`${map.name}\`` }],
-              );
-            }
           }
         }
       }

@@ -7,6 +7,7 @@ export const repeatedStrobe: Check = {
   codes: ['repeated-strobe'],
   run(ctx) {
     for (const { alt, owner } of writtenAlternatives(ctx.machine)) {
+      if (alt.actions.length < 2) continue;
       const seen = new Map<string, (typeof alt.actions)[number]>();
       for (const action of alt.actions) {
         const key = action.signal + '=' + (action.value ? (action.value.kind === 'code' ? action.value.name : action.value.map) : '');

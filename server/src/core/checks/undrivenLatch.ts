@@ -10,28 +10,30 @@ export const undrivenLatch: Check = {
   run(ctx) {
     for (const { alt, owner } of writtenAlternatives(ctx.machine)) {
       const drivers = driversByBus(ctx.machine, alt);
-      const reported = new Set<string>();
-      const need = (bus: string, action: Action, what: string) => {
+      let reported: Set<string> | undefined;
+      // `what` is a function so the message is only written when there is a problem.
+      const need = (bus: string, action: Action, what: () => string) => {
         const problem = undrivenReason(ctx.machine, alt, drivers, bus);
         if (!problem) return;
         const key = `${action.signal}:${problem.bus}`;
+        reported ??= new Set();
         if (reported.has(key)) return;
         reported.add(key);
-        report(ctx, alt, owner, action, what, problem);
+        report(ctx, alt, owner, action, what(), problem);
       };
       for (const action of alt.actions) {
         const strobe = strobeOf(ctx.machine, action);
         if (!strobe) continue;
         const part = strobe.part ? ctx.machine.parts.get(strobe.part) : undefined;
         if ((strobe.kind === 'clock' || strobe.kind === 'write') && strobe.bus) {
-          need(strobe.bus, action, strobe.kind === 'write' ? `\`${action.signal}\` writes bus \`${strobe.bus}\` to memory` : `\`${action.signal}\` loads \`${strobe.part}\` from bus \`${strobe.bus}\``);
+          need(strobe.bus, action, () => (strobe.kind === 'write' ? `\`${action.signal}\` writes bus \`${strobe.bus}\` to memory` : `\`${action.signal}\` loads \`${strobe.part}\` from bus \`${strobe.bus}\``));
         }
         if (strobe.kind === 'clock' && part?.kind === 'compare') {
-          need(part.a, action, `\`${action.signal}\` latches the comparison of \`${part.a}\` and \`${part.b}\``);
-          need(part.b, action, `\`${action.signal}\` latches the comparison of \`${part.a}\` and \`${part.b}\``);
+          need(part.a, action, () => `\`${action.signal}\` latches the comparison of \`${part.a}\` and \`${part.b}\``);
+          need(part.b, action, () => `\`${action.signal}\` latches the comparison of \`${part.a}\` and \`${part.b}\``);
         }
         if ((strobe.kind === 'read' || strobe.kind === 'write') && part?.kind === 'memory' && part.addressFrom === 'bus') {
-          need(part.address, action, `\`${action.signal}\` takes its memory address from bus \`${part.address}\``);
+          need(part.address, action, () => `\`${action.signal}\` takes its memory address from bus \`${part.address}\``);
         }
       }
     }

@@ -1,18 +1,21 @@
 // unused-name: declarations nothing uses: strobes and fields no step asserts, buses no strobe
 // or part touches, parts nothing is wired to, maps and phases never used, flags never tested.
 // Often a forgotten step or a misspelling. The fix removes an unused strobe with its placement.
-import { type Check } from './context';
+import type { SymbolInfo } from '../model/types';
+import { type Check, writtenAlternatives } from './context';
 import { removeLinesEdit } from './fixes';
 
 export const unusedName: Check = {
   codes: ['unused-name'],
   run(ctx) {
     const machine = ctx.machine;
-    const used = new Set<string>();
-    for (const ref of machine.references) used.add(ref.symbol.kind + ':' + ref.symbol.key);
+    // Symbols are shared objects: a reference holds the very SymbolInfo its declaration made.
+    const used = new Set<SymbolInfo>();
+    for (const ref of machine.references) used.add(ref.symbol);
     const usedSignals = new Set<string>();
-    for (const cls of machine.classes) for (const alts of cls.steps.values()) for (const alt of alts) for (const a of alt.actions) usedSignals.add(a.signal);
-    for (const phase of machine.phases.values()) for (const alt of phase.steps) for (const a of alt.actions) usedSignals.add(a.signal);
+    // Every step line as written (each phase once, used or not): the same signals as the
+    // classes with their phases expanded plus all phases, without walking the expanded copies.
+    for (const { alt } of writtenAlternatives(machine)) for (const a of alt.actions) usedSignals.add(a.signal);
     for (const map of machine.maps.values()) if (map.output && usedSignals.has(map.output)) usedSignals.add(map.output);
     const usedBuses = new Set<string>();
     const usedParts = new Set<string>();
@@ -46,9 +49,9 @@ export const unusedName: Check = {
     }
     for (const bus of machine.buses.values()) if (!usedBuses.has(bus.name)) warn(bus.name, bus.symbol.span, 'bus');
     for (const part of machine.parts.values()) if (!usedParts.has(part.name)) warn(part.name, part.symbol.span, 'part');
-    for (const map of machine.maps.values()) if (!used.has('map:' + map.name)) warn(map.name, map.symbol.span, 'map');
-    for (const phase of machine.phases.values()) if (!used.has('phase:' + phase.name)) warn(phase.name, phase.symbol.span, 'phase');
-    for (const flag of machine.flags.values()) if (!used.has('flag:' + flag.name)) warn(flag.name, flag.symbol.span, 'flag');
+    for (const map of machine.maps.values()) if (!used.has(map.symbol)) warn(map.name, map.symbol.span, 'map');
+    for (const phase of machine.phases.values()) if (!used.has(phase.symbol)) warn(phase.name, phase.symbol.span, 'phase');
+    for (const flag of machine.flags.values()) if (!used.has(flag.symbol)) warn(flag.name, flag.symbol.span, 'flag');
   },
 };
 

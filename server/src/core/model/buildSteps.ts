@@ -120,8 +120,9 @@ function buildClass(ctx: BuildContext, decl: A.ClassDecl): void {
       const at = item.at ? ctx.number(item.at, 'a step number', 0, 1023) : nextStep;
       if (at === undefined) continue;
       let last = at - 1;
+      const origin = { name: phase.name, useSpan: item.span };
       for (const step of phase.steps) {
-        add({ ...step, step: at + step.step, phase: { name: phase.name, useSpan: item.span } });
+        add({ ...step, step: at + step.step, phase: origin });
         last = Math.max(last, at + step.step);
       }
       nextStep = Math.max(nextStep, last + 1);

@@ -9,21 +9,23 @@ import { type Span, span as mkSpan } from '../text/span';
 import type * as A from './ast';
 import { declarationKeywords } from './ast';
 import { scan } from './scanner';
-import { T, type Token, tokenNames, isTrivia } from './tokens';
+import { T, type Token, tokenNames } from './tokens';
 
 export interface ParseResult {
   tree: A.FileNode;
   errors: Diagnostic[];
-  /** All tokens including trivia; their texts concatenated give back the input. */
-  tokens: Token[];
+  /**
+   * All tokens including trivia; their texts concatenated give back the input. Scanned on
+   * first use (the parser itself needs only the significant ones), then kept.
+   */
+  readonly tokens: Token[];
 }
 
 const keywordSet = new Set<string>(declarationKeywords);
 
 /** Parses a whole file. Never throws. */
 export function parse(text: string): ParseResult {
-  const tokens = scan(text);
-  const parser = new Parser(tokens.filter((t) => !isTrivia(t.kind)), text);
+  const parser = new Parser(scan(text, { trivia: false }), text);
   let tree: A.FileNode;
   try {
     tree = parser.parseFile();
@@ -38,7 +40,14 @@ export function parse(text: string): ParseResult {
       message: `internal parser error (please report it): ${(err as Error).message}`,
     });
   }
-  return { tree, errors: parser.errors, tokens };
+  let tokens: Token[] | undefined;
+  return {
+    tree,
+    errors: parser.errors,
+    get tokens() {
+      return (tokens ??= scan(text));
+    },
+  };
 }
 
 class Parser {

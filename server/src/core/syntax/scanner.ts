@@ -19,12 +19,18 @@ function isBitOrDash(ch: number): boolean {
   return ch === 48 || ch === 49 || ch === 45;
 }
 
-/** Scans the whole text. The last token is always Eof (empty, at text.length). */
-export function scan(text: string): Token[] {
+/**
+ * Scans the whole text. The last token is always Eof (empty, at text.length). With
+ * `trivia: false` spaces and comments are skipped rather than returned (the parser needs no
+ * more, and a large table has tens of thousands of them).
+ */
+export function scan(text: string, options: { trivia?: boolean } = {}): Token[] {
   const tokens: Token[] = [];
+  const keepTrivia = options.trivia ?? true;
   const n = text.length;
   let pos = 0;
   const push = (kind: T, start: number, end: number) => {
+    if (!keepTrivia && (kind === T.Whitespace || kind === T.Comment)) return;
     tokens.push({ kind, start, end, text: text.slice(start, end) });
   };
 

@@ -1,0 +1,397 @@
+// Hover text: a short Markdown explanation of what stands under the cursor, with the jargon
+// spelled out: strobes (kind, wiring, level, bit, chip and pin, use), fields and their values,
+// step lines (the words they put in the ROMs), classes (the RV32I instructions they run),
+// buses (who drives and loads them, step by step), parts, flags, maps, phases, stores, and the
+// notation's keywords. Pure: it reads an analysis and returns text with the span it explains.
+import type { Analysis } from '../analysis';
+import { RV32I_INSTRUCTIONS, majorOpcodeOf } from '../isa/rv32i';
+import { controlVocabulary } from '../model/vocabulary';
+import { T } from '../syntax/tokens';
+import type { Bus, ClassDef, DecodeMap, Field, FieldValue, Flag, Machine, Part, Phase, Store, Strobe, SymbolInfo, WordLayout } from '../model/types';
+import type { Span } from '../text/span';
+import {
+  activeLevelText,
+  addressInputTexts,
+  binaryDigits,
+  chipPinsText,
+  keywordTexts,
+  partKindText,
+  partPorts,
+  partSettings,
+  strobeKindText,
+  valueMeaning,
+} from './describe';
+import { occurrenceAt, tokenAt } from './lookup';
+import { type WrittenAlt, countUses, describeWritten, guardText, usageOf } from './usage';
+import { stepWords } from './words';
+import { partKinds, strobeKinds } from '../model/vocabulary';
+
+export interface HoverResult {
+  markdown: string;
+  span: Span;
+}
+
+/** Longest list of names a hover spells out before saying "and N more". */
+const maxListed = 12;
+/** Longest step-by-step list in a bus hover. */
+const maxBusSteps = 24;
+
+export function hover(analysis: Analysis, offset: number): HoverResult | undefined {
+  const machine = analysis.machine;
+  const occurrence = occurrenceAt(analysis, offset);
+  if (occurrence) {
+    const markdown = hoverSymbol(machine, occurrence.symbol);
+    if (markdown) return { markdown, span: occurrence.span };
+  }
+  const step = writtenStepAt(machine, offset);
+  if (step) return { markdown: stepHover(machine, step), span: step.alt.numberSpan };
+  const token = tokenAt(analysis, offset);
+  if (token && token.kind === T.Ident) {
+    const markdown = wordHover(analysis, token.text, token.start);
+    if (markdown) return { markdown, span: { start: token.start, end: token.end } };
+  }
+  return undefined;
+}
+
+function hoverSymbol(machine: Machine, symbol: SymbolInfo): string | undefined {
+  switch (symbol.kind) {
+    case 'strobe': {
+      const signal = machine.signals.get(symbol.name);
+      return signal?.type === 'strobe' ? strobeHover(machine, signal) : undefined;
+    }
+    case 'field': {
+      const signal = machine.signals.get(symbol.name);
+      return signal?.type === 'field' ? fieldHover(machine, signal) : undefined;
+    }
+    case 'value': {
+      const [fieldName] = symbol.key.split('/');
+      const field = machine.signals.get(fieldName);
+      const value = field?.type === 'field' ? field.values.get(symbol.name) : undefined;
+      return field?.type === 'field' && value ? valueHover(machine, field, value) : undefined;
+    }
+    case 'bus': {
+      const bus = machine.buses.get(symbol.name);
+      return bus ? busHover(machine, bus) : undefined;
+    }
+    case 'part': {
+      const part = machine.parts.get(symbol.name);
+      return part ? partHover(machine, part) : undefined;
+    }
+    case 'flag': {
+      const flag = machine.flags.get(symbol.name);
+      return flag ? flagHover(machine, flag) : undefined;
+    }
+    case 'map': {
+      const map = machine.maps.get(symbol.name);
+      return map ? mapHover(machine, map) : undefined;
+    }
+    case 'phase': {
+      const phase = machine.phases.get(symbol.name);
+      return phase ? phaseHover(machine, phase) : undefined;
+    }
+    case 'class': {
+      const cls = machine.classes.find((c) => c.symbol === symbol);
+      return cls ? classHover(cls) : undefined;
+    }
+    case 'store': {
+      const store = machine.stores.find((s) => s.symbol === symbol);
+      return store ? storeHover(store) : undefined;
+    }
+    default:
+      return undefined;
+  }
+}
+
+function listNames(names: readonly string[], code = true): string {
+  const shown = names.slice(0, maxListed).map((n) => (code ? `\`${n}\`` : n));
+  const more = names.length - shown.length;
+  return shown.join(', ') + (more > 0 ? ` and ${more} more` : '');
+}
+
+function plural(n: number, word: string, many = word + 's'): string {
+  return `${n} ${n === 1 ? word : many}`;
+}
+
+function header(kind: string, name: string, description: string | undefined): string {
+  return `**${kind} \`${name}\`**` + (description ? ` — ${description}` : '');
+}
+
+/** Where a signal sits: its store, bits, and the chip pins they land on. */
+function placementOf(machine: Machine, name: string): { store: Store; layout: WordLayout; lo: number; hi: number } | undefined {
+  for (const store of machine.stores) {
+    const placement = store.word?.placements.find((p) => p.signal === name);
+    if (placement) return { store, layout: store.word!, lo: placement.lo, hi: placement.hi };
+  }
+  return undefined;
+}
+
+function placementLine(machine: Machine, name: string): string {
+  const at = placementOf(machine, name);
+  if (!at) return '- **bit** not placed in any control word: no ROM produces it (see unplaced-signal)';
+  const chip = at.layout.chip ? ` (${at.layout.chip.name}, ${at.layout.chip.depth} × ${at.layout.chip.width})` : '';
+  const label = at.lo === at.hi ? `- **bit** ${at.lo}` : `- **bits** ${at.lo}..${at.hi}`;
+  return `${label} of the word of store \`${at.store.name}\` → **${chipPinsText(at.layout, at.lo, at.hi)}**${chip}`;
+}
+
+function strobeHover(machine: Machine, strobe: Strobe): string {
+  const lines = [header('strobe', strobe.name, strobe.description ?? 'no description'), ''];
+  lines.push(`- **kind** \`${strobe.kind}\` — ${strobeKindText(strobe.kind)}`);
+  const part = strobe.part ? machine.parts.get(strobe.part) : undefined;
+  if (strobe.kind === 'end' || strobe.kind === 'trap') {
+    lines.push(`- **part** none — an \`${strobe.kind}\` strobe acts on the sequencer, not on a part`);
+    lines.push('- **bus** none');
+  } else {
+    const port = strobe.port ? `, port \`${strobe.port}\`` : '';
+    lines.push(part ? `- **part** \`${part.name}\`${port} — ${partKindText(part.kind)}` : '- **part** not wired (see the wiring error)');
+    const bus = strobe.bus ? machine.buses.get(strobe.bus) : undefined;
+    if (bus) lines.push(`- **bus** \`${bus.name}\` — ${bus.width} lines, ${bus.keeper ? 'with keepers (holds its last value when undriven)' : 'no keepers (floats when undriven)'}`);
+    else lines.push(`- **bus** none — a \`${strobe.kind}\` strobe ${strobe.kind === 'count' ? 'acts on its counter only' : 'acts on its part only'}`);
+  }
+  lines.push(`- **level** ${activeLevelText(strobe)}`);
+  lines.push(placementLine(machine, strobe.name));
+  lines.push(useLine(machine, strobe.name, 'asserted'));
+  lines.push(`- **effect** ${strobeEffect(machine, strobe, part)}`);
+  return lines.join('\n');
+}
+
+function useLine(machine: Machine, signal: string, verb: string): string {
+  const uses = usageOf(machine).bySignal.get(signal) ?? [];
+  if (uses.length === 0) return `- **used** never ${verb} by any step (see unused-name)`;
+  const { steps, classes, viaPhases } = countUses(uses);
+  const phases = viaPhases ? ` (${viaPhases} through phases)` : '';
+  return `- **used** ${verb} in ${plural(steps, 'step')} of ${plural(classes.length, 'class', 'classes')}${phases}: ${listNames(classes.map((c) => c.name), false)}`;
+}
+
+function strobeEffect(machine: Machine, strobe: Strobe, part: Part | undefined): string {
+  const who = part?.kind === 'regfile' ? (strobe.register !== undefined ? `register x${strobe.register}` : `the register the instruction's ${strobe.port} field selects`) : `\`${strobe.part}\``;
+  switch (strobe.kind) {
+    case 'enable':
+      return `${who} drives bus \`${strobe.bus}\` for the whole step`;
+    case 'read':
+      return `memory \`${strobe.part}\` drives bus \`${strobe.bus}\` with the data at its address${part?.kind === 'memory' ? ` (from \`${part.address}\`)` : ''} for the whole step`;
+    case 'write':
+      return `bus \`${strobe.bus}\` is written to memory \`${strobe.part}\` at the step's closing edge`;
+    case 'clock':
+      if (part?.kind === 'compare') return `comparator \`${part.name}\` latches flag \`${part.flag}\` (the comparison of \`${part.a}\` and \`${part.b}\`) at the closing edge`;
+      return `${who} loads bus \`${strobe.bus}\` at the step's closing edge`;
+    case 'count':
+      return `counter \`${strobe.part}\` adds its increment${part?.kind === 'counter' ? ` (${part.increment})` : ''} at the closing edge`;
+    case 'end':
+      return 'after this step the step counter returns to 0 and the next instruction starts';
+    case 'trap':
+      return 'stops the clock and hands the instruction to the environment (the monitor, or the simulator\'s ecall/ebreak service)';
+  }
+  void machine;
+}
+
+function fieldHover(machine: Machine, field: Field): string {
+  const target = field.target ? machine.parts.get(field.target) : undefined;
+  const lines = [header('field', field.name, field.description ?? 'no description'), ''];
+  lines.push(`- **width** ${plural(field.width, 'bit')}` + (target ? `, controls part \`${target.name}\` — ${partKindText(target.kind)}` : ', controls no part'));
+  lines.push(placementLine(machine, field.name));
+  const idle = [...field.values.values()].find((v) => v.code === field.idle);
+  lines.push(`- **idle** ${idle ? `\`${idle.name}\` ` : ''}(code ${field.idle}): the value where no step sets the field`);
+  lines.push(useLine(machine, field.name, 'set'));
+  const maps = [...machine.maps.values()].filter((m) => m.output === field.name).map((m) => m.name);
+  if (maps.length) lines.push(`- **maps** ${listNames(maps)}`);
+  lines.push('', '| value | code | binary | meaning |', '|---|---|---|---|');
+  for (const value of field.values.values()) {
+    lines.push(`| \`${value.name}\` | ${value.code} | ${binaryDigits(value.code, field.width)} | ${valueMeaning(target?.kind, value.name) ?? ''} |`);
+  }
+  return lines.join('\n');
+}
+
+function valueHover(machine: Machine, field: Field, value: FieldValue): string {
+  const target = field.target ? machine.parts.get(field.target) : undefined;
+  const meaning = valueMeaning(target?.kind, value.name);
+  const lines = [`**value \`${value.name}\`** of field \`${field.name}\` — code **${value.code}** = 0b${binaryDigits(value.code, field.width)} (${plural(field.width, 'bit')})`];
+  if (meaning) lines.push('', `${target ? `\`${target.name}\`: ` : ''}${meaning}`);
+  if (value.code === field.idle) lines.push('', 'This is the field\'s idle value: the code where no step sets the field.');
+  return lines.join('\n');
+}
+
+function busHover(machine: Machine, bus: Bus): string {
+  const lines = [header('bus', bus.name, bus.description), ''];
+  lines.push(`- **width** ${bus.width} lines`);
+  lines.push(
+    bus.keeper
+      ? '- **keeper** yes: when nothing drives the bus its lines keep the last driven value (a load then stores a stale value: a warning)'
+      : '- **keeper** no: when nothing drives the bus its lines float (a load then stores noise: an error)',
+  );
+  const strobes = [...machine.signals.values()].filter((s): s is Strobe => s.type === 'strobe' && s.bus === bus.name);
+  const drivers = strobes.filter((s) => s.kind === 'enable' || s.kind === 'read');
+  const loads = strobes.filter((s) => s.kind === 'clock' || s.kind === 'write');
+  const wired = (s: Strobe) => `\`${s.name}\` (${s.part}${s.port ? `.${s.port}` : ''})`;
+  lines.push(`- **driven by** ${drivers.length ? drivers.map(wired).join(', ') : 'no strobe'}`);
+  lines.push(`- **loaded by** ${loads.length ? loads.map(wired).join(', ') : 'no strobe'}`);
+  const readers = [...machine.parts.values()].filter((p) => ((p.kind === 'alu' || p.kind === 'compare') && (p.a === bus.name || p.b === bus.name)) || (p.kind === 'memory' && p.addressFrom === 'bus' && p.address === bus.name));
+  if (readers.length) lines.push(`- **read by** ${readers.map((p) => `\`${p.name}\` (${p.kind === 'memory' ? 'address' : p.kind === 'alu' || p.kind === 'compare' ? (p.a === bus.name ? 'operand a' : 'operand b') : ''})`).join(', ')}`);
+  const driverNames = new Set(drivers.map((s) => s.name));
+  const loadNames = new Set(loads.map((s) => s.name));
+  const active: string[] = [];
+  let total = 0;
+  for (const w of usageOf(machine).written) {
+    const d = w.alt.actions.filter((a) => driverNames.has(a.signal)).map((a) => a.signal);
+    const l = w.alt.actions.filter((a) => loadNames.has(a.signal)).map((a) => a.signal);
+    if (d.length === 0 && l.length === 0) continue;
+    total++;
+    if (active.length >= maxBusSteps) continue;
+    const guard = guardText(w.alt);
+    active.push(`- ${describeWritten(w)}${guard ? ` (${guard})` : ''}: ${d.length ? `driven by ${d.map((n) => `\`${n}\``).join(', ')}` : 'not driven'}${l.length ? `; loaded by ${l.map((n) => `\`${n}\``).join(', ')}` : ''}`);
+  }
+  lines.push('', total ? `**Step by step** (${plural(total, 'step line')}${total > active.length ? `, first ${active.length} shown` : ''}):` : '**Step by step**: no step drives or loads this bus.');
+  lines.push(...active);
+  return lines.join('\n');
+}
+
+function partHover(machine: Machine, part: Part): string {
+  const lines = [header('part', part.name, part.description), ''];
+  lines.push(`- **kind** \`${part.kind}\` — ${partKindText(part.kind)}`);
+  lines.push(`- **settings** ${partSettings(part).join('; ')}`);
+  lines.push(`- **ports** ${partPorts(part).join('; ')}`);
+  const strobes = [...machine.signals.values()].filter((s): s is Strobe => s.type === 'strobe' && s.part === part.name);
+  const wiring = (s: Strobe) => {
+    const port = s.port ? `.${s.port}` : '';
+    if (s.kind === 'enable' || s.kind === 'read') return `\`${s.name}\` ${s.kind} ${part.name}${port} → \`${s.bus}\``;
+    if (s.kind === 'clock' || s.kind === 'write') return s.bus ? `\`${s.name}\` ${s.kind} \`${s.bus}\` → ${part.name}${port}` : `\`${s.name}\` ${s.kind}`;
+    return `\`${s.name}\` ${s.kind}`;
+  };
+  lines.push(`- **strobes** ${strobes.length ? strobes.map(wiring).join('; ') : 'none wired to it'}`);
+  const vocabulary = controlVocabulary(part.kind);
+  if (vocabulary && !part.controlField && !(part.kind === 'compare' && part.condition === 'funct3')) lines.push(`- **values** a field \`-> ${part.name}\` may use ${vocabulary.map((v) => `\`${v}\``).join(', ')}`);
+  return lines.join('\n');
+}
+
+function flagHover(machine: Machine, flag: Flag): string {
+  const part = machine.parts.get(flag.part);
+  const lines = [`**flag \`${flag.name}\`** — one bit latched by comparator \`${flag.part}\`` + (part?.kind === 'compare' ? ` (compares \`${part.a}\` with \`${part.b}\`${part.condition === 'funct3' ? ', condition from funct3' : ''})` : ''), ''];
+  const lines2: string[] = [];
+  for (const store of machine.stores) {
+    const source = store.address?.sources.find((s) => s.input.kind === 'flag' && s.input.name === flag.name);
+    if (source) lines2.push(`- **address** line ${source.lo} of store \`${store.name}\``);
+  }
+  if (lines2.length === 0) lines2.push('- **address** on no store\'s address lines: the ROM cannot react to it (see not-addressable)');
+  const tested = usageOf(machine).written.filter((w) => w.alt.guard?.some((g) => g.input.kind === 'flag' && g.input.name === flag.name));
+  lines2.push(`- **tested** by ${plural(tested.length, 'guard')}` + (tested.length ? `: ${listNames(tested.map(describeWritten), false)}` : ''));
+  lines2.push('- A register loaded at a step\'s closing edge (such as this flag) is seen by the address lines from the next step on.');
+  return [...lines, ...lines2].join('\n');
+}
+
+function mapHover(machine: Machine, map: DecodeMap): string {
+  const lines = [header('map', map.name, map.description), ''];
+  lines.push(`- **inputs** ${map.inputs.map((i) => `\`${i.label}\` (${plural(i.width, 'bit')})`).join(', ') || 'none'}`);
+  lines.push(`- **sets** ${map.output ? `field \`${map.output}\`` : 'no field'}`);
+  lines.push(`- **rows** ${map.rows.length}; inputs no row matches are not decoded: their addresses hold the fill word`);
+  const uses = usageOf(machine).byMap.get(map.name) ?? [];
+  const { steps, classes } = countUses(uses);
+  lines.push(`- **used** in ${plural(steps, 'step')} of ${plural(classes.length, 'class', 'classes')}${classes.length ? `: ${listNames(classes.map((c) => c.name), false)}` : ''}`);
+  return lines.join('\n');
+}
+
+function phaseHover(machine: Machine, phase: Phase): string {
+  const lines = [header('phase', phase.name, phase.description), ''];
+  const numbers = [...new Set(phase.steps.map((s) => s.step))];
+  lines.push(`- **steps** ${numbers.length} (${plural(phase.steps.length, 'line')}), numbered from 0 within the phase`);
+  const users = usageOf(machine).phaseUsers.get(phase.name) ?? [];
+  lines.push(`- **used by** ${users.length ? `${plural(users.length, 'class', 'classes')}: ${listNames(users.map((c) => c.name), false)}` : 'no class (see unused-name)'}`);
+  return lines.join('\n');
+}
+
+function classHover(cls: ClassDef): string {
+  const lines = [header('class', cls.name, cls.description), ''];
+  const major = cls.opcode !== undefined ? majorOpcodeOf(cls.opcode) : undefined;
+  if (cls.opcode === undefined) lines.push('- **opcode** none: no instruction selects this class');
+  else lines.push(`- **opcode** ${binaryDigits(cls.opcode, 7)}` + (major ? ` — RV32I ${major.name} (${major.format} format)` : ' — not an RV32I major opcode (custom opcode space)'));
+  const instructions = RV32I_INSTRUCTIONS.filter((s) => s.opcode === cls.opcode).map((s) => s.mnemonic);
+  lines.push(`- **instructions** ${instructions.length ? `${instructions.join(', ')} (${instructions.length})` : 'no RV32I instruction'}`);
+  const numbers = [...cls.steps.keys()].sort((a, b) => a - b);
+  const nLines = [...cls.steps.values()].reduce((n, alts) => n + alts.length, 0);
+  lines.push(`- **steps** ${numbers.length}${numbers.length ? ` (${numbers[0]}..${numbers[numbers.length - 1]})` : ''}, ${plural(nLines, 'alternative')}`);
+  const phases = new Map<string, number>();
+  for (const alts of cls.steps.values()) for (const alt of alts) if (alt.phase && !phases.has(alt.phase.name)) phases.set(alt.phase.name, alt.step);
+  if (phases.size) lines.push(`- **phases** ${[...phases].map(([name, at]) => `\`${name}\` from step ${at}`).join(', ')}`);
+  return lines.join('\n');
+}
+
+function storeHover(store: Store): string {
+  const lines = [header('store', store.name, store.description), ''];
+  if (store.word) {
+    const chips = store.word.chipWidths.map((w, i) => `chip ${i}: ${w} bits`).join(', ');
+    lines.push(`- **word** ${store.word.width} bits over ${plural(store.word.chipWidths.length, 'chip')} (${chips})${store.word.chip ? `, ${store.word.chip.name}` : ''}; unused bits at ${store.word.unusedLevel}`);
+  } else lines.push('- **word** no word layout yet');
+  if (store.address) lines.push(`- **address** ${store.address.width} lines (${2 ** store.address.width} words): ${store.address.sources.map((s) => `${s.label} ${s.lo === s.hi ? s.lo : `${s.lo}..${s.hi}`}`).join(', ')}`);
+  else lines.push('- **address** no address layout yet');
+  return lines.join('\n');
+}
+
+/** The step line whose number is under the cursor, where it is written. */
+function writtenStepAt(machine: Machine, offset: number): WrittenAlt | undefined {
+  for (const w of usageOf(machine).written) {
+    if (offset >= w.alt.numberSpan.start && offset <= w.alt.numberSpan.end) return w;
+    if (w.alt.span.start > offset) break;
+  }
+  return undefined;
+}
+
+function stepHover(machine: Machine, w: WrittenAlt): string {
+  const alt = w.alt;
+  const guard = guardText(alt);
+  const lines = [
+    `**${describeWritten(w)}**` +
+      (guard === 'else' ? ' — `else`: applies when no other line of this step does' : guard ? ` — applies when \`${guard}\`` : ' — always applies'),
+    '',
+  ];
+  if (w.owner.kind === 'phase') {
+    const users = usageOf(machine).phaseUsers.get(w.owner.phase.name) ?? [];
+    lines.push(`- **phase** used by ${plural(users.length, 'class', 'classes')}${users.length ? `: ${listNames(users.map((c) => c.name), false)}` : ''}`);
+  }
+  const strobes = alt.actions.filter((a) => !a.value).map((a) => a.signal);
+  lines.push(`- **asserts** ${strobes.length ? strobes.map((s) => `\`${s}\``).join(', ') : 'no strobe'}`);
+  const sets = alt.actions.filter((a) => a.value).map((a) => (a.value!.kind === 'code' ? `\`${a.signal}\`=\`${a.value!.name}\` (${a.value!.code})` : `\`${a.signal}\` from map \`${a.value!.map}\``));
+  if (sets.length) lines.push(`- **sets** ${sets.join(', ')}`);
+  const unplaced = alt.actions.filter((a) => !machine.stores.some((s) => s.word?.placements.some((p) => p.signal === a.signal))).map((a) => a.signal);
+  if (unplaced.length) lines.push(`- **not in any word** ${unplaced.map((s) => `\`${s}\``).join(', ')} (no bit placed)`);
+  for (const { store, variants, truncated } of stepWords(machine, alt)) {
+    const layout = store.word!;
+    const chipHeads = layout.chipWidths.map((_, i) => `chip ${i}`);
+    if (variants.length === 1 && variants[0].rows.length === 0) {
+      lines.push(`- **word** of store \`${store.name}\`, hex per chip (chip 0 holds bits 0..${layout.chipWidths[0] - 1}): ${variants[0].hex.map((h, i) => `${chipHeads[i]} \`0x${h}\``).join(', ')}`);
+      continue;
+    }
+    const maps = [...new Set(variants[0].rows.map((r) => r.map))];
+    const inputs = maps.flatMap((m) => m.inputs.map((i) => i.label));
+    lines.push(`- **word** of store \`${store.name}\` depends on ${inputs.map((i) => `\`${i}\``).join(', ')} through ${maps.map((m) => `map \`${m.name}\``).join(', ')}: one word per row, hex per chip${truncated ? ` (first ${variants.length} combinations)` : ''}`);
+    lines.push('', `| ${maps.map((m) => m.inputs.map((i) => i.label).join(' ')).join(' | ')} | ${maps.map((m) => m.output ?? 'value').join(' | ')} | ${chipHeads.join(' | ')} |`);
+    lines.push(`|${'---|'.repeat(maps.length * 2 + chipHeads.length)}`);
+    for (const v of variants) {
+      lines.push(`| ${v.rows.map((r) => r.row.patterns.join(' ')).join(' | ')} | ${v.rows.map((r) => r.row.value).join(' | ')} | ${v.hex.map((h) => `0x${h}`).join(' | ')} |`);
+    }
+    lines.push('');
+  }
+  return lines.join('\n').trimEnd();
+}
+
+/** Keywords, kinds and address inputs: what they mean where they stand. */
+function wordHover(analysis: Analysis, word: string, start: number): string | undefined {
+  const machine = analysis.machine;
+  const part = machine.parts.get(word.split('.')[0]);
+  if ((partKinds as string[]).includes(word) && isKindPosition(analysis, start, 'part')) return `**part kind \`${word}\`** — ${partKindText(word as Part['kind'])}`;
+  if ((strobeKinds as string[]).includes(word) && isKindPosition(analysis, start, 'strobe')) return `**strobe kind \`${word}\`** — ${strobeKindText(word as Strobe['kind'])}`;
+  if (word in addressInputTexts && !machine.flags.has(word)) return `**address input \`${word}\`** — ${addressInputTexts[word]}`;
+  if (part && word.includes('.')) {
+    const port = word.slice(word.indexOf('.') + 1);
+    const description = partPorts(part).find((p) => p.startsWith(`\`${port}\`:`));
+    if (description) return `**port \`${port}\` of \`${part.name}\`** — ${description.slice(port.length + 4)}`;
+  }
+  if (word in keywordTexts) return `**\`${word}\`** — ${keywordTexts[word]}`;
+  return undefined;
+}
+
+/** True when the word at `start` is the kind after `part NAME` or `strobe NAME`. */
+function isKindPosition(analysis: Analysis, start: number, keyword: 'part' | 'strobe'): boolean {
+  const decl = analysis.parse.tree.decls.find((d) => d.span.start <= start && start < d.span.end);
+  if (!decl) return false;
+  if (keyword === 'part' && decl.kind === 'part') return decl.partKind?.span.start === start;
+  if (keyword === 'strobe' && decl.kind === 'strobe') return decl.strobeKind?.span.start === start;
+  return false;
+}
