@@ -1,1 +1,65 @@
-// placeholder entry until the extension client lands; see issue 5.
+// The VS Code side of Phasewright: starts the bundled language server (dist/server.js) over
+// Node IPC, and wires the editor-only parts: the status-bar item, the three commands (build
+// images, timing diagram, listing), the listing documents and the `phasewright` task type.
+// Everything about the notation happens in the server; nothing here reads or runs workspace
+// code, so the extension is safe in untrusted workspaces (building asks for trust first).
+import * as vscode from 'vscode';
+import { LanguageClient, type LanguageClientOptions, type ServerOptions, TransportKind } from 'vscode-languageclient/node';
+import { buildImagesCommand } from './buildCommand';
+import { ListingProvider, listingScheme, showListingCommand } from './listingView';
+import { ServerCommands } from './serverCommands';
+import { StatusBar } from './statusBar';
+import { PhasewrightTaskProvider, taskType } from './tasks';
+import { TimingPanel } from './timingPanel';
+
+let client: LanguageClient | undefined;
+
+function phasewrightEditor(): vscode.TextEditor | undefined {
+  const editor = vscode.window.activeTextEditor;
+  if (editor?.document.languageId === 'phasewright') return editor;
+  // A command run from a webview or the output leaves no active text editor: use a visible one.
+  return vscode.window.visibleTextEditors.find((e) => e.document.languageId === 'phasewright');
+}
+
+export async function activate(context: vscode.ExtensionContext): Promise<void> {
+  const serverModule = context.asAbsolutePath('dist/server.js');
+  const serverOptions: ServerOptions = {
+    run: { module: serverModule, transport: TransportKind.ipc },
+    debug: { module: serverModule, transport: TransportKind.ipc, options: { execArgv: ['--nolazy', '--inspect=6019'] } },
+  };
+  const clientOptions: LanguageClientOptions = {
+    documentSelector: [{ language: 'phasewright' }],
+    synchronize: { configurationSection: 'phasewright' },
+    outputChannelName: 'Phasewright Language Server',
+  };
+  client = new LanguageClient('phasewright', 'Phasewright Language Server', serverOptions, clientOptions);
+  const server = new ServerCommands(client);
+  const output = vscode.window.createOutputChannel('Phasewright');
+  const listings = new ListingProvider(server);
+
+  context.subscriptions.push(
+    output,
+    listings,
+    vscode.workspace.registerTextDocumentContentProvider(listingScheme, listings),
+    vscode.commands.registerCommand('phasewright.buildImages', () => buildImagesCommand(server, output, phasewrightEditor()?.document)),
+    vscode.commands.registerCommand('phasewright.showListing', () => showListingCommand(listings, phasewrightEditor()?.document)),
+    vscode.commands.registerCommand('phasewright.showTimingDiagram', () => {
+      const editor = phasewrightEditor();
+      if (!editor) {
+        void vscode.window.showWarningMessage('Phasewright: open a .pwt file to see the timing diagram of its classes.');
+        return;
+      }
+      TimingPanel.show(server, editor);
+    }),
+    vscode.tasks.registerTaskProvider(taskType, new PhasewrightTaskProvider(context.asAbsolutePath('dist/cli.js'))),
+    { dispose: () => TimingPanel.current?.dispose() },
+  );
+
+  await client.start();
+  context.subscriptions.push(new StatusBar(server));
+}
+
+export async function deactivate(): Promise<void> {
+  if (client) await client.stop();
+  client = undefined;
+}

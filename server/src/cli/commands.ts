@@ -3,9 +3,11 @@ import type { Io } from './io';
 import { VERSION } from './version';
 import { checkCommand } from './commands/check';
 import { explainCommand } from './commands/explain';
+import { lspCommand } from './commands/lsp';
 import { buildCommand } from './commands/build';
 import { diffCommand } from './commands/diff';
 import { runCommand as runProgramCommand } from './commands/run';
+import { diagramCommand } from './commands/diagram';
 import { budgetCommand } from './commands/budget';
 import { fitCommand } from './commands/fit';
 
@@ -16,12 +18,12 @@ export interface Command {
   run(args: string[], io: Io): Promise<number>;
 }
 
-const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand, fitCommand, runProgramCommand];
+const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand, fitCommand, lspCommand, diagramCommand, runProgramCommand];
 
 export function usage(): string {
   const lines = ['Phasewright: control tables for microcoded RV32I processors built from discrete logic.', '', 'Usage:'];
   for (const c of commands) lines.push(`  phasewright ${c.usage.padEnd(58)} ${c.summary}`);
-  lines.push('', 'Exit codes: 0 success, 1 problems found in the table, 2 usage or file errors.');
+  lines.push('', 'Exit codes: 0 success, 1 problems found in the table, 2 usage or file errors;', '`run` exits with the program\'s own exit code (see docs/simulator.md for the others).');
   return lines.join('\n') + '\n';
 }
 

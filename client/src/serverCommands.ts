@@ -1,0 +1,96 @@
+// Typed calls of the language server's editor commands (`phasewright.build`, `.listing`,
+// `.diagram`, `.summary`; see server/src/lsp/editorCommands.ts) over `workspace/executeCommand`.
+// The answers are plain data; a refusal comes back as `{ ok: false, reason }`. It does not show
+// anything to the user.
+import { ExecuteCommandRequest, type LanguageClient } from 'vscode-languageclient/node';
+
+export type Refusal = { ok: false; reason: string };
+
+export interface BuildAnswer {
+  ok: true;
+  summary: string;
+  folder: string;
+  files: string[];
+  forced: boolean;
+}
+
+export interface ListingAnswer {
+  ok: true;
+  listings: { store: string; name: string; text: string }[];
+  errors: number;
+}
+
+export interface DiagramInput {
+  name: string;
+  width: number;
+  bits: string;
+  given: boolean;
+  onAddress: boolean;
+}
+
+export interface DiagramAnswer {
+  ok: true;
+  svg: string;
+  className: string;
+  atCursor: boolean;
+  classes: string[];
+  inputs: DiagramInput[];
+  instruction?: string;
+  steps: number;
+  errors: number;
+}
+
+export interface SummaryAnswer {
+  ok: true;
+  title?: string;
+  errors: number;
+  warnings: number;
+  infos: number;
+  stores: { name: string; addressBits: number; wordBits: number; chips: number; text: string }[];
+}
+
+export interface DiagramRequest {
+  uri: string;
+  className?: string;
+  offset?: number;
+  guard?: string;
+  /** Choice texts by class name; the server uses the one of the class it draws. */
+  guards?: Record<string, string>;
+  all?: boolean;
+  theme?: 'light' | 'dark' | 'auto' | 'host';
+}
+
+/** The server answered something that is neither an answer nor a refusal (a crashed handler answers null). */
+function unexpected(command: string): Refusal {
+  return { ok: false, reason: `the language server gave no answer to ${command}; see the "Phasewright Language Server" output` };
+}
+
+export class ServerCommands {
+  constructor(private readonly client: LanguageClient) {}
+
+  private async call<T>(command: string, argument: object): Promise<T | Refusal> {
+    try {
+      const answer = (await this.client.sendRequest(ExecuteCommandRequest.type, { command, arguments: [argument] })) as T | Refusal | null;
+      if (!answer || typeof answer !== 'object' || typeof (answer as { ok?: unknown }).ok !== 'boolean') return unexpected(command);
+      return answer;
+    } catch (err) {
+      return { ok: false, reason: (err as Error)?.message ?? String(err) };
+    }
+  }
+
+  build(argument: { uri: string; outputFolder: string; formats?: string[]; severity?: unknown }): Promise<BuildAnswer | Refusal> {
+    return this.call('phasewright.build', argument);
+  }
+
+  listing(argument: { uri: string; store?: string }): Promise<ListingAnswer | Refusal> {
+    return this.call('phasewright.listing', argument);
+  }
+
+  diagram(argument: DiagramRequest): Promise<DiagramAnswer | Refusal> {
+    return this.call('phasewright.diagram', argument);
+  }
+
+  summary(argument: { uri: string }): Promise<SummaryAnswer | Refusal> {
+    return this.call('phasewright.summary', argument);
+  }
+}

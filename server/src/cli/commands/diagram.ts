@@ -1,0 +1,82 @@
+// `phasewright diagram FILE --class NAME [--guard taken=1,funct3=101] [--all] [--theme T] -o FILE.svg`:
+// draws the timing diagram of one class as a standalone SVG file, written atomically and read
+// back. Exit 0 on success (a note on stderr when the table has errors: the picture then shows
+// a table that would not build), 2 on usage, input or output errors.
+import { basename, dirname, resolve } from 'node:path';
+import { parseArgs } from '../args';
+import type { Command } from '../commands';
+import { readSource } from '../readSource';
+import { OutputError, writeFileSafely } from '../output/safeWriter';
+import { analyse, errorCount } from '../../core/analysis';
+import { parseGuardChoice } from '../../core/diagram/guardChoice';
+import { type DiagramTheme, diagramThemes } from '../../core/diagram/palette';
+import { timingDiagram } from '../../core/diagram/timing';
+import { findClass } from '../../core/diagram/timingModel';
+
+function plural(count: number, one: string, many = `${one}s`): string {
+  return `${count} ${count === 1 ? one : many}`;
+}
+
+export const diagramCommand: Command = {
+  name: 'diagram',
+  summary: 'timing diagram of one class as SVG (--all, --theme light|dark|auto)',
+  usage: 'diagram FILE --class NAME [--guard IN=BITS,...] -o FILE.svg',
+  async run(args, io) {
+    // `-o` is the one short option; the shared parser knows long options only.
+    const normalised = args.map((a) => (a === '-o' ? '--out' : a));
+    const parsed = parseArgs(normalised, { flags: ['all'], values: ['class', 'guard', 'out', 'theme'] });
+    const fail = (reason: string) => {
+      io.err(`phasewright diagram: ${reason}\nusage: phasewright ${this.usage}\n`);
+      return 2;
+    };
+    if (parsed.errors.length) return fail(parsed.errors[0]);
+    if (parsed.positionals.length !== 1) return fail('give one .pwt file');
+    const className = parsed.options.get('class');
+    if (typeof className !== 'string' || !className) return fail('name the class to draw with --class NAME');
+    const out = parsed.options.get('out');
+    if (typeof out !== 'string' || !out) return fail('name the SVG file to write with -o FILE.svg');
+    const themeOption = parsed.options.get('theme');
+    const theme = (typeof themeOption === 'string' ? themeOption : 'auto') as DiagramTheme;
+    if (!diagramThemes.includes(theme) || theme === 'host') return fail(`unknown theme '${theme}'; choose light, dark or auto`);
+
+    const file = parsed.positionals[0];
+    const source = readSource(resolve(io.cwd, file));
+    if (!source.ok) {
+      io.err(`phasewright diagram: ${source.reason.replace(resolve(io.cwd, file), file)}\n`);
+      return 2;
+    }
+    const analysis = analyse(source.text);
+    const cls = findClass(analysis.machine, className);
+    if (!cls) {
+      const names = analysis.machine.classes.map((c) => c.name);
+      io.err(`phasewright diagram: ${file} has no class named '${className}'; ${names.length ? `its classes are ${names.join(', ')}` : 'it declares no class'}\n`);
+      return 2;
+    }
+    const guardOption = parsed.options.get('guard');
+    const choice = parseGuardChoice(analysis.machine, typeof guardOption === 'string' ? guardOption : '');
+    if (!choice.ok) {
+      io.err(`phasewright diagram: --guard: ${choice.reason}\n`);
+      return 2;
+    }
+    const diagram = timingDiagram(analysis.machine, cls, choice.choice, { all: parsed.options.has('all'), theme });
+    const target = resolve(io.cwd, out);
+    try {
+      const report = writeFileSafely(dirname(target), { name: basename(target), bytes: Buffer.from(diagram.svg, 'utf8') });
+      const errors = errorCount(analysis.diagnostics);
+      if (errors > 0) io.err(`phasewright diagram: note: ${file} has ${errors} error(s); the diagram shows the table as written (run 'phasewright check ${file}').\n`);
+      const m = diagram.model;
+      io.out(
+        `wrote ${out} (${report.sizeBytes} bytes): class ${m.className}, ${plural(m.columns.length, 'step')}, ${plural(m.strobes.length, 'strobe')}, ${plural(m.fields.length, 'field')}, ${plural(m.buses.length, 'bus', 'buses')}` +
+          `${m.inputs.length ? `; ${m.inputs.map((i) => `${i.name}=${i.bits}`).join(' ')}` : ''}${m.instruction ? ` (${m.instruction})` : ''}\n`,
+      );
+      for (const note of m.notes) io.out(`note: ${note}\n`);
+      return 0;
+    } catch (err) {
+      if (err instanceof OutputError) {
+        io.err(`phasewright diagram: ${err.message}\n`);
+        return 2;
+      }
+      throw err;
+    }
+  },
+};

@@ -1,0 +1,349 @@
+// End-to-end test of the packaged extension in a real VS Code: code-server (VS Code 1.100 in
+// the browser) with the VSIX installed, driven through Debian's chromium by playwright-core.
+// It opens the demo and a fault example and checks what a user sees: the status-bar item, the
+// Problems panel, a hover on a strobe, the build command writing images into the configured
+// folder, the listing document and the timing-diagram webview with its rows. Screenshots go to
+// tests/e2e/artifacts/. Every wait is for an element or a file, never a fixed time.
+// Run: node tests/e2e/run.mjs   (after `npm run build`; tests/e2e/install.sh installs the tools)
+import { execFileSync, spawn } from 'node:child_process';
+import { cpSync, existsSync, mkdirSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { createServer } from 'node:net';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { chromium } from 'playwright-core';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const root = resolve(here, '../..');
+const scratch = join(root, 'tests/.tmp/e2e');
+const artifacts = join(here, 'artifacts');
+const codeServer = join(here, 'node_modules/.bin/code-server');
+const workspace = join(scratch, 'workspace');
+const outputFolderSetting = 'rom-images';
+const timeoutMillis = 45_000;
+
+function log(message) {
+  process.stdout.write(`e2e: ${message}\n`);
+}
+
+function freePort() {
+  return new Promise((resolvePort, reject) => {
+    const server = createServer();
+    server.unref();
+    server.on('error', reject);
+    server.listen(0, '127.0.0.1', () => {
+      const { port } = server.address();
+      server.close(() => resolvePort(port));
+    });
+  });
+}
+
+async function waitFor(what, predicate, limitMillis = timeoutMillis) {
+  const started = Date.now();
+  for (;;) {
+    const value = await predicate();
+    if (value) return value;
+    if (Date.now() - started > limitMillis) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 150));
+  }
+}
+
+function expectEqual(actual, expected, what) {
+  const a = JSON.stringify(actual);
+  const e = JSON.stringify(expected);
+  if (a !== e) throw new Error(`${what}: expected ${e}, got ${a}`);
+}
+
+function prepare() {
+  rmSync(scratch, { recursive: true, force: true });
+  mkdirSync(join(workspace, '.vscode'), { recursive: true });
+  rmSync(artifacts, { recursive: true, force: true });
+  mkdirSync(artifacts, { recursive: true });
+  cpSync(join(root, 'examples/halyard-32.pwt'), join(workspace, 'halyard-32.pwt'));
+  cpSync(join(root, 'examples/faults/bus-contention.pwt'), join(workspace, 'bus-contention.pwt'));
+  writeFileSync(join(workspace, '.vscode/settings.json'), JSON.stringify({ 'phasewright.outputFolder': outputFolderSetting }, null, 2));
+  const userDir = join(scratch, 'data/User');
+  mkdirSync(userDir, { recursive: true });
+  writeFileSync(
+    join(userDir, 'settings.json'),
+    JSON.stringify({
+      'workbench.startupEditor': 'none',
+      'workbench.tips.enabled': false,
+      'workbench.enableExperiments': false,
+      'telemetry.telemetryLevel': 'off',
+      'extensions.autoCheckUpdates': false,
+      'extensions.autoUpdate': false,
+      'editor.hover.delay': 150,
+      'editor.minimap.enabled': false,
+      'chat.commandCenter.enabled': false,
+      'workbench.colorTheme': 'Default Dark Modern',
+      'git.enabled': false,
+      'git.openRepositoryInParentFolders': 'never',
+    }),
+  );
+  writeFileSync(join(scratch, 'config.yaml'), 'auth: none\ncert: false\n');
+}
+
+function environment() {
+  return {
+    ...process.env,
+    XDG_DATA_HOME: join(scratch, 'xdg/data'),
+    XDG_CONFIG_HOME: join(scratch, 'xdg/config'),
+    XDG_CACHE_HOME: join(scratch, 'xdg/cache'),
+  };
+}
+
+function packageVsix() {
+  const vsix = join(scratch, 'phasewright.vsix');
+  execFileSync(join(root, 'node_modules/.bin/vsce'), ['package', '--no-dependencies', '--no-rewrite-relative-links', '--out', vsix], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
+  return vsix;
+}
+
+function installExtension(vsix) {
+  const out = execFileSync(codeServer, ['--install-extension', vsix, '--extensions-dir', join(scratch, 'ext'), '--user-data-dir', join(scratch, 'data')], {
+    env: environment(),
+    encoding: 'utf8',
+  });
+  log(out.trim().split('\n').pop());
+  const installed = readdirSync(join(scratch, 'ext')).filter((d) => d.startsWith('phasewright.phasewright-'));
+  expectEqual(installed, ['phasewright.phasewright-0.1.0'], 'installed extension folders');
+}
+
+async function startCodeServer(port) {
+  const args = [
+    '--config', join(scratch, 'config.yaml'),
+    '--bind-addr', `127.0.0.1:${port}`,
+    '--auth', 'none',
+    '--disable-telemetry',
+    '--disable-update-check',
+    '--disable-workspace-trust',
+    '--user-data-dir', join(scratch, 'data'),
+    '--extensions-dir', join(scratch, 'ext'),
+    workspace,
+  ];
+  const child = spawn(codeServer, args, { env: environment(), stdio: ['ignore', 'pipe', 'pipe'], detached: true });
+  let output = '';
+  child.stdout.on('data', (d) => (output += d));
+  child.stderr.on('data', (d) => (output += d));
+  await waitFor('code-server /healthz', async () => {
+    if (child.exitCode !== null) throw new Error(`code-server exited (${child.exitCode}):\n${output}`);
+    try {
+      const response = await fetch(`http://127.0.0.1:${port}/healthz`);
+      return response.ok;
+    } catch {
+      return false;
+    }
+  });
+  return { child, output: () => output };
+}
+
+function stopCodeServer(server) {
+  if (!server || server.child.exitCode !== null) return;
+  // The server runs in its own process group (detached): end that group, which is ours alone.
+  try {
+    process.kill(-server.child.pid, 'SIGTERM');
+  } catch {
+    server.child.kill('SIGTERM');
+  }
+}
+
+async function runCommand(page, title) {
+  await page.keyboard.press('F1');
+  const input = page.locator('.quick-input-widget input');
+  await input.waitFor({ state: 'visible' });
+  await input.fill(`>${title}`);
+  // Click the matching row rather than pressing Enter: the list may still show older entries.
+  const row = page.locator('.quick-input-widget .monaco-list-row', { hasText: title }).first();
+  await row.click();
+  await page.locator('.quick-input-widget').waitFor({ state: 'hidden' });
+}
+
+async function openFile(page, name) {
+  await page.keyboard.press('Control+P');
+  const input = page.locator('.quick-input-widget input');
+  await input.waitFor({ state: 'visible' });
+  await input.fill(name);
+  await page.locator('.quick-input-widget .monaco-list-row', { hasText: name }).first().click();
+  await page.locator('.tab.active', { hasText: name }).waitFor({ state: 'visible' });
+  await page.locator('.editor-instance .monaco-editor .view-lines').first().waitFor({ state: 'visible' });
+}
+
+async function goToLine(page, line) {
+  await page.locator('.editor-instance .monaco-editor .view-lines').first().click();
+  await page.keyboard.press('Control+G');
+  const input = page.locator('.quick-input-widget input');
+  await input.waitFor({ state: 'visible' });
+  await input.fill(`:${line}`);
+  await page.keyboard.press('Enter');
+  await page.locator('.quick-input-widget').waitFor({ state: 'hidden' });
+}
+
+/** The 1-based line of the first line of the demo that starts with `prefix` (after indentation). */
+function demoLine(prefix) {
+  const lines = readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8').split('\n');
+  const index = lines.findIndex((l) => l.trimStart().startsWith(prefix));
+  if (index < 0) throw new Error(`the demo has no line starting with ${prefix}`);
+  return index + 1;
+}
+
+async function main() {
+  for (const need of [codeServer, '/usr/bin/chromium', join(root, 'dist/client.js'), join(root, 'dist/server.js')]) {
+    if (!existsSync(need)) throw new Error(`missing ${need} (run tests/e2e/install.sh and npm run build)`);
+  }
+  prepare();
+  const vsix = packageVsix();
+  installExtension(vsix);
+  const port = await freePort();
+  const server = await startCodeServer(port);
+  log(`code-server on port ${port}`);
+  const browser = await chromium.launch({
+    executablePath: '/usr/bin/chromium',
+    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--disable-dev-shm-usage'],
+  });
+  let page;
+  let step = 'start';
+  try {
+    const context = await browser.newContext({ viewport: { width: 1500, height: 940 } });
+    page = await context.newPage();
+    page.setDefaultTimeout(timeoutMillis);
+    await page.goto(`http://127.0.0.1:${port}/?folder=${encodeURIComponent(workspace)}`);
+    await page.locator('.monaco-workbench').waitFor({ state: 'visible' });
+
+    step = 'status bar';
+    await openFile(page, 'halyard-32.pwt');
+    const status = page.locator('.statusbar-item', { hasText: 'Halyard-32: 0 errors · 8K×32' });
+    await status.waitFor({ state: 'visible' });
+    log(`status bar: ${(await status.innerText()).trim()}`);
+    await page.screenshot({ path: join(artifacts, 'status-bar.png') });
+
+    step = 'hover';
+    await goToLine(page, demoLine('strobe alu.oe'));
+    const token = page.locator('.editor-instance .view-lines .view-line span span').filter({ hasText: /^alu\.oe$/ }).first();
+    await token.hover();
+    const hover = page.locator('.monaco-hover', { hasText: 'ALU drives the result bus.' });
+    await hover.waitFor({ state: 'visible' });
+    const hoverText = await hover.innerText();
+    for (const expected of ['alu.oe', 'enable', 'drives bus result for the whole step']) {
+      if (!hoverText.replace(/`/g, '').includes(expected)) throw new Error(`hover lacks "${expected}": ${hoverText}`);
+    }
+    log('hover explains alu.oe');
+    await page.screenshot({ path: join(artifacts, 'hover.png'), animations: 'disabled' });
+    const box = await hover.boundingBox();
+    const lineBox = await token.boundingBox();
+    if (box && lineBox) {
+      const x = Math.max(0, Math.min(box.x, lineBox.x) - 150);
+      const y = Math.max(0, box.y - 30);
+      await page.screenshot({ path: join(artifacts, 'hover-closeup.png'), animations: 'disabled', clip: { x, y, width: Math.min(1500 - x, box.width + 240), height: lineBox.y + lineBox.height + 40 - y } });
+    }
+    await page.keyboard.press('Escape');
+
+    step = 'problems';
+    await openFile(page, 'bus-contention.pwt');
+    await page.locator('.statusbar-item', { hasText: 'bus-contention.pwt: 1 error · 2×8' }).waitFor({ state: 'visible' });
+    await page.keyboard.press('Control+Shift+M');
+    const problem = page.locator('.markers-panel .monaco-list-row', { hasText: 'both drive bus' });
+    await problem.first().waitFor({ state: 'visible' });
+    const problemText = await problem.first().innerText();
+    if (!problemText.includes('bus-contention') || !problemText.includes('`a.oe` and `b.oe` both drive bus `result` in step 0 of class OP')) {
+      throw new Error(`unexpected problem row: ${problemText}`);
+    }
+    const rows = await page.locator('.markers-panel .monaco-list-row').allInnerTexts();
+    log(`problems panel: ${rows.length} rows; first: ${problemText.split('\n').join(' ').slice(0, 90)}`);
+    await page.screenshot({ path: join(artifacts, 'problems.png') });
+
+    step = 'build';
+    await openFile(page, 'halyard-32.pwt');
+    await runCommand(page, 'Phasewright: Build control-store images');
+    const folder = join(workspace, outputFolderSetting);
+    const expectedFiles = ['halyard-32.main.lst', 'phasewright-manifest.json', ...[0, 1, 2, 3].flatMap((chip) => ['hex', 'srec', 'bin', 'memh'].map((ext) => `halyard-32.main.chip${chip}.${ext}`))].sort();
+    // The notification comes when the server has written and read back every file.
+    await page.locator('.notifications-toasts', { hasText: `Phasewright: wrote 17 files to ${outputFolderSetting}` }).waitFor({ state: 'visible' });
+    await waitFor('a complete manifest', () => existsSync(join(folder, 'phasewright-manifest.json')) && JSON.parse(readFileSync(join(folder, 'phasewright-manifest.json'), 'utf8')).complete === true);
+    expectEqual(readdirSync(folder).sort(), expectedFiles, 'files in the output folder');
+    const built = readFileSync(join(folder, 'halyard-32.main.chip0.bin'));
+    const reference = execFileSync(process.execPath, [join(root, 'dist/cli.js'), 'build', 'examples/halyard-32.pwt', '--out', join(scratch, 'cli-out'), '--format', 'bin'], { cwd: root, encoding: 'utf8' });
+    if (!reference.includes('wrote')) throw new Error('the CLI build failed');
+    if (!built.equals(readFileSync(join(scratch, 'cli-out/halyard-32.main.chip0.bin')))) throw new Error('the editor build and the CLI build differ');
+    log(`build wrote ${expectedFiles.length} files into ${outputFolderSetting}/, chip 0 equal to the CLI's`);
+    await page.screenshot({ path: join(artifacts, 'build.png') });
+
+    step = 'listing';
+    await runCommand(page, 'Phasewright: Show control-word listing');
+    await page.locator('.tab.active', { hasText: 'halyard-32.lst' }).waitFor({ state: 'visible' });
+    await page.locator('.editor-instance .view-line', { hasText: '# Phasewright control-store listing' }).first().waitFor({ state: 'visible' });
+    log('listing document opened');
+    await page.locator('.tab', { hasText: 'halyard-32.lst' }).locator('.codicon-close').click();
+
+    step = 'timing diagram';
+    await openFile(page, 'halyard-32.pwt');
+    await goToLine(page, demoLine('3 if taken'));
+    await runCommand(page, 'Phasewright: Show timing diagram');
+    const frame = page.frameLocator('iframe.webview.ready').frameLocator('#active-frame');
+    const svg = frame.locator('svg.pw-timing[data-class="BRANCH"]');
+    await svg.waitFor({ state: 'visible' });
+    const strobes = await frame.locator('svg.pw-timing g[data-row="strobe"]').evaluateAll((gs) => gs.map((g) => g.getAttribute('data-name')));
+    expectEqual(strobes, ['x.rs1.oe', 'x.rs2.oe', 'pc.oe', 'pc.ck', 'pc.inc', 'ir.ck', 'mar.ck', 'imm.oe', 'alu.oe', 'cmp.ck', 'mem.rd', 'done'], 'strobe rows of BRANCH');
+    const buses = await frame.locator('svg.pw-timing g[data-row="bus"]').evaluateAll((gs) => gs.map((g) => g.getAttribute('data-name')));
+    expectEqual(buses, ['left', 'right', 'result'], 'bus rows of BRANCH');
+    await frame.locator('svg.pw-timing text', { hasText: 'else' }).first().waitFor({ state: 'visible' });
+    // Choose the taken branch: the page asks for a new picture with `if taken=1` in step 3.
+    await frame.locator('select[data-input="taken"]').selectOption('1');
+    await frame.locator('svg.pw-timing text', { hasText: 'if taken=1' }).waitFor({ state: 'visible' });
+    const levels = await frame.locator('svg.pw-timing g[data-row="strobe"][data-name="pc.ck"]').getAttribute('data-levels');
+    expectEqual(levels, 'LLLH', 'pc.ck levels when taken');
+    log('timing diagram draws BRANCH and follows the guard choice');
+    await page.screenshot({ path: join(artifacts, 'timing-diagram.png'), animations: 'disabled' });
+
+    // The panel follows the cursor into another class.
+    step = 'diagram follows the cursor';
+    await goToLine(page, demoLine('class JALR'));
+    await frame.locator('svg.pw-timing[data-class="JALR"]').waitFor({ state: 'visible' });
+    log('timing diagram follows the cursor to JALR');
+
+    // Save as SVG: the save dialog (VS Code's own, a quick input in the browser) proposes a name next to the file.
+    step = 'save diagram';
+    await goToLine(page, demoLine('3 if taken'));
+    await frame.locator('svg.pw-timing[data-class="BRANCH"] text', { hasText: 'if taken=1' }).waitFor({ state: 'visible' });
+    await frame.locator('#save').click();
+    const saveInput = page.locator('.quick-input-widget input');
+    await saveInput.waitFor({ state: 'visible' });
+    await waitFor('the proposed file name', async () => (await saveInput.inputValue()).endsWith('halyard-32.BRANCH.svg'));
+    await page.keyboard.press('Enter');
+    const saved = join(workspace, 'halyard-32.BRANCH.svg');
+    await waitFor('the saved SVG', () => existsSync(saved) && readFileSync(saved, 'utf8').includes('</svg>'));
+    const savedText = readFileSync(saved, 'utf8');
+    if (!savedText.includes('data-theme="auto"') || !savedText.includes('>if taken=1<')) throw new Error('the saved SVG is not the standalone drawing of BRANCH taken=1');
+    cpSync(saved, join(artifacts, 'halyard-32.BRANCH.svg'));
+    log('saved the diagram as a standalone SVG');
+
+    // A picture of the diagram alone: back to BRANCH (the guard choice is kept), editor group maximised.
+    step = 'diagram picture';
+    await page.setViewportSize({ width: 1500, height: 1700 });
+    await page.locator('.tab', { hasText: 'Timing: BRANCH' }).click();
+    // Ctrl+K Ctrl+M: toggle the maximised editor group (the side bar and panel give way too).
+    await page.keyboard.press('Control+K');
+    await page.keyboard.press('Control+M');
+    await page.locator('.tab', { hasText: 'halyard-32.pwt' }).waitFor({ state: 'hidden' });
+    await frame.locator('svg.pw-timing[data-class="BRANCH"]').waitFor({ state: 'visible' });
+    const frameBox = await page.locator('iframe.webview.ready').boundingBox();
+    const svgBox = await frame.locator('svg.pw-timing').boundingBox();
+    if (frameBox && svgBox) {
+      const clip = { x: frameBox.x, y: frameBox.y, width: svgBox.x + svgBox.width + 16 - frameBox.x, height: svgBox.y + svgBox.height + 12 - frameBox.y };
+      await page.screenshot({ path: join(artifacts, 'timing-diagram-alone.png'), animations: 'disabled', clip });
+    }
+    log('all checks passed');
+  } catch (err) {
+    if (page) await page.screenshot({ path: join(artifacts, `failure-${step.replace(/\W+/g, '-')}.png`) }).catch(() => {});
+    throw new Error(`step "${step}": ${err.message}\n--- code-server output ---\n${server.output().slice(-3000)}`);
+  } finally {
+    await browser.close();
+    stopCodeServer(server);
+  }
+}
+
+main().then(
+  () => process.exit(0),
+  (err) => {
+    process.stderr.write(`e2e: FAILED ${err.stack ?? err}\n`);
+    process.exit(1);
+  },
+);

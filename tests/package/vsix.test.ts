@@ -1,0 +1,51 @@
+// The packaged extension: `npm run package` (build, then vsce offline with no prompts) writes a VSIX holding
+// exactly the whitelist (bundles, grammar, language configuration, snippets, icon, README,
+// LICENSE and the manifest) and nothing else: no sources, tests, source maps or node_modules.
+// The archive is listed with Info-ZIP's unzip, outside the project. The test runs the packaging
+// half (`npm run package:vsix`) on the bundles `npm test` has just built: rebuilding them here
+// would rewrite dist/ while other test files start the server and the CLI from it.
+import { execFileSync } from 'node:child_process';
+import { existsSync, readFileSync, statSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { haveTools } from '../support/tools';
+
+const root = join(__dirname, '../..');
+const vsix = join(root, 'phasewright-0.1.0.vsix');
+
+describe('npm run package:vsix', () => {
+  it('writes a VSIX with exactly the whitelisted files', { timeout: 180_000 }, () => {
+    if (!haveTools(['unzip'], 'unzip')) return;
+    const output = execFileSync('npm', ['run', 'package:vsix'], { cwd: root, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
+    // vsce reports the file count and size of what it packed.
+    expect(output).toMatch(/DONE {2}Packaged: .*phasewright-0\.1\.0\.vsix \(12 files, [\d.]+ (KB|MB)\)/);
+    expect(existsSync(vsix)).toBe(true);
+    const names = execFileSync('unzip', ['-Z1', vsix], { encoding: 'utf8' }).trim().split('\n').sort();
+    expect(names).toEqual(
+      [
+        '[Content_Types].xml',
+        'extension.vsixmanifest',
+        'extension/LICENSE.txt',
+        'extension/dist/cli.js',
+        'extension/dist/client.js',
+        'extension/dist/server.js',
+        'extension/images/icon.png',
+        'extension/language-configuration.json',
+        'extension/package.json',
+        'extension/readme.md',
+        'extension/snippets/phasewright.json',
+        'extension/syntaxes/phasewright.tmLanguage.json',
+      ].sort(),
+    );
+    // The bundles inside are the ones just built, byte for byte.
+    for (const bundle of ['client', 'server', 'cli']) {
+      const packed = execFileSync('unzip', ['-p', vsix, `extension/dist/${bundle}.js`], { maxBuffer: 16 * 1024 * 1024 });
+      expect(packed.equals(readFileSync(join(root, `dist/${bundle}.js`))), bundle).toBe(true);
+    }
+    const manifest = execFileSync('unzip', ['-p', vsix, 'extension.vsixmanifest'], { encoding: 'utf8' });
+    expect(manifest).toMatch(/<Identity Language="en-US" Id="phasewright" Version="0\.1\.0" Publisher="phasewright"/);
+    expect(manifest).toContain('Microsoft.VisualStudio.Code.Engine" Value="^1.91.0"');
+    // A VSIX of a few hundred kilobytes: the three unminified bundles compress to about a fifth.
+    expect(statSync(vsix).size).toBeLessThan(2 * 1024 * 1024);
+  });
+});
