@@ -47,12 +47,14 @@ describe('a build killed mid-write', () => {
     expect(spawnSync(process.execPath, [cli, 'build', changed, '--out', refDir], { cwd: root }).status).toBe(0);
     const after = hashes(refDir);
     let interrupted = 0;
-    for (const delayMs of [30, 60, 90, 120, 160, 200, 250, 300, 400, 500, 650, 800]) {
+    for (const delayMs of [40, 120, 250, 400, 600, 800]) {
       const child = spawn(process.execPath, [cli, 'build', changed, '--out', out], { cwd: root, stdio: 'ignore' });
+      // Listen for the exit before killing: a fast build may end before the kill.
+      const exited = new Promise<number | null>((r) => child.on('exit', (c) => r(c)));
       await new Promise((r) => setTimeout(r, delayMs));
-      const killed = child.kill('SIGKILL');
-      const code = await new Promise<number | null>((r) => child.on('exit', (c) => r(c)));
-      if (killed && code === null) interrupted++;
+      child.kill('SIGKILL');
+      const code = await exited;
+      if (code === null) interrupted++;
       for (const [name, hash] of Object.entries(hashes(out))) {
         expect([before[name], after[name]], `${name} after a kill at ${delayMs} ms`).toContain(hash);
       }
@@ -61,7 +63,7 @@ describe('a build killed mid-write', () => {
       expect(next.status, next.stderr).toBe(0);
       expect(hashes(out)).toEqual(before);
     }
-    console.log(`interrupted builds: ${interrupted} of 12 kills landed before the build finished`);
+    console.log(`interrupted builds: ${interrupted} of 6 kills landed before the build finished`);
     expect(interrupted).toBeGreaterThan(0);
-  }, 180_000);
+  }, 120_000);
 });
