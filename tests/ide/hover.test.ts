@@ -126,6 +126,7 @@ describe('exact hover texts', () => {
         '- **bit** 0 of the word of store `main` → **chip 0, D0** (28C64, 8192 × 8)',
         '- **used** asserted in 6 steps of 6 classes: JALR, BRANCH, LOAD, STORE, OP-IMM, OP',
         "- **effect** the register the instruction's rs1 field selects drives bus `left` for the whole step",
+        '- **load** reaches 124 inputs: 0.12 mA; the outputs of store main are rated 0.4 mA, margin 0.28 mA — an estimate from the figures in the table',
       ].join('\n'),
     );
   });
@@ -260,5 +261,23 @@ describe('step words agree with the encoder', () => {
     const address = 2 | (1 << 4) | (0b000 << 5) | (0b01100 << 8);
     expect(store.words[address]).toBe(0x0088ce2c);
     expect(hoverAt('2: x.rs1.oe, x.rs2.oe, alu.fn=op_fn')).toContain('| 000 1 | sub | 0x2C | 0xCE | 0x88 | 0x00 |');
+  });
+});
+
+describe('hover shows the budget from the entered figures', () => {
+  it('gives a strobe\'s load against the control store\'s rating, and each bus driver\'s margin', async () => {
+    const { readFileSync } = await import('node:fs');
+    const { analyse } = await import('../../server/src/core/analysis');
+    const { hover } = await import('../../server/src/core/ide/hover');
+    const text = readFileSync(new URL('../../examples/halyard-32.pwt', import.meta.url), 'utf8');
+    const a = analyse(text);
+    const at = (probe: string) => hover(a, text.indexOf(probe) + probe.indexOf(' ') + 2)!.markdown.split('\n');
+    // x.rd.ck reaches 31 cards x 4 inputs x 1 uA = 0.124 mA against the 28C64's 0.4 mA.
+    expect(at('strobe x.rd.ck')).toContain('- **load** reaches 124 inputs: 0.12 mA; the outputs of store main are rated 0.4 mA, margin 0.28 mA — an estimate from the figures in the table');
+    expect(at('bus result').filter((l) => l.startsWith('- **load per line**'))).toEqual([
+      '- **load per line** driven by `t`: reaches 148 inputs and an LED (0.97 mA): 1.12 mA; `t` is rated 6 mA, margin 4.88 mA — an estimate from the figures in the table',
+      '- **load per line** driven by `alu`: reaches 144 inputs and an LED (0.97 mA): 1.11 mA; `alu` is rated 6 mA, margin 4.89 mA — an estimate from the figures in the table',
+      '- **load per line** driven by `mem`: reaches 148 inputs and an LED (0.97 mA): 1.12 mA; `mem` is rated 4 mA, margin 2.88 mA — an estimate from the figures in the table',
+    ]);
   });
 });

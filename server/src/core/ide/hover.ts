@@ -3,6 +3,7 @@
 // step lines (the words they put in the ROMs), classes (the RV32I instructions they run),
 // buses (who drives and loads them, step by step), parts, flags, maps, phases, stores, and the
 // notation's keywords. Pure: it reads an analysis and returns text with the span it explains.
+import { budgetOf, type LineLoad } from '../budget/budget';
 import type { Analysis } from '../analysis';
 import { RV32I_INSTRUCTIONS, majorOpcodeOf } from '../isa/rv32i';
 import { controlVocabulary } from '../model/vocabulary';
@@ -151,7 +152,18 @@ function strobeHover(machine: Machine, strobe: Strobe): string {
   lines.push(placementLine(machine, strobe.name));
   lines.push(useLine(machine, strobe.name, 'asserted'));
   lines.push(`- **effect** ${strobeEffect(machine, strobe, part)}`);
+  const load = budgetOf(machine).strobes.find((r) => r.name === strobe.name);
+  if (load) lines.push(`- **load** ${loadText(load)}`);
   return lines.join('\n');
+}
+
+/** One line on a control or bus line's load against its driver's rating, from the entered figures. */
+function loadText(row: LineLoad): string {
+  const reaches = `${plural(row.inputs, 'input')}${row.ledMa ? ` and an LED (${row.ledMa.toFixed(2)} mA)` : ''}`;
+  if (row.loadMa === undefined) return `reaches ${reaches}; load unknown (missing figures: ${row.missing.join('; ')})`;
+  const driver = row.kind === 'strobe' ? `the outputs of ${row.driver} are` : `\`${row.driver}\` is`;
+  const rating = row.driveMa === undefined ? 'driver rating not given (drive_ma)' : `${driver} rated ${row.driveMa} mA, margin ${row.marginMa! >= 0 ? '' : '**'}${row.marginMa!.toFixed(2)} mA${row.marginMa! >= 0 ? '' : ' (overloaded)**'}`;
+  return `reaches ${reaches}: ${row.loadMa.toFixed(2)} mA; ${rating} — an estimate from the figures in the table`;
 }
 
 function useLine(machine: Machine, signal: string, verb: string): string {
@@ -239,6 +251,8 @@ function busHover(machine: Machine, bus: Bus): string {
     const guard = guardText(w.alt);
     active.push(`- ${describeWritten(w)}${guard ? ` (${guard})` : ''}: ${d.length ? `driven by ${d.map((n) => `\`${n}\``).join(', ')}` : 'not driven'}${l.length ? `; loaded by ${l.map((n) => `\`${n}\``).join(', ')}` : ''}`);
   }
+  const lineLoads = budgetOf(machine).buses.filter((r) => r.name === bus.name);
+  for (const row of lineLoads) lines.push(`- **load per line** driven by \`${row.driver}\`: ${loadText(row)}`);
   lines.push('', total ? `**Step by step** (${plural(total, 'step line')}${total > active.length ? `, first ${active.length} shown` : ''}):` : '**Step by step**: no step drives or loads this bus.');
   lines.push(...active);
   return lines.join('\n');
