@@ -13,7 +13,7 @@ const needs = [join(root, 'tests/e2e/node_modules/.bin/code-server'), join(root,
 const installed = needs.every((p) => existsSync(p));
 
 describe('the extension in VS Code (code-server + chromium)', () => {
-  it.skipIf(!installed && !underCi)('shows status, problems, hover, builds images, lists words and draws the timing diagram', { timeout: 420_000 }, () => {
+  it.skipIf(!installed && !underCi)('shows status, problems, hover, builds images, lists words, runs a program and draws the timing diagram', { timeout: 420_000 }, () => {
     if (!installed) throw new Error(`end-to-end tools missing under CI (${needs.filter((p) => !existsSync(p)).join(', ')}): run tests/e2e/install.sh`);
     let output = '';
     try {
@@ -27,6 +27,7 @@ describe('the extension in VS Code (code-server + chromium)', () => {
       'e2e: hover explains alu.oe',
       'e2e: build wrote 18 files into rom-images/',
       'e2e: listing document opened',
+      'e2e: ran crc_sieve.elf through the table in lock-step: exit code 0, its summary in the Phasewright channel',
       'e2e: timing diagram draws BRANCH and follows the guard choice',
       'e2e: timing diagram follows the cursor to JALR',
       'e2e: saved the diagram as a standalone SVG',

@@ -93,4 +93,21 @@ export class ServerCommands {
   summary(argument: { uri: string }): Promise<SummaryAnswer | Refusal> {
     return this.call('phasewright.summary', argument);
   }
+
+  run(argument: { uri: string; program: string; loadAddress?: number }): Promise<RunAnswer | Refusal> {
+    return this.call('phasewright.run', argument);
+  }
+}
+
+export interface RunAnswer {
+  ok: true;
+  exitCode: number;
+  ending: string;
+  summary: string;
+  stdout: string;
+  stderr: string;
+  outputTruncated: boolean;
+  instructions: number;
+  steps: number;
+  problem?: { kind: 'divergence' | 'fault'; uri: string; range: { start: { line: number; character: number }; end: { line: number; character: number } }; message: string; report: string };
 }

@@ -190,6 +190,10 @@ async function main() {
     if (!existsSync(need)) throw new Error(`missing ${need} (run tests/e2e/install.sh and npm run build)`);
   }
   prepare();
+  // A real RV32I program for the run command, built with Debian's cross compiler.
+  const { buildPrograms } = await import(join(root, 'tests/programs/build.mjs'));
+  const [crc] = buildPrograms({ names: ['crc_sieve'] });
+  cpSync(crc.elfPath, join(workspace, 'crc_sieve.elf'));
   const vsix = packageVsix();
   installExtension(vsix);
   const port = await freePort();
@@ -272,6 +276,22 @@ async function main() {
     await page.locator('.editor-instance .view-line', { hasText: '# Phasewright control-store listing' }).first().waitFor({ state: 'visible' });
     log('listing document opened');
     await page.locator('.tab', { hasText: 'halyard-32.lst' }).locator('.codicon-close').click();
+
+    step = 'run program';
+    await openFile(page, 'halyard-32.pwt');
+    await runCommand(page, 'Phasewright: Run program on this table');
+    // The open dialog is VS Code's own file picker, a quick input holding a path.
+    const pathInput = page.locator('.quick-input-widget input');
+    await pathInput.waitFor({ state: 'visible' });
+    // Wait until the picker has put its starting folder in, or it would overwrite our path.
+    await waitFor('the file picker to show its folder', async () => (await pathInput.inputValue()).endsWith('/'));
+    await pathInput.fill(join(workspace, 'crc_sieve.elf'));
+    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'crc_sieve.elf' }).first().waitFor({ state: 'visible' });
+    await page.locator('.quick-input-widget .monaco-button', { hasText: 'Run' }).click();
+    await page.locator('.notifications-toasts', { hasText: 'Phasewright: program exited with code 0' }).waitFor({ state: 'visible', timeout: 120_000 });
+    await page.locator('.output-view .view-line', { hasText: 'instructions retired: 600,427' }).first().waitFor({ state: 'visible' });
+    log('ran crc_sieve.elf through the table in lock-step: exit code 0, its summary in the Phasewright channel');
+    await page.screenshot({ path: join(artifacts, 'run.png') });
 
     step = 'timing diagram';
     await openFile(page, 'halyard-32.pwt');
