@@ -1,0 +1,66 @@
+// Two-level minimisation of whole control stores: the demo machine's store (13 address
+// inputs, 28 outputs) and a generated store-like table of 14 inputs and 32 outputs. For each:
+// our wall time and total product terms, and the same for espresso-iisojs (npm, MIT, an
+// independent Espresso-II for single outputs, run output by output), as ratios from one run.
+// Targets from the project's issue: the whole demo store in <= 1 s; terms <= the reference's.
+import { readFileSync } from 'node:fs';
+import { espresso as referenceEspresso } from 'espresso-iisojs';
+import { analyse } from '../server/src/core/analysis';
+import { encodeMachine } from '../server/src/core/encode/encoder';
+import { storeTruthTable } from '../server/src/core/encode/storeTable';
+import { minimise } from '../server/src/core/logic/minimise';
+import { type TruthTable, verifyCover } from '../server/src/core/logic/truthTable';
+import { randomTable } from '../tests/logic/randomTables';
+import { nowMs, row } from './stats';
+
+/** ON and don't-care minterms of one output as espresso-iisojs cubes (literal 2i+1 = input i true, 2i = false). */
+function cubesOf(table: TruthTable, output: number): { on: number[][]; dc: number[][] } {
+  const on: number[][] = [];
+  const dc: number[][] = [];
+  const bits = table.outputs[output];
+  for (let m = 0; m < 2 ** table.nInputs; m++) {
+    const bit = 1 << (m & 31);
+    const isOn = bits.on[m >>> 5] & bit;
+    const isDc = bits.dc[m >>> 5] & bit;
+    if (!isOn && !isDc) continue;
+    const literals = Array.from({ length: table.nInputs }, (_, i) => 2 * i + ((m >>> i) & 1));
+    (isOn ? on : dc).push(literals);
+  }
+  return { on, dc };
+}
+
+function compare(label: string, table: TruthTable): void {
+  let start = nowMs();
+  const ours = minimise(table, { polarity: 'positive' });
+  const oursMs = nowMs() - start;
+  const oursTerms = ours.outputs.reduce((n, o) => n + o.terms.length, 0);
+  start = nowMs();
+  const best = minimise(table, { polarity: 'best' });
+  const bestMs = nowMs() - start;
+  const bestTerms = best.outputs.reduce((n, o) => n + o.terms.length, 0);
+  let refTerms = 0;
+  let refMs = 0;
+  for (let k = 0; k < table.outputs.length; k++) {
+    const { on, dc } = cubesOf(table, k);
+    start = nowMs();
+    const cover = referenceEspresso(on, dc);
+    refMs += nowMs() - start;
+    refTerms += cover.length;
+    const terms = cover.map((literals) => literals.reduce((t, l) => ({ care: t.care | (1 << (l >> 1)), value: t.value | ((l & 1) << (l >> 1)) }), { care: 0, value: 0 }));
+    if (!verifyCover(table, k, terms).ok) throw new Error(`the reference cover of output ${k} does not verify`);
+  }
+  console.log(`${label}: ${table.nInputs} inputs, ${table.outputs.length} outputs`);
+  row('ours, positive polarity: time', `${oursMs.toFixed(0)} ms`);
+  row('ours, positive polarity: product terms', String(oursTerms));
+  row('ours, polarity chosen per output: time', `${bestMs.toFixed(0)} ms`, label.startsWith('demo') ? '<= 1000 ms' : '');
+  row('ours, polarity chosen per output: terms', String(bestTerms));
+  row('espresso-iisojs, output by output: time', `${refMs.toFixed(0)} ms`);
+  row('espresso-iisojs: product terms', String(refTerms));
+  row('terms ours (positive) / reference', (oursTerms / refTerms).toFixed(3), '<= 1');
+  row('time ours (positive) / reference', (oursMs / refMs).toFixed(3));
+}
+
+const { machine } = analyse(readFileSync('examples/halyard-32.pwt', 'utf8'));
+const encoded = encodeMachine(machine);
+compare('demo store', storeTruthTable(machine, encoded, encoded.stores[0]).table);
+compare('generated store-like table', randomTable(14032, { nInputs: 14, nOutputs: 32, structured: true, onShare: 8, dcShare: 0.55 }));
