@@ -271,5 +271,11 @@ export function registerFeatures(connection: Connection, store: DocumentStore, o
         throw new Error('deliberate failure requested by a test');
       }),
     );
+    // Test-only: the server's memory after a full collection (when started with --expose-gc),
+    // so a soak test can tell growth from garbage not yet collected.
+    connection.onRequest('phasewright/_testMemory', () => {
+      (globalThis as { gc?: () => void }).gc?.();
+      return process.memoryUsage();
+    });
   }
 }

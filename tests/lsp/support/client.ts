@@ -4,7 +4,7 @@
 // test can wait for the one it needs (by version), never for a fixed time.
 import { type ChildProcess, execFileSync, spawn } from 'node:child_process';
 import { existsSync, mkdirSync, readdirSync, rmSync, statSync } from 'node:fs';
-import { join, resolve } from 'node:path';
+import { dirname, join, resolve } from 'node:path';
 import {
   ConfigurationRequest,
   DidChangeConfigurationNotification,
@@ -20,7 +20,12 @@ import {
   createProtocolConnection,
 } from 'vscode-languageserver-protocol/node';
 
-export const root = resolve(__dirname, '../../..');
+/** The repository root: the nearest folder above this file (or the bundle made of it) holding the demo. */
+export const root = (() => {
+  let dir = __dirname;
+  while (!existsSync(join(dir, 'examples/halyard-32.pwt')) && dirname(dir) !== dir) dir = dirname(dir);
+  return existsSync(join(dir, 'examples/halyard-32.pwt')) ? dir : resolve(__dirname, '../../..');
+})();
 export const serverPath = join(root, 'dist/server.js');
 export const cliPath = join(root, 'dist/cli.js');
 
@@ -69,6 +74,8 @@ export interface StartOptions {
   viaCli?: boolean;
   /** Advertise workspace/configuration support (default true). */
   configuration?: boolean;
+  /** Options for the server's Node process, e.g. `--expose-gc`. */
+  nodeArgs?: string[];
 }
 
 export class LspClient {
@@ -89,7 +96,7 @@ export class LspClient {
 
   static async start(options: StartOptions = {}): Promise<LspClient> {
     const args = options.viaCli ? [cliPath, 'lsp', '--stdio'] : [serverPath, '--stdio'];
-    const child = spawn(process.execPath, args, { cwd: root, env: { ...process.env, PHASEWRIGHT_TEST_HOOKS: '1', ...options.env }, stdio: ['pipe', 'pipe', 'pipe'] });
+    const child = spawn(process.execPath, [...(options.nodeArgs ?? []), ...args], { cwd: root, env: { ...process.env, PHASEWRIGHT_TEST_HOOKS: '1', ...options.env }, stdio: ['pipe', 'pipe', 'pipe'] });
     const connection = createProtocolConnection(new StreamMessageReader(child.stdout!), new StreamMessageWriter(child.stdin!));
     const client = new LspClient(child, connection, options);
     client.exitCode = new Promise((resolveExit) => child.on('exit', (code) => resolveExit(code)));
