@@ -4,50 +4,13 @@
 // anything to the user.
 import { ExecuteCommandRequest, type LanguageClient } from 'vscode-languageclient/node';
 
-export type Refusal = { ok: false; reason: string };
+// The answer shapes are the server's own (type-only imports: nothing of the server is bundled
+// into the client).
+import type { BuildAnswer, DiagramAnswer, ListingAnswer, Refusal, SummaryAnswer } from '../../server/src/lsp/editorCommands';
+import type { RunAnswer } from '../../server/src/lsp/runCommand';
 
-export interface BuildAnswer {
-  ok: true;
-  summary: string;
-  folder: string;
-  files: string[];
-  forced: boolean;
-}
-
-export interface ListingAnswer {
-  ok: true;
-  listings: { store: string; name: string; text: string }[];
-  errors: number;
-}
-
-export interface DiagramInput {
-  name: string;
-  width: number;
-  bits: string;
-  given: boolean;
-  onAddress: boolean;
-}
-
-export interface DiagramAnswer {
-  ok: true;
-  svg: string;
-  className: string;
-  atCursor: boolean;
-  classes: string[];
-  inputs: DiagramInput[];
-  instruction?: string;
-  steps: number;
-  errors: number;
-}
-
-export interface SummaryAnswer {
-  ok: true;
-  title?: string;
-  errors: number;
-  warnings: number;
-  infos: number;
-  stores: { name: string; addressBits: number; wordBits: number; chips: number; text: string }[];
-}
+export type { BuildAnswer, DiagramAnswer, ListingAnswer, Refusal, RunAnswer, SummaryAnswer };
+export type DiagramInput = DiagramAnswer['inputs'][number];
 
 export interface DiagramRequest {
   uri: string;
@@ -97,17 +60,4 @@ export class ServerCommands {
   run(argument: { uri: string; program: string; loadAddress?: number }): Promise<RunAnswer | Refusal> {
     return this.call('phasewright.run', argument);
   }
-}
-
-export interface RunAnswer {
-  ok: true;
-  exitCode: number;
-  ending: string;
-  summary: string;
-  stdout: string;
-  stderr: string;
-  outputTruncated: boolean;
-  instructions: number;
-  steps: number;
-  problem?: { kind: 'divergence' | 'fault'; uri: string; range: { start: { line: number; character: number }; end: { line: number; character: number } }; message: string; report: string };
 }

@@ -1,27 +1,15 @@
 // Reads a severity configuration file for `check --config`: JSON, either
 // `{ "severities": { "code": "error|warning|info|off" } }` or the VS Code settings form
 // `{ "phasewright.severity": { ... } }`, so one file serves the editor and the CLI.
-import { readFileSync } from 'node:fs';
 import type { SeverityConfig } from '../core/analysis';
 import { readSeverityTable } from '../core/checks/severitySettings';
-import { describeFsError } from './readSource';
+import { readJsonFile } from './readSource';
 
 export type ConfigResult = { ok: true; severities: SeverityConfig | undefined } | { ok: false; reason: string };
 
 export function loadSeverityConfig(path: string): ConfigResult {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (err) {
-    return { ok: false, reason: describeFsError(path, err) };
-  }
-  let data: unknown;
-  try {
-    data = JSON.parse(text);
-  } catch (err) {
-    return { ok: false, reason: `${path} is not valid JSON: ${(err as Error).message}` };
-  }
-  return parseSeverityConfig(data, path);
+  const json = readJsonFile(path);
+  return json.ok ? parseSeverityConfig(json.data, path) : json;
 }
 
 export function parseSeverityConfig(data: unknown, source: string): ConfigResult {

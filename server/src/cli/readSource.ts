@@ -52,3 +52,18 @@ export function describeFsError(path: string, err: unknown): string {
       return `${path}: ${(err as Error)?.message ?? String(err)}`;
   }
 }
+
+/** Reads and parses a small JSON settings file (severities, pin maps), with one-line reasons. */
+export function readJsonFile(path: string): { ok: true; data: unknown } | { ok: false; reason: string } {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (err) {
+    return { ok: false, reason: describeFsError(path, err) };
+  }
+  try {
+    return { ok: true, data: JSON.parse(text) };
+  } catch (err) {
+    return { ok: false, reason: `${path} is not valid JSON: ${(err as Error).message}` };
+  }
+}

@@ -12,7 +12,7 @@ import { storeTruthTable } from '../../core/encode/storeTable';
 import { buildGalImage, checkGalImage, equationsText, fitDevices, minimise, verilogModule, type DeviceName } from '../../core/logic';
 import { parseArgs } from '../args';
 import type { Command } from '../commands';
-import { readSource, describeFsError } from '../readSource';
+import { readJsonFile, readSource } from '../readSource';
 import { writeOutputSet, ManifestError } from '../output/manifest';
 import { OutputError } from '../output/safeWriter';
 import { VERSION } from '../version';
@@ -148,18 +148,9 @@ export const fitCommand: Command = {
 
 /** A pins file: JSON `{ "signal": pin, ... }`, signals being outputs (`x.rs1.oe`, `alu.fn[2]`) or inputs (`step[0]`). */
 function loadPins(path: string): { ok: true; pins: Record<string, number> } | { ok: false; reason: string } {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (err) {
-    return { ok: false, reason: describeFsError(path, err) };
-  }
-  let data: unknown;
-  try {
-    data = JSON.parse(text);
-  } catch (err) {
-    return { ok: false, reason: `${path} is not valid JSON: ${(err as Error).message}` };
-  }
+  const json = readJsonFile(path);
+  if (!json.ok) return json;
+  const data = json.data;
   if (!data || typeof data !== 'object' || Array.isArray(data)) return { ok: false, reason: `${path} must hold an object of signal: pin` };
   const pins: Record<string, number> = {};
   for (const [name, pin] of Object.entries(data)) {

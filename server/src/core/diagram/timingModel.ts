@@ -4,6 +4,7 @@
 // each bus, and the word each store holds at that step's address (laid by the encoder's
 // `wordForAlternative`, so it equals the ROM images and the listing). It draws nothing; the
 // SVG renderer in timing.ts does.
+import { chipHexOfWord } from '../encode/listing';
 import { PointDecoder, type PointDecode } from '../encode/decodePoint';
 import { addressOf, fillWordOf, wordForAlternative } from '../encode/encoder';
 import { universeOf, type PointInputs } from '../encode/universe';
@@ -147,20 +148,6 @@ function placementText(machine: Machine, signal: string): string | undefined {
 }
 
 /** Chip data of a word (32-bit lanes), chip 0 first, in hex with one digit per 4 bits. */
-export function chipHexOfWord(word: Uint32Array, chipWidths: readonly number[]): string[] {
-  const out: string[] = [];
-  let low = 0;
-  for (const width of chipWidths) {
-    let value = 0;
-    for (let i = width - 1; i >= 0; i--) {
-      const bit = low + i;
-      value = value * 2 + ((word[bit >>> 5] >>> (bit & 31)) & 1);
-    }
-    out.push(toHex(value, Math.ceil(width / 4)));
-    low += width;
-  }
-  return out;
-}
 
 function instructionName(cls: ClassDef, ir: number): string | undefined {
   if (cls.opcode === undefined) return undefined;

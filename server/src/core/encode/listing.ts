@@ -95,7 +95,7 @@ export function writeListing(machine: Machine, encoded: EncodedMachine, enc: Enc
   lines.push(`# machine: ${machine.title || '(untitled)'}    source: ${options.source}    store: ${store.name}`);
   lines.push(`# ${enc.addressBits} address lines (${nAddresses} words); ${word.width}-bit word as ${word.chipWidths.map((w) => `${w}`).join(' + ')} bits${word.chip ? ` in ${word.chip.name} chips` : ''}; chip 0 holds bit 0`);
   lines.push(`# address lines: ${store.address!.sources.map((s) => `${s.label} ${s.lo === s.hi ? s.lo : `${s.lo}..${s.hi}`}`).join('  ')}`);
-  lines.push(`# ${enc.usedCount} words from the table, ${nAddresses - enc.usedCount} hold the fill word (every strobe inactive): ${chipHexOf(enc, enc.fillWord).join(' ')}`);
+  lines.push(`# ${enc.usedCount} words from the table, ${nAddresses - enc.usedCount} hold the fill word (every strobe inactive): ${chipHexOfWord(enc.fillWord, enc.store.word!.chipWidths).join(' ')}`);
   lines.push('# Fields are shown where a step sets them or where they differ from their idle code.');
   lines.push('# Check the images against your chips\' data sheets before programming them.');
   lines.push('#');
@@ -134,10 +134,11 @@ export function writeListing(machine: Machine, encoded: EncodedMachine, enc: Enc
   return lines.join('\n') + '\n';
 }
 
-function chipHexOf(enc: EncodedStore, word: Uint32Array): string[] {
+/** A word (in 32-bit lanes) as hex per chip, chip 0 (the lowest bits) first. */
+export function chipHexOfWord(word: Uint32Array, chipWidths: readonly number[]): string[] {
   const out: string[] = [];
   let low = 0;
-  for (const width of enc.store.word!.chipWidths) {
+  for (const width of chipWidths) {
     let value = 0;
     for (let i = width - 1; i >= 0; i--) {
       const bit = low + i;
