@@ -116,6 +116,11 @@ const isSpace = (code: number): boolean => code === 0x20 || code === 0x09 || cod
  * the width is an error (a simulator would truncate it with at most a warning), as are x/z
  * digits and any address given twice.
  */
+/** The first 40 characters of a token, for messages. */
+function tokenText(bytes: Uint8Array, start: number, end: number): string {
+  return String.fromCharCode(...bytes.subarray(start, Math.min(end, start + 40)));
+}
+
 export function parseMemh(input: Uint8Array | string, widthBits: ChipWidth): FormatResult<MemhContents> {
   const bytes = asBytes(input);
   const nBytes = bytes.length;
@@ -161,11 +166,11 @@ export function parseMemh(input: Uint8Array | string, widthBits: ChipWidth): For
     const tokenStart = isAddress ? offset + 1 : offset;
     let tokenEnd = tokenStart;
     while (tokenEnd < nBytes && !isSpace(bytes[tokenEnd]!) && bytes[tokenEnd] !== 0x2f) tokenEnd++;
-    // The token's text is only needed for messages, so it is built lazily.
-    const token = (): string => String.fromCharCode(...bytes.subarray(tokenStart, Math.min(tokenEnd, tokenStart + 40)));
+    // The token's text is only needed for messages: tokenText builds it there, so nothing is
+    // allocated per word (this loop runs once per word of every image we verify).
     if (tokenEnd === tokenStart) return failure('memh', "'@' must be followed by a hex address", lineNumber);
     if (bytes[tokenStart] === 0x5f) {
-      return failure('memh', `'${token()}' starts with '_', which a number may not`, lineNumber);
+      return failure('memh', `'${tokenText(bytes, tokenStart, tokenEnd)}' starts with '_', which a number may not`, lineNumber);
     }
     let value = 0;
     for (let index = tokenStart; index < tokenEnd; index++) {
@@ -174,17 +179,17 @@ export function parseMemh(input: Uint8Array | string, widthBits: ChipWidth): For
       const digit = hexDigitValue[digitCode]!;
       if (digit < 0) {
         if (!isAddress && (digitCode === 0x78 || digitCode === 0x58 || digitCode === 0x7a || digitCode === 0x5a || digitCode === 0x3f)) {
-          return failure('memh', `'${token()}' has undefined (x or z) bits; a ROM image must hold 0s and 1s`, lineNumber);
+          return failure('memh', `'${tokenText(bytes, tokenStart, tokenEnd)}' has undefined (x or z) bits; a ROM image must hold 0s and 1s`, lineNumber);
         }
-        return failure('memh', `${describeChar(digitCode)} in '${isAddress ? '@' : ''}${token()}' is not a hex digit`, lineNumber);
+        return failure('memh', `${describeChar(digitCode)} in '${isAddress ? '@' : ''}${tokenText(bytes, tokenStart, tokenEnd)}' is not a hex digit`, lineNumber);
       }
       value = value * 16 + digit;
       if (value > (isAddress ? 0xffffffff : limit)) {
         return failure(
           'memh',
           isAddress
-            ? `address '@${token()}' is beyond 32 bits`
-            : `'${token()}' does not fit in ${widthBits} bits (at most ${widthBits / 4} hex digits)`,
+            ? `address '@${tokenText(bytes, tokenStart, tokenEnd)}' is beyond 32 bits`
+            : `'${tokenText(bytes, tokenStart, tokenEnd)}' does not fit in ${widthBits} bits (at most ${widthBits / 4} hex digits)`,
           lineNumber,
         );
       }
