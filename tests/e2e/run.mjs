@@ -335,20 +335,25 @@ async function main() {
     cpSync(saved, join(artifacts, 'halyard-32.BRANCH.svg'));
     log('saved the diagram as a standalone SVG');
 
-    // A picture of the diagram alone: back to BRANCH (the guard choice is kept), editor group maximised.
+    // A picture of the diagram alone, for the documentation. Only a picture: if the layout
+    // change does not happen (focus sometimes stays in the webview), the checks above stand.
     step = 'diagram picture';
-    await page.setViewportSize({ width: 1500, height: 1700 });
-    await page.locator('.tab', { hasText: 'Timing: BRANCH' }).click();
-    // Ctrl+K Ctrl+M: toggle the maximised editor group (the side bar and panel give way too).
-    await page.keyboard.press('Control+K');
-    await page.keyboard.press('Control+M');
-    await page.locator('.tab', { hasText: 'halyard-32.pwt' }).waitFor({ state: 'hidden' });
-    await frame.locator('svg.pw-timing[data-class="BRANCH"]').waitFor({ state: 'visible' });
-    const frameBox = await page.locator('iframe.webview.ready').boundingBox();
-    const svgBox = await frame.locator('svg.pw-timing').boundingBox();
-    if (frameBox && svgBox) {
-      const clip = { x: frameBox.x, y: frameBox.y, width: svgBox.x + svgBox.width + 16 - frameBox.x, height: svgBox.y + svgBox.height + 12 - frameBox.y };
-      await page.screenshot({ path: join(artifacts, 'timing-diagram-alone.png'), animations: 'disabled', clip });
+    try {
+      await page.setViewportSize({ width: 1500, height: 1700 });
+      await page.locator('.tab', { hasText: 'Timing: BRANCH' }).click();
+      // Ctrl+K Ctrl+M: toggle the maximised editor group (the side bar and panel give way too).
+      await page.keyboard.press('Control+K');
+      await page.keyboard.press('Control+M');
+      await page.locator('.tab', { hasText: 'halyard-32.pwt' }).waitFor({ state: 'hidden', timeout: 10_000 });
+      await frame.locator('svg.pw-timing[data-class="BRANCH"]').waitFor({ state: 'visible' });
+      const frameBox = await page.locator('iframe.webview.ready').boundingBox();
+      const svgBox = await frame.locator('svg.pw-timing').boundingBox();
+      if (frameBox && svgBox) {
+        const clip = { x: frameBox.x, y: frameBox.y, width: svgBox.x + svgBox.width + 16 - frameBox.x, height: svgBox.y + svgBox.height + 12 - frameBox.y };
+        await page.screenshot({ path: join(artifacts, 'timing-diagram-alone.png'), animations: 'disabled', clip });
+      }
+    } catch (err) {
+      log(`(no standalone diagram picture: ${err.message.split('\n')[0]})`);
     }
     log('all checks passed');
   } catch (err) {
