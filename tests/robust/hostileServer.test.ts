@@ -1,0 +1,46 @@
+// Hostile documents sent to the language server: binary-looking text with NUL and control
+// characters, lone surrogates (what an editor shows for invalid UTF-8), and a 50 MB document.
+// Each gets diagnostics (or the one "too large" diagnostic) and the server keeps answering.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { LspClient, ensureBuilt, root } from '../lsp/support/client';
+
+let client: LspClient;
+const demo = readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8');
+
+beforeAll(async () => {
+  await ensureBuilt();
+  client = await LspClient.start();
+}, 120_000);
+
+afterAll(async () => {
+  expect(await client.stop()).toBe(0);
+});
+
+describe('hostile documents in the language server', () => {
+  it('analyses binary-looking text with NUL bytes, control characters and lone surrogates', async () => {
+    const binary = Array.from({ length: 4096 }, (_, i) => String.fromCharCode((i * 37) % 256)).join('');
+    const uris = ['nul', 'surrogates'].map((n) => `file:///hostile/${n}.pwt`);
+    client.open(uris[0], 'bus a\u0000 8\n' + binary, 1);
+    client.open(uris[1], 'bus \ud800 32\n' + demo.slice(0, 500) + '\udc00\ud83d', 1);
+    for (const uri of uris) {
+      const published = await client.diagnosticsOf(uri, 1);
+      expect(published.diagnostics.length).toBeGreaterThan(0);
+      expect(published.diagnostics.every((d) => typeof d.message === 'string' && d.message.length > 0)).toBe(true);
+    }
+  });
+
+  it('declines a 50 MB document with one diagnostic instead of freezing, and keeps answering', async () => {
+    const uri = 'file:///hostile/huge.pwt';
+    const huge = demo.repeat(Math.ceil((50 * 1024 * 1024) / demo.length));
+    client.open(uri, huge, 1);
+    const published = await client.diagnosticsOf(uri, 1);
+    expect(published.diagnostics.map((d) => d.code)).toEqual(['file-too-large']);
+    const small = 'file:///hostile/after.pwt';
+    client.open(small, demo, 1);
+    expect((await client.diagnosticsOf(small, 1)).diagnostics).toEqual([]);
+    const hover = await client.request<{ contents: { value: string } } | null>('textDocument/hover', { textDocument: { uri: small }, position: { line: demo.split('\n').findIndex((l) => l.startsWith('bus left')), character: 5 } });
+    expect(hover?.contents.value).toContain('bus `left`');
+  }, 120_000);
+});
