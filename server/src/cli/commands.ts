@@ -22,7 +22,7 @@ const commands: Command[] = [checkCommand, explainCommand, buildCommand, diffCom
 
 export function usage(): string {
   const lines = ['Phasewright: control tables for microcoded RV32I processors built from discrete logic.', '', 'Usage:'];
-  for (const c of commands) lines.push(`  phasewright ${c.usage.padEnd(58)} ${c.summary}`);
+  for (const c of commands) lines.push(`  phasewright ${c.usage}`, `      ${c.summary}`);
   lines.push('', 'Exit codes: 0 success, 1 problems found in the table, 2 usage or file errors;', '`run` exits with the program\'s own exit code (see docs/simulator.md for the others).');
   return lines.join('\n') + '\n';
 }
