@@ -64,13 +64,13 @@ describe('phasewright check', () => {
   it('refuses what is not a table with one line and exit 2: missing, directory, binary, not UTF-8, too large', async () => {
     writeFileSync(join(tmp, 'nul.pwt'), Buffer.from([0x62, 0x75, 0x73, 0x00, 0x01]));
     writeFileSync(join(tmp, 'latin1.pwt'), Buffer.from([0x62, 0xe9, 0x0a]));
-    writeFileSync(join(tmp, 'huge.pwt'), Buffer.alloc(5 * 1024 * 1024 + 1, 0x23));
+    writeFileSync(join(tmp, 'huge.pwt'), Buffer.alloc(50 * 1024 * 1024, 0x23));
     const cases: [string, string][] = [
       ['tests/.tmp/cli-check/missing.pwt', 'missing.pwt: no such file'],
       ['examples', 'examples is a directory; give a .pwt file'],
       ['tests/.tmp/cli-check/nul.pwt', 'contains NUL bytes: it looks like a binary file'],
       ['tests/.tmp/cli-check/latin1.pwt', 'is not valid UTF-8 text'],
-      ['tests/.tmp/cli-check/huge.pwt', 'is 5.0 MB; control tables larger than 5 MB are refused'],
+      ['tests/.tmp/cli-check/huge.pwt', 'is 50.0 MB; control tables larger than 5 MB are refused'],
     ];
     for (const [file, message] of cases) {
       const r = await run('check', file);
