@@ -2,6 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { dedent, expectDiagnostics } from '../support/annotated';
+import { decoderStoreTable } from '../support/fixtures';
 import { prelude } from './prelude';
 
 const base = dedent(`
@@ -140,33 +141,7 @@ describe('not-addressable and store-ambiguous', () => {
   });
 
   it('store-ambiguous is silent for a decoder store holding a field that only execute steps set', () => {
-    const text = dedent(`
-      bus result 8
-      part a register 8
-      part b register 8
-      part alu alu result result
-      strobe a.oe enable a -> result active low
-      strobe alu.oe enable alu -> result active low
-      strobe b.ck clock result -> b
-      strobe done end
-      field alu.fn 4 -> alu { add=0 sub=8 passa=14 }
-      store main
-        word 8 as 1 x 8
-          a.oe 0  alu.oe 1  b.ck 2  done 3
-        address 7
-          step 0..1  opcode 2..6
-      store decode
-        word 8 as 1 x 8
-          alu.fn 0..3
-        address 5
-          opcode 0..4
-      class OP opcode=0110011
-        0: a.oe, b.ck
-        1: alu.fn=add, alu.oe, b.ck, done
-      class SUBTRACT opcode=0001011
-        0: a.oe, b.ck
-        1: alu.fn=sub, alu.oe, b.ck, done
-    `);
+    const text = decoderStoreTable;
     expect(analyse(text).diagnostics.map((d) => d.code)).toEqual([]);
   });
 });

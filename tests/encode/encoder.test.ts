@@ -6,7 +6,7 @@ import { analyse } from '../../server/src/core/analysis';
 import { addressOf, decodeWord, encodeMachine, fillWordOf } from '../../server/src/core/encode/encoder';
 import { pointInputs } from '../../server/src/core/encode/universe';
 import { chipImagesOf } from '../../server/src/core/encode/plan';
-import { dedent } from '../support/annotated';
+import { decoderStoreTable } from '../support/fixtures';
 
 const demoText = readFileSync(new URL('../../examples/halyard-32.pwt', import.meta.url), 'utf8');
 
@@ -58,33 +58,7 @@ describe('encoder', () => {
   });
 
   it('encodes each store of a file on its own, merging what a step leaves open', () => {
-    const text = dedent(`
-      bus result 8
-      part a register 8
-      part b register 8
-      part alu alu result result
-      strobe a.oe enable a -> result active low
-      strobe alu.oe enable alu -> result active low
-      strobe b.ck clock result -> b
-      strobe done end
-      field alu.fn 4 -> alu idle=passa { add=0 sub=8 passa=14 }
-      store main
-        word 8 as 1 x 8
-          a.oe 0  alu.oe 1  b.ck 2  done 3
-        address 7
-          step 0..1  opcode 2..6
-      store decode
-        word 8 as 1 x 8
-          alu.fn 0..3
-        address 5
-          opcode 0..4
-      class OP opcode=0110011
-        0: a.oe, b.ck
-        1: alu.fn=add, alu.oe, b.ck, done
-      class SUBTRACT opcode=0001011
-        0: a.oe, b.ck
-        1: alu.fn=sub, alu.oe, b.ck, done
-    `);
+    const text = decoderStoreTable;
     const { machine, diagnostics } = analyse(text);
     expect(diagnostics).toEqual([]);
     const encoded = encodeMachine(machine);
