@@ -6,8 +6,10 @@ export interface Io {
   err(text: string): void;
   cwd: string;
   env: Record<string, string | undefined>;
-  /** Whether stdout is a terminal (colour and progress only then). */
+  /** Whether stdout is a terminal (colour only then). */
   isTty: boolean;
+  /** Whether stderr is a terminal (progress lines only then). */
+  errIsTty?: boolean;
 }
 
 export function nodeIo(): Io {
@@ -17,6 +19,7 @@ export function nodeIo(): Io {
     cwd: process.cwd(),
     env: process.env,
     isTty: !!process.stdout.isTTY,
+    errIsTty: !!process.stderr.isTTY,
   };
 }
 
