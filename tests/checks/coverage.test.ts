@@ -3,7 +3,7 @@
 // reach) and disjoint, class opcodes are usable.
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
-import { expectDiagnostics } from '../support/annotated';
+import { dedent, expectDiagnostics } from '../support/annotated';
 import { machine } from './prelude';
 import { readFileSync } from 'node:fs';
 
@@ -45,6 +45,61 @@ describe('instruction-uncovered', () => {
         use fetch
         2: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=bad_imm, alu.oe, x.rd.ck, done
       #                                 ^^^^^^^^^^^^^^ instruction-uncovered: no row for addi (funct3=000, f7b5=1)
+    `);
+    expectDiagnostics(text, ['instruction-uncovered']);
+  });
+
+  // RV32I: slli, srli, srai are OP-IMM with funct3 = 001 and 101; the others never have them.
+  // Shifts end at step 2; what the other instructions run after that is the fixture's tail.
+  const shiftsEndEarly = (plainRows: string, tail: string) =>
+    machine(`
+      map plain_fn (funct3) -> alu.fn
+        ${plainRows}
+      map shift_fn (funct3, f7b5) -> alu.fn
+        001 0 sll   101 0 srl   101 1 sra
+      class OP-IMM opcode=0010011
+        use fetch
+        2 if funct3=-01: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=shift_fn, alu.oe, x.rd.ck, done
+    `) + dedent(tail);
+  const allPlain = '000 add   010 slt   011 sltu   100 xor   110 or   111 and';
+
+  it('follows each instruction along its guards: a map in a step shifts never reach needs no shift rows', () => {
+    expectDiagnostics(
+      shiftsEndEarly(allPlain, `
+          2 else: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=passa, alu.oe, t.ck
+          3: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=plain_fn, alu.oe, x.rd.ck, done
+      `),
+      ['instruction-uncovered'],
+    );
+  });
+
+  it('checks the map of an else line only for the instructions that fall to it', () => {
+    expectDiagnostics(shiftsEndEarly(allPlain, `
+        2 else: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=plain_fn, alu.oe, x.rd.ck, done
+    `), ['instruction-uncovered']);
+  });
+
+  it('still names an instruction that reaches the step and finds no row there', () => {
+    expectDiagnostics(
+      shiftsEndEarly('000 add   010 slt   011 sltu   100 xor   110 or', `
+          2 else: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=passa, alu.oe, t.ck
+          3: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=plain_fn, alu.oe, x.rd.ck, done
+        #                                 ^^^^^^^^^^^^^^^ instruction-uncovered: no row for andi (funct3=111)
+      `),
+      ['instruction-uncovered'],
+    );
+  });
+
+  it('checks a map under a flag guard only for the flag value that reaches it', () => {
+    // The map reads the flag; the line applies only when taken = 1, so rows for taken = 0 are not needed.
+    const text = machine(`
+      map taken_fn (funct3, taken) -> alu.fn
+        --- 1 add
+      class BRANCH opcode=1100011
+        use fetch
+        2: x.rs1.oe, x.rs2.oe, cmp.ck
+        3 if taken: pc.oe, imm.fmt=b, imm.oe, alu.fn=taken_fn, alu.oe, pc.ck, done
+        3 else: pc.inc, done
     `);
     expectDiagnostics(text, ['instruction-uncovered']);
   });

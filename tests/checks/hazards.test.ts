@@ -172,8 +172,44 @@ describe('writes to x0 and rd', () => {
     const d = a.diagnostics.filter((x) => x.code === 'x0-stored-write');
     expect(d).toHaveLength(1);
     expect(a.text.slice(d[0].span.start, d[0].span.end)).toBe('x');
-    expect(d[0].message).toContain('addi x0, x0, 0');
+    expect(d[0].message).toContain('add with rd = x0 would store into x0');
     expect(analyse(stored.replace('x0=stored', 'x0=guarded')).diagnostics.filter((x) => x.code === 'x0-stored-write')).toHaveLength(0);
+  });
+});
+
+describe('x0-stored-write decides from the guards', () => {
+  // RV32I: rd is instruction bits 11..7 in every format that has it (Unprivileged ISA §2.2).
+  const guardedInMicrocode = (guard: string) =>
+    dedent(`
+      bus result 32
+      part ir instruction 32
+      part x regfile 32 x0=stored
+      part t register 32
+      strobe t.oe   enable t -> result active low
+      strobe x.rd.ck clock result -> x.rd
+      strobe ir.ck  clock result -> ir
+      strobe done   end
+      word 8 as 1 x 8
+        t.oe 0  x.rd.ck 1  ir.ck 2  done 3
+      address 7
+        step 0..1  ir[11:7] 2..6
+      class OP opcode=0110011
+        0: t.oe, ir.ck
+        1 if ${guard}: done
+        1 else: t.oe, x.rd.ck, done
+    `);
+
+  it('is silent when the write happens only under a guard that excludes rd = 00000', () => {
+    const a = analyse(guardedInMicrocode('ir[11:7]=00000'));
+    expect(a.diagnostics).toEqual([]);
+  });
+
+  it('fires when the guard lets rd = 00000 through to the write, naming the step that writes', () => {
+    const a = analyse(guardedInMicrocode('ir[11:7]=00001'));
+    const d = a.diagnostics.filter((x) => x.code === 'x0-stored-write');
+    expect(d).toHaveLength(1);
+    expect(d[0].related?.map((r) => a.text.slice(r.span.start, r.span.end))).toEqual(['x.rd.ck']);
+    expect(d[0].message).toContain('1 step(s) write rd with nothing to stop rd = x0');
   });
 });
 

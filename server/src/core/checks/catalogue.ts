@@ -103,7 +103,7 @@ export const catalogue: CodeInfo[] = [
     code: 'x0-stored-write',
     severity: 'error',
     title: 'x0 is a stored register and nothing stops writes to it',
-    explanation: 'The register file keeps x0 in a real register (x0=stored), and classes write rd without suppression. RV32I instructions with rd = x0 are common (the canonical NOP is `addi x0, x0, 0`; `jal x0, label` is a plain jump): each would store into x0. Declare `x0=hardwired` (x0 reads as zero, writes ignored) or `x0=guarded` (a zero detector on rd blocks the clock).',
+    explanation: 'The register file keeps x0 in a real register (x0=stored), and classes write rd without suppression. RV32I instructions with rd = x0 are common (the canonical NOP is `addi x0, x0, 0`; `jal x0, label` is a plain jump): each would store into x0. Declare `x0=hardwired` (x0 reads as zero, writes ignored) or `x0=guarded` (a zero detector on rd blocks the clock), or protect x0 in the microcode: put the rd bits on the address lines (`ir[11:7]`) and write rd only on a line whose guard excludes rd = 00000 (`N if ir[11:7]=00000: ...` without the write, `N else: ..., x.rd.ck`). The check follows every instruction with rd = x0 from step 0 along its guards and reports only the writes it reaches.',
   },
   {
     code: 'undriven-latch',
@@ -121,7 +121,7 @@ export const catalogue: CodeInfo[] = [
     code: 'instruction-uncovered',
     severity: 'error',
     title: 'an RV32I instruction is not decoded',
-    explanation: 'An RV32I instruction reaches no class (no class has its opcode), or a decode map used by its class has no row for its funct3/funct7 bits. Its control-store addresses hold the fill word: the processor does nothing for it, silently. Add the class or the map row.',
+    explanation: 'An RV32I instruction reaches no class (no class has its opcode), or a decode map used by its class has no row for its funct3/funct7 bits. Its control-store addresses hold the fill word: the processor does nothing for it, silently. Add the class or the map row. Coverage follows what each instruction actually runs: its steps from step 0 along its guards until a step ends it, so a map on a line the instruction never reaches (a guard it does not meet, a step after its end) needs no row for it.',
   },
   {
     code: 'class-no-end',

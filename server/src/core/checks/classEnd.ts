@@ -1,20 +1,19 @@
 // class-no-end: every RV32I instruction of a class, for every flag value at every step, must
 // reach a step that asserts an end-of-instruction strobe before the step counter runs out.
-// Otherwise the counter wraps and the processor never fetches the next instruction.
+// Otherwise the counter wraps and the processor never fetches the next instruction. The walk
+// itself is reach.ts's.
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 import type { Fix } from '../text/diagnostic';
 import { type Check, type CheckContext } from './context';
-import { bitsOf, describeScenario, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from './inputSpace';
+import { describeScenario, guardInputs, instructionCube, instructionsOfClass } from './inputSpace';
+import { altEnds, instructionPaths } from './reach';
 
 export const classEnd: Check = {
   codes: ['class-no-end'],
   run(ctx) {
-    // The names of the end-of-instruction strobes (usually one): an action ends the
-    // instruction exactly when it asserts one of them.
-    const endStrobes = [...ctx.machine.signals.values()].filter((s) => s.type === 'strobe' && s.kind === 'end').map((s) => s.name);
     for (const cls of ctx.machine.classes) {
       if (cls.steps.size === 0) continue;
-      const ends = (alt: StepAlt) => alt.actions.some((a) => endStrobes.includes(a.signal));
+      const ends = (alt: StepAlt) => altEnds(ctx.machine, alt);
       const allAlts = [...cls.steps.values()].flat();
       if (!allAlts.some(ends)) {
         ctx.report(
@@ -26,7 +25,7 @@ export const classEnd: Check = {
         );
         continue;
       }
-      const stuck = firstStuckPath(ctx.machine, cls, ends);
+      const stuck = firstStuckPath(ctx.machine, cls);
       if (stuck) {
         const lastStep = Math.max(...cls.steps.keys());
         const lastAlts = cls.steps.get(lastStep)!;
@@ -42,41 +41,16 @@ export const classEnd: Check = {
 };
 
 /** Describes the first instruction and input combination that runs past the last step. */
-function firstStuckPath(machine: Machine, cls: ClassDef, ends: (alt: StepAlt) => boolean): string | undefined {
-  // A step none of whose alternatives ends the instruction lets every path continue, so only
-  // steps with an end strobe can stop a path; the others need no scenario at all.
-  const steps = [...cls.steps.keys()].sort((a, b) => a - b).filter((step) => cls.steps.get(step)!.some(ends));
-  const { irMask, flags } = guardInputs([...cls.steps.values()].flat());
-  const free = bitsOf(irMask);
-  if (free.length + flags.length > 16) return undefined;
+function firstStuckPath(machine: Machine, cls: ClassDef): string | undefined {
+  const { irMask } = guardInputs([...cls.steps.values()].flat());
   const specs = instructionsOfClass(cls);
   const cubes = specs.length ? specs.map((s) => ({ name: s.mnemonic, cube: instructionCube(s) })) : [{ name: 'its opcode', cube: { mask: 0, value: 0 } }];
   for (const { name, cube } of cubes) {
-    const freeHere = free.filter((b) => !((cube.mask >>> b) & 1));
-    // Instruction bits stay fixed for the whole instruction; flags may change at any step, so
-    // a path survives a step if any flag value lets it continue.
-    for (const irScenario of scenarios(cube, freeHere, [])) {
-      let alive = true;
-      const flagScenarios = [...scenarios(irScenario.ir, [], flags)];
-      for (const step of steps) {
-        const alts = cls.steps.get(step)!;
-        let continues = false;
-        for (const scenario of flagScenarios) {
-          const matching = matchingAlternatives(alts, scenario);
-          if (matching.length === 0 || !matching.every(ends)) continues = true;
-        }
-        if (!continues) {
-          alive = false;
-          break;
-        }
-      }
-      if (alive) {
-        const detail = describeScenario(irScenario, (irMask & ~cube.mask) >>> 0, []);
-        return `${name}${detail ? ` (${detail})` : ''}`;
-      }
-    }
+    const stuck = instructionPaths(machine, cls, cube)?.find((path) => path.lastStep === undefined);
+    if (!stuck) continue;
+    const detail = describeScenario({ ir: stuck.ir, flags: new Map() }, (irMask & ~cube.mask) >>> 0, []);
+    return `${name}${detail ? ` (${detail})` : ''}`;
   }
-  void machine;
   return undefined;
 }
 

@@ -1,11 +1,13 @@
 // instruction-uncovered: each of the 40 RV32I instructions must reach a class (by opcode) and,
-// in every step it can reach, find a row in each decode map that step uses. Otherwise its
-// control-store addresses hold the fill word and the processor silently does nothing for it.
+// in every step it reaches (walked from step 0 along its guards until it ends, reach.ts), find a
+// row in each decode map that step's line uses. Otherwise its control-store addresses hold the
+// fill word and the processor silently does nothing for it.
 import { MAJOR_OPCODES, RV32I_INSTRUCTIONS } from '../isa/rv32i';
 import { matchesBits, toBinary } from '../model/numbers';
-import type { DecodeMap } from '../model/types';
+import type { ClassDef, DecodeMap, StepAlt } from '../model/types';
 import { type Check } from './context';
 import { type Cube, type Scenario, bitsOf, cubeOfBits, instructionCube, intersect, scenarios } from './inputSpace';
+import { type ReachedAlt, reachedAlternatives } from './reach';
 
 export const instructionCoverage: Check = {
   codes: ['instruction-uncovered'],
@@ -25,34 +27,29 @@ export const instructionCoverage: Check = {
       );
     }
     const reported = new Set<string>();
-    // Many steps use the same map under the same guard: decide each combination once.
+    // Many steps use the same map for the same bits: decide each combination once.
     const uncovered = new Map<string, string | undefined>();
-    const firstUncoveredOnce = (map: DecodeMap, cube: Cube) => {
-      const key = `${map.name}:${cube.mask}:${cube.value}`;
-      if (!uncovered.has(key)) uncovered.set(key, firstUncovered(map, cube));
+    const firstUncoveredOnce = (map: DecodeMap, cube: Cube, flagValues: Map<string, number>[]) => {
+      const key = `${map.name}:${cube.mask}:${cube.value}:${flagValues.map((f) => [...f].join()).join('|')}`;
+      if (!uncovered.has(key)) uncovered.set(key, firstUncovered(map, cube, flagValues));
       return uncovered.get(key);
     };
     for (const cls of machine.classes) {
       // Only alternatives that use a decode map can leave an instruction undecoded.
-      const withMaps = [...cls.steps.values()].flat().filter((alt) => alt.actions.some((a) => a.value?.kind === 'map'));
-      if (withMaps.length === 0) continue;
-      // The instruction bits each alternative's guard fixes (flag terms do not narrow them);
-      // undefined when its terms contradict each other.
-      const altCubes = withMaps.map((alt) =>
-        (alt.guard ?? []).reduce<Cube | undefined>((acc, lit) => (acc && lit.input.kind === 'ir' ? intersect(acc, cubeOfBits(lit.input.hi, lit.input.lo, lit.bits)) : acc), { mask: 0, value: 0 }),
-      );
+      const usesMap = (alt: StepAlt) => alt.actions.some((a) => a.value?.kind === 'map');
+      if (![...cls.steps.values()].flat().some(usesMap)) continue;
       for (const spec of RV32I_INSTRUCTIONS) {
         if (spec.opcode !== cls.opcode) continue;
-        const cube = instructionCube(spec);
-        for (const [index, alt] of withMaps.entries()) {
-          const altCube = altCubes[index];
-          const guardCube = altCube && intersect(cube, altCube);
-          if (!guardCube) continue;
+        // Follow the instruction from step 0 along its guards until it ends: a map in a step
+        // it never reaches, or on a line whose guard it never meets, needs no row for it.
+        const reached = reachedAlternatives(machine, cls, instructionCube(spec)) ?? everyAlternative(cls, instructionCube(spec));
+        for (const { alt, path, flagValues } of reached) {
+          if (!usesMap(alt)) continue;
           for (const action of alt.actions) {
             if (action.value?.kind !== 'map') continue;
             const map = machine.maps.get(action.value.map);
             if (!map) continue;
-            const missing = firstUncoveredOnce(map, guardCube);
+            const missing = firstUncoveredOnce(map, path.ir, flagValues);
             if (!missing) continue;
             const key = `${action.span.start}:${spec.mnemonic}`;
             if (reported.has(key)) continue;
@@ -70,8 +67,21 @@ export const instructionCoverage: Check = {
   },
 };
 
+/**
+ * For a class whose guards test too many inputs to walk: every alternative whose
+ * instruction-bit terms the instruction can meet, as if every step were reached.
+ */
+function everyAlternative(cls: ClassDef, cube: Cube): ReachedAlt[] {
+  const reached: ReachedAlt[] = [];
+  for (const alt of [...cls.steps.values()].flat()) {
+    const guardCube = (alt.guard ?? []).reduce<Cube | undefined>((acc, lit) => (acc && lit.input.kind === 'ir' ? intersect(acc, cubeOfBits(lit.input.hi, lit.input.lo, lit.bits)) : acc), cube);
+    if (guardCube) reached.push({ alt, path: { ir: guardCube, lastStep: undefined }, flagValues: [] });
+  }
+  return reached;
+}
+
 /** Describes the first input combination of an instruction that no row of the map matches. */
-function firstUncovered(map: DecodeMap, cube: Cube): string | undefined {
+function firstUncovered(map: DecodeMap, cube: Cube, flagValues: Map<string, number>[]): string | undefined {
   let freeMask = 0;
   const flags: string[] = [];
   for (const input of map.inputs) {
@@ -80,6 +90,8 @@ function firstUncovered(map: DecodeMap, cube: Cube): string | undefined {
   }
   const free = bitsOf((freeMask & ~cube.mask) >>> 0);
   for (const scenario of scenarios(cube, free, flags)) {
+    // Flag values under which the line never applies need no row.
+    if (flagValues.length && !flagValues.some((values) => flags.every((f) => !values.has(f) || values.get(f) === scenario.flags.get(f)))) continue;
     if (map.rows.some((row) => rowMatches(map, row.patterns, scenario))) continue;
     return map.inputs.map((input, i) => `${input.label}=${inputValue(map, i, scenario)}`).join(', ');
   }

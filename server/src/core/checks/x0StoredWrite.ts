@@ -1,30 +1,63 @@
 // x0-stored-write: the register file keeps x0 in a real register (x0=stored) and some class
-// writes rd without suppression. RV32I instructions with rd = x0 are common (the canonical
-// NOP `addi x0, x0, 0`, plain jumps `jal x0, ...`), and each would store into x0.
-import { type Check, classAlternatives, strobeOf } from './context';
+// writes rd where rd can be x0. RV32I instructions with rd = x0 are common (the canonical NOP
+// `addi x0, x0, 0`, plain jumps `jal x0, ...`), and each would store into x0. The microcode
+// may protect x0 itself: with the rd bits (11..7) on the address lines, a write only under a
+// guard that excludes rd = 00000 never happens for rd = x0. So the check walks every
+// instruction of every class with rd = 00000 from step 0 along its guards (reach.ts) and
+// reports the rd writes such a walk reaches.
+import { RV32I_INSTRUCTIONS } from '../isa/rv32i';
+import type { Action } from '../model/types';
 import type { RelatedInfo } from '../text/diagnostic';
+import { type Check, classAlternatives, strobeOf } from './context';
+import { cubeOfBits, instructionCube, intersect } from './inputSpace';
+import { reachedAlternatives } from './reach';
+
+/** Instruction bits 11..7 (rd) all zero: RISC-V Unprivileged ISA §2.2, every format with rd. */
+const rdIsX0 = cubeOfBits(11, 7, '00000');
 
 export const x0StoredWrite: Check = {
   codes: ['x0-stored-write'],
   run(ctx) {
-    for (const part of ctx.machine.parts.values()) {
+    const machine = ctx.machine;
+    for (const part of machine.parts.values()) {
       if (part.kind !== 'regfile' || part.x0 !== 'stored') continue;
+      const writesRd = (action: Action) => {
+        const strobe = strobeOf(machine, action);
+        return !!strobe && strobe.part === part.name && strobe.kind === 'clock' && strobe.port === 'rd';
+      };
       const writes: RelatedInfo[] = [];
       const seen = new Set<number>();
-      for (const { cls, alt } of classAlternatives(ctx.machine)) {
-        for (const action of alt.actions) {
-          const strobe = strobeOf(ctx.machine, action);
-          if (!strobe || strobe.part !== part.name || strobe.kind !== 'clock' || strobe.port !== 'rd') continue;
-          if (seen.has(action.span.start)) continue;
-          seen.add(action.span.start);
-          writes.push({ span: action.span, message: `class ${cls.name} writes rd here` });
+      const victims = new Set<string>();
+      const note = (cls: string, action: Action) => {
+        if (seen.has(action.span.start)) return;
+        seen.add(action.span.start);
+        writes.push({ span: action.span, message: `class ${cls} writes rd here` });
+      };
+      for (const cls of machine.classes) {
+        const specs = RV32I_INSTRUCTIONS.filter((s) => s.opcode === cls.opcode);
+        // A class with no RV32I instruction (a custom opcode) is walked with its opcode alone.
+        const cubes = specs.length ? specs.map((s) => ({ name: s.mnemonic, cube: instructionCube(s) })) : [{ name: `class ${cls.name}`, cube: { mask: 0, value: 0 } }];
+        for (const { name, cube } of cubes) {
+          const withX0 = intersect(cube, rdIsX0);
+          if (!withX0) continue;
+          const reached = reachedAlternatives(machine, cls, withX0);
+          // Too many guard inputs to walk: every rd write of the class counts.
+          const alts = reached ? reached.map((r) => r.alt) : classAlternatives(machine).filter((c) => c.cls === cls).map((c) => c.alt);
+          for (const alt of alts) {
+            for (const action of alt.actions) {
+              if (!writesRd(action)) continue;
+              note(cls.name, action);
+              victims.add(name);
+            }
+          }
         }
       }
       if (writes.length === 0) continue;
+      const example = victims.has('addi') ? '`addi x0, x0, 0` (the canonical NOP)' : `${[...victims][0]} with rd = x0`;
       ctx.report(
         'x0-stored-write',
         part.symbol.span,
-        `register file \`${part.name}\` stores x0 in a real register and ${writes.length} step(s) write rd with nothing to stop rd = x0: \`addi x0, x0, 0\` (the canonical NOP) would store into x0; declare \`x0=hardwired\` or \`x0=guarded\``,
+        `register file \`${part.name}\` stores x0 in a real register and ${writes.length} step(s) write rd with nothing to stop rd = x0: ${example} would store into x0; declare \`x0=hardwired\` or \`x0=guarded\`, or write rd only under a guard that excludes \`ir[11:7]=00000\``,
         writes.slice(0, 20),
       );
     }

@@ -1,0 +1,112 @@
+// Which steps an instruction reaches: its walk through its class from step 0, as the step
+// counter and the address lines take it. The instruction's bits stay fixed for the whole
+// instruction; flags may change at any step, so a path goes on past a step when some flag
+// value lets it (an alternative that does not end, or none that applies, which is the fill
+// word and never ends). Every step before the first one that ends for all flag values is
+// reached; the steps after it are not. The checks that ask "what does this instruction run"
+// (coverage, class end, stored x0 writes) share this one walk.
+//
+// Deliberately not here: what an instruction does in the steps it reaches (the checks decide),
+// and the encoded images (this reasons on the table; checks/entryReach.ts on the images).
+import type { ClassDef, Machine, StepAlt } from '../model/types';
+import { type Cube, type Scenario, bitsOf, guardInputs, matchingAlternatives, scenarios } from './inputSpace';
+
+/** One way through a class: the instruction bits its guards test fixed, and where it stops. */
+export interface InstructionPath {
+  /** The instruction's cube with every bit the class's guards test fixed. */
+  ir: Cube;
+  /** The step that ends the instruction for every flag value, or undefined: it runs off the last step. */
+  lastStep: number | undefined;
+}
+
+/** An alternative an instruction reaches, with the flag values under which it applies. */
+export interface ReachedAlt {
+  alt: StepAlt;
+  path: InstructionPath;
+  flagValues: Map<string, number>[];
+}
+
+const endStrobeCache = new WeakMap<Machine, ReadonlySet<string>>();
+
+/** The names of the end-of-instruction strobes (usually one). */
+export function endStrobes(machine: Machine): ReadonlySet<string> {
+  let names = endStrobeCache.get(machine);
+  if (!names) {
+    names = new Set([...machine.signals.values()].filter((s) => s.type === 'strobe' && s.kind === 'end').map((s) => s.name));
+    endStrobeCache.set(machine, names);
+  }
+  return names;
+}
+
+/** Whether an alternative ends the instruction (asserts an end strobe). */
+export function altEnds(machine: Machine, alt: StepAlt): boolean {
+  const names = endStrobes(machine);
+  return alt.actions.some((a) => names.has(a.signal));
+}
+
+/** Most inputs a walk enumerates (instruction bits plus flags); beyond, callers fall back. */
+export const maxWalkInputs = 16;
+
+/**
+ * The paths of the instructions in `cube` through `cls`: one per combination of the
+ * instruction bits the class's guards test (those `cube` leaves free). Undefined when there
+ * are more than `maxWalkInputs` of them and flags together.
+ */
+export function instructionPaths(machine: Machine, cls: ClassDef, cube: Cube): InstructionPath[] | undefined {
+  const all = [...cls.steps.values()].flat();
+  const { irMask, flags } = guardInputs(all);
+  const free = bitsOf((irMask & ~cube.mask) >>> 0);
+  if (free.length + flags.length > maxWalkInputs) return undefined;
+  // A step none of whose alternatives ends lets every path on: only the others can stop one.
+  const stopping = [...cls.steps.keys()].sort((a, b) => a - b).filter((step) => cls.steps.get(step)!.some((alt) => altEnds(machine, alt)));
+  const paths: InstructionPath[] = [];
+  for (const irScenario of scenarios(cube, free, [])) {
+    const flagScenarios = [...scenarios(irScenario.ir, [], flags)];
+    let lastStep: number | undefined;
+    for (const step of stopping) {
+      const alts = cls.steps.get(step)!;
+      const goesOn = flagScenarios.some((scenario) => {
+        const matching = matchingAlternatives(alts, scenario);
+        return matching.length === 0 || !matching.every((alt) => altEnds(machine, alt));
+      });
+      if (!goesOn) {
+        lastStep = step;
+        break;
+      }
+    }
+    paths.push({ ir: irScenario.ir, lastStep });
+  }
+  return paths;
+}
+
+/** Whether a path reaches a step. */
+export function reaches(path: InstructionPath, step: number): boolean {
+  return path.lastStep === undefined || step <= path.lastStep;
+}
+
+/**
+ * Every alternative the instructions in `cube` reach in `cls`, once per path, with the flag
+ * values under which it applies there. Undefined when the walk has too many inputs.
+ */
+export function reachedAlternatives(machine: Machine, cls: ClassDef, cube: Cube): ReachedAlt[] | undefined {
+  const paths = instructionPaths(machine, cls, cube);
+  if (!paths) return undefined;
+  const { flags } = guardInputs([...cls.steps.values()].flat());
+  const reached: ReachedAlt[] = [];
+  for (const path of paths) {
+    const flagScenarios: Scenario[] = [...scenarios(path.ir, [], flags)];
+    for (const [step, alts] of cls.steps) {
+      if (!reaches(path, step)) continue;
+      const byAlt = new Map<StepAlt, Map<string, number>[]>();
+      for (const scenario of flagScenarios) {
+        for (const alt of matchingAlternatives(alts, scenario)) {
+          const list = byAlt.get(alt);
+          if (list) list.push(scenario.flags);
+          else byAlt.set(alt, [scenario.flags]);
+        }
+      }
+      for (const [alt, flagValues] of byAlt) reached.push({ alt, path, flagValues });
+    }
+  }
+  return reached;
+}
