@@ -168,6 +168,64 @@ describe('declarations', () => {
     expect(a.diagnostics.filter((d) => d.code === 'width-mismatch').map((d) => d.severity)).toEqual(['warning']);
     expect(analyse(base).diagnostics.filter((d) => d.code === 'width-mismatch')).toEqual([]);
   });
+
+  const twoWide = base.replace('part a register 8', 'part a register 16').replace('part b register 8', 'part b register 4');
+  const mismatches = (text: string, options = {}) => analyse(text, options).diagnostics.filter((d) => d.code === 'width-mismatch');
+
+  it('width-mismatch can be accepted on one line with `accept width-mismatch`; the other lines still report it', () => {
+    expect(mismatches(twoWide)).toHaveLength(2);
+    const accepted = twoWide.replace('strobe a.oe enable a -> result active low', 'strobe a.oe enable a -> result active low accept width-mismatch');
+    const left = analyse(accepted);
+    expect(left.diagnostics.filter((d) => d.code === 'width-mismatch').map((d) => left.text.slice(d.span.start, d.span.end))).toEqual(['strobe b.ck clock result -> b']);
+    expect(left.diagnostics.filter((d) => d.severity === 'error')).toEqual([]);
+    // Before a description too, and on a strobe with no wiring after its kind.
+    expect(mismatches(twoWide.replace('strobe b.ck clock result -> b', 'strobe b.ck clock result -> b accept width-mismatch "low nibble only"').replace('strobe a.oe enable a -> result active low', 'strobe a.oe enable a -> result active low accept width-mismatch'))).toEqual([]);
+  });
+
+  it('width-mismatch offers a fix that accepts the change on its line, and the fixed table is quiet there', () => {
+    const described = twoWide.replace('strobe b.ck clock result -> b', 'strobe b.ck clock result -> b "loads the low nibble"');
+    const a = analyse(described);
+    const d = a.diagnostics.find((x) => x.code === 'width-mismatch' && a.text.slice(x.span.start, x.span.end).startsWith('strobe b.ck'))!;
+    expect(d.message).toContain('If that is deliberate, end the line with `accept width-mismatch`');
+    const fixed = applyFix(described, d.fixes![0]);
+    expect(fixed).toContain('strobe b.ck clock result -> b accept width-mismatch "loads the low nibble"');
+    expect(mismatches(fixed)).toHaveLength(1);
+  });
+
+  it('width-mismatch follows the severity setting like every code', () => {
+    expect(mismatches(twoWide, { severities: { 'width-mismatch': 'off' } })).toEqual([]);
+    expect(mismatches(twoWide, { severities: { 'width-mismatch': 'error' } }).map((d) => d.severity)).toEqual(['error', 'error']);
+  });
+
+  it('accept names only codes a line may accept: a hazard cannot be accepted, an unknown code is reported', () => {
+    expectDiagnostics(
+      dedent(`
+        bus result 8
+        part a register 16
+        strobe a.oe enable a -> result accept bus-contention
+        #                                     ^^^^^^^^^^^^^^ unknown-kind: \`bus-contention\` cannot be accepted on a line
+        strobe a.ck clock result -> a accept widht-mismatch
+        #                                    ^^^^^^^^^^^^^^ undefined-name: did you mean \`width-mismatch\`?
+      `),
+      ['unknown-kind', 'undefined-name'],
+    );
+  });
+});
+
+describe('bus indexes', () => {
+  it('an index on a bus is an error on the index, never ignored (no partial-width drives)', () => {
+    expectDiagnostics(
+      dedent(`
+        bus result 8
+        part a register 8
+        strobe a.oe enable a -> result[1] active low
+        #                             ^^^ wrong-wiring: \`result[1]\` names line 1 of the bus, but a strobe drives the whole bus
+        strobe a.ck clock result[99] -> a
+        #                       ^^^^ wrong-wiring: \`result[99]\` names a line bus \`result\` does not have (its lines are 0..7)
+      `),
+      ['wrong-wiring'],
+    );
+  });
 });
 
 describe('severity settings', () => {

@@ -9,6 +9,11 @@ export interface CodeInfo {
   title: string;
   /** What goes wrong in the hardware and what to do, in plain words. */
   explanation: string;
+  /**
+   * The line that causes it may say `accept CODE`: the code marks a design choice that can be
+   * deliberate (never a hazard to hardware), so one line may accept it and the rest still report it.
+   */
+  acceptable?: true;
 }
 
 const HEAT_CAUTION =
@@ -61,7 +66,8 @@ export const catalogue: CodeInfo[] = [
     code: 'width-mismatch',
     severity: 'warning',
     title: 'a part and its bus differ in width',
-    explanation: 'A part drives or loads a bus of a different width. The extra bus lines float or the part\'s extra bits are lost. Usually a typo in a width.',
+    explanation: 'A part drives or loads a bus of a different width. The extra bus lines float or the part\'s extra bits are lost. Usually a typo in a width. When the change is deliberate (a 16-bit register on the low lines of a 32-bit bus, an 8-bit port reading the low byte), write `accept width-mismatch` at the end of that strobe line (before its description): that line no longer reports it, every other line still does. The quick fix adds it.',
+    acceptable: true,
   },
   {
     code: 'bus-contention',
@@ -244,6 +250,9 @@ const byCode = new Map(catalogue.map((c) => [c.code, c]));
 export function codeInfo(code: string): CodeInfo | undefined {
   return byCode.get(code);
 }
+
+/** The codes a line may accept with `accept CODE`. */
+export const acceptableCodes: readonly string[] = catalogue.filter((c) => c.acceptable).map((c) => c.code);
 
 export function defaultSeverity(code: string): Severity {
   return byCode.get(code)?.severity ?? 'error';

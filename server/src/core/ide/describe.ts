@@ -160,6 +160,7 @@ export const keywordTexts: Record<string, string> = {
   class: 'the steps of one RV32I major opcode',
   keeper: 'bus-hold keepers: an undriven bus keeps its last driven value (a load then stores a stale value) instead of floating',
   active: '`active high` or `active low`: the ROM bit level that asserts the strobe',
+  accept: '`accept width-mismatch`: the width change on this line is deliberate, so this line does not report it (every other line still does)',
   high: 'active high: the ROM bit is 1 when the strobe is asserted',
   low: 'active low: the ROM bit is 0 when the strobe is asserted (typical for /OE and /WE inputs)',
   use: 'places a phase\'s steps into this class, at `at N` or right after the steps written so far',

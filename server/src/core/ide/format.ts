@@ -205,7 +205,7 @@ function headerSlots(tokens: Token[]): string[] | undefined {
       return [body[0].text, body[1].text, body[2].text, join(body.slice(3)), desc];
     case 'strobe': {
       let i = 2;
-      while (i < body.length && body[i].text !== 'active' && !isOptionAt(i)) i++;
+      while (i < body.length && body[i].text !== 'active' && body[i].text !== 'accept' && !isOptionAt(i)) i++;
       const wiring = join(body.slice(2, i));
       let active = '';
       if (body[i]?.text === 'active') {

@@ -3,6 +3,7 @@
 // step lines (the words they put in the ROMs), classes (the RV32I instructions they run),
 // buses (who drives and loads them, step by step), parts, flags, maps, phases, stores, and the
 // notation's keywords. Pure: it reads an analysis and returns text with the span it explains.
+import { type CodeInfo, codeInfo } from '../checks/catalogue';
 import { budgetOf, type LineLoad } from '../budget/budget';
 import type { Analysis } from '../analysis';
 import { RV32I_INSTRUCTIONS, majorOpcodeOf } from '../isa/rv32i';
@@ -398,7 +399,17 @@ function wordHover(analysis: Analysis, word: string, start: number): string | un
     if (description) return `**port \`${port}\` of \`${part.name}\`** — ${description.slice(port.length + 4)}`;
   }
   if (word in keywordTexts) return `**\`${word}\`** — ${keywordTexts[word]}`;
+  const accepted = acceptedCodeAt(analysis, start);
+  if (accepted) return `**diagnostic \`${accepted.code}\`** (accepted on this line) — ${accepted.title}. ${accepted.explanation}`;
   return undefined;
+}
+
+/** The catalogue entry of the code an `accept` clause names at `start`, if one does. */
+function acceptedCodeAt(analysis: Analysis, start: number): CodeInfo | undefined {
+  const decl = analysis.parse.tree.decls.find((d) => d.span.start <= start && start < d.span.end);
+  if (decl?.kind !== 'strobe') return undefined;
+  const code = decl.accept?.codes.find((c) => c.span.start === start);
+  return code ? codeInfo(code.text) : undefined;
 }
 
 /** True when the word at `start` is the kind after `part NAME` or `strobe NAME`. */

@@ -55,7 +55,7 @@ const typeOfSymbol: Record<SymbolKind, SemanticTokenType> = {
   port: 'property',
 };
 
-const contextualKeywords = new Set(['isa', 'keeper', 'active', 'high', 'low', 'as', 'x', 'use', 'at', 'if', 'else', 'from', 'rv32i']);
+const contextualKeywords = new Set(['isa', 'keeper', 'active', 'high', 'low', 'accept', 'as', 'x', 'use', 'at', 'if', 'else', 'from', 'rv32i']);
 const addressInputs = new Set(['step', 'opcode', 'funct3', 'f7b5', 'funct7', 'ir']);
 const declarationWords = new Set<string>(declarationKeywords);
 const kindWords = new Set<string>([...partKinds, ...strobeKinds]);

@@ -13,6 +13,7 @@ import type * as M from './types';
 import { controlVocabulary, instructionFields, partKinds, strobeKinds } from './vocabulary';
 import { buildBodies } from './buildSteps';
 import { type FigureHost, figureInfo, figureNamesFor } from '../budget/figures';
+import { acceptableCodes, codeInfo } from '../checks/catalogue';
 
 export interface BuildResult {
   machine: M.Machine;
@@ -588,6 +589,7 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
     symbol: ctx.lookup('signal', name)!,
     figures: readFigures(ctx, decl.options, 'strobe'),
   };
+  const accepted = acceptedCodes(ctx, decl.accept);
   const form = strobeForms[kind];
   const kindSpan = decl.strobeKind.span;
   if (form === 'none') {
@@ -602,7 +604,7 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
     }
     if (!wirePart(ctx, strobe, decl.source, kind)) return;
     const bus = busArg(ctx, decl.target.name, 'target', name);
-    if (!bus) return;
+    if (!bus || !wholeBus(ctx, decl.target, kind)) return;
     strobe.bus = bus;
   } else if (form === 'bus-to-part') {
     if (kind === 'clock' && decl.source && !decl.target) {
@@ -614,7 +616,7 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
         return;
       }
       const bus = busArg(ctx, decl.source.name, 'source', name);
-      if (!bus) return;
+      if (!bus || !wholeBus(ctx, decl.source, kind)) return;
       strobe.bus = bus;
       if (!wirePart(ctx, strobe, decl.target, kind)) return;
     }
@@ -627,15 +629,57 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
   }
   const bus = strobe.bus ? ctx.machine.buses.get(strobe.bus) : undefined;
   const part = strobe.part ? ctx.machine.parts.get(strobe.part) : undefined;
-  if (bus && part && part.kind !== 'regfile' && part.kind !== 'memory' && bus.width !== part.width) {
+  if (bus && part && part.kind !== 'regfile' && part.kind !== 'memory' && bus.width !== part.width && !accepted.has('width-mismatch')) {
+    // The fix accepts the change on this line: before the description, or at the line's end.
+    const at = decl.description?.span.start ?? decl.span.end;
     ctx.diagnostics.push({
       code: 'width-mismatch',
       severity: 'warning',
       span: decl.span,
-      message: `\`${part.name}\` is ${part.width} bits wide but the bus \`${bus.name}\` is ${bus.width}; the extra bits ${bus.width > part.width ? 'of the bus are undriven or ignored' : 'of the part are lost'}`,
+      message: `\`${part.name}\` is ${part.width} bits wide but the bus \`${bus.name}\` is ${bus.width}; the extra bits ${bus.width > part.width ? 'of the bus are undriven or ignored' : 'of the part are lost'}. If that is deliberate, end the line with \`accept width-mismatch\``,
+      fixes: [{ title: 'Accept this width change on this line', edits: [{ span: { start: at, end: at }, newText: decl.description ? 'accept width-mismatch ' : ' accept width-mismatch' }] }],
     });
   }
   ctx.machine.signals.set(name, strobe);
+}
+
+/**
+ * The codes an `accept` clause names. Only codes the catalogue marks acceptable (design
+ * choices, never hazards) may be accepted on a line; anything else is reported.
+ */
+function acceptedCodes(ctx: BuildContext, clause: A.AcceptClause | undefined): Set<string> {
+  const accepted = new Set<string>();
+  for (const code of clause?.codes ?? []) {
+    if (acceptableCodes.includes(code.text)) accepted.add(code.text);
+    else if (codeInfo(code.text)) {
+      ctx.report(
+        'unknown-kind',
+        code.span,
+        `\`${code.text}\` cannot be accepted on a line; a line may accept only ${acceptableCodes.map((c) => `\`${c}\``).join(', ')}. Fix the problem, or change the code's severity in the \`phasewright.severity\` setting (\`check --config\`)`,
+      );
+    } else ctx.undefinedName(code, 'diagnostic code a line may accept', [...acceptableCodes]);
+  }
+  return accepted;
+}
+
+/**
+ * A strobe drives or loads a whole bus: the notation has no partial-width drives, so an index
+ * on a bus (`-> result[1]`) would be silently ignored. It is an error on the index instead.
+ */
+function wholeBus(ctx: BuildContext, ref: A.Ref, kind: M.StrobeKind): boolean {
+  if (!ref.index) return true;
+  const busName = ref.name.text;
+  const width = ctx.machine.buses.get(busName)?.width ?? 0;
+  const line = parseNumber(ref.index.text);
+  const written = `${busName}[${ref.index.text}]`;
+  const verb = kind === 'enable' || kind === 'read' ? 'drives' : 'loads from';
+  const what = line !== undefined && line < width ? `names line ${line} of the bus` : `names a line bus \`${busName}\` does not have (its lines are 0..${width - 1})`;
+  ctx.report(
+    'wrong-wiring',
+    { start: ref.name.span.end, end: ref.span.end },
+    `\`${written}\` ${what}, but a strobe ${verb} the whole bus: driving or loading part of a bus is not supported yet. Write \`${busName}\`, or declare a narrower bus for those lines`,
+  );
+  return false;
 }
 
 const strobeForms: Record<M.StrobeKind, 'none' | 'part-to-bus' | 'bus-to-part' | 'part'> = {

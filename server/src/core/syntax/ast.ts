@@ -91,6 +91,15 @@ export interface StrobeDecl extends DeclBase {
   level?: Name;
   /** Electrical and timing figures (`load=12`); see docs/notation.md. */
   options: OptionNode[];
+  /** `accept width-mismatch`: diagnostics the designer accepts on this line. */
+  accept?: AcceptClause;
+}
+
+/** `accept CODE {, CODE}` at the end of a declaration line: a deliberate choice, not a mistake. */
+export interface AcceptClause {
+  keyword: Span;
+  codes: Name[];
+  span: Span;
 }
 
 export interface FieldValueNode {

@@ -335,14 +335,14 @@ class Parser {
     return ref;
   }
 
-  /** strobe = "strobe" name kind [ref] ["->" ref] ["active" ("high"|"low")] {option} [string] */
+  /** strobe = "strobe" name kind [ref] ["->" ref] ["active" ("high"|"low")] {option} [accept] [string] */
   private parseStrobe(): A.StrobeDecl {
     const keyword = this.keywordSpan();
     const decl: A.StrobeDecl = { kind: 'strobe', keyword, span: keyword, options: [] };
     decl.name = this.expectName('a strobe name after `strobe`, e.g. `strobe pc.oe enable pc -> left`');
     if (decl.name) decl.strobeKind = this.expectName('the strobe kind (enable, read, write, clock, count, end, trap)');
     if (decl.strobeKind) {
-      if (this.at(T.Ident) && !this.atWord('active') && this.peek(1).kind !== T.Equals) {
+      if (this.at(T.Ident) && !this.atWord('active') && !this.atAccept() && this.peek(1).kind !== T.Equals) {
         decl.source = this.parseRef('a part or bus');
       }
       if (this.at(T.Arrow)) {
@@ -357,14 +357,33 @@ class Parser {
         else this.unexpected('`high` or `low` after `active`');
       }
       while (this.at(T.Ident) && this.peek(1).kind === T.Equals) decl.options.push(this.parseOption());
+      if (this.atAccept()) decl.accept = this.parseAccept();
     }
     if (!this.atEol() && !this.at(T.String)) {
-      this.unexpected('`active high`, `active low` or a description in quotes');
+      this.unexpected(decl.accept ? 'a description in quotes or the end of the line' : '`active high`, `active low`, `accept CODE` or a description in quotes');
       while (!this.atEol() && !this.at(T.String)) this.next();
     }
     decl.description = this.optionalString();
     this.endLine('the strobe declaration');
     return this.finish(decl, keyword.start);
+  }
+
+  /** `accept` followed by a code (a name, not an arrow: `enable accept -> bus` names a part). */
+  private atAccept(): boolean {
+    return this.atWord('accept') && this.peek(1).kind === T.Ident;
+  }
+
+  /** accept = "accept" code { "," code } */
+  private parseAccept(): A.AcceptClause {
+    const tok = this.next();
+    const keyword = mkSpan(tok.start, tok.end);
+    const codes: A.Name[] = [];
+    do {
+      const code = this.expectName('a diagnostic code after `accept`, e.g. `accept width-mismatch`');
+      if (!code) break;
+      codes.push(code);
+    } while (this.eat(T.Comma));
+    return { keyword, codes, span: mkSpan(keyword.start, this.prevEnd) };
   }
 
   /** field = "field" name width ["->" ref] {option} "{" {name "=" number} "}" [string] — the braces may span lines. */
