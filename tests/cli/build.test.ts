@@ -58,7 +58,7 @@ describe('phasewright build', () => {
     expect(badFormat).toMatchObject({ code: 2 });
     expect(badFormat.err).toContain("unknown format 'hex'; choose from ihex, srec, bin, memh, list");
     const badStore = await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/x', '--store', 'decoder');
-    expect(badStore.code).toBe(1);
+    expect(badStore.code).toBe(2);
     expect(badStore.err).toContain("no store named 'decoder'; the file has main");
   });
 

@@ -22,7 +22,27 @@ beforeAll(() => {
 describe('phasewright check', () => {
   it('exits 0 on the demo and says so', async () => {
     const r = await run('check', 'examples/halyard-32.pwt');
-    expect(r).toEqual({ code: 0, out: '', err: 'no errors in 1 file(s)\n' });
+    expect(r).toEqual({ code: 0, out: '', err: 'no errors or warnings in 1 file\n' });
+  });
+
+  it('counts warnings in the summary too', async () => {
+    expect((await run('check', 'examples/faults/unused-name.pwt')).err).toBe('no errors, 1 warning in 1 file\n');
+    expect((await run('check', 'examples/faults/bus-contention.pwt', 'examples/faults/unused-name.pwt', 'examples/halyard-32.pwt')).err).toBe('1 error, 1 warning in 3 files\n');
+  });
+
+  it('says how many it shows of how many when the cap cuts a flooded file short', async () => {
+    // 1500 strobes nobody uses (a warning each) and 1500 that index the bus (an error each).
+    const flood = 'bus result 8\npart a register 8\n' + Array.from({ length: 3000 }, (_, i) => `strobe s${i} enable a -> result${i % 2 ? '[1]' : ''}\n`).join('');
+    writeFileSync(join(tmp, 'flood.pwt'), flood);
+    const r = await run('check', 'tests/.tmp/cli-check/flood.pwt');
+    expect(r.code).toBe(1);
+    const shown = r.out.split('\n').filter((l) => / (error|warning): /.test(l)).length;
+    expect(shown).toBe(1000);
+    const all = JSON.parse((await run('check', '--json', 'tests/.tmp/cli-check/flood.pwt')).out).files[0];
+    expect(all.shown).toBe(1000);
+    expect(all.errors + all.warnings).toBeGreaterThan(1000);
+    expect(r.out).toContain(`tests/.tmp/cli-check/flood.pwt: 1000 shown of ${all.errors + all.warnings} diagnostics (errors first)`);
+    expect(r.err).toBe(`${all.errors} errors, ${all.warnings} warnings in 1 file (1000 shown of ${all.errors + all.warnings})\n`);
   });
 
   it('prints file:line:col: severity: message [code] with related notes, and exits 1 on errors', async () => {

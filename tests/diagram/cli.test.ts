@@ -78,6 +78,6 @@ describe('phasewright diagram', () => {
 
   it('is listed in the usage text', async () => {
     const r = await run('--help');
-    expect(r.out).toContain('phasewright diagram FILE --class NAME [--guard IN=BITS,...] -o FILE.svg');
+    expect(r.out).toContain('phasewright diagram FILE --class NAME [--guard IN=BITS,...] [--all] [--theme light|dark|auto] -o FILE.svg');
   });
 });

@@ -119,4 +119,27 @@ describe('phasewright run', () => {
     }
     expect(existsSync(join(dir, 'out', 'missing.vcd'))).toBe(false);
   });
+
+  it('takes --config as build does, and runs a table with errors only with --force, saying first and last that the result is untrusted', async () => {
+    // A spare decode map nobody uses: a warning, made an error by the severity file.
+    writeFileSync(join(dir, 'spare.pwt'), DEMO_TEXT + '\nmap spare (funct3) -> mem.size\n  000 byte\n');
+    writeFileSync(join(dir, 'strict.json'), JSON.stringify({ severities: { 'unused-name': 'error' } }));
+    const lenient = await run('spare.pwt', 'hello.bin', '--load-address', '0x10000');
+    expect(lenient.code).toBe(5);
+    expect(lenient.stderr).not.toContain('UNTRUSTED');
+    const refused = await run('spare.pwt', 'hello.bin', '--load-address', '0x10000', '--config', 'strict.json');
+    expect(refused.code).toBe(2);
+    expect(refused.stderr).toContain('spare.pwt has 1 error(s); nothing was run. Fix them first (`phasewright check spare.pwt`), or pass --force to run it anyway (the result is then untrusted).');
+    const forced = await run('spare.pwt', 'hello.bin', '--load-address', '0x10000', '--config', 'strict.json', '--force');
+    expect(forced.code).toBe(5);
+    expect(forced.stdout).toBe('ok\n');
+    const untrusted = 'phasewright run: UNTRUSTED: spare.pwt has 1 error(s) and runs only because of --force; what it does says nothing about a correct table, and its images must not be programmed.';
+    const lines = forced.stderr.split('\n');
+    expect(lines[0]).toBe(untrusted);
+    expect(lines.filter((l) => l === untrusted)).toHaveLength(2);
+    expect(forced.stderr.indexOf('program exited with code 5')).toBeLessThan(forced.stderr.lastIndexOf(untrusted));
+    const badConfig = await run('spare.pwt', 'hello.bin', '--load-address', '0x10000', '--config', 'missing.json');
+    expect(badConfig.code).toBe(2);
+    expect(badConfig.stderr).toContain('missing.json: no such file');
+  });
 });

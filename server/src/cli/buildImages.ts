@@ -20,7 +20,8 @@ export interface BuildRequest {
 
 export type BuildResult =
   | { ok: true; forced: boolean; errors: number; stores: StoreSummary[]; report: OutputSetReport }
-  | { ok: false; reason: string; errors: number };
+  /** `lookup`: the request names something the table does not have (a usage error, exit 2). */
+  | { ok: false; reason: string; errors: number; lookup?: true };
 
 export function buildImages(request: BuildRequest): BuildResult {
   const analysis = analyse(request.text, { severities: request.severities });
@@ -34,7 +35,7 @@ export function buildImages(request: BuildRequest): BuildResult {
   }
   const known = analysis.machine.stores.map((s) => s.name);
   for (const name of request.stores ?? []) {
-    if (!known.includes(name)) return { ok: false, errors, reason: `no store named '${name}'; the file has ${known.join(', ') || 'no stores'}` };
+    if (!known.includes(name)) return { ok: false, errors, lookup: true, reason: `no store named '${name}'; the file has ${known.join(', ') || 'no stores'}` };
   }
   const stem = basename(request.sourcePath, extname(request.sourcePath)) || 'table';
   const plan = planBuild(analysis.machine, { stem, source: basename(request.sourcePath), formats: request.formats, stores: request.stores });

@@ -27,6 +27,8 @@ export interface Analysis {
   lines: LineIndex;
   /** Diagnostics dropped by the cap. */
   truncated: number;
+  /** How many diagnostics of each severity there are, counting those the cap dropped. */
+  counts: Record<Severity, number>;
 }
 
 const severityRank: Record<Severity, number> = { error: 0, warning: 1, info: 2 };
@@ -51,6 +53,8 @@ export function analyse(text: string, options: AnalyseOptions = {}): Analysis {
   let diagnostics = dedupe([...parsed.errors, ...built.diagnostics, ...ctx.diagnostics]);
   diagnostics = applySeverities(diagnostics, options.severities);
   diagnostics.sort((a, b) => a.span.start - b.span.start || severityRank[a.severity] - severityRank[b.severity]);
+  const counts: Record<Severity, number> = { error: 0, warning: 0, info: 0 };
+  for (const d of diagnostics) counts[d.severity]++;
   const max = options.maxDiagnostics ?? 1000;
   let truncated = 0;
   if (diagnostics.length > max) {
@@ -59,7 +63,7 @@ export function analyse(text: string, options: AnalyseOptions = {}): Analysis {
     truncated = diagnostics.length - max;
     diagnostics = diagnostics.filter((d) => keep.has(d));
   }
-  return { text, parse: parsed, machine: built.machine, diagnostics, lines: new LineIndex(text), truncated };
+  return { text, parse: parsed, machine: built.machine, diagnostics, lines: new LineIndex(text), truncated, counts };
 }
 
 function dedupe(list: Diagnostic[]): Diagnostic[] {

@@ -42,7 +42,7 @@ export function diagnosticsOf(state: DocumentState, uri: string): LspDiagnostic[
       severity: DiagnosticSeverity.Information,
       code: 'truncated',
       source: 'phasewright',
-      message: `${state.analysis.truncated} more diagnostic(s) not shown; fix the ones above first`,
+      message: `${state.analysis.diagnostics.length} shown of ${state.analysis.diagnostics.length + state.analysis.truncated} diagnostics (errors first); fix these first`,
     });
   }
   return list;

@@ -1,22 +1,29 @@
 // `phasewright budget FILE`: the fan-out, bus load, LED current and step timing tables from the
 // figures in the table, the fastest safe step clock and the path that limits it. Exit 1 when a
-// budget check fails (overload, supply, timing), 0 otherwise, 2 on usage or file errors.
+// budget check fails (overload, supply, timing) or the table has other errors, 0 otherwise, 2 on
+// usage or file errors.
 import { resolve } from 'node:path';
 import { analyse, errorCount } from '../../core/analysis';
 import { budgetOf, type LineLoad } from '../../core/budget/budget';
 import { parseArgs } from '../args';
-import type { Command } from '../commands';
+import { defineCommand } from '../help';
 import { readSource } from '../readSource';
 import { renderDiagnostic } from '../render';
 
 const budgetCodes = ['strobe-overload', 'bus-overload', 'supply-budget', 'step-timing'];
 
-export const budgetCommand: Command = {
+export const budgetCommand = defineCommand({
   name: 'budget',
   summary: 'fan-out, bus load, LED current and step timing from entered figures',
-  usage: 'budget FILE',
+  operands: 'FILE',
+  options: [],
+  exitCodes: [
+    [0, 'within budget (rows with missing figures are listed as incomplete)'],
+    [1, 'a budget check fails (overload, supply, timing), or the table has other errors (nothing computed)'],
+    [2, 'usage error, or a file that cannot be read'],
+  ],
   async run(args, io) {
-    const parsed = parseArgs(args, {});
+    const parsed = parseArgs(args, this.options);
     if (parsed.errors.length || parsed.positionals.length !== 1) {
       io.err(`phasewright budget: ${parsed.errors[0] ?? 'give one .pwt file'}\nusage: phasewright ${this.usage}\n`);
       return 2;
@@ -31,7 +38,7 @@ export const budgetCommand: Command = {
     const other = analysis.diagnostics.filter((d) => d.severity === 'error' && !budgetCodes.includes(d.code));
     if (other.length) {
       io.err(`phasewright budget: ${file} has ${errorCount(other)} error(s) besides the budget; run \`phasewright check ${file}\` first\n`);
-      return 2;
+      return 1;
     }
     const b = budgetOf(analysis.machine);
     const out: string[] = [];
@@ -72,7 +79,7 @@ export const budgetCommand: Command = {
     io.out(out.join('\n') + '\n');
     return problems.some((d) => d.severity === 'error') ? 1 : 0;
   },
-};
+});
 
 function ma(value: number | undefined): string {
   return value === undefined ? '?' : value.toFixed(2);

@@ -1,22 +1,34 @@
 // `phasewright build FILE [--out DIR] [--format LIST] [--store NAME] [--force] [--config FILE]`:
 // writes the control-store images. Exit 0 on success, 1 when the table has errors (nothing
-// written) or an output could not be written safely, 2 on usage or input file errors.
+// written) or an output could not be written safely, 2 on usage, lookup or input file errors.
 import { resolve } from 'node:path';
 import { parseArgs } from '../args';
 import { buildImages, describeBuild } from '../buildImages';
-import type { Command } from '../commands';
+import { defineCommand } from '../help';
 import { loadSeverityConfig } from '../config';
 import { readSource } from '../readSource';
 import { buildFormats, type BuildFormat } from '../../core/encode/plan';
 import { OutputError } from '../output/safeWriter';
 import { ManifestError } from '../output/manifest';
 
-export const buildCommand: Command = {
+export const buildCommand = defineCommand({
   name: 'build',
   summary: 'write control-store images (HEX, S-record, binary, $readmemh, listing)',
-  usage: 'build FILE [--out DIR] [--format ihex,srec,bin,memh,list] [--store NAME] [--force]',
+  operands: 'FILE',
+  options: [
+    { name: 'out', value: 'DIR', help: 'the folder to write into (default out); its manifest lists what this tool wrote there' },
+    { name: 'format', value: 'LIST', help: `comma-separated formats: ${buildFormats.join(', ')} (default: all)` },
+    { name: 'store', value: 'NAME', help: 'build one store only (default: every store)' },
+    { name: 'force', help: 'write images of a table with errors; they are marked untrusted and must not be programmed' },
+    { name: 'config', value: 'FILE', help: 'severities per code from a JSON file, as for check' },
+  ],
+  exitCodes: [
+    [0, 'images written (with --force: although the table has errors)'],
+    [1, 'the table has errors or cannot be built (nothing written), or an output could not be written safely'],
+    [2, 'usage error, a file that cannot be read, an unknown format or store, or a bad --config file'],
+  ],
   async run(args, io) {
-    const parsed = parseArgs(args, { flags: ['force'], values: ['out', 'format', 'store', 'config'] });
+    const parsed = parseArgs(args, this.options);
     if (parsed.errors.length || parsed.positionals.length !== 1) {
       io.err(`phasewright build: ${parsed.errors[0] ?? 'give one .pwt file'}\nusage: phasewright ${this.usage}\n`);
       return 2;
@@ -58,7 +70,7 @@ export const buildCommand: Command = {
       });
       if (!result.ok) {
         io.err(`phasewright build: ${result.reason}\n`);
-        return 1;
+        return result.lookup ? 2 : 1;
       }
       io.out(describeBuild(result, outDir));
       return 0;
@@ -70,4 +82,4 @@ export const buildCommand: Command = {
       throw err;
     }
   },
-};
+});

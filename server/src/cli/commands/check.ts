@@ -1,19 +1,28 @@
 // `phasewright check FILE... [--json] [--config FILE]`: analyses each file and prints its
 // diagnostics. Exit 0 when no file has errors, 1 when some has, 2 on usage or file errors.
-import { analyse, errorCount } from '../../core/analysis';
+import { analyse } from '../../core/analysis';
 import { parseArgs } from '../args';
-import type { Command } from '../commands';
+import { defineCommand } from '../help';
 import { loadSeverityConfig } from '../config';
 import { readSource } from '../readSource';
 import { renderDiagnostic, toJson, type JsonDiagnostic } from '../render';
 import { resolve } from 'node:path';
 
-export const checkCommand: Command = {
+export const checkCommand = defineCommand({
   name: 'check',
   summary: 'report problems in control tables',
-  usage: 'check FILE... [--json] [--config FILE]',
+  operands: 'FILE...',
+  options: [
+    { name: 'json', help: 'print the diagnostics as JSON data (per file: errors, warnings, diagnostics)' },
+    { name: 'config', value: 'FILE', help: 'severities per code from a JSON file: { "severities": { "step-gap": "off" } } or the editor settings form' },
+  ],
+  exitCodes: [
+    [0, 'no file has errors (warnings may remain)'],
+    [1, 'some file has errors'],
+    [2, 'usage error, a file that cannot be read, or a bad --config file'],
+  ],
   async run(args, io) {
-    const parsed = parseArgs(args, { flags: ['json'], values: ['config'] });
+    const parsed = parseArgs(args, this.options);
     if (parsed.errors.length || parsed.positionals.length === 0) {
       io.err(`phasewright check: ${parsed.errors[0] ?? 'give at least one file'}\nusage: phasewright ${this.usage}\n`);
       return 2;
@@ -25,8 +34,8 @@ export const checkCommand: Command = {
       return 2;
     }
     const json = parsed.options.has('json');
-    const jsonOut: { files: { file: string; errors: number; warnings: number; diagnostics: JsonDiagnostic[] }[] } = { files: [] };
-    let errors = 0;
+    const jsonOut: { files: { file: string; errors: number; warnings: number; shown: number; diagnostics: JsonDiagnostic[] }[] } = { files: [] };
+    const totals = { errors: 0, warnings: 0, shown: 0, all: 0 };
     let ioFailure = false;
     for (const file of parsed.positionals) {
       const source = readSource(resolve(io.cwd, file));
@@ -36,22 +45,33 @@ export const checkCommand: Command = {
         continue;
       }
       const analysis = analyse(source.text, { severities: config.severities });
-      const fileErrors = errorCount(analysis.diagnostics);
-      errors += fileErrors;
-      const warnings = analysis.diagnostics.filter((d) => d.severity === 'warning').length;
+      // The counts include what the cap left out, so a flooded file still says how bad it is.
+      const { error: fileErrors, warning: warnings, info } = analysis.counts;
+      totals.errors += fileErrors;
+      totals.warnings += warnings;
+      totals.shown += analysis.diagnostics.length;
+      totals.all += fileErrors + warnings + info;
       if (json) {
-        jsonOut.files.push({ file, errors: fileErrors, warnings, diagnostics: analysis.diagnostics.map((d) => toJson(file, analysis, d)) });
+        jsonOut.files.push({ file, errors: fileErrors, warnings, shown: analysis.diagnostics.length, diagnostics: analysis.diagnostics.map((d) => toJson(file, analysis, d)) });
       } else {
         for (const d of analysis.diagnostics) io.out(renderDiagnostic(file, analysis, d) + '\n');
-        if (analysis.truncated) io.out(`${file}: ${analysis.truncated} more diagnostic(s) not shown\n`);
+        if (analysis.truncated) io.out(`${file}: ${analysis.diagnostics.length} shown of ${fileErrors + warnings + info} diagnostics (errors first); fix these and check again\n`);
       }
     }
     if (json) io.out(JSON.stringify(jsonOut, null, 2) + '\n');
-    else if (!ioFailure || errors) {
-      const files = parsed.positionals.length;
-      io.err(errors ? `${errors} error(s) in ${files} file(s)\n` : `no errors in ${files} file(s)\n`);
-    }
+    else if (!ioFailure || totals.errors) io.err(summaryLine(totals, parsed.positionals.length));
     if (ioFailure) return 2;
-    return errors ? 1 : 0;
+    return totals.errors ? 1 : 0;
   },
-};
+});
+
+function count(n: number, one: string): string {
+  return `${n} ${one}${n === 1 ? '' : 's'}`;
+}
+
+/** `2 errors, 1 warning in 3 files`, `no errors, 1 warning in 1 file`; with a cap, how many were shown. */
+export function summaryLine(totals: { errors: number; warnings: number; shown: number; all: number }, files: number): string {
+  const found = totals.errors || totals.warnings ? `${totals.errors ? count(totals.errors, 'error') : 'no errors'}, ${count(totals.warnings, 'warning')}` : 'no errors or warnings';
+  const capped = totals.shown < totals.all ? ` (${totals.shown} shown of ${totals.all})` : '';
+  return `${found} in ${count(files, 'file')}${capped}\n`;
+}

@@ -1,10 +1,11 @@
-// `phasewright diagram FILE --class NAME [--guard taken=1,funct3=101] [--all] [--theme T] -o FILE.svg`:
+// `phasewright diagram FILE --class NAME [--guard taken=1,funct3=101] [--all] [--theme T] -o FILE.svg`
+// (options: the list below, which the help prints too):
 // draws the timing diagram of one class as a standalone SVG file, written atomically and read
 // back. Exit 0 on success (a note on stderr when the table has errors: the picture then shows
 // a table that would not build), 2 on usage, input or output errors.
 import { basename, dirname, resolve } from 'node:path';
 import { parseArgs } from '../args';
-import type { Command } from '../commands';
+import { defineCommand } from '../help';
 import { readSource } from '../readSource';
 import { OutputError, writeFileSafely } from '../output/safeWriter';
 import { analyse, errorCount } from '../../core/analysis';
@@ -17,14 +18,23 @@ function plural(count: number, one: string, many = `${one}s`): string {
   return `${count} ${count === 1 ? one : many}`;
 }
 
-export const diagramCommand: Command = {
+export const diagramCommand = defineCommand({
   name: 'diagram',
-  summary: 'timing diagram of one class as SVG (--all, --theme light|dark|auto)',
-  usage: 'diagram FILE --class NAME [--guard IN=BITS,...] -o FILE.svg',
+  summary: 'timing diagram of one class as a standalone SVG file',
+  operands: 'FILE',
+  options: [
+    { name: 'class', value: 'NAME', required: true, help: 'the class to draw' },
+    { name: 'guard', value: 'IN=BITS,...', help: 'the guard inputs to draw it with, e.g. taken=1,funct3=101 (default: all 0)' },
+    { name: 'all', help: 'draw every strobe, field and bus, not only those the class uses' },
+    { name: 'theme', value: 'light|dark|auto', help: 'colours; auto (default) follows the viewer\'s light or dark preference' },
+    { name: 'out', short: 'o', value: 'FILE.svg', required: true, help: 'the SVG file to write' },
+  ],
+  exitCodes: [
+    [0, 'written (a note on stderr when the table has errors: the picture shows the table as written)'],
+    [2, 'usage error, a file that cannot be read, no class of that name, a bad --guard, or the SVG could not be written'],
+  ],
   async run(args, io) {
-    // `-o` is the one short option; the shared parser knows long options only.
-    const normalised = args.map((a) => (a === '-o' ? '--out' : a));
-    const parsed = parseArgs(normalised, { flags: ['all'], values: ['class', 'guard', 'out', 'theme'] });
+    const parsed = parseArgs(args, this.options);
     const fail = (reason: string) => {
       io.err(`phasewright diagram: ${reason}\nusage: phasewright ${this.usage}\n`);
       return 2;
@@ -79,4 +89,4 @@ export const diagramCommand: Command = {
       throw err;
     }
   },
-};
+});

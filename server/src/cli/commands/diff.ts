@@ -6,17 +6,23 @@ import { analyse, errorCount } from '../../core/analysis';
 import { diffTables } from '../../core/encode/diff';
 import { toHex } from '../../core/model/numbers';
 import { parseArgs } from '../args';
-import type { Command } from '../commands';
+import { defineCommand } from '../help';
 import { readSource } from '../readSource';
 
 const shownPerChip = 40;
 
-export const diffCommand: Command = {
+export const diffCommand = defineCommand({
   name: 'diff',
   summary: 'compare the images of two versions of a table, chip by chip',
-  usage: 'diff OLD.pwt NEW.pwt [--all]',
+  operands: 'OLD.pwt NEW.pwt',
+  options: [{ name: 'all', help: `list every changed address (default: the first ${shownPerChip} per chip)` }],
+  exitCodes: [
+    [0, 'identical: no chip needs re-programming'],
+    [1, 'the tables differ (the chips to re-program are listed)'],
+    [2, 'usage error, a file that cannot be read, or a table with errors (nothing compared)'],
+  ],
   async run(args, io) {
-    const parsed = parseArgs(args, { flags: ['all'] });
+    const parsed = parseArgs(args, this.options);
     if (parsed.errors.length || parsed.positionals.length !== 2) {
       io.err(`phasewright diff: ${parsed.errors[0] ?? 'give the old and the new .pwt file'}\nusage: phasewright ${this.usage}\n`);
       return 2;
@@ -59,4 +65,4 @@ export const diffCommand: Command = {
     io.out(diff.identical ? 'identical: no chip needs re-programming\n' : `re-program: ${reprogram.join('; ')}\n`);
     return diff.identical ? 0 : 1;
   },
-};
+});

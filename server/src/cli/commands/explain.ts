@@ -1,14 +1,25 @@
 // `phasewright explain CODE`: the long explanation of a diagnostic code from the catalogue.
 import { catalogue, codeInfo } from '../../core/checks/catalogue';
 import { closest } from '../../core/text/suggest';
-import type { Command } from '../commands';
+import { parseArgs } from '../args';
+import { defineCommand } from '../help';
 
-export const explainCommand: Command = {
+export const explainCommand = defineCommand({
   name: 'explain',
-  summary: 'explain a diagnostic code',
-  usage: 'explain CODE',
+  summary: 'explain a diagnostic code (without one: list every code)',
+  operands: '[CODE]',
+  options: [],
+  exitCodes: [
+    [0, 'explained (or listed)'],
+    [2, 'usage error, or no diagnostic code of that name'],
+  ],
   async run(args, io) {
-    const code = args[0];
+    const parsed = parseArgs(args, this.options);
+    if (parsed.errors.length || parsed.positionals.length > 1) {
+      io.err(`phasewright explain: ${parsed.errors[0] ?? 'give one code'}\nusage: phasewright ${this.usage}\n`);
+      return 2;
+    }
+    const code = parsed.positionals[0];
     if (!code) {
       io.out('Diagnostic codes:\n' + catalogue.map((c) => `  ${c.code.padEnd(22)} ${c.severity.padEnd(8)} ${c.title}`).join('\n') + '\n');
       return 0;
@@ -22,7 +33,7 @@ export const explainCommand: Command = {
     io.out(`${info.code} (${info.severity} by default): ${info.title}\n\n${wrap(info.explanation, 78)}\n`);
     return 0;
   },
-};
+});
 
 function wrap(text: string, width: number): string {
   const out: string[] = [];

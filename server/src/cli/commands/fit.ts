@@ -11,7 +11,7 @@ import { encodeMachine } from '../../core/encode/encoder';
 import { storeTruthTable } from '../../core/encode/storeTable';
 import { buildGalImage, checkGalImage, equationsText, fitDevices, minimise, verilogModule, type DeviceName } from '../../core/logic';
 import { parseArgs } from '../args';
-import type { Command } from '../commands';
+import { defineCommand } from '../help';
 import { readJsonFile, readSource } from '../readSource';
 import { writeOutputSet, ManifestError } from '../output/manifest';
 import { OutputError } from '../output/safeWriter';
@@ -19,12 +19,27 @@ import { VERSION } from '../version';
 
 const deviceNames: Record<string, DeviceName> = { gal16v8: 'GAL16V8', gal22v10: 'GAL22V10' };
 
-export const fitCommand: Command = {
+export const fitCommand = defineCommand({
   name: 'fit',
   summary: 'minimise a store\'s outputs and write GAL fuse maps (JEDEC), equations and Verilog',
-  usage: 'fit FILE --device gal16v8|gal22v10 [--store NAME] [--outputs LIST] [--pins FILE] [--out DIR] [--keep-fill]',
+  operands: 'FILE',
+  options: [
+    { name: 'device', value: 'gal16v8|gal22v10', required: true, help: 'the device to fit' },
+    { name: 'store', value: 'NAME', help: 'the store to fit (default main, or the first)' },
+    { name: 'outputs', value: 'LIST', help: 'comma-separated signals to fit (default: all of the store)' },
+    { name: 'pins', value: 'FILE', help: 'JSON { "signal": pin, ... } fixing pins (outputs, or inputs such as step[0])' },
+    { name: 'out', value: 'DIR', help: 'the folder to write into (default out)' },
+    { name: 'keep-fill', help: 'keep the fill word at addresses no step covers instead of treating them as don\'t-cares' },
+    { name: 'vectors', value: 'N', help: 'at most N test vectors per fuse map (0 for none; default: every care address)' },
+    { name: 'mode', value: 'MODE', help: 'the device mode: auto (default), simple or complex for the GAL16V8, combinational for the GAL22V10' },
+  ],
+  exitCodes: [
+    [0, 'everything fits; fuse maps, equations and Verilog written'],
+    [1, 'an output cannot fit, the table has errors, no such store, or an output could not be written (nothing written)'],
+    [2, 'usage error, or a file that cannot be read'],
+  ],
   async run(args, io) {
-    const parsed = parseArgs(args, { flags: ['keep-fill'], values: ['device', 'store', 'outputs', 'pins', 'out', 'vectors', 'mode'] });
+    const parsed = parseArgs(args, this.options);
     const deviceOption = parsed.options.get('device');
     if (parsed.errors.length || parsed.positionals.length !== 1 || typeof deviceOption !== 'string') {
       io.err(`phasewright fit: ${parsed.errors[0] ?? (parsed.positionals.length !== 1 ? 'give one .pwt file' : 'choose a device with --device gal16v8 or --device gal22v10')}\nusage: phasewright ${this.usage}\n`);
@@ -144,7 +159,7 @@ export const fitCommand: Command = {
       throw err;
     }
   },
-};
+});
 
 /** A pins file: JSON `{ "signal": pin, ... }`, signals being outputs (`x.rs1.oe`, `alu.fn[2]`) or inputs (`step[0]`). */
 function loadPins(path: string): { ok: true; pins: Record<string, number> } | { ok: false; reason: string } {

@@ -1,21 +1,35 @@
 // `phasewright lsp --stdio`: runs the language server in this process, the same server as
 // dist/server.js, for editors configured to start the CLI. It answers until the client sends
-// `exit`; the server itself ends the process.
-import type { Command } from '../commands';
-import { hasTransport, startServer } from '../../lsp/server';
+// `exit`; the server itself ends the process. The connection reads its transport from the
+// process arguments; this command only checks that exactly one is named.
+import { parseArgs } from '../args';
+import { defineCommand } from '../help';
+import { startServer } from '../../lsp/server';
 
-export const lspCommand: Command = {
+export const lspCommand = defineCommand({
   name: 'lsp',
   summary: 'run the language server (for editors)',
-  usage: 'lsp --stdio | --node-ipc',
+  operands: '',
+  options: [
+    { name: 'stdio', oneOf: 'transport', required: true, help: 'talk LSP over stdin and stdout' },
+    { name: 'node-ipc', oneOf: 'transport', required: true, help: 'talk LSP over the Node IPC channel (as VS Code starts servers)' },
+    { name: 'clientProcessId', value: 'PID', help: 'exit when this process does (editors pass it)' },
+  ],
+  exitCodes: [
+    [0, 'the client asked the server to exit after shutting it down'],
+    [1, 'the client asked it to exit without a shutdown first'],
+    [2, 'usage error: no transport, or more than one'],
+  ],
   async run(args, io) {
-    const unknown = args.filter((a) => !hasTransport([a]) && !a.startsWith('--clientProcessId'));
-    if (!hasTransport(args) || unknown.length) {
-      io.err(`phasewright lsp: ${unknown.length ? `unknown argument '${unknown[0]}'` : 'name a transport'}\nusage: phasewright ${this.usage}\n`);
+    const parsed = parseArgs(args, this.options);
+    const transports = ['stdio', 'node-ipc'].filter((t) => parsed.options.has(t));
+    if (parsed.errors.length || parsed.positionals.length || transports.length !== 1) {
+      const reason = parsed.errors[0] ?? (parsed.positionals.length ? `unknown argument '${parsed.positionals[0]}'` : transports.length ? 'name one transport' : 'name a transport');
+      io.err(`phasewright lsp: ${reason}\nusage: phasewright ${this.usage}\n`);
       return 2;
     }
     startServer();
     // The connection keeps the process alive and exits it on `exit`; this never resolves.
     return new Promise<number>(() => undefined);
   },
-};
+});

@@ -6,8 +6,8 @@
 //   133     EBREAK: qemu-riscv32 dies from SIGTRAP there, which a shell shows as 128 + 5
 //   132     illegal instruction (both machines agree it is one): 128 + SIGILL (4), as a shell
 //           shows for qemu-riscv32
-//   2       nothing ran: usage, file or program errors, a table with errors, a machine the
-//           simulator cannot run, a trace that could not be written
+//   2       nothing ran: usage, file or program errors, a table with errors (unless forced), a
+//           machine the simulator cannot run, a trace that could not be written
 //   3       lock-step divergence: the table's machine and the RV32I reference disagree
 //   4       the simulated machine stopped where a native run would not: a machine fault (bus
 //           contention, an undefined value loaded, a combinational loop, a control code that
@@ -16,7 +16,7 @@
 // Codes 2, 3 and 4 can also be a program's own exit code; the summary line says which it is.
 //
 // Deliberately not here: files, clocks, printing (the adapters do that).
-import { analyse, errorCount, type Analysis } from '../analysis';
+import { analyse, errorCount, type Analysis, type SeverityConfig } from '../analysis';
 import { ProgramRun, type RunEnding } from './lockstep';
 import { SimPlan } from './plan';
 import { loadProgram } from './program';
@@ -41,24 +41,30 @@ export interface RunRequest {
   loadAddress?: number;
   /** Compare with the reference interpreter (default true). */
   reference?: boolean;
+  /** Run a table with errors anyway (its result then says nothing about a correct table). */
+  force?: boolean;
+  severities?: SeverityConfig;
 }
 
 export type PreparedRun =
-  | { ok: true; run: ProgramRun; analysis: Analysis; warnings: readonly string[] }
+  /** `untrusted`: set when forced past errors; the run shows a table that would not build. */
+  | { ok: true; run: ProgramRun; analysis: Analysis; warnings: readonly string[]; untrusted?: string }
   | { ok: false; reason: string };
 
 export function prepareRun(request: RunRequest): PreparedRun {
-  const analysis = analyse(request.text);
+  const analysis = analyse(request.text, { severities: request.severities });
   const errors = errorCount(analysis.diagnostics);
-  if (errors > 0) {
-    return { ok: false, reason: `${request.sourceName} has ${errors} error(s); nothing was run. Fix them first (\`phasewright check ${request.sourceName}\`).` };
+  if (errors > 0 && !request.force) {
+    return { ok: false, reason: `${request.sourceName} has ${errors} error(s); nothing was run. Fix them first (\`phasewright check ${request.sourceName}\`), or pass --force to run it anyway (the result is then untrusted).` };
   }
+  const untrusted =
+    errors > 0 ? `UNTRUSTED: ${request.sourceName} has ${errors} error(s) and runs only because of --force; what it does says nothing about a correct table, and its images must not be programmed.` : undefined;
   const planned = SimPlan.build(analysis.machine);
   if (!planned.ok) return { ok: false, reason: `${request.sourceName} cannot be simulated: ${planned.errors.join('; ')}` };
   const loaded = loadProgram(request.program, request.loadAddress);
   if (!loaded.ok) return { ok: false, reason: `the program cannot be loaded: ${loaded.error}` };
   const run = new ProgramRun(planned.plan, loaded.program, { reference: request.reference ?? true, format: { lines: analysis.lines, file: request.sourceName } });
-  return { ok: true, run, analysis, warnings: loaded.program.warnings };
+  return { ok: true, run, analysis, warnings: loaded.program.warnings, untrusted };
 }
 
 /** The exit code for a run that ended (`null`: the step limit came first). */
