@@ -5,6 +5,7 @@
 // code as `phasewright build`; this module only gathers settings and reports.
 import * as path from 'node:path';
 import * as vscode from 'vscode';
+import { withProgressNotification } from './progress';
 import type { ServerCommands } from './serverCommands';
 
 /** The absolute output folder for a document: the setting, relative to its workspace folder or its own folder. */
@@ -35,9 +36,8 @@ export async function buildImagesCommand(server: ServerCommands, output: vscode.
     return;
   }
   const config = vscode.workspace.getConfiguration('phasewright', document.uri);
-  const answer = await vscode.window.withProgress(
-    { location: vscode.ProgressLocation.Window, title: 'Phasewright: building control-store images' },
-    () => server.build({ uri: document.uri.toString(), outputFolder: folder, formats: config.get<string[]>('formats'), severity: config.get('severity') }),
+  const answer = await withProgressNotification('building control-store images', () =>
+    server.build({ uri: document.uri.toString(), outputFolder: folder, formats: config.get<string[]>('formats'), severity: config.get('severity') }),
   );
   const stamp = new Date().toLocaleTimeString();
   if (!answer.ok) {

@@ -1,11 +1,13 @@
 // The VS Code side of Phasewright: starts the bundled language server (dist/server.js) over
-// Node IPC, and wires the editor-only parts: the status-bar item, the four commands (build
-// images, timing diagram, listing, run a program), the listing documents and the `phasewright` task type.
+// Node IPC, and wires the editor-only parts: the status-bar item, the five commands (new
+// machine, build images, timing diagram, listing, run a program), the listing documents and the
+// `phasewright` task type.
 // Everything about the notation happens in the server; nothing here reads or runs workspace
 // code, so the extension is safe in untrusted workspaces (building asks for trust first).
 import * as vscode from 'vscode';
 import { LanguageClient, type LanguageClientOptions, type ServerOptions, TransportKind } from 'vscode-languageclient/node';
 import { buildImagesCommand } from './buildCommand';
+import { newMachineCommand } from './newMachine';
 import { runProgramCommand } from './runCommand';
 import { ListingProvider, listingScheme, showListingCommand } from './listingView';
 import { ServerCommands } from './serverCommands';
@@ -42,6 +44,7 @@ export async function activate(context: vscode.ExtensionContext): Promise<void> 
     output,
     listings,
     vscode.workspace.registerTextDocumentContentProvider(listingScheme, listings),
+    vscode.commands.registerCommand('phasewright.newMachine', () => newMachineCommand(context.extensionUri)),
     vscode.commands.registerCommand('phasewright.buildImages', () => buildImagesCommand(server, output, phasewrightEditor()?.document)),
     vscode.commands.registerCommand('phasewright.runProgram', () => runProgramCommand(server, output, phasewrightEditor()?.document)),
     vscode.commands.registerCommand('phasewright.showListing', () => showListingCommand(listings, phasewrightEditor()?.document)),

@@ -3,6 +3,7 @@
 // `phasewright build --format list` writes it. The listing is asked from the language server
 // when the document opens and again when the source changes while the listing is open.
 import * as vscode from 'vscode';
+import { withProgressNotification } from './progress';
 import type { ServerCommands } from './serverCommands';
 
 export const listingScheme = 'phasewright-listing';
@@ -49,6 +50,6 @@ export async function showListingCommand(provider: ListingProvider, document: vs
     void vscode.window.showWarningMessage('Phasewright: open a .pwt file to see its control-word listing.');
     return;
   }
-  const listing = await vscode.workspace.openTextDocument(provider.listingUriFor(document.uri));
+  const listing = await withProgressNotification('encoding the control-word listing', () => vscode.workspace.openTextDocument(provider.listingUriFor(document.uri)));
   await vscode.window.showTextDocument(listing, { viewColumn: vscode.ViewColumn.Beside, preview: false });
 }

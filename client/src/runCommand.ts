@@ -6,6 +6,7 @@
 // difference. The program is simulated, never executed on this machine.
 import * as path from 'node:path';
 import * as vscode from 'vscode';
+import { withProgressNotification } from './progress';
 import type { ServerCommands } from './serverCommands';
 
 export async function runProgramCommand(server: ServerCommands, output: vscode.OutputChannel, document: vscode.TextDocument | undefined): Promise<void> {
@@ -29,10 +30,7 @@ export async function runProgramCommand(server: ServerCommands, output: vscode.O
     if (text === undefined) return;
     loadAddress = Number(text.trim());
   }
-  const answer = await vscode.window.withProgress(
-    { location: vscode.ProgressLocation.Notification, title: `Phasewright: running ${path.basename(program)} through the table`, cancellable: false },
-    () => server.run({ uri: document.uri.toString(), program, loadAddress }),
-  );
+  const answer = await withProgressNotification(`running ${path.basename(program)} through the table`, () => server.run({ uri: document.uri.toString(), program, loadAddress }));
   const stamp = new Date().toLocaleTimeString();
   if (!answer.ok) {
     output.appendLine(`[${stamp}] run of ${path.basename(program)} refused: ${answer.reason}`);

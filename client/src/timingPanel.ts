@@ -4,6 +4,7 @@
 // picture itself comes from the language server (`phasewright.diagram`).
 import { randomBytes } from 'node:crypto';
 import * as vscode from 'vscode';
+import { withProgressNotification } from './progress';
 import type { DiagramAnswer, ServerCommands } from './serverCommands';
 import { type FromPage, type ToPage, timingHtml } from './timingWebview';
 
@@ -23,6 +24,7 @@ export class TimingPanel implements vscode.Disposable {
   private timer: ReturnType<typeof setTimeout> | undefined;
   private generation = 0;
   private ready = false;
+  private drawn = false;
 
   static show(server: ServerCommands, editor: vscode.TextEditor): TimingPanel {
     if (TimingPanel.current) {
@@ -85,7 +87,10 @@ export class TimingPanel implements vscode.Disposable {
     const offset = this.pendingOffset;
     this.pendingOffset = undefined;
     // The server draws the class under the cursor when it stands in one, else the current class.
-    const result = await this.server.diagram({ uri: this.document.uri.toString(), offset, className: this.className, guards: this.guardTexts(), all: this.all, theme: 'host' });
+    const request = () => this.server.diagram({ uri: this.document.uri.toString(), offset, className: this.className, guards: this.guardTexts(), all: this.all, theme: 'host' });
+    // The first picture shows progress; redraws that follow the cursor stay quiet.
+    const result = this.drawn ? await request() : await withProgressNotification('drawing the timing diagram', request);
+    this.drawn = true;
     if (generation !== this.generation) return;
     if (!result.ok) {
       // A guard the table no longer accepts (an input renamed) is dropped rather than kept failing.
@@ -149,7 +154,9 @@ export class TimingPanel implements vscode.Disposable {
 
   private async save(): Promise<void> {
     if (!this.className) return;
-    const answer = await this.server.diagram({ uri: this.document.uri.toString(), className: this.className, guards: this.guardTexts(), all: this.all, theme: 'auto' });
+    const answer = await withProgressNotification('drawing the diagram to save', () =>
+      this.server.diagram({ uri: this.document.uri.toString(), className: this.className!, guards: this.guardTexts(), all: this.all, theme: 'auto' }),
+    );
     if (!answer.ok) {
       void vscode.window.showErrorMessage(`Phasewright: ${answer.reason}`);
       return;

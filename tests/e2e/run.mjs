@@ -1,8 +1,9 @@
 // End-to-end test of the packaged extension in a real VS Code: code-server (VS Code 1.100 in
 // the browser) with the VSIX installed, driven through Debian's chromium by playwright-core.
 // It opens the demo and a fault example and checks what a user sees: the status-bar item, the
-// Problems panel, a hover on a strobe, the build command writing images into the configured
-// folder, the listing document and the timing-diagram webview with its rows. Screenshots go to
+// New machine command writing a starter table, the Problems panel, a hover on a strobe, the
+// build command writing images into the configured folder, the listing document and the
+// timing-diagram webview with its rows. Screenshots go to
 // tests/e2e/artifacts/. Every wait is for an element or a file, never a fixed time.
 // Run: node tests/e2e/run.mjs   (after `npm run build`; tests/e2e/install.sh installs the tools)
 import { execFileSync, spawn } from 'node:child_process';
@@ -219,7 +220,27 @@ async function main() {
     log(`status bar: ${(await status.innerText()).trim()}`);
     await page.screenshot({ path: join(artifacts, 'status-bar.png') });
 
+    step = 'new machine';
+    // The command opens a second quick input (the kind of table, then its name), so the palette
+    // stays up: pick the rows here rather than through runCommand.
+    await page.keyboard.press('F1');
+    const palette = page.locator('.quick-input-widget input');
+    await palette.waitFor({ state: 'visible' });
+    await palette.fill('>Phasewright: New machine');
+    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'Phasewright: New machine' }).first().click();
+    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'Starter table' }).first().click();
+    await waitFor('the file name prompt', async () => (await palette.inputValue()) === 'machine.pwt');
+    await palette.fill('starter.pwt');
+    await page.keyboard.press('Enter');
+    await page.locator('.tab.active', { hasText: 'starter.pwt' }).waitFor({ state: 'visible' });
+    await page.locator('.statusbar-item', { hasText: 'Machine: 0 errors' }).waitFor({ state: 'visible' });
+    const starter = join(workspace, 'starter.pwt');
+    execFileSync(process.execPath, [join(root, 'dist/cli.js'), 'check', starter], { encoding: 'utf8', stdio: 'pipe' });
+    log('New machine wrote starter.pwt into the workspace, opened it, and it checks clean');
+    await page.locator('.tab', { hasText: 'starter.pwt' }).locator('.codicon-close').click();
+
     step = 'hover';
+    await openFile(page, 'halyard-32.pwt');
     await goToLine(page, demoLine('strobe alu.oe'));
     const token = page.locator('.editor-instance .view-lines .view-line span span').filter({ hasText: /^alu\.oe$/ }).first();
     await token.hover();

@@ -17,7 +17,7 @@ const snippets = JSON.parse(readFileSync(join(root, 'snippets/phasewright.json')
 describe('manifest', () => {
   it('activates on the language and on its commands only', () => {
     expect(pkg.activationEvents).toEqual(['onLanguage:phasewright', ...pkg.contributes.commands.map((c: { command: string }) => `onCommand:${c.command}`)]);
-    expect(pkg.contributes.commands.map((c: { command: string }) => c.command)).toEqual(['phasewright.buildImages', 'phasewright.showTimingDiagram', 'phasewright.showListing', 'phasewright.runProgram']);
+    expect(pkg.contributes.commands.map((c: { command: string }) => c.command)).toEqual(['phasewright.newMachine', 'phasewright.buildImages', 'phasewright.showTimingDiagram', 'phasewright.showListing', 'phasewright.runProgram']);
     expect(pkg.main).toBe('./dist/client.js');
     expect(pkg.engines.vscode).toBe('^1.91.0');
     expect(pkg.devDependencies['@types/vscode']).toBe('1.91.0');

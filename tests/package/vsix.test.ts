@@ -1,6 +1,7 @@
 // The packaged extension: `npm run package` (build, then vsce offline with no prompts) writes a VSIX holding
-// exactly the whitelist (bundles, grammar, language configuration, snippets, icon, README,
-// LICENSE and the manifest) and nothing else: no sources, tests, source maps or node_modules.
+// exactly the whitelist (bundles, grammar, language configuration, snippets, the demo table, icon,
+// the details page from EXTENSION.md with its pictures, the notation page, LICENSE and the
+// manifest) and nothing else: no sources, tests, source maps, node_modules or developer README.
 // The archive is listed with Info-ZIP's unzip, outside the project. The test runs the packaging
 // half (`npm run package:vsix`) on the bundles `npm test` has just built: rebuilding them here
 // would rewrite dist/ while other test files start the server and the CLI from it.
@@ -18,7 +19,7 @@ describe('npm run package:vsix', () => {
     if (!haveTools(['unzip'], 'unzip')) return;
     const output = execFileSync('npm', ['run', 'package:vsix'], { cwd: root, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
     // vsce reports the file count and size of what it packed.
-    expect(output).toMatch(/DONE {2}Packaged: .*phasewright-0\.1\.0\.vsix \(12 files, [\d.]+ (KB|MB)\)/);
+    expect(output).toMatch(/DONE {2}Packaged: .*phasewright-0\.1\.0\.vsix \(16 files, [\d.]+ (KB|MB)\)/);
     expect(existsSync(vsix)).toBe(true);
     const names = execFileSync('unzip', ['-Z1', vsix], { encoding: 'utf8' }).trim().split('\n').sort();
     expect(names).toEqual(
@@ -29,6 +30,10 @@ describe('npm run package:vsix', () => {
         'extension/dist/cli.js',
         'extension/dist/client.js',
         'extension/dist/server.js',
+        'extension/docs/images/hover.png',
+        'extension/docs/images/timing-diagram.png',
+        'extension/docs/notation.md',
+        'extension/examples/halyard-32.pwt',
         'extension/images/icon.png',
         'extension/language-configuration.json',
         'extension/package.json',
@@ -37,6 +42,18 @@ describe('npm run package:vsix', () => {
         'extension/syntaxes/phasewright.tmLanguage.json',
       ].sort(),
     );
+    // The details page is the user's README (EXTENSION.md), not the developers' README.md: no
+    // developer steps, no placeholder links, every picture and link packaged or absolute.
+    const readme = execFileSync('unzip', ['-p', vsix, 'extension/readme.md'], { encoding: 'utf8' });
+    expect(readme).toBe(readFileSync(join(root, 'EXTENSION.md'), 'utf8'));
+    expect(readme).not.toMatch(/npm ci|npx |npm run|example\.invalid|TODO/);
+    for (const [, target] of readme.matchAll(/\]\(([^)\s]+)\)/g)) {
+      if (/^https:\/\//.test(target)) continue;
+      expect(names, `link ${target} is packaged`).toContain(`extension/${target}`);
+    }
+    expect(readme).toMatch(/\*\*New machine\*\*/);
+    const manifestText = execFileSync('unzip', ['-p', vsix, 'extension/package.json'], { encoding: 'utf8' });
+    expect(JSON.parse(manifestText).repository).toBeUndefined();
     // The bundles inside are the ones just built, byte for byte.
     for (const bundle of ['client', 'server', 'cli']) {
       const packed = execFileSync('unzip', ['-p', vsix, `extension/dist/${bundle}.js`], { maxBuffer: 16 * 1024 * 1024 });
