@@ -5,6 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { budgetOf, ledCurrentMa } from '../../server/src/core/budget/budget';
 import { dedent } from '../support/annotated';
+import { chainedStoreTable } from '../support/fixtures';
 import { runCommand } from '../../server/src/cli/commands';
 import { memoryIo } from '../../server/src/cli/io';
 import { join } from 'node:path';
@@ -121,6 +122,18 @@ describe('fan-out', () => {
 });
 
 describe('step timing', () => {
+  it('adds the access times of chained stores in series: a decoder store feeding the main store\'s address', () => {
+    // The main store's address is valid only when the decoder's outputs are: 70 ns, then the
+    // main store's own 150 ns, then 38 ns enable, 10 ns settling, 12 ns setup = 280 ns (the
+    // figures are the fixture's own; adding delays in series is common practice, no source).
+    const budget = budgetOf(analyse(chainedStoreTable).machine);
+    expect(budget.limiting!.totalNs).toBe(280);
+    expect(budget.limiting!.segments.map((s) => `${s.what} ${s.ns}`)).toEqual(['store decode access 70', 'store main access 150', 'a.oe enable 38', 'result settling 10', 'b.ck setup 12']);
+    // Two stores side by side (both addressed by the instruction): the slower one counts, once.
+    const parallel = chainedStoreTable.replace('step 0..1  entry 2..3', 'step 0..1  opcode 2..6').replace('address 4', 'address 7');
+    expect(budgetOf(analyse(parallel).machine).limiting!.totalNs).toBe(150 + 38 + 10 + 12);
+  });
+
   it('adds up a hand-worked path and names the limiting step', () => {
     // Hand-worked: 150 ns EEPROM access (28C64-class, reference-facts: 120-150 ns), then typical
     // HC-family figures from memory: 38 ns enable, 160 ns ALU, 10 ns bus, 12 ns setup = 370 ns.

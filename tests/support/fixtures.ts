@@ -33,3 +33,35 @@ export const decoderStoreTable = dedent(`
         0: a.oe, b.ck
         1: alu.fn=sub, alu.oe, b.ck, done
 `);
+
+/**
+ * Two stores in series: a decoder store addressed by the opcode holds the `entry` field, and
+ * the main store's address is the step counter and that field, so the main store's word is
+ * valid only after both access times. Every step sets `entry` (fetch included), so every class
+ * is reached where its words stand. Checks clean. Figures: 70 ns decoder, 150 ns main store.
+ */
+export const chainedStoreTable = dedent(`
+      bus result 8 settle_ns=10
+      part a register 8 en_ns=38 tsu_ns=12
+      part b register 8 tsu_ns=12
+      strobe a.oe enable a -> result active low
+      strobe b.ck clock result -> b
+      strobe done end
+      field entry 2 { none=0 op=1 sub=2 }
+      store decode
+        word 8 as 1 x 8 access_ns=70
+          entry 0..1
+        address 5
+          opcode 0..4
+      store main
+        word 8 as 1 x 8 access_ns=150
+          a.oe 0  b.ck 1  done 2
+        address 4
+          step 0..1  entry 2..3
+      class OP opcode=0110011
+        0: entry=op, a.oe, b.ck
+        1: entry=op, a.oe, b.ck, done
+      class SUBTRACT opcode=0001011
+        0: entry=sub, a.oe, b.ck
+        1: entry=sub, done
+`);

@@ -8,7 +8,7 @@
 //
 // Deliberately not here: any C library, and running the program.
 import { spawnSync } from 'node:child_process';
-import { chmodSync, existsSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { chmodSync, existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, dirname, extname, join, resolve } from 'node:path';
 import { loadProgram } from '../../core/sim/program';
@@ -111,6 +111,7 @@ export const compileCommand = defineCommand({
       const target = resolve(io.cwd, out);
       let written;
       try {
+        mkdirSync(dirname(target), { recursive: true });
         written = writeFileSafely(dirname(target), { name: basename(target), bytes });
         // An executable like any the compiler writes: qemu-riscv32 refuses to load a file without it.
         chmodSync(written.absolutePath, 0o755);

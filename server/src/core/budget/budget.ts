@@ -223,14 +223,54 @@ function busLoads(machine: Machine, bus: Bus, ledMa: number): LineLoad[] {
   return rows;
 }
 
+/**
+ * When each store's outputs are valid, from the step's start: its own access time after its
+ * address is valid, and an address fed by another store's field (an entry-point decoder) is
+ * valid only when that store's outputs are. Chained stores add their access times in series.
+ */
+function storeArrivals(machine: Machine, missing: Set<string>): Map<string, Arrival> {
+  const arrivals = new Map<string, Arrival>();
+  const stores = machine.stores.filter((s) => s.word);
+  const holder = new Map<string, string>();
+  for (const store of stores) for (const p of store.word!.placements) holder.set(p.signal, store.name);
+  const label = (name: string) => (stores.length === 1 ? 'control store access' : `store ${name} access`);
+  const visiting = new Set<string>();
+  const arrive = (name: string): Arrival => {
+    const known = arrivals.get(name);
+    if (known) return known;
+    const store = stores.find((s) => s.name === name)!;
+    // A loop of stores feeding each other is the simulator's refusal; here it counts once.
+    visiting.add(name);
+    let base: Arrival = { ns: 0, segments: [] };
+    for (const source of store.address?.sources ?? []) {
+      const from = source.input.kind === 'field' ? holder.get(source.input.name) : undefined;
+      if (!from || from === name || visiting.has(from)) continue;
+      const fed = arrive(from);
+      if (fed.ns > base.ns || base.segments.length === 0) base = fed;
+    }
+    visiting.delete(name);
+    const access = fig(store.word!.figures, 'access_ns');
+    if (access === undefined) missing.add(`control-store access time (access_ns on the word layout${stores.length > 1 ? ` of store ${name}` : ''})`);
+    const arrival = { ns: base.ns + (access ?? 0), segments: [...base.segments, { what: label(name), ns: access ?? 0 }] };
+    arrivals.set(name, arrival);
+    return arrival;
+  };
+  for (const store of stores) arrive(store.name);
+  return arrivals;
+}
+
 /** Longest path of every step alternative (phase steps once), from control word to clock edge. */
 function stepPaths(machine: Machine, missing: Set<string>): StepPath[] {
-  const accessValues = machine.stores.map((s) => fig(s.word?.figures, 'access_ns')).filter((v): v is number => v !== undefined);
-  if (accessValues.length === 0) {
+  if (!machine.stores.some((s) => fig(s.word?.figures, 'access_ns') !== undefined)) {
     if (machine.stores.some((s) => s.word)) missing.add('control-store access time (access_ns on the word layout)');
     return [];
   }
-  const access = Math.max(...accessValues);
+  const byStore = storeArrivals(machine, missing);
+  const latest = [...byStore.values()].reduce((a, b) => (b.ns > a.ns ? b : a));
+  const bySignal = new Map<string, Arrival>();
+  for (const store of machine.stores) for (const p of store.word?.placements ?? []) bySignal.set(p.signal, byStore.get(store.name) ?? latest);
+  // A signal no store holds is reported elsewhere (unplaced-signal); the latest store stands in.
+  const access = (signal: string | undefined): Arrival => (signal !== undefined ? bySignal.get(signal) : undefined) ?? latest;
   const paths: StepPath[] = [];
   const seen = new Set<number>();
   const visit = (alt: StepAlt, owner: string) => {
@@ -249,14 +289,24 @@ interface Arrival {
   segments: PathSegment[];
 }
 
-function longestPath(machine: Machine, alt: StepAlt, access: number, missing: Set<string>): Omit<StepPath, 'owner' | 'step' | 'guard' | 'span'> | undefined {
+/** When a signal's value is valid: the outputs of the store that holds it. */
+type SignalArrival = (signal: string | undefined) => Arrival;
+
+function later(a: Arrival, b: Arrival): Arrival {
+  return b.ns > a.ns ? b : a;
+}
+
+function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, missing: Set<string>): Omit<StepPath, 'owner' | 'step' | 'guard' | 'span'> | undefined {
   const strobes = alt.actions.map((a) => machine.signals.get(a.signal)).filter((s): s is Strobe => s?.type === 'strobe');
   const need = (part: Part, name: string): number => {
     const v = fig(part.figures, name);
     if (v === undefined) missing.add(`${name} for part ${part.name}`);
     return v ?? 0;
   };
-  const start: Arrival = { ns: access, segments: [{ what: 'control store access', ns: access }] };
+  // The step's control word is complete when its slowest store's outputs are; each path starts
+  // from the store holding its strobe, and a part with a control field from that field's store.
+  const start = alt.actions.map((a) => access(a.signal)).reduce(later, access(undefined));
+  const control = (s: Strobe, part: Part) => later(access(s.name), part.controlField ? access(part.controlField) : access(s.name));
   const busArrival = new Map<string, Arrival | undefined>();
   const arrivalOnBus = (busName: string, depth = 0): Arrival | undefined => {
     if (busArrival.has(busName)) return busArrival.get(busName);
@@ -266,14 +316,16 @@ function longestPath(machine: Machine, alt: StepAlt, access: number, missing: Se
       if (s.bus !== busName || (s.kind !== 'enable' && s.kind !== 'read') || !s.part) continue;
       const part = machine.parts.get(s.part);
       if (!part) continue;
-      let arrival: Arrival = { ns: start.ns + need(part, 'en_ns'), segments: [...start.segments, { what: `${s.name} enable`, ns: need(part, 'en_ns') }] };
+      const enabled = access(s.name);
+      let arrival: Arrival = { ns: enabled.ns + need(part, 'en_ns'), segments: [...enabled.segments, { what: `${s.name} enable`, ns: need(part, 'en_ns') }] };
       if ((part.kind === 'alu' || part.kind === 'compare') && depth < 4) {
-        const inputs = [arrivalOnBus(part.a, depth + 1), arrivalOnBus(part.b, depth + 1), start].filter((a): a is Arrival => !!a);
-        const latest = inputs.reduce((a, b) => (b.ns > a.ns ? b : a));
+        const inputs = [arrivalOnBus(part.a, depth + 1), arrivalOnBus(part.b, depth + 1), control(s, part)].filter((a): a is Arrival => !!a);
+        const latest = inputs.reduce(later);
         const through = { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} ${part.kind === 'alu' ? 'ALU' : 'comparator'}`, ns: need(part, 'tpd_ns') }] };
         if (through.ns > arrival.ns) arrival = through;
       } else if (part.kind === 'immediate' || part.kind === 'memory') {
-        const through = { ns: start.ns + need(part, 'tpd_ns'), segments: [...start.segments, { what: `${part.name} ${part.kind === 'memory' ? 'memory read' : 'immediate'}`, ns: need(part, 'tpd_ns') }] };
+        const from = control(s, part);
+        const through = { ns: from.ns + need(part, 'tpd_ns'), segments: [...from.segments, { what: `${part.name} ${part.kind === 'memory' ? 'memory read' : 'immediate'}`, ns: need(part, 'tpd_ns') }] };
         if (through.ns > arrival.ns) arrival = through;
       }
       if (!best || arrival.ns > best.ns) best = arrival;
@@ -293,11 +345,13 @@ function longestPath(machine: Machine, alt: StepAlt, access: number, missing: Se
     let arrival: Arrival | undefined;
     if ((s.kind === 'clock' || s.kind === 'write') && s.bus) arrival = arrivalOnBus(s.bus);
     else if (s.kind === 'clock' && part.kind === 'compare') {
-      const inputs = [arrivalOnBus(part.a), arrivalOnBus(part.b), start].filter((a): a is Arrival => !!a);
-      const latest = inputs.reduce((a, b) => (b.ns > a.ns ? b : a));
+      const inputs = [arrivalOnBus(part.a), arrivalOnBus(part.b), control(s, part)].filter((a): a is Arrival => !!a);
+      const latest = inputs.reduce(later);
       arrival = { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} comparator`, ns: need(part, 'tpd_ns') }] };
-    } else if (s.kind === 'count') arrival = start;
+    } else if (s.kind === 'count') arrival = access(s.name);
     if (!arrival) continue;
+    // The loading strobe itself must be valid before the edge too.
+    arrival = later(arrival, access(s.name));
     const setup = need(part, 'tsu_ns');
     const total = { ns: arrival.ns + setup, segments: [...arrival.segments, { what: `${s.name} setup`, ns: setup }] };
     if (!worst || total.ns > worst.arrival.ns) worst = { arrival: total, endpoint: s.name };
