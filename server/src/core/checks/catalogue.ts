@@ -214,6 +214,12 @@ export const catalogue: CodeInfo[] = [
     explanation: 'A store\'s address lines do not carry everything its signals depend on: two situations that the table treats differently land on the same address of that store. For example a decoder store without step lines holding a field that changes from step to step. Add the missing inputs to that store\'s address, or move the signal to a store that has them.',
   },
   {
+    code: 'entry-unreachable',
+    severity: 'error',
+    title: 'a step\'s word is not where the chained stores point',
+    explanation: 'With an entry-point decoder (a store whose field feeds another store\'s address), each step\'s word is laid at the address the table\'s own field values form, but the board forms it from what the decoder store holds. Where the two differ the step never runs: the processor reads another word there, usually the fill word (every strobe idle). The usual cause is a fetch phase that does not set the entry field: its words then stand at the field\'s idle code, while at step 0 the decoder points at the entry of the instruction left in the instruction register, so nothing is ever fetched. The check follows every RV32I instruction from step 0 along its guards through the encoded stores, as the address lines do, so fetch must run at every entry the decoder gives. Set the field in every step (a decode map on the opcode gives each class its own value).',
+  },
+  {
     code: 'map-overlap',
     severity: 'error',
     title: 'two rows of a decode map match the same inputs with different values',

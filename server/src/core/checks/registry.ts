@@ -17,6 +17,7 @@ import { rdWithoutField } from './rdWithoutField';
 import { repeatedStrobe } from './repeatedStrobe';
 import { stepRange } from './stepRange';
 import { storeAmbiguous } from './storeAmbiguous';
+import { entryReach } from './entryReach';
 import { undrivenLatch } from './undrivenLatch';
 import { unplacedSignal } from './unplacedSignal';
 import { unusedName } from './unusedName';
@@ -48,6 +49,7 @@ export const checks: Check[] = [
   chipCapacity,
   notAddressable,
   storeAmbiguous,
+  entryReach,
   strobeOverload,
   busOverload,
   supplyBudget,
