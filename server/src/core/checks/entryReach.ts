@@ -16,7 +16,7 @@
 // Deliberately not here: stores that cannot hold their signals (store-ambiguous) and
 // instructions no class decodes (instruction-uncovered); illegal encodings run the fill word by
 // design and are not walked.
-import { type EncodedMachine, type EncodedStore, decodeWord, encodeMachine } from '../encode/encoder';
+import { type EncodedMachine, type EncodedStore, decodeWord, encodeMachine, formAddress } from '../encode/encoder';
 import { type PointInputs, pointInputsInto, universeOf } from '../encode/universe';
 import { RV32I_INSTRUCTIONS } from '../isa/rv32i';
 import { toBinary, toHex } from '../model/numbers';
@@ -114,20 +114,7 @@ function boardAddresses(machine: Machine, encoded: EncodedMachine, order: Store[
   const addresses = new Map<string, number>() as Map<string, number> & { fields: Map<string, number> };
   addresses.fields = new Map();
   for (const store of order) {
-    let address = 0;
-    for (const s of store.address!.sources) {
-      const lines = s.hi - s.lo + 1;
-      let value: number;
-      if (s.input.kind === 'step') value = inputs.step;
-      else if (s.input.kind === 'ir') value = inputs.ir >>> s.input.lo;
-      else if (s.input.kind === 'flag') value = inputs.flags.get(s.input.name) ?? 0;
-      else {
-        const field = machine.signals.get(s.input.name);
-        value = addresses.fields.get(s.input.name) ?? (field?.type === 'field' ? field.idle : 0);
-      }
-      address |= (value & ((1 << lines) - 1)) << s.lo;
-    }
-    address >>>= 0;
+    const address = formAddress(machine, store, inputs, (name) => addresses.fields.get(name));
     addresses.set(store.name, address);
     const enc = encoded.stores.find((e) => e.store === store)!;
     for (const [name, code] of decodeWord(machine, enc, address).fields) addresses.fields.set(name, code);

@@ -217,8 +217,19 @@ function signalAtBit(placed: PlacedSignal[], bit: number): string | undefined {
   return placed.find((p) => bit >= p.lo && bit < p.lo + p.width)?.signal.name;
 }
 
-/** The address of `store` that a universe point drives. Address widths are at most 24 bits. */
+/** The address of `store` that a universe point drives, as the table lays it. Address widths are at most 24 bits. */
 export function addressOf(store: Store, universe: Universe, inputs: ReturnType<typeof pointInputs>, decoded: PointDecode, machine: Machine): number {
+  void universe;
+  return formAddress(machine, store, inputs, (name) => decoded.fieldCodes.get(name));
+}
+
+/**
+ * A store's address from the step counter, the instruction bits and flags of `inputs`, and the
+ * code `fieldCode` gives for each field of another store its lines carry (a field without one
+ * sits at its idle code). The encoder passes the table's field values; a check that follows the
+ * board passes what the feeding stores hold.
+ */
+export function formAddress(machine: Machine, store: Store, inputs: ReturnType<typeof pointInputs>, fieldCode: (name: string) => number | undefined): number {
   let address = 0;
   const sources = store.address!.sources;
   for (let k = 0; k < sources.length; k++) {
@@ -231,11 +242,10 @@ export function addressOf(store: Store, universe: Universe, inputs: ReturnType<t
     else if (input.kind === 'flag') value = inputs.flags.get(input.name) ?? 0;
     else {
       const field = machine.signals.get(input.name);
-      value = decoded.fieldCodes.get(input.name) ?? (field?.type === 'field' ? field.idle : 0);
+      value = fieldCode(input.name) ?? (field?.type === 'field' ? field.idle : 0);
     }
     address |= (value & ((1 << lines) - 1)) << s.lo;
   }
-  void universe;
   return address >>> 0;
 }
 
