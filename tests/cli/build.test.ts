@@ -21,6 +21,21 @@ beforeEach(() => {
 });
 
 describe('phasewright build', () => {
+  it('names the source file in the $readmemh header and the S-record S0 record, as the listing and manifest do', async () => {
+    expect((await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/named', '--format', 'memh,srec')).code).toBe(0);
+    const memh = readFileSync(join(tmp, 'named/halyard-32.main.chip2.memh'), 'utf8').split('\n');
+    expect(memh.slice(0, 3)).toEqual([
+      '// Phasewright control-store image for $readmemh (IEEE 1364-2005, 17.2.9)',
+      '// source: halyard-32.pwt',
+      '// store main, chip 2 of 4 (bits 23..16 of the 32-bit word)',
+    ]);
+    // Motorola S-record: S0 = count, a 16-bit address of 0000, the header bytes (here the
+    // module name in ASCII), a one's-complement checksum (published format description).
+    const s0 = readFileSync(join(tmp, 'named/halyard-32.main.chip0.srec'), 'utf8').split('\n')[0];
+    expect(s0.slice(0, 8)).toBe(`S0${(2 + 1 + 'halyard-32.pwt'.length).toString(16).toUpperCase().padStart(2, '0')}0000`);
+    expect(Buffer.from(s0.slice(8, -2), 'hex').toString('latin1')).toBe('halyard-32.pwt');
+  });
+
   it('writes every chip in every format, a listing and a manifest, and prints a summary', async () => {
     const r = await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/out');
     expect(r.code).toBe(0);

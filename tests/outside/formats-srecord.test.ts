@@ -126,4 +126,14 @@ describe.skipIf(!canRun)('byte lanes of a 32-bit store', () => {
     put('lane0again.bin', writeBinary(lanes[0]!));
     expect(run('srec_cmp', ['wrong.bin', '-binary', 'lane0again.bin', '-binary']).status).not.toBe(0);
   });
+
+  it('srec_info reads the source file name from the S0 record of a built image', async () => {
+    const { runCommand } = await import('../../server/src/cli/commands');
+    const { memoryIo } = await import('../../server/src/cli/io');
+    const root = join(__dirname, '../..');
+    expect(await runCommand(['build', 'examples/halyard-32.pwt', '--out', join(workDir, 'built'), '--format', 'srec'], memoryIo(root))).toBe(0);
+    const info = run('srec_info', [join(workDir, 'built/halyard-32.main.chip1.srec'), '-motorola']);
+    expect(info.status).toBe(0);
+    expect(info.output).toContain('Header: "halyard-32.pwt"');
+  });
 });

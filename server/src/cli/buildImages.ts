@@ -43,7 +43,7 @@ export function buildImages(request: BuildRequest): BuildResult {
   if (plan.files.length === 0) return { ok: false, errors, reason: 'the file declares no store to build (a `word` and an `address` layout)' };
   const files: OutputSpec[] = plan.files.map((f) =>
     f.kind === 'image'
-      ? { name: f.name, format: f.format, store: f.store, chip: f.chip, image: f.image }
+      ? { name: f.name, format: f.format, store: f.store, chip: f.chip, image: f.image, options: f.options }
       : { name: f.name, format: f.format, store: f.store, bytes: Buffer.from(f.text, 'utf8') },
   );
   const report = writeOutputSet({ folder: request.outDir, sourceFile: basename(request.sourcePath), version: VERSION, files });

@@ -4,7 +4,7 @@
 // in the files (the unused high data bits are 0), since the formats carry whole bytes.
 import type { Machine, Store } from '../model/types';
 import { encodeMachine, type EncodedMachine, type EncodedStore } from './encoder';
-import { type ChipImage, type ChipWidth, type ImageFormatName, imageFormats } from './formats';
+import { type ChipImage, type ChipWidth, type ImageFormatName, type ImageWriteOptions, imageFormats } from './formats';
 import { writeListing } from './listing';
 
 export type BuildFormat = ImageFormatName | 'list';
@@ -17,6 +17,8 @@ export interface PlannedImage {
   store: string;
   chip: number;
   image: ChipImage;
+  /** What the writer puts in the file's own header: the source file (S0 record, `$readmemh` comment), the store and chip. */
+  options: ImageWriteOptions;
 }
 
 export interface PlannedText {
@@ -50,6 +52,7 @@ export interface BuildPlan {
 export interface PlanOptions {
   /** File name stem, usually the source file's name without `.pwt`. */
   stem: string;
+  /** The source file's name as the headers of the files show it (listing, S0 record, `$readmemh`). */
   source: string;
   formats?: BuildFormat[];
   stores?: string[];
@@ -79,6 +82,12 @@ export function chipImagesOf(enc: EncodedStore): ChipImage[] {
     low += width;
   }
   return images;
+}
+
+/** `7..0`: the word bits a chip holds, high first. */
+function bitRange(chipWidths: readonly number[], chip: number): string {
+  const low = chipWidths.slice(0, chip).reduce((a, b) => a + b, 0);
+  return `${low + chipWidths[chip] - 1}..${low}`;
 }
 
 export function planBuild(machine: Machine, options: PlanOptions): BuildPlan {
@@ -113,7 +122,16 @@ export function planBuild(machine: Machine, options: PlanOptions): BuildPlan {
         continue;
       }
       images.forEach((image, chip) => {
-        files.push({ kind: 'image', name: `${options.stem}.${store.name}.chip${chip}${imageFormats[format].extension}`, format, store: store.name, chip, image });
+        const description = `store ${store.name}, chip ${chip} of ${images.length} (bits ${bitRange(store.word!.chipWidths, chip)} of the ${enc.wordBits}-bit word)`;
+        files.push({
+          kind: 'image',
+          name: `${options.stem}.${store.name}.chip${chip}${imageFormats[format].extension}`,
+          format,
+          store: store.name,
+          chip,
+          image,
+          options: { sourceName: options.source, description },
+        });
       });
     }
   }
