@@ -15,9 +15,9 @@ for (const [name, text] of [['5k', t5k], ['50k', t50k]] as const) {
   if (errors.length) throw new Error(`generated ${name} table has ${errors.length} errors: ${errors[0].message}`);
 }
 
-const demoMs = timeMedian(() => analyse(demo), 200, 20);
-const k5Ms = timeMedian(() => analyse(t5k), 30, 3);
-const k50Ms = timeMedian(() => analyse(t50k), 9, 2);
+const demoMs = timeMedian(() => analyse(demo), 200, 20, 'analysing the demo');
+const k5Ms = timeMedian(() => analyse(t5k), 30, 3, 'analysing 5k lines');
+const k50Ms = timeMedian(() => analyse(t50k), 9, 2, 'analysing 50k lines');
 
 console.log('full analysis (parse + model + all checks), median of repeated in-process runs');
 row(`demo (${demo.split('\n').length} lines)`, `${demoMs.toFixed(2)} ms`, '<= 2 ms');

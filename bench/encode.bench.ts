@@ -9,7 +9,7 @@ import { join } from 'node:path';
 import { analyse } from '../server/src/core/analysis';
 import { planBuild } from '../server/src/core/encode/plan';
 import { imageFormats } from '../server/src/core/encode/formats';
-import { nowMs, median, row } from './stats';
+import { nowMs, median, row, withProgress } from './stats';
 
 const demo = readFileSync('examples/halyard-32.pwt', 'utf8');
 const wide = demo
@@ -27,23 +27,29 @@ function encodeAndWrite(): number {
 
 const outputBytes = encodeAndWrite();
 const times: number[] = [];
-for (let i = 0; i < 7; i++) {
-  const start = nowMs();
-  encodeAndWrite();
-  times.push(nowMs() - start);
-}
+withProgress('encode and write', (update) => {
+  for (let i = 0; i < 7; i++) {
+    update(i, 7);
+    const start = nowMs();
+    encodeAndWrite();
+    times.push(nowMs() - start);
+  }
+});
 const ms = median(times);
 
 const dir = mkdtempSync(join(tmpdir(), 'pw-bench-'));
 writeFileSync(join(dir, 'wide.pwt'), wide);
 const walls: number[] = [];
-for (let i = 0; i < 5; i++) {
-  rmSync(join(dir, 'out'), { recursive: true, force: true });
-  const start = nowMs();
-  const r = spawnSync(process.execPath, ['dist/cli.js', 'build', join(dir, 'wide.pwt'), '--out', join(dir, 'out')], { encoding: 'utf8' });
-  walls.push(nowMs() - start);
-  if (r.status !== 0) throw new Error(r.stderr);
-}
+withProgress('phasewright build', (update) => {
+  for (let i = 0; i < 5; i++) {
+    update(i, 5);
+    rmSync(join(dir, 'out'), { recursive: true, force: true });
+    const start = nowMs();
+    const r = spawnSync(process.execPath, ['dist/cli.js', 'build', join(dir, 'wide.pwt'), '--out', join(dir, 'out')], { encoding: 'utf8' });
+    walls.push(nowMs() - start);
+    if (r.status !== 0) throw new Error(r.stderr);
+  }
+});
 rmSync(dir, { recursive: true, force: true });
 
 console.log('encode + write all formats (ihex, srec, bin, memh, listing): 16 address lines, 32-bit word, 4 chips');

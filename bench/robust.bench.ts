@@ -6,18 +6,21 @@
 import fc from 'fast-check';
 import { checkInvariants, soupArb } from '../tests/robust/corpus';
 import { percentile, soak } from '../tests/robust/soak';
-import { row } from './stats';
+import { row, withProgress } from './stats';
 
 async function main(): Promise<void> {
   let cases = 0;
   let failures = 0;
   const started = Date.now();
-  const details = fc.check(
-    fc.property(soupArb, (text) => {
-      cases++;
-      checkInvariants(text);
-    }),
-    { numRuns: 200_000, seed: 777 },
+  const numRuns = 200_000;
+  const details = withProgress('fuzzing', (update) =>
+    fc.check(
+      fc.property(soupArb, (text) => {
+        if (++cases % 1000 === 0) update(cases, numRuns);
+        checkInvariants(text);
+      }),
+      { numRuns, seed: 777 },
+    ),
   );
   if (details.failed) failures++;
   console.log('fuzzing the analyser with token soup (seeded)');

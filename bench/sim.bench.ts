@@ -15,6 +15,7 @@ import { createReferenceMachine } from '../server/src/core/isa/interp';
 import { ProgramRun } from '../server/src/core/sim/lockstep';
 import { SimPlan } from '../server/src/core/sim/plan';
 import { loadProgram } from '../server/src/core/sim/program';
+import { withProgress } from './stats';
 
 const root = process.cwd();
 const QEMU_CPU = 'rv32,m=false,a=false,f=false,d=false,c=false';
@@ -66,8 +67,11 @@ function main(): void {
     const started = performance.now();
     const cpuStarted = cpuNow();
     const run = new ProgramRun(plan, loaded.program, { reference, compiled });
-    let ending = null;
-    while (!(ending = run.advance(50_000_000)));
+    const ending = withProgress(name, (update) => {
+      let end = run.advance(5_000_000);
+      for (; !end; end = run.advance(5_000_000)) update(run.sim.instructionsRetired);
+      return end;
+    });
     const ms = performance.now() - started;
     const cpuMs = cpuNow() - cpuStarted;
     if (ending.kind !== 'exit') throw new Error(`${name}: the run ended with ${ending.kind}`);

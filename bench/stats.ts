@@ -1,4 +1,20 @@
-// Small helpers shared by the benchmarks: timing, medians and percentiles, aligned printing.
+// Small helpers shared by the benchmarks: timing, medians and percentiles, aligned printing, and
+// a progress line on stderr while a measurement runs (drawn only when stderr is a terminal, by
+// the CLI's own progressLine, and cleared when the measurement ends, before anything is printed).
+import { type Io, nodeIo } from '../server/src/cli/io';
+import { type Progress, progressLine } from '../server/src/cli/progress';
+
+let progress: Progress | undefined;
+
+/** Where the progress line goes (the terminal by default; tests pass their own Io). */
+export function useProgressIo(io: Io): void {
+  progress?.finish();
+  progress = progressLine(io, 'bench');
+}
+
+function line(): Progress {
+  return (progress ??= progressLine(nodeIo(), 'bench'));
+}
 
 export function nowMs(): number {
   return Number(process.hrtime.bigint()) / 1e6;
@@ -15,16 +31,33 @@ export function percentile(values: number[], p: number): number {
   return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))];
 }
 
-/** Median time of `fn` over `runs` runs after `warmup` unmeasured runs. */
-export function timeMedian(fn: () => void, runs: number, warmup = 3): number {
-  for (let i = 0; i < warmup; i++) fn();
+/** Median time of `fn` over `runs` runs after `warmup` unmeasured runs; `label` names it in the progress line. */
+export function timeMedian(fn: () => void, runs: number, warmup = 3, label = 'measuring'): number {
+  for (let i = 0; i < warmup; i++) {
+    line().update(i, warmup + runs, label);
+    fn();
+  }
   const times: number[] = [];
   for (let i = 0; i < runs; i++) {
+    line().update(warmup + i, warmup + runs, label);
     const start = nowMs();
     fn();
     times.push(nowMs() - start);
   }
+  line().finish();
   return median(times);
+}
+
+/**
+ * Runs `work` with a progress callback for a long measurement that is not a `timeMedian` loop;
+ * the line is cleared when it returns, so what the benchmark prints next starts clean.
+ */
+export function withProgress<T>(label: string, work: (update: (done: number, total?: number) => void) => T): T {
+  try {
+    return work((done, total) => line().update(done, total, label));
+  } finally {
+    line().finish();
+  }
 }
 
 export function row(label: string, value: string, target = ''): void {

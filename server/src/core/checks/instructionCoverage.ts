@@ -29,27 +29,32 @@ export const instructionCoverage: Check = {
     const reported = new Set<string>();
     // Many steps use the same map for the same bits: decide each combination once.
     const uncovered = new Map<string, string | undefined>();
-    const firstUncoveredOnce = (map: DecodeMap, cube: Cube, flagValues: Map<string, number>[]) => {
-      const key = `${map.name}:${cube.mask}:${cube.value}:${flagValues.map((f) => [...f].join()).join('|')}`;
-      if (!uncovered.has(key)) uncovered.set(key, firstUncovered(map, cube, flagValues));
+    const firstUncoveredOnce = (map: DecodeMap, cube: Cube, reached: ReachedAlt) => {
+      const key = `${map.name}:${cube.mask}:${cube.value}:${reached.flagKey}`;
+      if (!uncovered.has(key)) uncovered.set(key, firstUncovered(map, cube, reached.flagValues));
       return uncovered.get(key);
     };
     for (const cls of machine.classes) {
       // Only alternatives that use a decode map can leave an instruction undecoded.
       const usesMap = (alt: StepAlt) => alt.actions.some((a) => a.value?.kind === 'map');
       if (![...cls.steps.values()].flat().some(usesMap)) continue;
+      // One walk of the class serves all its instructions: each takes the paths its bits meet.
+      const walked = reachedAlternatives(machine, cls, { mask: 0, value: 0 })?.filter((r) => usesMap(r.alt));
       for (const spec of RV32I_INSTRUCTIONS) {
         if (spec.opcode !== cls.opcode) continue;
         // Follow the instruction from step 0 along its guards until it ends: a map in a step
         // it never reaches, or on a line whose guard it never meets, needs no row for it.
-        const reached = reachedAlternatives(machine, cls, instructionCube(spec)) ?? everyAlternative(cls, instructionCube(spec));
-        for (const { alt, path, flagValues } of reached) {
-          if (!usesMap(alt)) continue;
+        const cube = instructionCube(spec);
+        const reached = walked ?? reachedAlternatives(machine, cls, cube) ?? everyAlternative(cls, cube);
+        for (const r of reached) {
+          const here = intersect(cube, r.path.ir);
+          if (!here || !usesMap(r.alt)) continue;
+          const alt = r.alt;
           for (const action of alt.actions) {
             if (action.value?.kind !== 'map') continue;
             const map = machine.maps.get(action.value.map);
             if (!map) continue;
-            const missing = firstUncoveredOnce(map, path.ir, flagValues);
+            const missing = firstUncoveredOnce(map, here, r);
             if (!missing) continue;
             const key = `${action.span.start}:${spec.mnemonic}`;
             if (reported.has(key)) continue;
@@ -75,7 +80,7 @@ function everyAlternative(cls: ClassDef, cube: Cube): ReachedAlt[] {
   const reached: ReachedAlt[] = [];
   for (const alt of [...cls.steps.values()].flat()) {
     const guardCube = (alt.guard ?? []).reduce<Cube | undefined>((acc, lit) => (acc && lit.input.kind === 'ir' ? intersect(acc, cubeOfBits(lit.input.hi, lit.input.lo, lit.bits)) : acc), cube);
-    if (guardCube) reached.push({ alt, path: { ir: guardCube, lastStep: undefined }, flagValues: [] });
+    if (guardCube) reached.push({ alt, path: { ir: guardCube, lastStep: undefined }, flagValues: [], flagKey: '' });
   }
   return reached;
 }

@@ -24,6 +24,8 @@ export interface ReachedAlt {
   alt: StepAlt;
   path: InstructionPath;
   flagValues: Map<string, number>[];
+  /** The flag values as text, for caches keyed on them. */
+  flagKey: string;
 }
 
 const endStrobeCache = new WeakMap<Machine, ReadonlySet<string>>();
@@ -53,6 +55,19 @@ export const maxWalkInputs = 16;
  * are more than `maxWalkInputs` of them and flags together.
  */
 export function instructionPaths(machine: Machine, cls: ClassDef, cube: Cube): InstructionPath[] | undefined {
+  // Several checks walk the same instructions through the same class: walk each once per model.
+  let byCube = pathCache.get(cls);
+  if (!byCube) pathCache.set(cls, (byCube = new Map()));
+  const key = `${cube.mask}:${cube.value}`;
+  if (byCube.has(key)) return byCube.get(key);
+  const paths = walkPaths(machine, cls, cube);
+  byCube.set(key, paths);
+  return paths;
+}
+
+const pathCache = new WeakMap<ClassDef, Map<string, InstructionPath[] | undefined>>();
+
+function walkPaths(machine: Machine, cls: ClassDef, cube: Cube): InstructionPath[] | undefined {
   const all = [...cls.steps.values()].flat();
   const { irMask, flags } = guardInputs(all);
   const free = bitsOf((irMask & ~cube.mask) >>> 0);
@@ -105,7 +120,7 @@ export function reachedAlternatives(machine: Machine, cls: ClassDef, cube: Cube)
           else byAlt.set(alt, [scenario.flags]);
         }
       }
-      for (const [alt, flagValues] of byAlt) reached.push({ alt, path, flagValues });
+      for (const [alt, flagValues] of byAlt) reached.push({ alt, path, flagValues, flagKey: flagValues.map((f) => [...f].join()).join('|') });
     }
   }
   return reached;
