@@ -112,6 +112,6 @@ describe('process lifetime', () => {
     expect(server.stderr).toContain('name a transport: --stdio or --node-ipc');
     const cli = spawnSync(process.execPath, [cliPath, 'lsp'], { encoding: 'utf8' });
     expect(cli.status).toBe(2);
-    expect(cli.stderr).toBe('phasewright lsp: name a transport\nusage: phasewright lsp (--stdio | --node-ipc) [--clientProcessId PID]\n');
+    expect(cli.stderr).toBe('phasewright lsp: name a transport\nusage: phasewright lsp (--stdio | --node-ipc | --socket PORT | --pipe NAME) [--clientProcessId PID]\n');
   });
 });

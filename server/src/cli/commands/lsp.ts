@@ -13,6 +13,8 @@ export const lspCommand = defineCommand({
   options: [
     { name: 'stdio', oneOf: 'transport', required: true, help: 'talk LSP over stdin and stdout' },
     { name: 'node-ipc', oneOf: 'transport', required: true, help: 'talk LSP over the Node IPC channel (as VS Code starts servers)' },
+    { name: 'socket', value: 'PORT', oneOf: 'transport', required: true, help: 'talk LSP over a TCP socket to this port (write --socket=PORT)' },
+    { name: 'pipe', value: 'NAME', oneOf: 'transport', required: true, help: 'talk LSP over this named pipe (write --pipe=NAME)' },
     { name: 'clientProcessId', value: 'PID', help: 'exit when this process does (editors pass it)' },
   ],
   exitCodes: [
@@ -22,7 +24,10 @@ export const lspCommand = defineCommand({
   ],
   async run(args, io) {
     const parsed = parseArgs(args, this.options);
-    const transports = ['stdio', 'node-ipc'].filter((t) => parsed.options.has(t));
+    const transports = this.options.filter((o) => o.oneOf === 'transport' && parsed.options.has(o.name));
+    // The connection reads the transport from the process arguments, where a value must follow `=`.
+    const detached = transports.find((o) => o.value && !args.some((a) => a.startsWith(`--${o.name}=`)));
+    if (detached) parsed.errors.push(`write --${detached.name}=${detached.value}`);
     if (parsed.errors.length || parsed.positionals.length || transports.length !== 1) {
       const reason = parsed.errors[0] ?? (parsed.positionals.length ? `unknown argument '${parsed.positionals[0]}'` : transports.length ? 'name one transport' : 'name a transport');
       io.err(`phasewright lsp: ${reason}\nusage: phasewright ${this.usage}\n`);
