@@ -6,7 +6,6 @@
 // come from outside and are checked; failures the user can act on come back as
 // `{ ok: false, reason }`, never as exceptions. It does not decide what the editor shows.
 import { basename } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import type { Analysis } from '../core/analysis';
 import { readSeverityTable } from '../core/checks/severitySettings';
 import { parseGuardChoice } from '../core/diagram/guardChoice';
@@ -15,6 +14,7 @@ import { timingDiagram } from '../core/diagram/timing';
 import { classAtOffset, findClass } from '../core/diagram/timingModel';
 import { buildFormats, planBuild, type BuildFormat } from '../core/encode/plan';
 import { buildImages, describeBuild } from '../cli/buildImages';
+import { pathFromFileUri } from '../cli/fsPath';
 import { OutputError } from '../cli/output/safeWriter';
 import { ManifestError } from '../cli/output/manifest';
 import { type CommandContext, type CommandHandler, registerCommand } from './commands';
@@ -85,7 +85,7 @@ function analysisFor(args: Args, context: Pick<CommandContext, 'analysisOf'>): A
 
 function fileNameOf(uri: string): string {
   try {
-    return basename(uri.startsWith('file:') ? fileURLToPath(uri) : new URL(uri).pathname) || 'table.pwt';
+    return basename(pathFromFileUri(uri) ?? decodeURIComponent(new URL(uri).pathname)) || 'table.pwt';
   } catch {
     return 'table.pwt';
   }

@@ -1,0 +1,55 @@
+// Hostile input files for the command line, run in child processes with a small heap
+// (--max-old-space-size) so that reading without bound or a quadratic walk fails the test by
+// running out of memory, not by a timer: device files and FIFOs in every place a path is
+// read, and a file that is not a table where one is expected. Each must end with one line
+// and exit 2.
+import { beforeAll, describe, expect, it } from 'vitest';
+import { execFileSync, spawnSync } from 'node:child_process';
+import { mkdirSync, rmSync } from 'node:fs';
+import { join } from 'node:path';
+
+const root = join(__dirname, '../..');
+const tmp = join(root, 'tests/.tmp/hostile-inputs');
+const cli = join(root, 'dist/cli.js');
+const demo = join(root, 'examples/halyard-32.pwt');
+const fifo = join(tmp, 'fifo');
+
+/** Runs the CLI with a 64 MB heap; the timeout only keeps a hang from stalling the suite. */
+export function boundedCli(args: string[], heapMb = 64): { status: number | null; signal: string | null; stdout: string; stderr: string } {
+  const r = spawnSync(process.execPath, [`--max-old-space-size=${heapMb}`, cli, ...args], { cwd: root, encoding: 'utf8', timeout: 60_000 });
+  return { status: r.status, signal: r.signal, stdout: r.stdout, stderr: r.stderr };
+}
+
+beforeAll(() => {
+  execFileSync('npm', ['run', 'build', '--silent'], { cwd: root });
+  rmSync(tmp, { recursive: true, force: true });
+  mkdirSync(tmp, { recursive: true });
+  execFileSync('mkfifo', [fifo]);
+});
+
+describe('paths that are not regular files', () => {
+  // Every option and argument the CLI reads a file from, with /dev/zero (endless) and a FIFO
+  // nobody writes to (an open without O_NONBLOCK would wait forever).
+  const places: [string, (path: string) => string[], string][] = [
+    ['a table to check', (p) => ['check', p], 'a .pwt file'],
+    ['a table to build', (p) => ['build', p, '--out', join(tmp, 'out')], 'a .pwt file'],
+    ['a table to diff', (p) => ['diff', demo, p], 'a .pwt file'],
+    ['a table to draw', (p) => ['diagram', p, '--class', 'OP', '-o', join(tmp, 'd.svg')], 'a .pwt file'],
+    ['a table to budget', (p) => ['budget', p], 'a .pwt file'],
+    ['a severity configuration', (p) => ['check', '--config', p, demo], 'a JSON file'],
+    ['a severity configuration for build', (p) => ['build', demo, '--config', p, '--out', join(tmp, 'out')], 'a JSON file'],
+    ['a program to run', (p) => ['run', demo, p], 'an ELF file or a raw binary image'],
+    ['a pin file', (p) => ['fit', demo, '--device', 'gal22v10', '--pins', p], 'a JSON file'],
+  ];
+  for (const [where, argsOf, give] of places) {
+    it(`refuses /dev/zero and a FIFO as ${where}, in one line, exit 2, within a 64 MB heap`, () => {
+      for (const [path, kind] of [['/dev/zero', 'a character device'], [fifo, 'a FIFO (named pipe)']]) {
+        const r = boundedCli(argsOf(path));
+        expect(r.signal, `${where}: ${path}`).toBeNull();
+        expect(r.status, `${where}: ${path}: ${r.stderr}`).toBe(2);
+        expect(r.stderr.trim().split('\n'), `${where}: ${path}`).toHaveLength(1);
+        expect(r.stderr).toContain(`${path} is ${kind}, not a regular file; give ${give}`);
+      }
+    });
+  }
+});
