@@ -2,8 +2,10 @@
 // characters, lone surrogates (what an editor shows for invalid UTF-8), and a 50 MB document.
 // Each gets diagnostics (or the one "too large" diagnostic) and the server keeps answering.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { readFileSync } from 'node:fs';
+import { execFileSync } from 'node:child_process';
+import { mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { LspClient, ensureBuilt, root } from '../lsp/support/client';
 
 let client: LspClient;
@@ -44,3 +46,25 @@ describe('hostile documents in the language server', () => {
     expect(hover?.contents.value).toContain('bus `left`');
   }, 120_000);
 });
+
+describe('hostile files named in editor commands', () => {
+  it('refuses a table uri that is /dev/zero or a FIFO (not open in the editor) and keeps answering', async () => {
+    const tmp = join(root, 'tests/.tmp/hostile-server');
+    rmSync(tmp, { recursive: true, force: true });
+    mkdirSync(tmp, { recursive: true });
+    const fifo = join(tmp, 'table.pwt');
+    execFileSync('mkfifo', [fifo]);
+    const cases: [string, string][] = [
+      ['file:///dev/zero', '/dev/zero is a character device, not a regular file'],
+      [pathToFileURL(fifo).href, `${fifo} is a FIFO (named pipe), not a regular file`],
+    ];
+    for (const [uri, reason] of cases) {
+      const answer = await client.request<{ ok: boolean; reason: string }>('workspace/executeCommand', { command: 'phasewright.run', arguments: [{ uri, program: '/dev/zero' }] });
+      expect(answer).toEqual({ ok: false, reason: `cannot read the table: ${reason}; give a .pwt file` });
+    }
+    const program = await client.request<{ ok: boolean; reason: string }>('workspace/executeCommand', { command: 'phasewright.run', arguments: [{ uri: pathToFileURL(join(root, 'examples/halyard-32.pwt')).href, program: '/dev/zero' }] });
+    expect(program).toEqual({ ok: false, reason: 'cannot read the program: /dev/zero is a character device, not a regular file; give an ELF file or a raw binary image' });
+    expect(await client.request('workspace/executeCommand', { command: 'phasewright._testEcho', arguments: [1] })).toEqual({ echo: [1] });
+  }, 60_000);
+});
+
