@@ -5,8 +5,9 @@
 // and exit 2.
 import { beforeAll, describe, expect, it } from 'vitest';
 import { execFileSync, spawnSync } from 'node:child_process';
-import { mkdirSync, rmSync } from 'node:fs';
+import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { unterminatedSymbolsElf } from '../support/hostile';
 
 const root = join(__dirname, '../..');
 const tmp = join(root, 'tests/.tmp/hostile-inputs');
@@ -53,3 +54,18 @@ describe('paths that are not regular files', () => {
     });
   }
 });
+
+describe('quadratic inputs', () => {
+  it('runs a 2 MB ELF whose 65 536 symbols point into one unterminated name table, within a 64 MB heap', () => {
+    const elf = join(tmp, 'names.elf');
+    writeFileSync(elf, unterminatedSymbolsElf(65_536, 1024 * 1024));
+    const r = boundedCli(['run', demo, elf, '--max-steps', '1000']);
+    expect(r.signal).toBeNull();
+    // The program is one ADDI followed by zeros; the demo runs word 0 as a LOAD (its opcode
+    // bits select that class) where the reference stops: a divergence, exit 3.
+    expect(r.status, r.stderr).toBe(3);
+    expect(r.stderr).toContain('note: the symbol name table does not end with a NUL byte');
+    expect(r.stderr).toContain('note: 65536 symbol name(s) are longer than 1024 characters and were cut to that length');
+  });
+});
+
