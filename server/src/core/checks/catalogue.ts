@@ -55,7 +55,7 @@ export const catalogue: CodeInfo[] = [
     code: 'bad-number',
     severity: 'error',
     title: 'a number or bit pattern is malformed or out of range',
-    explanation: 'Widths, bit numbers, codes and opcodes must be whole numbers in range; bit patterns in guards and maps must have exactly as many 0, 1 or - characters as the input has bits.',
+    explanation: 'Widths, bit numbers, codes and opcodes must be whole numbers in range; bit patterns in guards and maps must have exactly as many 0, 1 or - characters as the input has bits. Electrical and timing figures (`name=number`) must lie in the range a real part can have (docs/budget.md lists each one): a zero or negative resistance, a zero supply or an LED forward voltage at or above the supply would make every sum after it wrong, so the figure is refused and left out.',
   },
   {
     code: 'width-mismatch',
