@@ -7,7 +7,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { unterminatedSymbolsElf } from '../support/hostile';
+import { bigMapTable, unterminatedSymbolsElf } from '../support/hostile';
 
 const root = join(__dirname, '../..');
 const tmp = join(root, 'tests/.tmp/hostile-inputs');
@@ -56,6 +56,17 @@ describe('paths that are not regular files', () => {
 });
 
 describe('quadratic inputs', () => {
+  it('checks a decode map of 12 000 rows that all overlap within a 64 MB heap: 100 shown, the rest counted', () => {
+    const file = join(tmp, 'map.pwt');
+    writeFileSync(file, bigMapTable(12_000, 'overlapping'));
+    const r = boundedCli(['check', file]);
+    expect(r.signal).toBeNull();
+    expect(r.status, r.stderr).toBe(1);
+    const lines = r.stdout.split('\n').filter((l) => l.includes('[map-overlap]'));
+    expect(lines).toHaveLength(101);
+    expect(r.stdout).toContain('11899 more row(s) of map fn overlap an earlier row that gives a different value (the first 100 are shown)');
+  });
+
   it('runs a 2 MB ELF whose 65 536 symbols point into one unterminated name table, within a 64 MB heap', () => {
     const elf = join(tmp, 'names.elf');
     writeFileSync(elf, unterminatedSymbolsElf(65_536, 1024 * 1024));

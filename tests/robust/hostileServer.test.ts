@@ -7,6 +7,7 @@ import { mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { LspClient, ensureBuilt, root } from '../lsp/support/client';
+import { bigMapTable } from '../support/hostile';
 
 let client: LspClient;
 const demo = readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8');
@@ -45,6 +46,16 @@ describe('hostile documents in the language server', () => {
     const hover = await client.request<{ contents: { value: string } } | null>('textDocument/hover', { textDocument: { uri: small }, position: { line: demo.split('\n').findIndex((l) => l.startsWith('bus left')), character: 5 } });
     expect(hover?.contents.value).toContain('bus `left`');
   }, 120_000);
+});
+
+describe('quadratic documents in the language server', () => {
+  it('publishes the capped map-overlap diagnostics of a 12 000-row map and keeps answering', async () => {
+    const uri = 'file:///hostile/map.pwt';
+    client.open(uri, bigMapTable(12_000, 'overlapping'), 1);
+    const published = await client.diagnosticsOf(uri, 1);
+    expect(published.diagnostics.filter((d) => d.code === 'map-overlap')).toHaveLength(101);
+    expect(await client.request('workspace/executeCommand', { command: 'phasewright._testEcho', arguments: [2] })).toEqual({ echo: [2] });
+  }, 60_000);
 });
 
 describe('hostile files named in editor commands', () => {

@@ -57,3 +57,52 @@ export function unterminatedSymbolsElf(nSymbols: number, nameBytes: number): Uin
   section(2, 3, stringsAt, nameBytes, 0); // SHT_STRTAB
   return bytes;
 }
+
+export type MapRowKind = 'overlapping' | 'distinct' | 'scattered';
+
+/**
+ * A table with one decode map of `nRows` rows over 16 instruction bits, used by a step:
+ * `overlapping` rows are all don't-cares with alternating values (every row overlaps the
+ * first rows); `distinct` rows fix every bit to a different value (nothing overlaps; one
+ * pattern shape); `scattered` rows have pseudo-random don't-cares (thousands of shapes, the
+ * worst case for grouping).
+ */
+export function bigMapTable(nRows: number, kind: MapRowKind): string {
+  const width = 16;
+  let seed = 12345;
+  const random = () => ((seed = (seed * 1103515245 + 12345) >>> 0) >>> 16) / 65536;
+  const rows: string[] = [];
+  for (let i = 0; i < nRows; i++) {
+    const value = i % 2 ? 'sub' : 'add';
+    let pattern: string;
+    if (kind === 'overlapping') pattern = '-'.repeat(width);
+    else if (kind === 'distinct') pattern = (i % 2 ** width).toString(2).padStart(width, '0');
+    else pattern = Array.from({ length: width }, () => (random() < 0.5 ? '-' : random() < 0.5 ? '0' : '1')).join('');
+    rows.push(`  ${pattern} ${value}`);
+  }
+  return [
+    'bus left 32',
+    'bus right 32',
+    'bus result 32',
+    'part ir instruction 32',
+    'part a register 32',
+    'part b register 32',
+    'part alu alu left right',
+    'strobe a.oe   enable a -> left',
+    'strobe b.oe   enable b -> right',
+    'strobe alu.oe enable alu -> result',
+    'strobe a.ck   clock result -> a',
+    'strobe ir.ck  clock result -> ir',
+    'strobe done   end',
+    'field alu.fn 4 -> alu { add=0 sub=8 }',
+    'word 16 as 2 x 8',
+    '  a.oe 0  b.oe 1  alu.oe 2  a.ck 3  alu.fn 4..7  done 8  ir.ck 9',
+    'address 1',
+    '  step 0',
+    'map fn (ir[31:16]) -> alu.fn',
+    ...rows,
+    'class OP opcode=0110011',
+    '  0: a.oe, b.oe, alu.fn=fn, alu.oe, a.ck, ir.ck, done',
+    '',
+  ].join('\n');
+}

@@ -211,7 +211,7 @@ export const catalogue: CodeInfo[] = [
     code: 'map-overlap',
     severity: 'error',
     title: 'two rows of a decode map match the same inputs with different values',
-    explanation: 'Decode-map rows must be disjoint where their values differ, or the field\'s code is undefined for those inputs. Narrow the patterns.',
+    explanation: 'Decode-map rows must be disjoint where their values differ, or the field\'s code is undefined for those inputs. Narrow the patterns. Each row is reported against the earliest row it clashes with; after 100 such rows in one map the others are counted in one more message. A map with so many different patterns of don\'t-cares that the check cannot compare all of them in bounded time is reported too, naming the first row not compared: such a map cannot be shown to be safe, so write fewer patterns or split it.',
   },
   {
     code: 'strobe-overload',
