@@ -31,6 +31,21 @@ export const inputLimits = {
 
 export type InputResult = { ok: true; bytes: Buffer } | { ok: false; reason: string };
 
+/** The calls the reader makes; the output layer passes its own so tests can fail them. */
+export interface ReaderCalls {
+  openSync(path: string, flags: number): number;
+  fstatSync(fd: number): Stats;
+  readSync(fd: number, buffer: Uint8Array, offset: number, length: number, position: number | null): number;
+  closeSync(fd: number): void;
+}
+
+const nodeCalls: ReaderCalls = {
+  openSync: (path, flags) => openSync(fsPath(path), flags),
+  fstatSync: (fd) => fstatSync(fd),
+  readSync: (fd, buffer, offset, length, position) => readSync(fd, buffer, offset, length, position),
+  closeSync: (fd) => closeSync(fd),
+};
+
 const openFlags = constants.O_RDONLY | (constants.O_NONBLOCK ?? 0) | (constants.O_NOCTTY ?? 0);
 const chunkBytes = 1024 * 1024;
 
@@ -38,15 +53,15 @@ const chunkBytes = 1024 * 1024;
  * Reads a whole regular file of at most `limit.maxBytes` bytes. `shown` is the name used in
  * messages (the path as the user wrote it); `path` is what is opened.
  */
-export function readInputFile(path: string, limit: InputLimit, shown: string = path): InputResult {
+export function readInputFile(path: string, limit: InputLimit, shown: string = path, calls: ReaderCalls = nodeCalls): InputResult {
   let fd: number;
   try {
-    fd = openSync(fsPath(path), openFlags);
+    fd = calls.openSync(path, openFlags);
   } catch (err) {
     return { ok: false, reason: describeFsError(shown, err, limit.give) };
   }
   try {
-    const stat = fstatSync(fd);
+    const stat = calls.fstatSync(fd);
     const refusal = refuseKind(stat, shown, limit.give) ?? refuseSize(stat.size, limit, shown);
     if (refusal) return { ok: false, reason: refusal };
     // Sized from the descriptor, but read until the end: the file may have grown since.
@@ -54,7 +69,7 @@ export function readInputFile(path: string, limit: InputLimit, shown: string = p
     let total = 0;
     for (;;) {
       const piece = Buffer.allocUnsafe(Math.min(chunkBytes, limit.maxBytes + 1 - total));
-      const n = readSync(fd, piece, 0, piece.length, null);
+      const n = calls.readSync(fd, piece, 0, piece.length, null);
       if (n === 0) break;
       parts.push(n === piece.length ? piece : piece.subarray(0, n));
       total += n;
@@ -65,7 +80,7 @@ export function readInputFile(path: string, limit: InputLimit, shown: string = p
     return { ok: false, reason: describeFsError(shown, err, limit.give) };
   } finally {
     try {
-      closeSync(fd);
+      calls.closeSync(fd);
     } catch {
       // Nothing was written through it; a failed close loses nothing.
     }

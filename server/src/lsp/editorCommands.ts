@@ -139,9 +139,28 @@ export function runListing(args: unknown[], context: Pick<CommandContext, 'analy
   if (stores && !analysis.machine.stores.some((s) => s.name === stores[0])) return { ok: false, reason: `no store named '${stores[0]}'` };
   const plan = planBuild(analysis.machine, { stem: source.replace(/\.pwt$/i, ''), source, formats: ['list'], stores });
   if (plan.problems.length) return { ok: false, reason: `cannot lay out the control store: ${plan.problems.join('; ')}` };
-  const listings = plan.files.flatMap((f) => (f.kind === 'text' ? [{ store: f.store, name: f.name, text: f.text }] : []));
+  const listings = plan.files.flatMap((f) => (f.kind === 'text' ? [{ store: f.store, name: f.name, text: boundedText(f.chunks(), f.name) }] : []));
   if (listings.length === 0) return { ok: false, reason: 'the file declares no store to list (a `word` and an `address` layout)' };
   return { ok: true, listings, errors: errorsOf(analysis) };
+}
+
+/** Most characters of listing text one answer carries per store (a 24-line store lists gigabytes). */
+export const maxListingChars = 8 * 1024 * 1024;
+
+/** The first `maxListingChars` of a listing, whole lines, and a last line saying where the rest is. */
+function boundedText(chunks: Iterable<string>, name: string): string {
+  let text = '';
+  for (const chunk of chunks) {
+    if (text.length + chunk.length <= maxListingChars) {
+      text += chunk;
+      continue;
+    }
+    const room = chunk.slice(0, maxListingChars - text.length);
+    text += room.slice(0, room.lastIndexOf('\n') + 1);
+    // Stopping the generator here ends the walk: the rest is never made.
+    return `${text}# ... the listing goes on; the editor shows its first ${maxListingChars / 1024 / 1024} MB. Build the images (with the listing format) for all of ${name}.\n`;
+  }
+  return text;
 }
 
 /**

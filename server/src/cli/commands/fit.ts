@@ -13,7 +13,8 @@ import { parseArgs } from '../args';
 import type { Command } from '../commands';
 import { readJsonFile, readSource } from '../readSource';
 import { readInputFile } from '../inputFile';
-import { writeOutputSet, ManifestError } from '../output/manifest';
+import { ManifestError } from '../output/manifest';
+import { writeOutputSet } from '../output/outputSet';
 import { OutputError } from '../output/safeWriter';
 import { VERSION } from '../version';
 
@@ -111,6 +112,7 @@ export const fitCommand: Command = {
     try {
       const report = writeOutputSet({
         folder: resolve(io.cwd, outDir),
+        command: 'fit',
         sourceFile: basename(file),
         version: VERSION,
         files: [

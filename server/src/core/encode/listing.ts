@@ -2,7 +2,9 @@
 // address the table uses: the address, what its lines carry (step, flags, instruction bits),
 // the class, the word in hex per chip, and the asserted strobes and field values by name,
 // read back from the encoded bits (so the listing shows what will be burned). Runs of
-// addresses holding the fill word are one line each.
+// addresses holding the fill word are one line each. The text comes in chunks of about
+// `chunkChars` characters, so a store of 24 address lines (16 million lines, gigabytes of
+// text) is written without ever being one string; `writeListing` joins them for small stores.
 import type { Machine } from '../model/types';
 import { toBinary, toHex } from '../model/numbers';
 import { decodeWord, type EncodedMachine, type EncodedStore } from './encoder';
@@ -84,27 +86,41 @@ export function describeWord(machine: Machine, enc: EncodedStore, address: numbe
   return items.join(' ');
 }
 
+/** Characters per chunk of listing text (about 1 MB). */
+export const chunkChars = 1 << 20;
+
+/** The whole listing as one string: for stores small enough to hold it (tests, small tables). */
 export function writeListing(machine: Machine, encoded: EncodedMachine, enc: EncodedStore, options: ListingOptions): string {
+  return [...listingChunks(machine, encoded, enc, options)].join('');
+}
+
+/** The listing, chunk by chunk; each chunk ends with a line end. */
+export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: EncodedStore, options: ListingOptions): Generator<string> {
   const store = enc.store;
   const word = store.word!;
   const nAddresses = 2 ** enc.addressBits;
   const addressDigits = Math.max(4, Math.ceil(enc.addressBits / 4));
   const chipNames = word.chipWidths.map((_, i) => `chip${i}`);
-  const lines: string[] = [];
-  lines.push('# Phasewright control-store listing');
-  lines.push(`# machine: ${machine.title || '(untitled)'}    source: ${options.source}    store: ${store.name}`);
-  lines.push(`# ${enc.addressBits} address lines (${nAddresses} words); ${word.width}-bit word as ${word.chipWidths.map((w) => `${w}`).join(' + ')} bits${word.chip ? ` in ${word.chip.name} chips` : ''}; chip 0 holds bit 0`);
-  lines.push(`# address lines: ${store.address!.sources.map((s) => `${s.label} ${s.lo === s.hi ? s.lo : `${s.lo}..${s.hi}`}`).join('  ')}`);
-  lines.push(`# ${enc.usedCount} words from the table, ${nAddresses - enc.usedCount} hold the fill word (every strobe inactive): ${chipHexOfWord(enc.fillWord, enc.store.word!.chipWidths).join(' ')}`);
-  lines.push('# Fields are shown where a step sets them or where they differ from their idle code.');
-  lines.push('# Check the images against your chips\' data sheets before programming them.');
-  lines.push('#');
-  lines.push(`# ${'address'.padEnd(addressDigits + 2)}  ${'inputs'.padEnd(describeAddress(enc, 0).length)}  ${'class'.padEnd(10)} ${chipNames.map((n, i) => n.padEnd(Math.max(n.length, Math.ceil(word.chipWidths[i] / 4)))).join(' ')}  asserted`);
+  let lines: string[] = [];
+  let pending = 0;
+  const push = (line: string) => {
+    lines.push(line);
+    pending += line.length + 1;
+  };
+  push('# Phasewright control-store listing');
+  push(`# machine: ${machine.title || '(untitled)'}    source: ${options.source}    store: ${store.name}`);
+  push(`# ${enc.addressBits} address lines (${nAddresses} words); ${word.width}-bit word as ${word.chipWidths.map((w) => `${w}`).join(' + ')} bits${word.chip ? ` in ${word.chip.name} chips` : ''}; chip 0 holds bit 0`);
+  push(`# address lines: ${store.address!.sources.map((s) => `${s.label} ${s.lo === s.hi ? s.lo : `${s.lo}..${s.hi}`}`).join('  ')}`);
+  push(`# ${enc.usedCount} words from the table, ${nAddresses - enc.usedCount} hold the fill word (every strobe inactive): ${chipHexOfWord(enc.fillWord, enc.store.word!.chipWidths).join(' ')}`);
+  push('# Fields are shown where a step sets them or where they differ from their idle code.');
+  push('# Check the images against your chips\' data sheets before programming them.');
+  push('#');
+  push(`# ${'address'.padEnd(addressDigits + 2)}  ${'inputs'.padEnd(describeAddress(enc, 0).length)}  ${'class'.padEnd(10)} ${chipNames.map((n, i) => n.padEnd(Math.max(n.length, Math.ceil(word.chipWidths[i] / 4)))).join(' ')}  asserted`);
   let fillStart = -1;
   const flushFill = (end: number) => {
     if (fillStart < 0) return;
     const range = fillStart === end - 1 ? `0x${toHex(fillStart, addressDigits)}` : `0x${toHex(fillStart, addressDigits)}-0x${toHex(end - 1, addressDigits)}`;
-    lines.push(`  ${range}  fill (${end - fillStart} word${end - fillStart > 1 ? 's' : ''})`);
+    push(`  ${range}  fill (${end - fillStart} word${end - fillStart > 1 ? 's' : ''})`);
     fillStart = -1;
   };
   // Many addresses hold the same word for the same step: describe each (decode, word) once.
@@ -128,10 +144,15 @@ export function writeListing(machine: Machine, encoded: EncodedMachine, enc: Enc
       tail = `${(decoded?.cls?.name ?? '-').padEnd(10)} ${hex.join(' ')}  ${describeWord(machine, enc, address, new Set(decoded?.fieldCodes.keys() ?? []))}`;
       byWord.set(wordKey, tail);
     }
-    lines.push('  0x' + hexDigits(address, addressDigits) + '  ' + inputsText(address) + '  ' + tail);
+    push('  0x' + hexDigits(address, addressDigits) + '  ' + inputsText(address) + '  ' + tail);
+    if (pending >= chunkChars) {
+      yield lines.join('\n') + '\n';
+      lines = [];
+      pending = 0;
+    }
   }
   flushFill(nAddresses);
-  return lines.join('\n') + '\n';
+  if (lines.length > 0) yield lines.join('\n') + '\n';
 }
 
 /** A word (in 32-bit lanes) as hex per chip, chip 0 (the lowest bits) first. */

@@ -5,7 +5,7 @@
 import type { Machine, Store } from '../model/types';
 import { encodeMachine, type EncodedMachine, type EncodedStore } from './encoder';
 import { type ChipImage, type ChipWidth, type ImageFormatName, imageFormats } from './formats';
-import { writeListing } from './listing';
+import { listingChunks } from './listing';
 
 export type BuildFormat = ImageFormatName | 'list';
 export const buildFormats: BuildFormat[] = ['ihex', 'srec', 'bin', 'memh', 'list'];
@@ -24,7 +24,8 @@ export interface PlannedText {
   name: string;
   format: 'list';
   store: string;
-  text: string;
+  /** The text, made chunk by chunk when asked for (a listing can be larger than memory). */
+  chunks: () => Iterable<string>;
 }
 
 export type PlannedFile = PlannedImage | PlannedText;
@@ -97,7 +98,8 @@ export function planBuild(machine: Machine, options: PlanOptions): BuildPlan {
   const stores: StoreSummary[] = [];
   for (const enc of encoded.stores) {
     const store: Store = enc.store;
-    const images = chipImagesOf(enc);
+    // Chip images only when an image format is wanted (the listing reads the encoded store).
+    const images = formats.some((f) => f !== 'list') ? chipImagesOf(enc) : [];
     stores.push({
       store: store.name,
       addressBits: enc.addressBits,
@@ -109,7 +111,7 @@ export function planBuild(machine: Machine, options: PlanOptions): BuildPlan {
     });
     for (const format of formats) {
       if (format === 'list') {
-        files.push({ kind: 'text', name: `${options.stem}.${store.name}.lst`, format: 'list', store: store.name, text: writeListing(machine, encoded, enc, { source: options.source }) });
+        files.push({ kind: 'text', name: `${options.stem}.${store.name}.lst`, format: 'list', store: store.name, chunks: () => listingChunks(machine, encoded, enc, { source: options.source }) });
         continue;
       }
       images.forEach((image, chip) => {
