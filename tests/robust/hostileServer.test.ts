@@ -3,7 +3,7 @@
 // Each gets diagnostics (or the one "too large" diagnostic) and the server keeps answering.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { execFileSync } from 'node:child_process';
-import { mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { LspClient, ensureBuilt, root } from '../lsp/support/client';
@@ -76,6 +76,27 @@ describe('hostile files named in editor commands', () => {
     const program = await client.request<{ ok: boolean; reason: string }>('workspace/executeCommand', { command: 'phasewright.run', arguments: [{ uri: pathToFileURL(join(root, 'examples/halyard-32.pwt')).href, program: '/dev/zero' }] });
     expect(program).toEqual({ ok: false, reason: 'cannot read the program: /dev/zero is a character device, not a regular file; give an ELF file or a raw binary image' });
     expect(await client.request('workspace/executeCommand', { command: 'phasewright._testEcho', arguments: [1] })).toEqual({ echo: [1] });
+  }, 60_000);
+});
+
+describe('phasewright.build over a real connection', () => {
+  it('writes inside the workspace folder it was given and refuses a folder outside, creating nothing there', async () => {
+    const workspace = join(root, 'tests/.tmp/hostile-server-ws');
+    const outside = join(root, 'tests/.tmp/hostile-server-outside');
+    for (const dir of [workspace, outside]) rmSync(dir, { recursive: true, force: true });
+    mkdirSync(workspace, { recursive: true });
+    const ws = await LspClient.start({ workspaceFolders: [workspace] });
+    try {
+      const uri = pathToFileURL(join(workspace, 'halyard-32.pwt')).href;
+      ws.open(uri, demo, 1);
+      await ws.diagnosticsOf(uri, 1);
+      const build = (outputFolder: string) => ws.request<{ ok: boolean; reason?: string; files?: string[] }>('workspace/executeCommand', { command: 'phasewright.build', arguments: [{ uri, outputFolder, formats: ['bin'] }] });
+      expect(await build(join(outside, 'out'))).toEqual({ ok: false, reason: `the output folder ${join(outside, 'out')} is outside the workspace folder (${workspace}); choose a folder inside` });
+      expect(existsSync(outside)).toBe(false);
+      expect(await build(join(workspace, 'out'))).toMatchObject({ ok: true, files: expect.arrayContaining(['halyard-32.main.chip0.bin']) });
+    } finally {
+      expect(await ws.stop()).toBe(0);
+    }
   }, 60_000);
 });
 

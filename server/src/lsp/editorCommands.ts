@@ -15,6 +15,7 @@ import { classAtOffset, findClass } from '../core/diagram/timingModel';
 import { buildFormats, planBuild, type BuildFormat } from '../core/encode/plan';
 import { buildImages, describeBuild } from '../cli/buildImages';
 import { pathFromFileUri } from '../cli/fsPath';
+import { outsideWorkspace } from './workspaceFolders';
 import { OutputError } from '../cli/output/safeWriter';
 import { ManifestError } from '../cli/output/manifest';
 import { type CommandContext, type CommandHandler, registerCommand } from './commands';
@@ -95,14 +96,19 @@ function errorsOf(analysis: Analysis): number {
   return analysis.diagnostics.filter((d) => d.severity === 'error').length;
 }
 
-/** `phasewright.build {uri, outputFolder, formats?, force?, severity?}`: writes the images like `phasewright build`. */
-export function runBuild(args: unknown[], context: Pick<CommandContext, 'analysisOf'>): BuildAnswer | Refusal {
+/**
+ * `phasewright.build {uri, outputFolder, formats?, force?, severity?}`: writes the images like
+ * `phasewright build`, into a folder inside the workspace (workspaceFolders.ts).
+ */
+export function runBuild(args: unknown[], context: Pick<CommandContext, 'analysisOf' | 'workspaceFolders'>): BuildAnswer | Refusal {
   const a = firstArgument(args);
   if (isRefusal(a)) return a;
   const analysis = analysisFor(a, context);
   if (isRefusal(analysis)) return analysis;
   const folder = a.outputFolder;
   if (typeof folder !== 'string' || (!folder.startsWith('/') && !/^[A-Za-z]:[\\/]/.test(folder))) return { ok: false, reason: 'the output folder must be an absolute path' };
+  const outside = outsideWorkspace(folder, context.workspaceFolders?.() ?? [], pathFromFileUri(a.uri as string));
+  if (outside) return { ok: false, reason: outside };
   let formats: BuildFormat[] | undefined;
   if (a.formats !== undefined) {
     if (!Array.isArray(a.formats) || a.formats.some((f) => !buildFormats.includes(f as BuildFormat)) || a.formats.length === 0) {

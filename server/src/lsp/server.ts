@@ -26,6 +26,7 @@ import { registerRunCommand } from './runCommand';
 import { registerFeatures, semanticTokensLegend } from './features';
 import { describeError, guardedNotification } from './guard';
 import { type ServerSettings, defaultSettings, readSettings } from './settings';
+import { WorkspaceFolders } from './workspaceFolders';
 
 export const transportFlags = ['--stdio', '--node-ipc', '--socket', '--pipe'];
 
@@ -118,8 +119,10 @@ export function startServer(options: ServerOptions = {}): Connection {
     }
   };
 
+  const workspaceFolders = new WorkspaceFolders();
   connection.onInitialize((params): InitializeResult => {
     capabilities = params.capabilities ?? {};
+    workspaceFolders.initialize(params);
     return {
       capabilities: {
         textDocumentSync: { openClose: true, change: TextDocumentSyncKind.Incremental },
@@ -137,6 +140,7 @@ export function startServer(options: ServerOptions = {}): Connection {
         inlayHintProvider: true,
         codeLensProvider: { resolveProvider: false },
         executeCommandProvider: { commands: commandIds() },
+        workspace: { workspaceFolders: { supported: true, changeNotifications: true } },
       },
       serverInfo: { name: 'phasewright', version: '0.1.0' },
     };
@@ -173,7 +177,11 @@ export function startServer(options: ServerOptions = {}): Connection {
     publisher.closed(event.document.uri);
   });
 
-  registerFeatures(connection, store, { testHooks });
+  connection.onNotification(
+    'workspace/didChangeWorkspaceFolders',
+    guardedNotification(connection, 'didChangeWorkspaceFolders', (params: { event: Parameters<WorkspaceFolders['change']>[0] }) => workspaceFolders.change(params.event)),
+  );
+  registerFeatures(connection, store, { testHooks, workspaceFolders: () => workspaceFolders.list() });
   store.documents.listen(connection);
   connection.listen();
   return connection;
