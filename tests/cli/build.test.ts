@@ -21,6 +21,18 @@ beforeEach(() => {
 });
 
 describe('phasewright build', () => {
+  it('shows a progress line on a terminal (stderr), cleared before the summary, and none when piped', async () => {
+    const io = { ...memoryIo(root), errIsTty: true };
+    const tty = Object.assign(io, { stderr: '' });
+    tty.err = (text: string) => {
+      tty.stderr += text;
+    };
+    expect(await runCommand(['build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/tty'], tty)).toBe(0);
+    expect(tty.stderr).toMatch(/^\r\x1b\[Kbuild: 0% \(0\/17\) halyard-32\.main\.chip0\.hex/);
+    expect(tty.stderr.endsWith('\r\x1b[K')).toBe(true);
+    expect((await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/piped')).err).toBe('');
+  });
+
   it('writes every chip in every format, a listing and a manifest, and prints a summary', async () => {
     const r = await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/out');
     expect(r.code).toBe(0);

@@ -5,9 +5,9 @@
 // and exit 2.
 import { beforeAll, describe, expect, it } from 'vitest';
 import { execFileSync, spawnSync } from 'node:child_process';
-import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readFileSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { bigMapTable, unterminatedSymbolsElf } from '../support/hostile';
+import { bigMapTable, store24Table, unterminatedSymbolsElf } from '../support/hostile';
 
 const root = join(__dirname, '../..');
 const tmp = join(root, 'tests/.tmp/hostile-inputs');
@@ -78,5 +78,24 @@ describe('quadratic inputs', () => {
     expect(r.stderr).toContain('note: the symbol name table does not end with a NUL byte');
     expect(r.stderr).toContain('note: 65536 symbol name(s) are longer than 1024 characters and were cut to that length');
   });
+});
+
+describe('a store of 24 address lines', () => {
+  it('builds its listing (over 512 MB, more than one string can hold) and images within a 128 MB heap', () => {
+    const file = join(tmp, 'wide.pwt');
+    writeFileSync(file, store24Table(readFileSync(demo, 'utf8'), '_has_a_long_descriptive_class_name_and_longer_still_and_even_longer_now'));
+    const out = join(tmp, 'wide-out');
+    const r = boundedCli(['build', file, '--out', out, '--format', 'bin,list'], 128);
+    expect(r.signal).toBeNull();
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stdout).toContain('store main: 24 address lines (16777216 words)');
+    const listing = statSync(join(out, 'wide.main.lst')).size;
+    // V8 strings hold at most 2^29 - 24 characters (V8's String::kMaxLength on 64-bit hosts, from memory).
+    expect(listing).toBeGreaterThan(2 ** 29);
+    expect(r.stdout).toMatch(new RegExp(`wide\\.main\\.lst +${listing} bytes`));
+    expect(statSync(join(out, 'wide.main.chip0.bin')).size).toBe(16 * 1024 * 1024);
+    expect(readdirSync(out).sort()).toEqual(['phasewright-manifest.json', 'wide.main.chip0.bin', 'wide.main.chip1.bin', 'wide.main.chip2.bin', 'wide.main.chip3.bin', 'wide.main.lst']);
+    rmSync(out, { recursive: true, force: true });
+  }, 120_000);
 });
 

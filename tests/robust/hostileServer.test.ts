@@ -7,7 +7,7 @@ import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { LspClient, ensureBuilt, root } from '../lsp/support/client';
-import { bigMapTable } from '../support/hostile';
+import { bigMapTable, store24Table } from '../support/hostile';
 
 let client: LspClient;
 const demo = readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8');
@@ -98,5 +98,31 @@ describe('phasewright.build over a real connection', () => {
       expect(await ws.stop()).toBe(0);
     }
   }, 60_000);
+});
+
+describe('a store of 24 address lines in the editor', () => {
+  it('answers the listing with its first 8 MB and a note, builds the images, and keeps answering, within a 256 MB heap', async () => {
+    const workspace = join(root, 'tests/.tmp/hostile-server-wide');
+    rmSync(workspace, { recursive: true, force: true });
+    mkdirSync(workspace, { recursive: true });
+    const wide = await LspClient.start({ workspaceFolders: [workspace], nodeArgs: ['--max-old-space-size=256'] });
+    try {
+      const uri = pathToFileURL(join(workspace, 'wide.pwt')).href;
+      wide.open(uri, store24Table(demo), 1);
+      await wide.diagnosticsOf(uri, 1);
+      const listing = await wide.request<{ ok: boolean; listings: { text: string }[] }>('workspace/executeCommand', { command: 'phasewright.listing', arguments: [{ uri }] });
+      expect(listing.ok).toBe(true);
+      const text = listing.listings[0].text;
+      expect(text.length).toBeLessThanOrEqual(8 * 1024 * 1024 + 200);
+      expect(text.endsWith('# ... the listing goes on; the editor shows its first 8 MB. Build the images (with the listing format) for all of wide.main.lst.\n')).toBe(true);
+      const build = await wide.request<{ ok: boolean; files: string[] }>('workspace/executeCommand', { command: 'phasewright.build', arguments: [{ uri, outputFolder: join(workspace, 'out'), formats: ['bin'] }] });
+      expect(build).toMatchObject({ ok: true, files: ['wide.main.chip0.bin', 'wide.main.chip1.bin', 'wide.main.chip2.bin', 'wide.main.chip3.bin'] });
+      const summary = await wide.request<{ ok: boolean; stores: { text: string }[] }>('workspace/executeCommand', { command: 'phasewright.summary', arguments: [{ uri }] });
+      expect(summary.stores[0].text).toBe('16M×32');
+    } finally {
+      expect(await wide.stop()).toBe(0);
+      rmSync(workspace, { recursive: true, force: true });
+    }
+  }, 120_000);
 });
 

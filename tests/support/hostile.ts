@@ -106,3 +106,17 @@ export function bigMapTable(nRows: number, kind: MapRowKind): string {
     '',
   ].join('\n');
 }
+
+/**
+ * The demo table (given as text) with a store of 24 address lines, the most the notation
+ * allows: eleven more instruction bits on the address (16 777 216 words per chip), no chip
+ * part number (a 28C64 would be too small), and `suffix` appended to every class name, which
+ * lengthens every listing line (with 70 characters the listing passes 2^29 bytes, beyond what one
+ * JavaScript string can hold).
+ */
+export function store24Table(demo: string, suffix = ''): string {
+  return demo
+    .replace('address 13\n  step 0..2   taken 3   f7b5 4   funct3 5..7   opcode 8..12', 'address 24\n  step 0..2   taken 3   f7b5 4   funct3 5..7   opcode 8..12   ir[25:15] 13..23')
+    .replace(' chip=28C64', '')
+    .replace(/^class ([A-Z-]+) /gm, `class $1${suffix} `);
+}
