@@ -5,9 +5,13 @@
 // addresses holding the fill word are one line each. The text comes in chunks of about
 // `chunkChars` characters, so a store of 24 address lines (16 million lines, gigabytes of
 // text) is written without ever being one string; `writeListing` joins them for small stores.
+// Where the address lines carry another store's field (formedAddress.ts), a word no step's
+// address ever reaches is marked `unreached` instead of being labelled with that step, and a
+// fill address a step does reach is listed on its own line saying which step lands there.
 import type { Machine } from '../model/types';
 import { toBinary, toHex } from '../model/numbers';
 import { decodeWord, type EncodedMachine, type EncodedStore } from './encoder';
+import { formedAddresses } from './formedAddress';
 import { pointInputs, pointInputsInto } from './universe';
 
 export interface ListingOptions {
@@ -114,6 +118,8 @@ export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: E
   push(`# ${enc.usedCount} words from the table, ${nAddresses - enc.usedCount} hold the fill word (every strobe inactive): ${chipHexOfWord(enc.fillWord, enc.store.word!.chipWidths).join(' ')}`);
   push('# Fields are shown where a step sets them or where they differ from their idle code.');
   push('# Check the images against your chips\' data sheets before programming them.');
+  const reach = formedAddresses(machine, encoded, enc);
+  if (reach) push('# The address lines carry another store\'s field: a word no step reaches through them is marked unreached, and a fill word a step does reach is named.');
   push('#');
   push(`# ${'address'.padEnd(addressDigits + 2)}  ${'inputs'.padEnd(describeAddress(enc, 0).length)}  ${'class'.padEnd(10)} ${chipNames.map((n, i) => n.padEnd(Math.max(n.length, Math.ceil(word.chipWidths[i] / 4)))).join(' ')}  asserted`);
   let fillStart = -1;
@@ -123,6 +129,11 @@ export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: E
     push(`  ${range}  fill (${end - fillStart} word${end - fillStart > 1 ? 's' : ''})`);
     fillStart = -1;
   };
+  /** A fill address some step's address lines do form: its own line, saying who lands there. */
+  const strayFill = (address: number, point: number) => {
+    const decoded = encoded.decoder.decodeShared(pointInputsInto(encoded.universe, point, inputs));
+    push(`  0x${hexDigits(address, addressDigits)}  ${inputsText(address)}  fill: ${stepName(decoded)} forms this address and finds the fill word here (the table put its word at another address)`);
+  };
   // Many addresses hold the same word for the same step: describe each (decode, word) once.
   const described = new Map<unknown, Map<number | string, string>>();
   const inputs = pointInputs(encoded.universe, 0);
@@ -130,7 +141,10 @@ export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: E
   for (let address = 0; address < nAddresses; address++) {
     const point = enc.origin[address];
     if (point < 0) {
-      if (fillStart < 0) fillStart = address;
+      if (reach && reach.stray[address] >= 0) {
+        flushFill(address);
+        strayFill(address, reach.stray[address]);
+      } else if (fillStart < 0) fillStart = address;
       continue;
     }
     flushFill(address);
@@ -144,7 +158,8 @@ export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: E
       tail = `${(decoded?.cls?.name ?? '-').padEnd(10)} ${hex.join(' ')}  ${describeWord(machine, enc, address, new Set(decoded?.fieldCodes.keys() ?? []))}`;
       byWord.set(wordKey, tail);
     }
-    push('  0x' + hexDigits(address, addressDigits) + '  ' + inputsText(address) + '  ' + tail);
+    const reached = !reach || reach.formed[address] === 1;
+    push('  0x' + hexDigits(address, addressDigits) + '  ' + inputsText(address) + '  ' + (reached ? tail : unreachedTail(tail, decoded)));
     if (pending >= chunkChars) {
       yield lines.join('\n') + '\n';
       lines = [];
@@ -153,6 +168,20 @@ export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: E
   }
   flushFill(nAddresses);
   if (lines.length > 0) yield lines.join('\n') + '\n';
+}
+
+type Decoded = ReturnType<EncodedMachine['decoder']['decodeShared']>;
+
+/** "step 0 of phase fetch in class OP-IMM", for notes. */
+function stepName(decoded: Decoded): string {
+  if (!decoded?.alt) return 'a step';
+  return `step ${decoded.alt.step} of ${decoded.alt.phase ? `phase ${decoded.alt.phase.name} in ` : ''}class ${decoded.cls?.name}`;
+}
+
+/** The line tail of a table word no address lines reach: `unreached` in the class column, and for whom it was laid. */
+function unreachedTail(tail: string, decoded: Decoded): string {
+  const width = Math.max(10, (decoded?.cls?.name ?? '-').length);
+  return `${'unreached'.padEnd(width)}${tail.slice(width)}  (laid for ${stepName(decoded)}, whose address lines form another address)`;
 }
 
 /** A word (in 32-bit lanes) as hex per chip, chip 0 (the lowest bits) first. */

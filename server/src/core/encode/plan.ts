@@ -90,13 +90,25 @@ export function planBuild(machine: Machine, options: PlanOptions): BuildPlan {
     if (!s.word) problems.push(`store ${s.name} has no word layout`);
     if (!s.address) problems.push(`store ${s.name} has no address layout`);
   }
-  const encoded = encodeMachine(machine, { stores: wanted.map((s) => s.name) });
+  // Stores whose fields feed a wanted store's address lines are encoded too (not written): the
+  // listing reads their words to tell which addresses the hardware really forms.
+  const feeding = new Set(wanted.map((s) => s.name));
+  for (const s of wanted) {
+    for (const source of s.address?.sources ?? []) {
+      if (source.input.kind !== 'field') continue;
+      const name = source.input.name;
+      const holder = machine.stores.find((other) => other.word?.placements.some((p) => p.signal === name));
+      if (holder) feeding.add(holder.name);
+    }
+  }
+  const encoded = encodeMachine(machine, { stores: [...feeding] });
   if (encoded.stores.length === 0 && wanted.length > 0 && problems.length === 0) {
     problems.push(`the address inputs of all stores together take ${encoded.universe.bits} bits; Phasewright encodes up to 24`);
   }
   const files: PlannedFile[] = [];
   const stores: StoreSummary[] = [];
   for (const enc of encoded.stores) {
+    if (!wanted.includes(enc.store)) continue;
     const store: Store = enc.store;
     // Chip images only when an image format is wanted (the listing reads the encoded store).
     const images = formats.some((f) => f !== 'list') ? chipImagesOf(enc) : [];
