@@ -100,7 +100,8 @@ class StringTable {
 
   constructor(bytes: Uint8Array, start: number, end: number) {
     const pieces: string[] = [];
-    for (let at = start; at < end; at += 4096) pieces.push(String.fromCharCode(...bytes.subarray(at, Math.min(end, at + 4096))));
+    // apply takes the typed array as it is (a spread would walk it through an iterator).
+    for (let at = start; at < end; at += 4096) pieces.push(String.fromCharCode.apply(null, bytes.subarray(at, Math.min(end, at + 4096)) as unknown as number[]));
     this.text = pieces.join('');
     let count = 0;
     for (let at = start; at < end; at++) if (bytes[at] === 0) count++;
