@@ -21,6 +21,14 @@ beforeEach(() => {
 });
 
 describe('phasewright build', () => {
+  it('deletes nothing when a build makes fewer files: it lists what it left in place', async () => {
+    expect((await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/fewer', '--format', 'bin,list')).code).toBe(0);
+    const r = await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/fewer', '--format', 'bin');
+    expect(r.code).toBe(0);
+    expect(r.out).toContain('left in place: 1 file an earlier build of this table made and this one does not (Phasewright deletes nothing; remove it if no longer needed):\n  halyard-32.main.lst\n');
+    expect(existsSync(join(tmp, 'fewer/halyard-32.main.lst'))).toBe(true);
+  });
+
   it('shows a progress line on a terminal (stderr), cleared before the summary, and none when piped', async () => {
     const io = { ...memoryIo(root), errIsTty: true };
     const tty = Object.assign(io, { stderr: '' });

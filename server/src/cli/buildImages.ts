@@ -69,7 +69,11 @@ export function describeBuild(result: Extract<BuildResult, { ok: true }>, outDir
     const sum = f.entry.sum16 ? `sum ${f.entry.sum16}` : '';
     lines.push(`  ${f.entry.name.padEnd(width)}  ${String(f.sizeBytes).padStart(7)} bytes  ${sum.padEnd(8)}  sha256 ${f.sha256.slice(0, 16)}`);
   }
-  for (const r of result.report.leftInPlace) lines.push(`  left in place: ${r} (an earlier build of this table made it, this one does not; Phasewright deletes nothing: remove it if it is no longer needed)`);
+  const left = result.report.leftInPlace;
+  if (left.length) {
+    lines.push(`left in place: ${left.length} file${left.length > 1 ? 's' : ''} an earlier build of this table made and this one does not (Phasewright deletes nothing; remove ${left.length > 1 ? 'them' : 'it'} if no longer needed):`);
+    for (const name of left) lines.push(`  ${name}`);
+  }
   for (const w of result.report.warnings) lines.push(`  note: ${w}`);
   lines.push(`manifest: ${outDir}/phasewright-manifest.json (sizes, SHA-256, 16-bit sums). "sum" is the 16-bit byte sum of the chip's data, as device programmers show it.`);
   lines.push('Caution: check every image against the chips\' data sheets before programming; a wrong image can enable two drivers onto one bus.');
