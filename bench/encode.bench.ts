@@ -21,7 +21,10 @@ if (analysis.diagnostics.length) throw new Error(`benchmark table: ${analysis.di
 function encodeAndWrite(): number {
   const plan = planBuild(analysis.machine, { stem: 'bench', source: 'bench.pwt' });
   let bytes = 0;
-  for (const f of plan.files) bytes += f.kind === 'image' ? imageFormats[f.format].write(f.image).length : f.text.length;
+  for (const f of plan.files) {
+    if (f.kind === 'image') bytes += imageFormats[f.format].write(f.image).length;
+    else for (const chunk of f.chunks()) bytes += chunk.length;
+  }
   return bytes;
 }
 

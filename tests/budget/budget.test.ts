@@ -16,6 +16,25 @@ function table(machineLine: string, body: string): string {
 
 const codesOf = (text: string) => analyse(text).diagnostics.map((d) => d.code);
 
+/** One bus, two registers and one step; the figures of the machine, the bus and part b vary. */
+const lampTable = (machineLine: string, busFigures: string, bFigures: string) =>
+  table(`${machineLine}\n`, `
+    bus result 8${busFigures}
+    part a register 8
+    part b register 8${bFigures}
+    strobe a.oe enable a -> result active low
+    strobe b.ck clock result -> b
+    strobe done end
+    word 8 as 1 x 8
+      a.oe 0  b.ck 1  done 2
+    address 1
+      step 0
+    class OP opcode=0110011
+      0: a.oe, b.ck, done
+  `);
+
+const dim = lampTable('machine "dim" supply_v=1.5', ' leds=8 led_vf=1.8 led_ohm=100', '');
+
 describe('LED current and the supply budget', () => {
   it('follows Ohm\'s law: (3.3 V - 1.8 V) / 1.5 kohm = 1.0 mA', () => {
     // I = (Vsupply - Vf) / R (Ohm's law; common practice, no source).
@@ -26,20 +45,7 @@ describe('LED current and the supply budget', () => {
 
   it('adds every LED lit at once: a thousand LEDs at a few milliamps is amps', () => {
     // A few mA per LED across about a thousand LEDs is of the order of amps (common practice, no source).
-    const text = table('machine "lamps" supply_v=5 supply_ma=2000\n', `
-      bus result 8
-      part a register 8
-      part b register 8 leds=1000 led_vf=2 led_ohm=1000
-      strobe a.oe enable a -> result active low
-      strobe b.ck clock result -> b
-      strobe done end
-      word 8 as 1 x 8
-        a.oe 0  b.ck 1  done 2
-      address 1
-        step 0
-      class OP opcode=0110011
-        0: a.oe, b.ck, done
-    `);
+    const text = lampTable('machine "lamps" supply_v=5 supply_ma=2000', '', ' leds=1000 led_vf=2 led_ohm=1000');
     const budget = budgetOf(analyse(text).machine);
     expect(budget.ledTotalMa).toBeCloseTo(3000, 6);
     const d = analyse(text).diagnostics;
@@ -48,22 +54,42 @@ describe('LED current and the supply budget', () => {
     expect(codesOf(text.replace('supply_ma=2000', 'supply_ma=3500'))).toEqual([]);
   });
 
-  it('reports LEDs that cannot light on the supply', () => {
-    const text = table('machine "dim" supply_v=1.5\n', `
-      bus result 8 leds=8 led_vf=1.8 led_ohm=100
-      part a register 8
-      part b register 8
-      strobe a.oe enable a -> result
-      strobe b.ck clock result -> b
-      strobe done end
-      word 8 as 1 x 8
-        a.oe 0  b.ck 1  done 2
-      address 1
-        step 0
-      class OP opcode=0110011
-        0: a.oe, b.ck, done
-    `);
-    expect(analyse(text).diagnostics.map((d) => d.message)).toEqual(['the LEDs of bus result need more than the 1.5 V supply to light (forward voltage at or above it); check led_vf and supply_v']);
+  it('reports an LED forward voltage at or above the supply on that figure, and counts no current for it', () => {
+    const analysis = analyse(dim);
+    expect(analysis.diagnostics.map((d) => [d.code, dim.slice(d.span.start, d.span.end), d.message])).toEqual([
+      ['bad-number', 'led_vf=1.8', "`led_vf=1.8` is at or above the 1.5 V supply, so these LEDs would never light; check the LED's data sheet and supply_v"],
+    ]);
+    expect(dim.slice(analysis.diagnostics[0].related![0].span.start, analysis.diagnostics[0].related![0].span.end)).toBe('supply_v=1.5');
+    expect(budgetOf(analysis.machine).missing).toContain('LED figures for bus result (supply_v on the machine line, led_vf and led_ohm)');
+  });
+});
+
+describe('figures outside their physical range', () => {
+  // Each figure has a range (docs/budget.md); outside it the figure is an error where it is
+  // written and is left out of every sum. Zero is no resistance at all (Ohm's law would give an
+  // unlimited current), and the hex number is the one a width refuses as well.
+  const cases: [string, string, string][] = [
+    ['led_ohm=100', 'led_ohm=0', '`led_ohm=0` is out of range: the LED series resistor must be more than 0 and at most 100000000 ohm'],
+    ['supply_v=1.5', 'supply_v=1.5 supply_ma=0xFFFFFFFFFFFFFFFFFFFF', '`supply_ma=0xFFFFFFFFFFFFFFFFFFFF` is too large: the current budget of the supply for indicators and loads must be at most 100000 mA'],
+    ['supply_v=1.5', 'supply_v=0', '`supply_v=0` is out of range: the logic supply voltage must be more than 0 and at most 30 V'],
+    ['supply_v=1.5', 'supply_v=1.5 clock_khz=0', '`clock_khz=0` is out of range: the planned step clock must be more than 0 and at most 1000000 kHz'],
+    ['leds=8', 'leds=2.5', '`leds=2.5` is not a whole number: it counts LEDs (at least 0 and at most 1000000 LEDs)'],
+    ['led_vf=1.8', 'led_vf=40', '`led_vf=40` is out of range: the LED forward voltage must be more than 0 and at most 12 V'],
+  ];
+  for (const [from, to, message] of cases) {
+    it(`refuses ${to}`, () => {
+      const text = dim.replace(from, to).replace('supply_v=1.5', 'supply_v=5');
+      const figure = to.split(' ').pop()!;
+      const analysis = analyse(text.replace('supply_v=5 supply_v=0', 'supply_v=0'));
+      const errors = analysis.diagnostics.filter((d) => d.code === 'bad-number');
+      expect(errors.map((d) => d.message)).toEqual([message]);
+      expect(analysis.text.slice(errors[0].span.start, errors[0].span.end)).toBe(figure.slice(figure.indexOf('=') + 1));
+    });
+  }
+
+  it('accepts the edges of the ranges and decimal figures', () => {
+    const text = dim.replace('supply_v=1.5', 'supply_v=30 supply_ma=100000 clock_khz=0.5').replace('led_ohm=100', 'led_ohm=100000000').replace('led_vf=1.8', 'led_vf=12');
+    expect(analyse(text).diagnostics.filter((d) => d.code === 'bad-number')).toEqual([]);
   });
 });
 

@@ -36,6 +36,26 @@ describe('phasewright build', () => {
     expect(Buffer.from(s0.slice(8, -2), 'hex').toString('latin1')).toBe('halyard-32.pwt');
   });
 
+  it('deletes nothing when a build makes fewer files: it lists what it left in place', async () => {
+    expect((await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/fewer', '--format', 'bin,list')).code).toBe(0);
+    const r = await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/fewer', '--format', 'bin');
+    expect(r.code).toBe(0);
+    expect(r.out).toContain('left in place: 1 file an earlier build of this table made and this one does not (Phasewright deletes nothing; remove it if no longer needed):\n  halyard-32.main.lst\n');
+    expect(existsSync(join(tmp, 'fewer/halyard-32.main.lst'))).toBe(true);
+  });
+
+  it('shows a progress line on a terminal (stderr), cleared before the summary, and none when piped', async () => {
+    const io = { ...memoryIo(root), errIsTty: true };
+    const tty = Object.assign(io, { stderr: '' });
+    tty.err = (text: string) => {
+      tty.stderr += text;
+    };
+    expect(await runCommand(['build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/tty'], tty)).toBe(0);
+    expect(tty.stderr).toMatch(/^\r\x1b\[Kbuild: 0% \(0\/17\) halyard-32\.main\.chip0\.hex/);
+    expect(tty.stderr.endsWith('\r\x1b[K')).toBe(true);
+    expect((await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/piped')).err).toBe('');
+  });
+
   it('writes every chip in every format, a listing and a manifest, and prints a summary', async () => {
     const r = await run('build', 'examples/halyard-32.pwt', '--out', 'tests/.tmp/cli-build/out');
     expect(r.code).toBe(0);

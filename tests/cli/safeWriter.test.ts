@@ -1,20 +1,15 @@
 // The output layer: files land only inside the output folder, atomically and verified; a
-// failure mid-write leaves the previous file as it was; a file Phasewright did not write is
-// never replaced; and a damaged manifest is a clear error rather than a crash.
+// failure mid-write leaves the previous files as they were (one file or a whole set); a file
+// Phasewright did not write is never replaced and nothing is ever deleted; and a damaged
+// manifest is a clear error rather than a crash.
 import { createHash } from 'node:crypto';
 import * as fs from 'node:fs';
-import { tmpdir } from 'node:os';
+import { hostname, tmpdir } from 'node:os';
+import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import { afterAll, beforeEach, describe, expect, it } from 'vitest';
-import {
-  ManifestError,
-  manifestFileName,
-  parseManifest,
-  readManifest,
-  writeOutputSet,
-  type ImageOutputSpec,
-  type Manifest,
-} from '../../server/src/cli/output/manifest';
+import { ManifestError, manifestFileName, parseManifest, readManifest, type Manifest } from '../../server/src/cli/output/manifest';
+import { writeOutputSet, type ImageOutputSpec } from '../../server/src/cli/output/outputSet';
 import {
   OutputError,
   nodeFileSystem,
@@ -131,6 +126,22 @@ describe('writeFileSafely', () => {
   describe('a failure part-way leaves the previous file intact', () => {
     /** The real file system with one call replaced. */
     const faulty = (overrides: Partial<FileSystemOps>): FileSystemOps => ({ ...nodeFileSystem, ...overrides });
+    /** The real file system, but every read of a file whose path passes `test` gives 'nex...' (one byte changed). */
+    const misreading = (test: (file: string) => boolean): FileSystemOps => {
+      const paths = new Map<number, string>();
+      return faulty({
+        openSync: (file, flags, mode) => {
+          const fd = nodeFileSystem.openSync(file, flags, mode);
+          paths.set(fd, file);
+          return fd;
+        },
+        readSync: (fd, buffer, offset, length, position) => {
+          const n = nodeFileSystem.readSync(fd, buffer, offset, length, position);
+          if (n > 0 && test(paths.get(fd) ?? '')) buffer[offset + n - 1] ^= 1;
+          return n;
+        },
+      });
+    };
 
     it('when the disk fills up in the middle of the data', () => {
       fs.writeFileSync(join(folder, 'rom0.hex'), 'previous image');
@@ -171,7 +182,7 @@ describe('writeFileSafely', () => {
       fs.writeFileSync(join(folder, 'rom0.hex'), 'previous image');
       const error = thrown(() =>
         writeFileSafely(folder, { name: 'rom0.hex', bytes: bytes('new') }, {
-          fs: faulty({ readFileSync: (file) => (file.endsWith('.tmp') ? bytes('nex') : nodeFileSystem.readFileSync(file)) }),
+          fs: misreading((file) => file.endsWith('.tmp')),
         }),
       );
       expect(error.message).toMatch(/temporary copy reads back different .*; the previous file is unchanged$/);
@@ -182,7 +193,7 @@ describe('writeFileSafely', () => {
     it('and says so when the final file reads back different', () => {
       const error = thrown(() =>
         writeFileSafely(folder, { name: 'rom0.hex', bytes: bytes('new') }, {
-          fs: faulty({ readFileSync: (file) => (file.endsWith('rom0.hex') ? bytes('nex') : nodeFileSystem.readFileSync(file)) }),
+          fs: misreading((file) => file.endsWith('rom0.hex')),
         }),
       );
       expect(error.message).toBe(`cannot verify ${join(folder, 'rom0.hex')}: the file was replaced but reads back different from what was meant; do not use it`);
@@ -206,6 +217,7 @@ describe('writeOutputSet and the manifest', () => {
   const build = (files: ImageOutputSpec[], extra: Partial<Parameters<typeof writeOutputSet>[0]> = {}) =>
     writeOutputSet({
       folder,
+      command: 'build',
       sourceFile: 'demo.pw',
       version: '0.1.0',
       files,
@@ -218,13 +230,15 @@ describe('writeOutputSet and the manifest', () => {
     const report = build([spec('rom0.hex', 0, 1), spec('rom1.hex', 1, 2)]);
     expect(listing(folder)).toEqual([manifestFileName, 'rom0.hex', 'rom1.hex']);
     const manifest = manifestOnDisk();
-    expect(manifest).toMatchObject({ generator: 'phasewright', version: '0.1.0', source: 'demo.pw', complete: true, createdAt: '2030-01-02T03:04:05.000Z' });
+    expect(manifest).toMatchObject({ generator: 'phasewright', layout: 2, version: '0.1.0', complete: true, createdAt: '2030-01-02T03:04:05.000Z' });
     expect(manifest.caution).toMatch(/data sheets/);
     const rom0 = fs.readFileSync(join(folder, 'rom0.hex'));
     const expectedSum = Array.from(image(1).words).reduce((sum, value) => sum + value, 0) & 0xffff;
     expect(manifest.files[0]).toEqual({
       name: 'rom0.hex',
       format: 'ihex',
+      command: 'build',
+      source: 'demo.pw',
       store: 'main',
       chip: 0,
       widthBits: 8,
@@ -274,39 +288,97 @@ describe('writeOutputSet and the manifest', () => {
     expect(read(join(folder, 'README.txt'))).toBe('keep');
   });
 
-  it('removes its own outputs a new build no longer makes, but keeps ones changed since', () => {
+  it('deletes nothing: outputs a new build no longer makes stay, reported and listed as stale; changed ones are no longer listed', () => {
     build([spec('rom0.hex', 0, 1), spec('rom1.hex', 1, 2), spec('rom2.hex', 2, 3)]);
     fs.appendFileSync(join(folder, 'rom2.hex'), '; edited by hand\n');
     const report = build([spec('rom0.hex', 0, 1)]);
-    expect(report.removed).toEqual(['rom1.hex']);
-    expect(report.warnings).toEqual([expect.stringMatching(/rom2\.hex is left from an earlier build and was changed since/)]);
-    expect(listing(folder)).toEqual([manifestFileName, 'rom0.hex', 'rom2.hex']);
-    expect(manifestOnDisk().files.map((file) => file.name)).toEqual(['rom0.hex']);
-    // The kept file is now the user's: a later build will not overwrite it.
+    expect(report.leftInPlace).toEqual(['rom1.hex']);
+    expect(report.warnings).toEqual([expect.stringMatching(/rom2\.hex is left from an earlier build of demo\.pw and was changed since/)]);
+    expect(listing(folder)).toEqual([manifestFileName, 'rom0.hex', 'rom1.hex', 'rom2.hex']);
+    expect(manifestOnDisk().files.map((file) => [file.name, file.stale ?? false])).toEqual([['rom1.hex', true], ['rom0.hex', false]]);
+    // The stale file is still ours: a later build that makes it again replaces it.
+    build([spec('rom0.hex', 0, 1), spec('rom1.hex', 1, 7)]);
+    expect(manifestOnDisk().files.map((file) => [file.name, file.stale ?? false])).toEqual([['rom0.hex', false], ['rom1.hex', false]]);
+    // The changed file is now the user's: a later build will not overwrite it.
     expect(() => build([spec('rom0.hex', 0, 1), spec('rom2.hex', 2, 3)])).toThrow(/cannot replace .*rom2\.hex/);
   });
 
-  it('an interrupted build leaves a provisional manifest that lets the next build finish', () => {
+  it('does not delete a file of the user\'s that an edited manifest lists with its correct SHA-256', () => {
     build([spec('rom0.hex', 0, 1)]);
-    let nWrites = 0;
+    fs.writeFileSync(join(folder, 'thesis.tex'), 'two years of work');
+    const edited = manifestOnDisk();
+    const precious = fs.readFileSync(join(folder, 'thesis.tex'));
+    edited.files.push({ ...edited.files[0]!, name: 'thesis.tex', size: precious.length, sha256: createHash('sha256').update(precious).digest('hex') });
+    fs.writeFileSync(join(folder, manifestFileName), JSON.stringify(edited));
+    const report = build([spec('rom0.hex', 0, 2)]);
+    expect(read(join(folder, 'thesis.tex'))).toBe('two years of work');
+    expect(report.leftInPlace).toEqual(['thesis.tex']);
+  });
+
+  it('keeps the outputs of other commands and sources, listed as they were', () => {
+    build([spec('rom0.hex', 0, 1)]);
+    writeOutputSet({ folder, command: 'fit', sourceFile: 'demo.pw', version: '0.1.0', files: [{ name: 'decode.jed', format: 'jedec', bytes: bytes('\x02fuse map*\x03') }] });
+    build([spec('other.hex', 0, 3)], { sourceFile: 'other.pw' });
+    const report = build([spec('rom0.hex', 0, 4)]);
+    expect(report.leftInPlace).toEqual([]);
+    expect(manifestOnDisk().files.map((file) => [file.name, file.command, file.source, file.stale ?? false])).toEqual([
+      ['decode.jed', 'fit', 'demo.pw', false],
+      ['other.hex', 'build', 'other.pw', false],
+      ['rom0.hex', 'build', 'demo.pw', false],
+    ]);
+    expect(listing(folder)).toEqual(['decode.jed', 'other.hex', manifestFileName, 'rom0.hex']);
+  });
+
+  /** Every file in the folder (and below) with its bytes, for comparing whole folders. */
+  const snapshot = (): Record<string, string> =>
+    Object.fromEntries((fs.readdirSync(folder, { recursive: true }) as string[]).filter((name) => fs.statSync(join(folder, name)).isFile()).map((name) => [name, read(join(folder, name))]));
+
+  it('is all or nothing: the disk filling up at the third file leaves exactly the previous set, and names that file', () => {
+    build([spec('rom0.hex', 0, 1), spec('rom1.hex', 1, 2)]);
+    const before = snapshot();
+    let opened = 0;
+    const full: FileSystemOps = {
+      ...nodeFileSystem,
+      openSync: (file, flags, mode) => {
+        if (flags === 'wx' && file.endsWith('.tmp') && ++opened === 3) throw Object.assign(new Error('ENOSPC: no space left on device'), { code: 'ENOSPC' });
+        return nodeFileSystem.openSync(file, flags, mode);
+      },
+    };
+    const error = thrown(() => build([spec('rom0.hex', 0, 5), spec('rom1.hex', 1, 6), spec('rom2.hex', 2, 7)], { fs: full }));
+    expect(error.message).toBe(`cannot write ${join(folder, 'rom2.hex')}: no space left on the device (ENOSPC); nothing was changed in the folder`);
+    expect(snapshot()).toEqual(before);
+  });
+
+  it('is all or nothing when a rename fails part-way: every previous file and the manifest are put back', () => {
+    build([spec('rom0.hex', 0, 1), spec('rom1.hex', 1, 2)]);
+    const before = snapshot();
+    let renames = 0;
     const failing: FileSystemOps = {
       ...nodeFileSystem,
       renameSync: (from, to) => {
-        if (to.endsWith('rom1.hex')) throw Object.assign(new Error('EIO'), { code: 'EIO' });
-        nWrites++;
+        if (to.endsWith('rom1.hex') && from.endsWith('.tmp')) throw Object.assign(new Error('EIO: i/o error'), { code: 'EIO' });
+        renames++;
         nodeFileSystem.renameSync(from, to);
       },
     };
-    const error = thrown(() => build([spec('rom0.hex', 0, 5), spec('rom1.hex', 1, 6)], { fs: failing }));
-    expect(error.message).toMatch(/^cannot write .*rom1\.hex: EIO$/);
-    expect(nWrites).toBe(2); // the provisional manifest, then rom0.hex
+    const error = thrown(() => build([spec('rom0.hex', 0, 5), spec('rom1.hex', 1, 6), spec('rom2.hex', 2, 7)], { fs: failing }));
+    expect(error.message).toBe(`cannot write ${join(folder, 'rom1.hex')}: EIO: i/o error; the folder keeps its previous files`);
+    expect(renames).toBeGreaterThan(2); // the provisional manifest and rom0.hex went in, and came back out
+    expect(snapshot()).toEqual(before);
+    build([spec('rom0.hex', 0, 5), spec('rom1.hex', 1, 6), spec('rom2.hex', 2, 7)]);
+    expect(manifestOnDisk().complete).toBe(true);
+  });
+
+  it('a build killed after the provisional manifest leaves a folder the next build finishes', () => {
+    build([spec('rom0.hex', 0, 1)]);
+    // What a kill between the renames leaves: the provisional manifest, old files, leftovers in the work folder.
     const provisional = manifestOnDisk();
-    expect(provisional.complete).toBe(false);
-    expect(provisional.files.map((file) => [file.name, file.sha256 === null])).toEqual([
-      ['rom0.hex', false],
-      ['rom1.hex', true],
-    ]);
-    expect(listing(folder)).toEqual([manifestFileName, 'rom0.hex']);
+    provisional.complete = false;
+    provisional.files.push({ ...provisional.files[0]!, name: 'rom1.hex', size: null, sha256: null, sum16: null });
+    fs.writeFileSync(join(folder, manifestFileName), JSON.stringify(provisional));
+    fs.mkdirSync(join(folder, '.phasewright-work'));
+    fs.writeFileSync(join(folder, '.phasewright-work', '.pw-0123456789.tmp'), 'half');
+    fs.writeFileSync(join(folder, 'rom1.hex'), 'half-renamed');
     build([spec('rom0.hex', 0, 5), spec('rom1.hex', 1, 6)]);
     expect(manifestOnDisk().complete).toBe(true);
     expect(listing(folder)).toEqual([manifestFileName, 'rom0.hex', 'rom1.hex']);
@@ -352,8 +424,9 @@ describe('writeOutputSet and the manifest', () => {
       generator: 'phasewright', version: '1', createdAt: 'x', source: 's', caution: 'c', complete: false,
       files: [{ name: 'a/rom0.hex', format: 'ihex', size: null, sha256: null, sum16: null, store: 'main', chip: 0 }],
     });
+    // A layout-1 manifest (one source for the folder): its entries take that source and the command of their format.
     expect(parseManifest(text, 'm.json').files).toEqual([
-      { name: 'a/rom0.hex', format: 'ihex', size: null, sha256: null, sum16: null, store: 'main', chip: 0 },
+      { name: 'a/rom0.hex', format: 'ihex', command: 'build', source: 's', size: null, sha256: null, sum16: null, store: 'main', chip: 0 },
     ]);
   });
 
@@ -373,11 +446,67 @@ describe('writeOutputSet and the manifest', () => {
     expect(listing(fresh)).toEqual([manifestFileName]);
     const withPlain = writeOutputSet({
       folder: fresh,
+      command: 'fit',
       sourceFile: 'demo.pw',
       version: '0.1.0',
       files: [{ name: 'decode.jed', format: 'jedec', bytes: bytes('\x02fuse map*\x03'), sum16: 0x1234 }],
     });
     expect(withPlain.files[0]!.entry).toMatchObject({ name: 'decode.jed', format: 'jedec', sum16: '1234' });
     expect(listing(fresh)).toEqual(['decode.jed', manifestFileName]);
+  });
+});
+
+describe('names the file system takes as they are', () => {
+  const image = (): ChipImage => ({ widthBits: 8, words: Uint8Array.from({ length: 16 }, (_, a) => a) });
+
+  it('writes a file whose name is 250 characters long (the temporary name is short, not the name plus a suffix)', () => {
+    // 255 bytes is the name limit of ext4, XFS and tmpfs (common practice, no source).
+    const name = `${'s'.repeat(230)}.main.chip0.hex`;
+    const report = writeOutputSet({ folder, command: 'build', sourceFile: 'x.pwt', version: '0', files: [{ name, format: 'ihex', store: 'main', chip: 0, image: image() }] });
+    expect(report.files[0]!.name).toBe(name);
+    expect(listing(folder)).toEqual([manifestFileName, name]);
+  });
+
+  it('keeps a folder and file name that are not UTF-8 byte for byte', () => {
+    // 0xE9 alone is not UTF-8 (it starts a three-byte sequence); it stands for itself as U+DCE9.
+    const out = join(folder, 'caf\udce9');
+    const report = writeOutputSet({ folder: out, command: 'build', sourceFile: 'caf\udce9.pwt', version: '0', files: [{ name: 'caf\udce9.main.chip0.bin', format: 'bin', store: 'main', chip: 0, image: image() }] });
+    const raw = fs.readdirSync(Buffer.from(folder), { encoding: 'buffer' });
+    expect(raw.map((b) => b.toString('hex'))).toEqual([Buffer.from([0x63, 0x61, 0x66, 0xe9]).toString('hex')]);
+    const inside = fs.readdirSync(Buffer.concat([Buffer.from(folder + '/'), Buffer.from([0x63, 0x61, 0x66, 0xe9])]), { encoding: 'buffer' }).map((b) => b.toString('latin1')).sort();
+    expect(inside).toEqual(['caf\xe9.main.chip0.bin', manifestFileName]);
+    expect(report.files[0]!.sizeBytes).toBe(16);
+    // The manifest keeps the name exactly (JSON escapes the lone surrogate), so the next build replaces the file.
+    expect(readManifest(out)!.files[0]!.name).toBe('caf\udce9.main.chip0.bin');
+    expect(() => writeOutputSet({ folder: out, command: 'build', sourceFile: 'caf\udce9.pwt', version: '0', files: [{ name: 'caf\udce9.main.chip0.bin', format: 'bin', store: 'main', chip: 0, image: image() }] })).not.toThrow();
+  });
+});
+
+describe('the folder lock', () => {
+  const files = () => [{ name: 'rom.bin', format: 'bin' as const, store: 'main', chip: 0, image: { widthBits: 8 as const, words: new Uint8Array(4) } }];
+  const lockFile = () => join(folder, '.phasewright.lock');
+
+  it('waits a bounded time for a live owner, then refuses naming it, and writes nothing', () => {
+    // The test runner's parent is alive for the whole test.
+    fs.writeFileSync(lockFile(), JSON.stringify({ pid: process.ppid, host: hostname(), since: '2030-01-01T00:00:00.000Z' }));
+    const error = thrown(() => writeOutputSet({ folder, command: 'build', sourceFile: 'x.pwt', version: '0', files: files(), lockWaitMs: 200 }));
+    expect(error.message).toBe(
+      `cannot write into ${folder}: another Phasewright run (process ${process.ppid} on ${hostname()}, since 2030-01-01T00:00:00.000Z) is writing into this folder; nothing was written. ` +
+        `Try again when it has finished, or choose another output folder (if no such run exists, delete ${lockFile()})`,
+    );
+    expect(listing(folder)).toEqual(['.phasewright.lock']);
+  });
+
+  it('takes over a lock whose process no longer exists, and releases its own', () => {
+    const gone = spawnSync(process.execPath, ['-e', '0']).pid!;
+    fs.writeFileSync(lockFile(), JSON.stringify({ pid: gone, host: hostname(), since: '2030-01-01T00:00:00.000Z' }));
+    writeOutputSet({ folder, command: 'build', sourceFile: 'x.pwt', version: '0', files: files(), lockWaitMs: 200 });
+    expect(listing(folder)).toEqual([manifestFileName, 'rom.bin']);
+  });
+
+  it('is released when the run fails', () => {
+    fs.writeFileSync(join(folder, 'rom.bin'), 'mine');
+    expect(() => writeOutputSet({ folder, command: 'build', sourceFile: 'x.pwt', version: '0', files: files() })).toThrow(/cannot replace/);
+    expect(fs.existsSync(lockFile())).toBe(false);
   });
 });

@@ -2,7 +2,8 @@
 // executeCommand registry calls them: building images of an open file, the listing, the
 // diagram of the class under the cursor, and the status-bar summary; arguments from outside
 // are checked and refusals come back as `{ ok: false, reason }`.
-import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, readdirSync, realpathSync, rmSync, symlinkSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeEach, describe, expect, it } from 'vitest';
 import { type Analysis, analyse } from '../../server/src/core/analysis';
@@ -19,7 +20,8 @@ const open = new Map<string, Analysis>([
   [demoUri, analyse(demoText)],
   [faultUri, analyse(readFileSync(join(root, 'examples/faults/bus-contention.pwt'), 'utf8'))],
 ]);
-const context = { analysisOf: (uri: string) => open.get(uri) };
+// The repository is the workspace: the build may write into tests/.tmp inside it.
+const context = { analysisOf: (uri: string) => open.get(uri), workspaceFolders: () => [root] };
 
 beforeEach(() => {
   rmSync(tmp, { recursive: true, force: true });
@@ -51,6 +53,27 @@ describe('phasewright.build', () => {
     expect(runBuild([], context)).toMatchObject({ ok: false });
     expect(runBuild(['text'], context)).toMatchObject({ ok: false });
     expect(existsSync(join(tmp, 'phasewright-manifest.json'))).toBe(false);
+  });
+
+  it('writes only inside the workspace folders, after following links; the table\'s own folder when none is open', () => {
+    const outside = mkdtempSync(join(tmpdir(), 'phasewright-outside-'));
+    try {
+      const refused = (folder: string, ctx: Parameters<typeof runBuild>[1] = context) => {
+        const a = runBuild([{ uri: demoUri, outputFolder: folder, formats: ['bin'] }], ctx);
+        return a.ok ? 'built' : a.reason;
+      };
+      expect(refused(join(outside, 'out'))).toBe(`the output folder ${join(outside, 'out')} is outside the workspace folder (${root}); choose a folder inside`);
+      expect(refused(join(tmp, '..', '..', '..', '..', 'elsewhere'))).toMatch(/is outside the workspace folder/);
+      // A link inside the workspace that leads out is outside.
+      symlinkSync(outside, join(tmp, 'link'));
+      expect(refused(join(tmp, 'link', 'out'))).toBe(`the output folder ${join(tmp, 'link', 'out')} is outside the workspace folder (${root}) once links are followed (it is ${join(realpathSync(outside), 'out')}); choose a folder inside`);
+      expect(readdirSync(outside)).toEqual([]);
+      // Without workspace folders, the table's folder (here /work/examples) is the limit.
+      expect(refused(tmp, { analysisOf: context.analysisOf })).toBe(`the output folder ${tmp} is outside the table's folder /work/examples (no workspace folder is open); choose a folder inside`);
+      expect(refused(join(tmp, 'inside'))).toBe('built');
+    } finally {
+      rmSync(outside, { recursive: true, force: true });
+    }
   });
 
   it('applies the severity setting it is given', () => {

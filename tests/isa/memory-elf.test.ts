@@ -6,6 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { SparseMemory } from '../../server/src/core/isa/memory';
 import { DEFAULT_STACK_POINTER, loadElf, loadRaw, parseElf, symbolAt } from '../../server/src/core/isa/elf';
+import { unterminatedSymbolsElf } from '../support/hostile';
 
 describe('SparseMemory', () => {
   it('stores words little-endian (spec 1.4: RISC-V memory is little-endian)', () => {
@@ -159,5 +160,16 @@ describe('ELF loader', () => {
 
   it('the default stack pointer is 16-byte aligned (RISC-V psABI: sp aligned to 16 at calls)', () => {
     expect(DEFAULT_STACK_POINTER % 16).toBe(0);
+  });
+});
+
+describe('ELF symbol names from a hostile file', () => {
+  it('reads an unterminated name table in one pass: names cut at 1024 characters, warnings, every symbol kept', () => {
+    const result = parseElf(unterminatedSymbolsElf(2000, 100_000));
+    if (!result.ok) throw new Error(result.error);
+    expect(result.image.symbols).toHaveLength(2000);
+    expect(result.image.symbols[0]).toEqual({ name: 'A'.repeat(1024), address: 0x10000, sizeBytes: 0, kind: 'function' });
+    expect(result.image.warnings).toContain('the symbol name table does not end with a NUL byte as the gABI requires; its last name may be cut');
+    expect(result.image.warnings).toContain('2000 symbol name(s) are longer than 1024 characters and were cut to that length');
   });
 });

@@ -65,3 +65,44 @@ export const chainedStoreTable = dedent(`
         0: entry=sub, a.oe, b.ck
         1: entry=sub, done
 `);
+
+/**
+ * An entry-point decoder: store `dec`, addressed by the opcode, holds the field `entry` that
+ * feeds the main store's address lines in place of the opcode. Here the shared fetch phase
+ * does not set `entry`, so the table lays the fetch word at entry=none (the idle code) while
+ * the hardware forms entry=op or entry=sub from `dec` at every step: fetch never runs. It
+ * checks clean (whether a check should catch it is another matter); the listing must show it.
+ */
+export const entryDecoderTable = dedent(`
+      bus result 8
+      part a register 8
+      part b register 8
+      strobe a.oe enable a -> result active low
+      strobe b.ck clock result -> b
+      strobe done end
+      field entry 2 idle=none { op=0 sub=1 none=3 }
+      store dec
+        word 8 as 1 x 8
+          entry 0..1
+        address 5
+          opcode 0..4
+      store main
+        word 8 as 1 x 8
+          a.oe 0  b.ck 1  done 2
+        address 3
+          step 0  entry 1..2
+      phase fetch
+        0: a.oe, b.ck
+      class OP opcode=0110011
+        use fetch
+        1: a.oe, b.ck, done, entry=op
+      class SUBTRACT opcode=0001011
+        use fetch
+        1: a.oe, done, entry=sub
+`);
+
+/** The same design with each class's step 0 setting its entry, as the hardware needs: every word is reached. */
+export const entryDecoderFixed = entryDecoderTable
+  .replace(/phase fetch\n\s+0: a\.oe, b\.ck\n/, '')
+  .replace(/( +)use fetch\n(\s+1: a\.oe, b\.ck, done, entry=op)/, '$10: a.oe, b.ck, entry=op\n$2')
+  .replace(/( +)use fetch\n(\s+1: a\.oe, done, entry=sub)/, '$10: a.oe, b.ck, entry=sub\n$2');

@@ -4,7 +4,7 @@
 import { basename, extname } from 'node:path';
 import { analyse, errorCount, type SeverityConfig } from '../core/analysis';
 import { planBuild, type BuildFormat, type StoreSummary } from '../core/encode/plan';
-import { writeOutputSet, type OutputSetReport, type OutputSpec } from './output/manifest';
+import { writeOutputSet, type OutputSetReport, type OutputSpec } from './output/outputSet';
 import { VERSION } from './version';
 
 export interface BuildRequest {
@@ -16,6 +16,10 @@ export interface BuildRequest {
   stores?: string[];
   force?: boolean;
   severities?: SeverityConfig;
+  /** Hears the progress of the writing: files done of all, and what is being written. */
+  progress?: (done: number, total: number, detail: string) => void;
+  /** How long to wait for another run's lock on the output folder. */
+  lockWaitMs?: number;
 }
 
 export type BuildResult =
@@ -44,9 +48,9 @@ export function buildImages(request: BuildRequest): BuildResult {
   const files: OutputSpec[] = plan.files.map((f) =>
     f.kind === 'image'
       ? { name: f.name, format: f.format, store: f.store, chip: f.chip, image: f.image, options: f.options }
-      : { name: f.name, format: f.format, store: f.store, bytes: Buffer.from(f.text, 'utf8') },
+      : { name: f.name, format: f.format, store: f.store, chunks: f.chunks },
   );
-  const report = writeOutputSet({ folder: request.outDir, sourceFile: basename(request.sourcePath), version: VERSION, files });
+  const report = writeOutputSet({ folder: request.outDir, command: 'build', sourceFile: basename(request.sourcePath), version: VERSION, files, progress: request.progress, lockWaitMs: request.lockWaitMs });
   return { ok: true, forced: errors > 0, errors, stores: plan.stores, report };
 }
 
@@ -66,7 +70,11 @@ export function describeBuild(result: Extract<BuildResult, { ok: true }>, outDir
     const sum = f.entry.sum16 ? `sum ${f.entry.sum16}` : '';
     lines.push(`  ${f.entry.name.padEnd(width)}  ${String(f.sizeBytes).padStart(7)} bytes  ${sum.padEnd(8)}  sha256 ${f.sha256.slice(0, 16)}`);
   }
-  for (const r of result.report.removed) lines.push(`  removed ${r} (an earlier build made it; this one does not)`);
+  const left = result.report.leftInPlace;
+  if (left.length) {
+    lines.push(`left in place: ${left.length} file${left.length > 1 ? 's' : ''} an earlier build of this table made and this one does not (Phasewright deletes nothing; remove ${left.length > 1 ? 'them' : 'it'} if no longer needed):`);
+    for (const name of left) lines.push(`  ${name}`);
+  }
   for (const w of result.report.warnings) lines.push(`  note: ${w}`);
   lines.push(`manifest: ${outDir}/phasewright-manifest.json (sizes, SHA-256, 16-bit sums). "sum" is the 16-bit byte sum of the chip's data, as device programmers show it.`);
   lines.push('Caution: check every image against the chips\' data sheets before programming; a wrong image can enable two drivers onto one bus.');

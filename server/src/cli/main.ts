@@ -1,6 +1,7 @@
 // The `phasewright` command line: parses arguments, dispatches to a command module and
 // returns the exit code. Every command takes an Io so tests can run it in-process.
 import { runCommand } from './commands';
+import { commandLineArguments } from './fsPath';
 import { nodeIo } from './io';
 
 // A reader that stops early (`phasewright check ... | head`) closes the pipe: stop quietly.
@@ -11,7 +12,8 @@ for (const stream of [process.stdout, process.stderr]) {
   });
 }
 
-runCommand(process.argv.slice(2), nodeIo()).then(
+// File names on the command line that are not UTF-8 are kept exact (fsPath.ts).
+runCommand(commandLineArguments(), nodeIo()).then(
   (code) => {
     process.exitCode = code;
   },

@@ -18,6 +18,8 @@ export interface CommandContext {
   token: CancellationToken;
   /** The analysis of an open document by URI, or undefined when it is not open (or too large). */
   analysisOf(uri: string): Analysis | undefined;
+  /** The client's workspace folders as paths (none when the client opened single files). */
+  workspaceFolders?(): readonly string[];
 }
 
 export type CommandHandler = (args: unknown[], context: CommandContext) => unknown | Promise<unknown>;

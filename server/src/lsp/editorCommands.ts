@@ -6,7 +6,6 @@
 // come from outside and are checked; failures the user can act on come back as
 // `{ ok: false, reason }`, never as exceptions. It does not decide what the editor shows.
 import { basename } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import type { Analysis } from '../core/analysis';
 import { readSeverityTable } from '../core/checks/severitySettings';
 import { parseGuardChoice } from '../core/diagram/guardChoice';
@@ -15,6 +14,8 @@ import { timingDiagram } from '../core/diagram/timing';
 import { classAtOffset, findClass } from '../core/diagram/timingModel';
 import { buildFormats, planBuild, type BuildFormat } from '../core/encode/plan';
 import { buildImages, describeBuild } from '../cli/buildImages';
+import { pathFromFileUri } from '../cli/fsPath';
+import { outsideWorkspace } from './workspaceFolders';
 import { OutputError } from '../cli/output/safeWriter';
 import { ManifestError } from '../cli/output/manifest';
 import { type CommandContext, type CommandHandler, registerCommand } from './commands';
@@ -85,7 +86,7 @@ function analysisFor(args: Args, context: Pick<CommandContext, 'analysisOf'>): A
 
 function fileNameOf(uri: string): string {
   try {
-    return basename(uri.startsWith('file:') ? fileURLToPath(uri) : new URL(uri).pathname) || 'table.pwt';
+    return basename(pathFromFileUri(uri) ?? decodeURIComponent(new URL(uri).pathname)) || 'table.pwt';
   } catch {
     return 'table.pwt';
   }
@@ -95,14 +96,19 @@ function errorsOf(analysis: Analysis): number {
   return analysis.diagnostics.filter((d) => d.severity === 'error').length;
 }
 
-/** `phasewright.build {uri, outputFolder, formats?, force?, severity?}`: writes the images like `phasewright build`. */
-export function runBuild(args: unknown[], context: Pick<CommandContext, 'analysisOf'>): BuildAnswer | Refusal {
+/**
+ * `phasewright.build {uri, outputFolder, formats?, force?, severity?}`: writes the images like
+ * `phasewright build`, into a folder inside the workspace (workspaceFolders.ts).
+ */
+export function runBuild(args: unknown[], context: Pick<CommandContext, 'analysisOf' | 'workspaceFolders'>): BuildAnswer | Refusal {
   const a = firstArgument(args);
   if (isRefusal(a)) return a;
   const analysis = analysisFor(a, context);
   if (isRefusal(analysis)) return analysis;
   const folder = a.outputFolder;
   if (typeof folder !== 'string' || (!folder.startsWith('/') && !/^[A-Za-z]:[\\/]/.test(folder))) return { ok: false, reason: 'the output folder must be an absolute path' };
+  const outside = outsideWorkspace(folder, context.workspaceFolders?.() ?? [], pathFromFileUri(a.uri as string));
+  if (outside) return { ok: false, reason: outside };
   let formats: BuildFormat[] | undefined;
   if (a.formats !== undefined) {
     if (!Array.isArray(a.formats) || a.formats.some((f) => !buildFormats.includes(f as BuildFormat)) || a.formats.length === 0) {
@@ -139,9 +145,28 @@ export function runListing(args: unknown[], context: Pick<CommandContext, 'analy
   if (stores && !analysis.machine.stores.some((s) => s.name === stores[0])) return { ok: false, reason: `no store named '${stores[0]}'` };
   const plan = planBuild(analysis.machine, { stem: source.replace(/\.pwt$/i, ''), source, formats: ['list'], stores });
   if (plan.problems.length) return { ok: false, reason: `cannot lay out the control store: ${plan.problems.join('; ')}` };
-  const listings = plan.files.flatMap((f) => (f.kind === 'text' ? [{ store: f.store, name: f.name, text: f.text }] : []));
+  const listings = plan.files.flatMap((f) => (f.kind === 'text' ? [{ store: f.store, name: f.name, text: boundedText(f.chunks(), f.name) }] : []));
   if (listings.length === 0) return { ok: false, reason: 'the file declares no store to list (a `word` and an `address` layout)' };
   return { ok: true, listings, errors: errorsOf(analysis) };
+}
+
+/** Most characters of listing text one answer carries per store (a 24-line store lists gigabytes). */
+export const maxListingChars = 8 * 1024 * 1024;
+
+/** The first `maxListingChars` of a listing, whole lines, and a last line saying where the rest is. */
+function boundedText(chunks: Iterable<string>, name: string): string {
+  let text = '';
+  for (const chunk of chunks) {
+    if (text.length + chunk.length <= maxListingChars) {
+      text += chunk;
+      continue;
+    }
+    const room = chunk.slice(0, maxListingChars - text.length);
+    text += room.slice(0, room.lastIndexOf('\n') + 1);
+    // Stopping the generator here ends the walk: the rest is never made.
+    return `${text}# ... the listing goes on; the editor shows its first ${maxListingChars / 1024 / 1024} MB. Build the images (with the listing format) for all of ${name}.\n`;
+  }
+  return text;
 }
 
 /**

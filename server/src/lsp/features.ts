@@ -82,7 +82,7 @@ function toLspEdits(analysis: Analysis, edits: readonly CoreEdit[]): TextEdit[] 
   return edits.map((e) => ({ range: toRange(analysis.lines, e.span), newText: e.newText }));
 }
 
-export function registerFeatures(connection: Connection, store: DocumentStore, options: { testHooks: boolean }): void {
+export function registerFeatures(connection: Connection, store: DocumentStore, options: { testHooks: boolean; workspaceFolders?: () => readonly string[] }): void {
   const analysisOf = (uri: string) => store.analysisOf(uri);
 
   connection.onHover(
@@ -259,7 +259,7 @@ export function registerFeatures(connection: Connection, store: DocumentStore, o
   );
 
   connection.onExecuteCommand(
-    guarded(connection, 'executeCommand', () => null, (params, token) => executeCommand(params.command, params.arguments, { connection, token, analysisOf }) as Promise<null>),
+    guarded(connection, 'executeCommand', () => null, (params, token) => executeCommand(params.command, params.arguments, { connection, token, analysisOf, workspaceFolders: options.workspaceFolders }) as Promise<null>),
   );
 
   if (options.testHooks) {

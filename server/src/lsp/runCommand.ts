@@ -9,15 +9,16 @@
 // editor commands take an object) or `[uri, programPath]`. A relative program path is taken
 // from the table's folder. Failures the user can act on come back as `{ ok: false, reason }`.
 // It does not decide what the editor shows.
-import { readFileSync, statSync } from 'node:fs';
 import { dirname, isAbsolute, resolve, basename } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import type { Range } from 'vscode-languageserver';
 import { DEFAULT_MAX_STEPS, endingText, exitCodeOf, prepareRun } from '../core/sim/session';
 import type { RunEnding } from '../core/sim/lockstep';
 import { figuresOf, formatFigures } from '../core/sim/summary';
 import { type CommandContext, registerCommand } from './commands';
 import { toRange } from './convert';
+import { pathFromFileUri } from '../cli/fsPath';
+import { inputLimits, readInputFile } from '../cli/inputFile';
+import { readSource } from '../cli/readSource';
 
 export const runCommandId = 'phasewright.run';
 
@@ -42,7 +43,6 @@ export interface RunAnswer {
 
 /** Most output characters returned per stream; the editor shows output, it does not archive it. */
 const MAX_OUTPUT_CHARS = 256 * 1024;
-const MAX_PROGRAM_BYTES = 256 * 1024 * 1024;
 const CHUNK_STEPS = 1_000_000;
 
 interface RunArguments {
@@ -71,39 +71,26 @@ function readArguments(args: unknown[]): RunArguments | Refusal {
 }
 
 function filePathOf(uri: string): string | undefined {
-  try {
-    return uri.startsWith('file:') ? fileURLToPath(uri) : undefined;
-  } catch {
-    return undefined;
-  }
+  return pathFromFileUri(uri);
 }
 
 function isRefusal(value: unknown): value is Refusal {
   return typeof value === 'object' && value !== null && (value as Refusal).ok === false;
 }
 
-/** The table's text: the open document's, else the file's on disk. */
+/** The table's text: the open document's, else the file's on disk (through the common reader). */
 function tableText(uri: string, context: Pick<CommandContext, 'analysisOf'>): string | Refusal {
   const open = context.analysisOf(uri);
   if (open) return open.text;
   const path = filePathOf(uri);
   if (!path) return { ok: false, reason: 'the table is not open in the editor and its uri is not a file' };
-  try {
-    return readFileSync(path, 'utf8');
-  } catch (err) {
-    return { ok: false, reason: `cannot read ${path}: ${(err as Error).message}` };
-  }
+  const source = readSource(path);
+  return source.ok ? source.text : { ok: false, reason: `cannot read the table: ${source.reason}` };
 }
 
 function readProgram(path: string): Uint8Array | Refusal {
-  try {
-    const stat = statSync(path);
-    if (!stat.isFile()) return { ok: false, reason: `${path} is not a file` };
-    if (stat.size > MAX_PROGRAM_BYTES) return { ok: false, reason: `${path} is larger than ${MAX_PROGRAM_BYTES / 1024 / 1024} MB` };
-    return new Uint8Array(readFileSync(path));
-  } catch (err) {
-    return { ok: false, reason: `cannot read the program ${path}: ${(err as Error).message}` };
-  }
+  const read = readInputFile(path, inputLimits.program);
+  return read.ok ? read.bytes : { ok: false, reason: `cannot read the program: ${read.reason}` };
 }
 
 function clip(text: string): { text: string; clipped: boolean } {

@@ -1,13 +1,20 @@
 // The Phasewright language server: the connection (stdio or Node IPC), its capabilities,
 // document sync, settings and diagnostics, and the feature handlers. It never exits on bad
 // input: handlers run in a guard, notifications are wrapped, and stray exceptions are logged.
-// It exits when the client sends `exit` (code 0 after `shutdown`) or its input closes.
+// It exits when the client sends `exit` (code 0 after `shutdown`) or its input closes. Over
+// stdio it also exits, with code 1 after saying why (to the client's log and to stderr), when
+// the client's byte stream breaks: a header without a usable Content-Length, a body that is
+// not the JSON its length announced, or a message left unfinished for `stallMillis`. Nothing
+// after such a break can be trusted to start where a message starts, and a server that waits
+// in silence leaves the client waiting too; exiting lets the client restart it.
 import {
   type ClientCapabilities,
   type Connection,
   DidChangeConfigurationNotification,
   type InitializeResult,
   ProposedFeatures,
+  StreamMessageReader,
+  StreamMessageWriter,
   TextDocumentSyncKind,
   createConnection,
 } from 'vscode-languageserver/node';
@@ -19,6 +26,7 @@ import { registerRunCommand } from './runCommand';
 import { registerFeatures, semanticTokensLegend } from './features';
 import { describeError, guardedNotification } from './guard';
 import { type ServerSettings, defaultSettings, readSettings } from './settings';
+import { WorkspaceFolders } from './workspaceFolders';
 
 export const transportFlags = ['--stdio', '--node-ipc', '--socket', '--pipe'];
 
@@ -32,12 +40,51 @@ export interface ServerOptions {
   debounceMillis?: number;
   /** Enables the test-only request `phasewright/_testThrow` and command `phasewright._testEcho`. */
   testHooks?: boolean;
+  /** How long a message may stay unfinished on stdio before the server gives up (30 s). */
+  stallMillis?: number;
+}
+
+/**
+ * The connection over stdio with the stream watched for breaks (see the module comment), or
+ * the library's own choice of transport from the command line for the others (Node IPC carries
+ * whole messages, so it cannot lose its framing).
+ */
+function openConnection(stallMillis: number): Connection {
+  if (!process.argv.includes('--stdio')) return createConnection(ProposedFeatures.all);
+  const reader = new StreamMessageReader(process.stdin);
+  const writer = new StreamMessageWriter(process.stdout);
+  const connection = createConnection(ProposedFeatures.all, reader, writer);
+  let shutdownReceived = false;
+  connection.onShutdown(() => {
+    shutdownReceived = true;
+  });
+  let failing = false;
+  const giveUp = (why: string) => {
+    if (failing) return;
+    failing = true;
+    const message = `phasewright language server: ${why}; the message stream cannot be followed any further, so the server exits (code 1) for the client to restart it`;
+    process.stderr.write(`${message}\n`);
+    try {
+      connection.console.error(message);
+    } catch {
+      // The output may be broken too; stderr has the message.
+    }
+    // Give the log message a moment to leave before the process ends.
+    setTimeout(() => process.exit(1), 100);
+  };
+  reader.onError((error) => giveUp(`the client sent a message the server cannot read (${error.message.split('\n')[0]})`));
+  reader.partialMessageTimeout = stallMillis;
+  reader.onPartialMessage((info) => giveUp(`the client started a message and sent no more of it for ${Math.round(info.waitingTime / 1000)} s (is its Content-Length larger than the message?)`));
+  reader.onClose(() => process.exit(shutdownReceived ? 0 : 1));
+  return connection;
 }
 
 /** Starts the server on the transport named on the command line. */
 export function startServer(options: ServerOptions = {}): Connection {
   const testHooks = options.testHooks ?? process.env.PHASEWRIGHT_TEST_HOOKS === '1';
-  const connection = createConnection(ProposedFeatures.all);
+  // Tests shorten the stall limit; nothing else may change it.
+  const testStall = testHooks ? Number(process.env.PHASEWRIGHT_TEST_STALL_MS) : NaN;
+  const connection = openConnection(options.stallMillis ?? (Number.isFinite(testStall) && testStall > 0 ? testStall : 30_000));
   // Nothing may bring the process down but `exit`: log what escapes the handlers.
   process.on('uncaughtException', (err) => connection.console.error(`phasewright: unexpected error (please report it): ${describeError(err)}`));
   process.on('unhandledRejection', (err) => connection.console.error(`phasewright: unexpected error (please report it): ${describeError(err)}`));
@@ -72,8 +119,10 @@ export function startServer(options: ServerOptions = {}): Connection {
     }
   };
 
+  const workspaceFolders = new WorkspaceFolders();
   connection.onInitialize((params): InitializeResult => {
     capabilities = params.capabilities ?? {};
+    workspaceFolders.initialize(params);
     return {
       capabilities: {
         textDocumentSync: { openClose: true, change: TextDocumentSyncKind.Incremental },
@@ -91,6 +140,7 @@ export function startServer(options: ServerOptions = {}): Connection {
         inlayHintProvider: true,
         codeLensProvider: { resolveProvider: false },
         executeCommandProvider: { commands: commandIds() },
+        workspace: { workspaceFolders: { supported: true, changeNotifications: true } },
       },
       serverInfo: { name: 'phasewright', version: '0.1.0' },
     };
@@ -127,7 +177,11 @@ export function startServer(options: ServerOptions = {}): Connection {
     publisher.closed(event.document.uri);
   });
 
-  registerFeatures(connection, store, { testHooks });
+  connection.onNotification(
+    'workspace/didChangeWorkspaceFolders',
+    guardedNotification(connection, 'didChangeWorkspaceFolders', (params: { event: Parameters<WorkspaceFolders['change']>[0] }) => workspaceFolders.change(params.event)),
+  );
+  registerFeatures(connection, store, { testHooks, workspaceFolders: () => workspaceFolders.list() });
   store.documents.listen(connection);
   connection.listen();
   return connection;

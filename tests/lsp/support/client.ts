@@ -5,6 +5,7 @@
 import { type ChildProcess, execFileSync, spawn } from 'node:child_process';
 import { existsSync, mkdirSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import {
   ConfigurationRequest,
   DidChangeConfigurationNotification,
@@ -76,6 +77,8 @@ export interface StartOptions {
   configuration?: boolean;
   /** Options for the server's Node process, e.g. `--expose-gc`. */
   nodeArgs?: string[];
+  /** Workspace folders (paths) the client says it has open. */
+  workspaceFolders?: string[];
 }
 
 export class LspClient {
@@ -118,6 +121,7 @@ export class LspClient {
     client.initializeResult = await connection.sendRequest('initialize', {
       processId: process.pid,
       rootUri: null,
+      workspaceFolders: options.workspaceFolders?.map((folder) => ({ uri: pathToFileURL(folder).href, name: folder })) ?? null,
       capabilities: {
         workspace: { configuration: options.configuration ?? true, didChangeConfiguration: { dynamicRegistration: true } },
         textDocument: { publishDiagnostics: { versionSupport: true } },

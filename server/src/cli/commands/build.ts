@@ -10,6 +10,7 @@ import { readSource } from '../readSource';
 import { buildFormats, type BuildFormat } from '../../core/encode/plan';
 import { OutputError } from '../output/safeWriter';
 import { ManifestError } from '../output/manifest';
+import { progressLine } from '../progress';
 
 export const buildCommand = defineCommand({
   name: 'build',
@@ -50,14 +51,15 @@ export const buildCommand = defineCommand({
       io.err(`phasewright build: ${config.reason}\n`);
       return 2;
     }
-    const source = readSource(resolve(io.cwd, file));
+    const source = readSource(resolve(io.cwd, file), undefined, file);
     if (!source.ok) {
-      io.err(`phasewright build: ${source.reason.replace(resolve(io.cwd, file), file)}\n`);
+      io.err(`phasewright build: ${source.reason}\n`);
       return 2;
     }
     const outOption = parsed.options.get('out');
     const outDir = typeof outOption === 'string' ? outOption : 'out';
     const store = parsed.options.get('store');
+    const progress = progressLine(io, 'build');
     try {
       const result = buildImages({
         text: source.text,
@@ -67,7 +69,9 @@ export const buildCommand = defineCommand({
         stores: typeof store === 'string' ? [store] : undefined,
         force: parsed.options.has('force'),
         severities: config.severities,
+        progress: (done, total, detail) => progress.update(done, total, detail),
       });
+      progress.finish();
       if (!result.ok) {
         io.err(`phasewright build: ${result.reason}\n`);
         return result.lookup ? 2 : 1;
@@ -75,6 +79,7 @@ export const buildCommand = defineCommand({
       io.out(describeBuild(result, outDir));
       return 0;
     } catch (err) {
+      progress.finish();
       if (err instanceof OutputError || err instanceof ManifestError) {
         io.err(`phasewright build: ${err.message}\n`);
         return 1;

@@ -5,7 +5,6 @@
 // back and checked against the truth table before it is reported. Exit 0 when everything
 // fits, 1 when an output cannot fit (nothing is written) or the table has errors, 2 on usage.
 import { basename, extname, resolve } from 'node:path';
-import { readFileSync } from 'node:fs';
 import { analyse, errorCount } from '../../core/analysis';
 import { encodeMachine } from '../../core/encode/encoder';
 import { storeTruthTable } from '../../core/encode/storeTable';
@@ -13,7 +12,9 @@ import { buildGalImage, checkGalImage, equationsText, fitDevices, minimise, veri
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { readJsonFile, readSource } from '../readSource';
-import { writeOutputSet, ManifestError } from '../output/manifest';
+import { readInputFile } from '../inputFile';
+import { ManifestError } from '../output/manifest';
+import { writeOutputSet } from '../output/outputSet';
 import { OutputError } from '../output/safeWriter';
 import { VERSION } from '../version';
 
@@ -126,6 +127,7 @@ export const fitCommand = defineCommand({
     try {
       const report = writeOutputSet({
         folder: resolve(io.cwd, outDir),
+        command: 'fit',
         sourceFile: basename(file),
         version: VERSION,
         files: [
@@ -136,8 +138,9 @@ export const fitCommand = defineCommand({
       });
       // Read each fuse map back from disk and check it against the truth table once more.
       for (const [i, { device: d }] of images.entries()) {
-        const onDisk = readFileSync(report.files[i].absolutePath, 'latin1');
-        const check = checkGalImage(table, d, onDisk);
+        const read = readInputFile(report.files[i].absolutePath, { maxBytes: report.files[i].sizeBytes, what: 'fuse maps', give: 'a file' }, report.files[i].displayPath);
+        if (!read.ok) throw new OutputError(report.files[i].displayPath, `the written fuse map cannot be read back: ${read.reason}`);
+        const check = checkGalImage(table, d, read.bytes.toString('latin1'));
         if (!check.ok) throw new OutputError(report.files[i].displayPath, `the written fuse map does not match the table: ${check.message}`);
       }
       lines.push(`fits ${fit.devices.length} ${device} device${fit.devices.length > 1 ? 's' : ''} (${fit.devices[0].mode} mode):`);

@@ -11,7 +11,7 @@
 //
 // The program's output bytes are passed on as UTF-8 text (the CLI's output channel carries
 // text): ASCII and valid UTF-8 come out unchanged, other bytes as U+FFFD.
-import { mkdirSync, readFileSync, statSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
 import { basename, dirname, resolve } from 'node:path';
 import { parseNumber } from '../../core/model/numbers';
 import { figuresOf, formatFigures } from '../../core/sim/summary';
@@ -34,26 +34,15 @@ import { loadSeverityConfig } from '../config';
 import { defineCommand } from '../help';
 import { progressLine } from '../progress';
 import { OutputError, writeFileSafely } from '../output/safeWriter';
+import { fsPath } from '../fsPath';
+import { inputLimits, readInputFile } from '../inputFile';
 import { describeFsError, readSource } from '../readSource';
 import { VERSION } from '../version';
 
-/** Largest program file accepted (the ELF loader's own limit on loaded bytes is the same). */
-const MAX_PROGRAM_BYTES = 256 * 1024 * 1024;
 /** Steps dumped into a trace by default; about 200 bytes each on the demo machine. */
 export const DEFAULT_TRACE_STEPS = 100_000;
 /** Steps between output flushes. */
 const CHUNK_STEPS = 4_000_000;
-
-function readProgram(path: string, shown: string): { ok: true; bytes: Uint8Array } | { ok: false; reason: string } {
-  try {
-    const stat = statSync(path);
-    if (stat.isDirectory()) return { ok: false, reason: `${shown} is a directory; give an ELF file or a raw binary image` };
-    if (stat.size > MAX_PROGRAM_BYTES) return { ok: false, reason: `${shown} is ${(stat.size / 1024 / 1024).toFixed(0)} MB; programs larger than ${MAX_PROGRAM_BYTES / 1024 / 1024} MB are refused` };
-    return { ok: true, bytes: new Uint8Array(readFileSync(path)) };
-  } catch (err) {
-    return { ok: false, reason: describeFsError(shown, err) };
-  }
-}
 
 function positiveNumber(text: string | true | undefined, name: string, fallback: number): number | string {
   if (text === undefined) return fallback;
@@ -118,12 +107,13 @@ export const runCommand = defineCommand({
       io.err(`phasewright run: ${config.reason}\n`);
       return EXIT_REFUSED;
     }
-    const source = readSource(resolve(io.cwd, file));
+    const source = readSource(resolve(io.cwd, file), undefined, file);
     if (!source.ok) {
-      io.err(`phasewright run: ${source.reason.replace(resolve(io.cwd, file), file)}\n`);
+      io.err(`phasewright run: ${source.reason}\n`);
       return EXIT_REFUSED;
     }
-    const program = readProgram(resolve(io.cwd, programFile), programFile);
+    // The ELF loader's own limit on loaded bytes is the same as the reader's on programs.
+    const program = readInputFile(resolve(io.cwd, programFile), inputLimits.program, programFile);
     if (!program.ok) {
       io.err(`phasewright run: ${program.reason}\n`);
       return EXIT_REFUSED;
@@ -192,7 +182,7 @@ export const runCommand = defineCommand({
     if (trace) {
       const path = resolve(io.cwd, traceOption as string);
       try {
-        mkdirSync(dirname(path), { recursive: true });
+        mkdirSync(fsPath(dirname(path)), { recursive: true });
         const written = writeFileSafely(dirname(path), { name: basename(path), bytes: Buffer.from(trace.text(), 'latin1') });
         lines.push(`trace: ${traceOption} (${trace.steps} steps${trace.truncated ? `, the first ${traceSteps} only; raise --trace-steps for more` : ''}, ${written.sizeBytes} bytes)`);
       } catch (err) {

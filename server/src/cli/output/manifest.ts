@@ -1,34 +1,19 @@
-// The output manifest (`phasewright-manifest.json`) and the one entry point a build uses to
-// put a set of files into an output folder. The manifest lists the files Phasewright wrote
-// there, which is what lets a later build replace them: a file the previous manifest does not
-// list is never overwritten. Files are written atomically through the safe writer and the
-// complete manifest is written last. This module does not encode images itself beyond calling
-// the core's format table; it decides what may be replaced and records what was written.
+// The output manifest (`phasewright-manifest.json`): what Phasewright wrote into an output
+// folder, file by file, with the command and the source file that made each one, so the
+// outputs of different commands (`build`, `fit`) and tables live side by side in one folder
+// and a later run replaces only what is listed. Its format, its checks when read back (a
+// damaged or foreign manifest is a ManifestError, never a crash and never ignored) and its
+// reading through the common reader are here; writing a set of files under it is
+// outputSet.ts.
 import * as path from 'node:path';
-import {
-  checksumHex,
-  imageCrc32,
-  imageFormats,
-  imageSum16,
-  verifyReadBack,
-  ImageFormatError,
-  type ChipImage,
-  type ImageFormatName,
-  type ImageWriteOptions,
-} from '../../core/encode/formats/index';
-import {
-  OutputError,
-  checkOutputName,
-  nodeFileSystem,
-  resolveOutputTarget,
-  sha256Hex,
-  writeFileSafely,
-  type FileSystemOps,
-  type WrittenFileReport,
-} from './safeWriter';
+import { isImageFormatName } from '../../core/encode/formats/index';
+import { inputLimits, readInputFile } from '../inputFile';
+import { OutputError, checkOutputName, nodeFileSystem, resolveOutputTarget, type FileSystemOps } from './safeWriter';
 
 export const manifestFileName = 'phasewright-manifest.json';
 export const manifestGenerator = 'phasewright';
+/** 2: each entry names its command and source (1 had one source for the whole folder). */
+export const manifestLayout = 2;
 
 /** Put in every manifest: a wrong control-store image can make parts fight over a bus. */
 export const manifestCaution =
@@ -38,8 +23,12 @@ export const manifestCaution =
 export interface ManifestEntry {
   /** Path relative to the output folder. */
   name: string;
-  /** 'ihex', 'srec', 'bin', 'memh', or another tool's format name for non-image files. */
+  /** 'ihex', 'srec', 'bin', 'memh', 'list', or another tool's format name for non-image files. */
   format: string;
+  /** The command that wrote it: 'build' or 'fit'. */
+  command: string;
+  /** The source file it was made from, by name. */
+  source: string;
   store?: string;
   /** Chip index within the store; chip 0 holds the least significant bits of the word. */
   chip?: number;
@@ -57,15 +46,19 @@ export interface ManifestEntry {
   sum16: string | null;
   /** CRC-32 (IEEE 802.3) of the chip's bytes for images, 8 uppercase hex digits. */
   crc32?: string;
+  /**
+   * True when the latest run of its command on its source no longer makes it: left in place
+   * (Phasewright deletes nothing), still listed so that a later run may replace it.
+   */
+  stale?: true;
 }
 
 export interface Manifest {
   generator: typeof manifestGenerator;
+  layout: typeof manifestLayout;
   version: string;
-  /** ISO 8601 time the build wrote the manifest. */
+  /** ISO 8601 time the last run wrote the manifest. */
   createdAt: string;
-  /** Name of the source file the outputs were built from. */
-  source: string;
   /** False in the provisional manifest written before the files, true once all are written. */
   complete: boolean;
   caution: string;
@@ -107,7 +100,12 @@ export function parseManifest(text: string, displayPath: string): Manifest {
   if (data.generator !== manifestGenerator) {
     return fail(`it was not written by Phasewright (generator is ${JSON.stringify(data.generator) ?? 'missing'})`);
   }
-  for (const key of ['version', 'createdAt', 'source', 'caution'] as const) {
+  const layout = data.layout ?? 1;
+  if (layout !== 1 && layout !== manifestLayout) fail(`its layout ${JSON.stringify(layout)} is newer than this Phasewright understands (${manifestLayout})`);
+  // Layout 1 named one source for the whole folder; its entries take it, and the command
+  // that writes their format.
+  const keys = layout === 1 ? (['version', 'createdAt', 'source', 'caution'] as const) : (['version', 'createdAt', 'caution'] as const);
+  for (const key of keys) {
     if (typeof data[key] !== 'string') fail(`the field "${key}" is missing or not text`);
   }
   if (typeof data.complete !== 'boolean') fail('the field "complete" is missing or not true/false');
@@ -124,6 +122,10 @@ export function parseManifest(text: string, displayPath: string): Manifest {
     if (seen.has(item.name)) fail(`${where}.name "${item.name}" is listed twice`);
     seen.add(item.name);
     if (typeof item.format !== 'string') fail(`${where}.format is missing or not text`);
+    if (layout !== 1) {
+      if (typeof item.command !== 'string') fail(`${where}.command is missing or not text`);
+      if (typeof item.source !== 'string') fail(`${where}.source is missing or not text`);
+    }
     const nullable = (key: string, valid: (value: unknown) => boolean, what: string): void => {
       if (item[key] !== null && !valid(item[key])) fail(`${where}.${key} must be ${what} or null`);
     };
@@ -138,12 +140,16 @@ export function parseManifest(text: string, displayPath: string): Manifest {
     optional('widthBits', (value) => Number.isInteger(value), 'a whole number');
     optional('words', (value) => Number.isInteger(value), 'a whole number');
     optional('crc32', (value) => typeof value === 'string' && /^[0-9A-F]{8}$/.test(value), '8 uppercase hex digits');
+    optional('stale', (value) => value === true, 'true');
     if (data.complete === true && (item.sha256 === null || item.size === null || item.sum16 === null)) {
       fail(`${where} has no size, sha256 or sum16 although the manifest says the build completed`);
     }
+    const format = item.format as string;
     const entry: ManifestEntry = {
       name: item.name,
-      format: item.format as string,
+      format,
+      command: layout === 1 ? (format === 'list' || isImageFormatName(format) ? 'build' : 'fit') : (item.command as string),
+      source: layout === 1 ? (data.source as string) : (item.source as string),
       size: item.size as number | null,
       sha256: item.sha256 as string | null,
       sum16: item.sum16 as string | null,
@@ -153,13 +159,14 @@ export function parseManifest(text: string, displayPath: string): Manifest {
     if (item.widthBits !== undefined) entry.widthBits = item.widthBits as number;
     if (item.words !== undefined) entry.words = item.words as number;
     if (item.crc32 !== undefined) entry.crc32 = item.crc32 as string;
+    if (item.stale === true) entry.stale = true;
     files.push(entry);
   });
   return {
     generator: manifestGenerator,
+    layout: manifestLayout,
     version: data.version as string,
     createdAt: data.createdAt as string,
-    source: data.source as string,
     complete: data.complete as boolean,
     caution: data.caution as string,
     files,
@@ -180,230 +187,19 @@ export function readManifest(folder: string, fs: FileSystemOps = nodeFileSystem)
     throw error;
   }
   if (!target.exists) return null;
-  let bytes: Uint8Array;
-  try {
-    bytes = fs.readFileSync(target.absolutePath);
-  } catch (error) {
-    throw new ManifestError(displayPath, `it cannot be read (${error instanceof Error ? error.message : String(error)})`);
-  }
-  return parseManifest(Buffer.from(bytes).toString('utf8'), displayPath);
+  const read = readInputFile(target.absolutePath, inputLimits.manifest, displayPath, fs);
+  if (!read.ok) throw new ManifestError(displayPath, `it cannot be read (${read.reason})`);
+  return parseManifest(read.bytes.toString('utf8'), displayPath);
 }
 
-/** A control-store image to be written in one format. */
-export interface ImageOutputSpec {
-  name: string;
-  format: ImageFormatName;
-  store: string;
-  chip: number;
-  image: ChipImage;
-  options?: ImageWriteOptions;
-}
-
-/** Any other file (e.g. a fuse map) that should go through the same safe path and manifest. */
-export interface PlainOutputSpec {
-  name: string;
-  format: string;
-  bytes: Uint8Array;
-  store?: string;
-  chip?: number;
-  /** The checksum a device programmer shows for this content; the file's byte sum if omitted. */
-  sum16?: number;
-}
-
-export type OutputSpec = ImageOutputSpec | PlainOutputSpec;
-
-export interface OutputSetRequest {
-  /** The output folder as the user gave it; created if missing. */
-  folder: string;
-  /** The source file's name as it should appear in the manifest. */
-  sourceFile: string;
-  /** Phasewright's version, recorded in the manifest. */
-  version: string;
-  files: readonly OutputSpec[];
-  /** The clock, for tests. */
-  now?: () => Date;
-  fs?: FileSystemOps;
-}
-
-export interface OutputSetReport {
-  /** One per requested file, in request order. */
-  files: (WrittenFileReport & { entry: ManifestEntry })[];
-  manifest: WrittenFileReport;
-  /** Files an earlier build wrote, unchanged since, that this build no longer makes: deleted. */
-  removed: string[];
-  /** Plain sentences worth showing the user (e.g. a leftover file that was kept). */
-  warnings: string[];
-}
-
-interface PreparedFile {
-  name: string;
-  bytes: Uint8Array;
-  entry: Omit<ManifestEntry, 'size' | 'sha256'>;
-}
-
-function prepare(folder: string, spec: OutputSpec): PreparedFile {
-  const displayPath = path.join(folder, spec.name);
-  if ('image' in spec) {
-    const format = imageFormats[spec.format];
-    if (!format) throw new OutputError(displayPath, `unknown image format "${String(spec.format)}"`);
-    let bytes: Uint8Array;
-    try {
-      bytes = format.write(spec.image, spec.options);
-    } catch (error) {
-      if (error instanceof ImageFormatError) throw new OutputError(displayPath, error.message);
-      throw error;
-    }
-    const check = verifyReadBack(spec.format, bytes, spec.image);
-    if (!check.ok) {
-      throw new OutputError(displayPath, `internal check failed, nothing was written: ${check.error.message}`);
-    }
-    return {
-      name: spec.name,
-      bytes,
-      entry: {
-        name: spec.name,
-        format: spec.format,
-        store: spec.store,
-        chip: spec.chip,
-        widthBits: spec.image.widthBits,
-        words: spec.image.words.length,
-        sum16: checksumHex(imageSum16(spec.image), 4),
-        crc32: checksumHex(imageCrc32(spec.image), 8),
-      },
-    };
-  }
-  const entry: Omit<ManifestEntry, 'size' | 'sha256'> = { name: spec.name, format: spec.format, sum16: null };
-  if (spec.store !== undefined) entry.store = spec.store;
-  if (spec.chip !== undefined) entry.chip = spec.chip;
-  if (spec.sum16 !== undefined) entry.sum16 = checksumHex(spec.sum16, 4);
-  return { name: spec.name, bytes: spec.bytes, entry };
-}
-
-function manifestBytes(manifest: Manifest): Uint8Array {
+/** The manifest's bytes as written: JSON with two-space indents and a final newline. */
+export function manifestBytes(manifest: Manifest): Uint8Array {
   return Buffer.from(`${JSON.stringify(manifest, null, 2)}\n`, 'utf8');
 }
 
-/**
- * Writes a build's files into `request.folder`:
- * 1. checks every name and refuses (before writing anything) to replace a file the previous
- *    manifest does not list, or to use a folder whose manifest is unreadable;
- * 2. encodes images and reads each encoding back through its own reader;
- * 3. writes a provisional manifest listing old and new names, so an interrupted build never
- *    leaves behind a file of ours that a later build would refuse to replace;
- * 4. writes each file atomically with read-back;
- * 5. deletes files an earlier build wrote that this one no longer makes, if unchanged since;
- * 6. writes the complete manifest, atomically, last.
- * Throws OutputError or ManifestError with a message ready to print.
- */
-export function writeOutputSet(request: OutputSetRequest): OutputSetReport {
-  const fs = request.fs ?? nodeFileSystem;
-  const folder = request.folder;
-  const now = request.now ?? (() => new Date());
-  const safe = { fs };
-
-  const seenNames = new Map<string, string>();
-  for (const spec of request.files) {
-    const displayPath = path.join(folder, spec.name);
-    const checked = checkOutputName(spec.name);
-    if (!checked.ok) throw new OutputError(displayPath, checked.reason);
-    const key = spec.name.toLowerCase();
-    if (key === manifestFileName) throw new OutputError(displayPath, 'that name is reserved for the output manifest');
-    const clash = seenNames.get(key);
-    if (clash !== undefined) {
-      throw new OutputError(displayPath, `the build produces both ${clash} and ${spec.name}, which are the same file on some systems`);
-    }
-    seenNames.set(key, spec.name);
-  }
-
-  try {
-    const stats = fs.lstatSync(folder);
-    if (!stats.isDirectory() && !(stats.isSymbolicLink() && isDirectory(fs, folder))) {
-      throw new OutputError(folder, 'a file has that name; the output folder must be a folder', 'use');
-    }
-  } catch (error) {
-    if (error instanceof OutputError) throw error;
-    if ((error as { code?: unknown })?.code !== 'ENOENT') {
-      throw new OutputError(folder, error instanceof Error ? error.message : String(error), 'use');
-    }
-    try {
-      fs.mkdirSync(folder, true);
-    } catch (mkdirError) {
-      throw new OutputError(folder, `the output folder cannot be created (${mkdirError instanceof Error ? mkdirError.message : String(mkdirError)})`, 'create');
-    }
-  }
-
-  const previous = readManifest(folder, fs);
-  const previouslyListed = new Map((previous?.files ?? []).map((entry) => [entry.name, entry]));
-
-  // Refuse before writing anything: one unlisted file anywhere stops the whole build.
-  for (const spec of request.files) {
-    const target = resolveOutputTarget(folder, spec.name, { fs, createFolders: false });
-    if (target.exists && !previouslyListed.has(spec.name)) {
-      throw new OutputError(
-        target.displayPath,
-        `a file with this name is already in the output folder and Phasewright did not write it (${manifestFileName} ` +
-          'does not list it); move it elsewhere or choose another output folder',
-        'replace',
-      );
-    }
-  }
-
-  const prepared = request.files.map((spec) => prepare(folder, spec));
-  const header = (complete: boolean) =>
-    ({
-      generator: manifestGenerator,
-      version: request.version,
-      createdAt: now().toISOString(),
-      source: request.sourceFile,
-      complete,
-      caution: manifestCaution,
-    }) as const;
-
-  const provisional: Manifest = {
-    ...header(false),
-    files: [
-      ...(previous?.files ?? []),
-      ...prepared
-        .filter((file) => !previouslyListed.has(file.name))
-        .map((file) => orderedEntry({ ...file.entry, size: null, sha256: null, sum16: null })),
-    ],
-  };
-  writeFileSafely(folder, { name: manifestFileName, bytes: manifestBytes(provisional) }, safe);
-
-  const written = prepared.map((file) => {
-    const report = writeFileSafely(folder, { name: file.name, bytes: file.bytes }, safe);
-    const entry = orderedEntry({
-      ...file.entry,
-      size: report.sizeBytes,
-      sha256: report.sha256,
-      sum16: file.entry.sum16 ?? checksumHex(report.sum16, 4),
-    });
-    return { ...report, entry };
-  });
-
-  const removed: string[] = [];
-  const warnings: string[] = [];
-  const producedNames = new Set(prepared.map((file) => file.name));
-  for (const old of previous?.files ?? []) {
-    if (producedNames.has(old.name)) continue;
-    const outcome = removeIfUnchanged(folder, old, fs);
-    if (outcome === 'removed') removed.push(old.name);
-    if (outcome === 'kept') {
-      warnings.push(
-        `${path.join(folder, old.name)} is left from an earlier build and was changed since (or that build did not finish); ` +
-          'it was kept, is no longer listed as written by Phasewright, and must not be mistaken for a current image',
-      );
-    }
-  }
-
-  const finalManifest: Manifest = { ...header(true), files: written.map((file) => file.entry) };
-  const manifest = writeFileSafely(folder, { name: manifestFileName, bytes: manifestBytes(finalManifest) }, safe);
-  return { files: written, manifest, removed, warnings };
-}
-
 /** The entry with its fields in reading order (JSON keeps insertion order). */
-function orderedEntry(entry: ManifestEntry): ManifestEntry {
-  const ordered: ManifestEntry = { name: entry.name, format: entry.format } as ManifestEntry;
+export function orderedEntry(entry: ManifestEntry): ManifestEntry {
+  const ordered = { name: entry.name, format: entry.format, command: entry.command, source: entry.source } as ManifestEntry;
   if (entry.store !== undefined) ordered.store = entry.store;
   if (entry.chip !== undefined) ordered.chip = entry.chip;
   if (entry.widthBits !== undefined) ordered.widthBits = entry.widthBits;
@@ -412,33 +208,7 @@ function orderedEntry(entry: ManifestEntry): ManifestEntry {
   ordered.sha256 = entry.sha256;
   ordered.sum16 = entry.sum16;
   if (entry.crc32 !== undefined) ordered.crc32 = entry.crc32;
+  if (entry.stale) ordered.stale = true;
   return ordered;
 }
 
-function isDirectory(fs: FileSystemOps, folder: string): boolean {
-  try {
-    return fs.lstatSync(fs.realpathSync(folder)).isDirectory();
-  } catch {
-    return false;
-  }
-}
-
-/** Deletes a file an earlier build listed if it still has the recorded SHA-256. */
-function removeIfUnchanged(folder: string, entry: ManifestEntry, fs: FileSystemOps): 'removed' | 'kept' | 'absent' {
-  let target;
-  try {
-    target = resolveOutputTarget(folder, entry.name, { fs, createFolders: false });
-  } catch {
-    return 'kept';
-  }
-  if (!target.exists) return 'absent';
-  try {
-    if (entry.sha256 !== null && sha256Hex(fs.readFileSync(target.absolutePath)) === entry.sha256) {
-      fs.unlinkSync(target.absolutePath);
-      return 'removed';
-    }
-  } catch {
-    // A file we cannot read or delete is simply kept and reported.
-  }
-  return 'kept';
-}

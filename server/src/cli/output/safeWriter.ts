@@ -1,41 +1,56 @@
 // Writes output files into an output folder without ever writing outside it or leaving a
 // half-written file behind: names are checked and resolved inside the folder (no `..`, no
 // absolute names, no symbolic link that leads out, no target that is itself a link); bytes go
-// to a uniquely named temporary file in the target's own directory, are flushed to disk and
-// read back, then renamed over the target (atomic on POSIX) and read back once more. It does
-// not decide which files may be replaced; the manifest layer does that before calling here.
+// to a temporary file with a short name of its own (never longer than a few characters, so a
+// long final name cannot fail on the temporary one), are flushed to disk and read back, then
+// renamed over the target (atomic on POSIX). Bytes may come as a whole or as a stream of
+// chunks, so a file far larger than memory (the listing of a 24-line store) is written with
+// memory for one chunk. Names that are not UTF-8 reach the file system exactly (fsPath.ts).
+// It does not decide which files may be replaced, nor in which order a set of files is
+// committed; outputSet.ts does that before and after calling here.
 import { createHash, randomBytes } from 'node:crypto';
 import * as nodeFs from 'node:fs';
 import * as path from 'node:path';
-import { sum16 } from '../../core/encode/formats/checksums';
+import { fsPath, nameFromBytes } from '../fsPath';
+import { refuseKind } from '../inputFile';
 
 /** The file-system calls the writer uses, so tests can inject failures. */
 export interface FileSystemOps {
-  openSync(path: string, flags: string, mode?: number): number;
+  openSync(path: string, flags: string | number, mode?: number): number;
   writeSync(fd: number, buffer: Uint8Array, offset: number, length: number): number;
+  readSync(fd: number, buffer: Uint8Array, offset: number, length: number, position: number | null): number;
+  fstatSync(fd: number): nodeFs.Stats;
   fsyncSync(fd: number): void;
   closeSync(fd: number): void;
   renameSync(from: string, to: string): void;
+  linkSync(existing: string, created: string): void;
   unlinkSync(path: string): void;
-  readFileSync(path: string): Uint8Array;
   lstatSync(path: string): nodeFs.Stats;
   realpathSync(path: string): string;
   mkdirSync(path: string, recursive?: boolean): void;
+  readdirSync(path: string): string[];
+  rmdirSync(path: string): void;
 }
 
 export const nodeFileSystem: FileSystemOps = {
-  openSync: (file, flags, mode) => nodeFs.openSync(file, flags, mode),
+  openSync: (file, flags, mode) => nodeFs.openSync(fsPath(file), flags, mode),
   writeSync: (fd, buffer, offset, length) => nodeFs.writeSync(fd, buffer, offset, length),
+  readSync: (fd, buffer, offset, length, position) => nodeFs.readSync(fd, buffer, offset, length, position),
+  fstatSync: (fd) => nodeFs.fstatSync(fd),
   fsyncSync: (fd) => nodeFs.fsyncSync(fd),
   closeSync: (fd) => nodeFs.closeSync(fd),
-  renameSync: (from, to) => nodeFs.renameSync(from, to),
-  unlinkSync: (file) => nodeFs.unlinkSync(file),
-  readFileSync: (file) => nodeFs.readFileSync(file),
-  lstatSync: (file) => nodeFs.lstatSync(file),
-  realpathSync: (file) => nodeFs.realpathSync(file),
+  renameSync: (from, to) => nodeFs.renameSync(fsPath(from), fsPath(to)),
+  linkSync: (existing, created) => nodeFs.linkSync(fsPath(existing), fsPath(created)),
+  unlinkSync: (file) => nodeFs.unlinkSync(fsPath(file)),
+  lstatSync: (file) => nodeFs.lstatSync(fsPath(file)),
+  // The native call, asked for bytes: the JavaScript one turns a Buffer path into a UTF-8
+  // string on the way and loses a name that is not UTF-8.
+  realpathSync: (file) => nameFromBytes(nodeFs.realpathSync.native(fsPath(file), { encoding: 'buffer' })),
   mkdirSync: (dir, recursive) => {
-    nodeFs.mkdirSync(dir, { recursive: recursive ?? false });
+    nodeFs.mkdirSync(fsPath(dir), { recursive: recursive ?? false });
   },
+  readdirSync: (dir) => nodeFs.readdirSync(fsPath(dir), { encoding: 'buffer' }).map((name) => nameFromBytes(name)),
+  rmdirSync: (dir) => nodeFs.rmdirSync(fsPath(dir)),
 };
 
 /**
@@ -57,7 +72,7 @@ export class OutputError extends Error {
 export interface OutputFileContent {
   /** Path relative to the output folder, with '/' between folder names. */
   name: string;
-  bytes: Uint8Array;
+  bytes: FileContent;
 }
 
 export interface WrittenFileReport {
@@ -112,7 +127,7 @@ function isInside(root: string, candidate: string): boolean {
   return relative === '' || (!relative.startsWith('..') && !path.isAbsolute(relative));
 }
 
-function describeError(error: unknown): string {
+export function describeError(error: unknown): string {
   if (error instanceof OutputError) return error.reason;
   const code = (error as { code?: unknown })?.code;
   const message = error instanceof Error ? error.message : String(error);
@@ -200,14 +215,125 @@ function lstatOrNull(fs: FileSystemOps, file: string, displayPath: string): node
   }
 }
 
-function sameBytes(a: Uint8Array, b: Uint8Array): boolean {
-  if (a.length !== b.length) return false;
-  for (let index = 0; index < a.length; index++) if (a[index] !== b[index]) return false;
-  return true;
-}
-
 export function sha256Hex(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
+}
+
+/** The content of a file to write: all of it, or chunks made one after another as it is written. */
+export type FileContent = Uint8Array | (() => Iterable<string | Uint8Array>);
+
+/** Size and checksums of bytes as they were written (and as they read back). */
+export interface ContentFigures {
+  sizeBytes: number;
+  sha256: string;
+  sum16: number;
+}
+
+/** A temporary file holding one output's bytes, flushed and read back, not yet renamed. */
+export interface TempFile extends ContentFigures {
+  path: string;
+}
+
+/** A short name of our own for a temporary file in `directory`. */
+export function temporaryPath(directory: string, tag = 'tmp'): string {
+  return path.join(directory, `.pw-${randomBytes(5).toString('hex')}.${tag}`);
+}
+
+/** Bytes written between two progress calls of a long file. */
+const progressEveryBytes = 8 * 1024 * 1024;
+
+/**
+ * Writes `content` to a new temporary file at `tempPath` ('wx': nothing may already have the
+ * name, not even a planted link), hashing it on the way, flushes it, and reads it back in
+ * chunks: the read-back must give the same SHA-256 and size. On any failure the temporary file
+ * is removed and the error rethrown. `onBytes` hears the bytes written so far.
+ */
+export function writeTemporary(fs: FileSystemOps, tempPath: string, content: FileContent, onBytes?: (bytes: number) => void): TempFile {
+  let fd: number | null = null;
+  let created = false;
+  try {
+    fd = fs.openSync(tempPath, 'wx', 0o644);
+    created = true;
+    const hash = createHash('sha256');
+    let size = 0;
+    let sum = 0;
+    let reported = 0;
+    const put = (bytes: Uint8Array) => {
+      let offset = 0;
+      while (offset < bytes.length) {
+        const n = fs.writeSync(fd!, bytes, offset, bytes.length - offset);
+        if (!(n > 0)) throw new Error('the file system accepted no bytes');
+        offset += n;
+      }
+      hash.update(bytes);
+      sum = (sum + byteSum(bytes)) & 0xffff;
+      size += bytes.length;
+      if (onBytes && size - reported >= progressEveryBytes) {
+        reported = size;
+        onBytes(size);
+      }
+    };
+    if (content instanceof Uint8Array) put(content);
+    else for (const chunk of content()) put(typeof chunk === 'string' ? Buffer.from(chunk, 'utf8') : chunk);
+    fs.fsyncSync(fd);
+    fs.closeSync(fd);
+    fd = null;
+    const written: ContentFigures = { sizeBytes: size, sha256: hash.digest('hex'), sum16: sum };
+    const readBack = figuresOfFile(fs, tempPath);
+    if (readBack.sizeBytes !== written.sizeBytes || readBack.sha256 !== written.sha256) {
+      throw new OutputError(tempPath, 'the temporary copy reads back different from what was written; the disk may be faulty');
+    }
+    return { path: tempPath, ...written };
+  } catch (error) {
+    if (fd !== null) {
+      try {
+        fs.closeSync(fd);
+      } catch {
+        // The descriptor is unusable either way; removing the file below is what matters.
+      }
+    }
+    if (created) removeQuietly(fs, tempPath);
+    throw error;
+  }
+}
+
+/** Size, SHA-256 and 16-bit sum of a regular file, read in chunks (memory for one chunk). */
+export function figuresOfFile(fs: FileSystemOps, file: string): ContentFigures {
+  const fd = fs.openSync(file, nodeFs.constants.O_RDONLY | (nodeFs.constants.O_NONBLOCK ?? 0));
+  try {
+    const refusal = refuseKind(fs.fstatSync(fd), file);
+    if (refusal) throw new OutputError(file, refusal, 'read back');
+    const hash = createHash('sha256');
+    const buffer = Buffer.allocUnsafe(1024 * 1024);
+    let size = 0;
+    let sum = 0;
+    for (;;) {
+      const n = fs.readSync(fd, buffer, 0, buffer.length, null);
+      if (n === 0) break;
+      const piece = buffer.subarray(0, n);
+      hash.update(piece);
+      sum = (sum + byteSum(piece)) & 0xffff;
+      size += n;
+    }
+    return { sizeBytes: size, sha256: hash.digest('hex'), sum16: sum };
+  } finally {
+    fs.closeSync(fd);
+  }
+}
+
+/** The sum of the bytes, modulo 2^16 (a plain loop with local variables: the hot path of large files). */
+function byteSum(bytes: Uint8Array): number {
+  let sum = 0;
+  for (let i = 0; i < bytes.length; i++) sum += bytes[i]!;
+  return sum & 0xffff;
+}
+
+export function removeQuietly(fs: FileSystemOps, file: string): void {
+  try {
+    fs.unlinkSync(file);
+  } catch {
+    // A temporary file we cannot remove is harmless: its name starts with '.pw-'.
+  }
 }
 
 /**
@@ -217,89 +343,55 @@ export function sha256Hex(bytes: Uint8Array): string {
 export function writeFileSafely(folder: string, file: OutputFileContent, options: SafeWriteOptions = {}): WrittenFileReport {
   const fs = options.fs ?? nodeFileSystem;
   const target = resolveOutputTarget(folder, file.name, options);
-  const baseName = path.basename(target.absolutePath);
-  const tempPath = path.join(target.directory, `.${baseName}.${process.pid}-${randomBytes(6).toString('hex')}.tmp`);
-  let fd: number | null = null;
-  let tempCreated = false;
+  const previous = target.exists ? '; the previous file is unchanged' : '';
+  let temp: TempFile;
   try {
-    // 'wx' creates the file and fails if anything (a file or a planted link) already has the name.
-    fd = fs.openSync(tempPath, 'wx', 0o644);
-    tempCreated = true;
-    let offset = 0;
-    while (offset < file.bytes.length) {
-      const nWritten = fs.writeSync(fd, file.bytes, offset, file.bytes.length - offset);
-      if (!(nWritten > 0)) throw new Error('the file system accepted no bytes');
-      offset += nWritten;
+    temp = writeTemporary(fs, temporaryPath(target.directory), file.bytes);
+    try {
+      fs.renameSync(temp.path, target.absolutePath);
+    } catch (error) {
+      removeQuietly(fs, temp.path);
+      throw error;
     }
-    fs.fsyncSync(fd);
-    fs.closeSync(fd);
-    fd = null;
-    if (!sameBytes(fs.readFileSync(tempPath), file.bytes)) {
-      throw new OutputError(target.displayPath, 'the temporary copy reads back different from what was written; the disk may be faulty');
-    }
-    fs.renameSync(tempPath, target.absolutePath);
-    tempCreated = false;
   } catch (error) {
-    if (fd !== null) {
-      try {
-        fs.closeSync(fd);
-      } catch {
-        // The descriptor is unusable either way; removing the file below is what matters.
-      }
-    }
-    if (tempCreated) {
-      try {
-        fs.unlinkSync(tempPath);
-      } catch {
-        // A temporary file we cannot remove is harmless: its name starts with '.' and ends in .tmp.
-      }
-    }
-    const previous = target.exists ? '; the previous file is unchanged' : '';
     throw new OutputError(target.displayPath, `${describeError(error)}${previous}`);
   }
-  syncDirectory(target.directory);
-  let readBack: Uint8Array;
+  syncDirectory(fs, target.directory);
+  return verifyWritten(fs, target, temp);
+}
+
+/** Reads a renamed file back and checks it is what was written: the figures reported are the disk's. */
+export function verifyWritten(fs: FileSystemOps, target: ResolvedTarget, written: ContentFigures): WrittenFileReport {
+  let onDisk: ContentFigures;
   try {
-    readBack = fs.readFileSync(target.absolutePath);
+    onDisk = figuresOfFile(fs, target.absolutePath);
   } catch (error) {
     throw new OutputError(target.displayPath, `the file was written but cannot be read back (${describeError(error)}); do not use it`, 'verify');
   }
-  if (!sameBytes(readBack, file.bytes)) {
+  if (onDisk.sha256 !== written.sha256 || onDisk.sizeBytes !== written.sizeBytes) {
     throw new OutputError(target.displayPath, 'the file was replaced but reads back different from what was meant; do not use it', 'verify');
   }
-  return {
-    name: file.name,
-    displayPath: target.displayPath,
-    absolutePath: target.absolutePath,
-    sizeBytes: readBack.length,
-    sha256: sha256Hex(readBack),
-    sum16: sum16(readBack),
-  };
+  return { name: target.name, displayPath: target.displayPath, absolutePath: target.absolutePath, ...onDisk };
 }
 
 /**
  * Flushes the directory entry after a rename so the new name survives a power loss. Some
  * platforms (Windows) cannot open a folder for syncing; the rename is still atomic there.
  */
-function syncDirectory(directory: string): void {
+export function syncDirectory(fs: FileSystemOps, directory: string): void {
   let fd: number | null = null;
   try {
-    fd = nodeFs.openSync(directory, 'r');
-    nodeFs.fsyncSync(fd);
+    fd = fs.openSync(directory, 'r');
+    fs.fsyncSync(fd);
   } catch {
     // Best effort only, as explained above.
   } finally {
     if (fd !== null) {
       try {
-        nodeFs.closeSync(fd);
+        fs.closeSync(fd);
       } catch {
         // Nothing was written through this descriptor.
       }
     }
   }
-}
-
-/** Writes several files one after another; stops at the first failure (thrown as OutputError). */
-export function writeFilesSafely(folder: string, files: readonly OutputFileContent[], options: SafeWriteOptions = {}): WrittenFileReport[] {
-  return files.map((file) => writeFileSafely(folder, file, options));
 }

@@ -60,7 +60,7 @@ export const catalogue: CodeInfo[] = [
     code: 'bad-number',
     severity: 'error',
     title: 'a number or bit pattern is malformed or out of range',
-    explanation: 'Widths, bit numbers, codes and opcodes must be whole numbers in range; bit patterns in guards and maps must have exactly as many 0, 1 or - characters as the input has bits.',
+    explanation: 'Widths, bit numbers, codes and opcodes must be whole numbers in range; bit patterns in guards and maps must have exactly as many 0, 1 or - characters as the input has bits. Electrical and timing figures (`name=number`) must lie in the range a real part can have (docs/budget.md lists each one): a zero or negative resistance, a zero supply or an LED forward voltage at or above the supply would make every sum after it wrong, so the figure is refused and left out.',
   },
   {
     code: 'width-mismatch',
@@ -223,7 +223,7 @@ export const catalogue: CodeInfo[] = [
     code: 'map-overlap',
     severity: 'error',
     title: 'two rows of a decode map match the same inputs with different values',
-    explanation: 'Decode-map rows must be disjoint where their values differ, or the field\'s code is undefined for those inputs. Narrow the patterns.',
+    explanation: 'Decode-map rows must be disjoint where their values differ, or the field\'s code is undefined for those inputs. Narrow the patterns. Each row is reported against the earliest row it clashes with; after 100 such rows in one map the others are counted in one more message. A map with so many different patterns of don\'t-cares that the check cannot compare all of them in bounded time is reported too, naming the first row not compared: such a map cannot be shown to be safe, so write fewer patterns or split it.',
   },
   {
     code: 'strobe-overload',

@@ -2,10 +2,16 @@
 // address the table uses: the address, what its lines carry (step, flags, instruction bits),
 // the class, the word in hex per chip, and the asserted strobes and field values by name,
 // read back from the encoded bits (so the listing shows what will be burned). Runs of
-// addresses holding the fill word are one line each.
+// addresses holding the fill word are one line each. The text comes in chunks of about
+// `chunkChars` characters, so a store of 24 address lines (16 million lines, gigabytes of
+// text) is written without ever being one string; `writeListing` joins them for small stores.
+// Where the address lines carry another store's field (formedAddress.ts), a word no step's
+// address ever reaches is marked `unreached` instead of being labelled with that step, and a
+// fill address a step does reach is listed on its own line saying which step lands there.
 import type { Machine } from '../model/types';
 import { toBinary, toHex } from '../model/numbers';
 import { decodeWord, type EncodedMachine, type EncodedStore } from './encoder';
+import { formedAddresses } from './formedAddress';
 import { pointInputs, pointInputsInto } from './universe';
 
 export interface ListingOptions {
@@ -84,28 +90,49 @@ export function describeWord(machine: Machine, enc: EncodedStore, address: numbe
   return items.join(' ');
 }
 
+/** Characters per chunk of listing text (about 1 MB). */
+export const chunkChars = 1 << 20;
+
+/** The whole listing as one string: for stores small enough to hold it (tests, small tables). */
 export function writeListing(machine: Machine, encoded: EncodedMachine, enc: EncodedStore, options: ListingOptions): string {
+  return [...listingChunks(machine, encoded, enc, options)].join('');
+}
+
+/** The listing, chunk by chunk; each chunk ends with a line end. */
+export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: EncodedStore, options: ListingOptions): Generator<string> {
   const store = enc.store;
   const word = store.word!;
   const nAddresses = 2 ** enc.addressBits;
   const addressDigits = Math.max(4, Math.ceil(enc.addressBits / 4));
   const chipNames = word.chipWidths.map((_, i) => `chip${i}`);
-  const lines: string[] = [];
-  lines.push('# Phasewright control-store listing');
-  lines.push(`# machine: ${machine.title || '(untitled)'}    source: ${options.source}    store: ${store.name}`);
-  lines.push(`# ${enc.addressBits} address lines (${nAddresses} words); ${word.width}-bit word as ${word.chipWidths.map((w) => `${w}`).join(' + ')} bits${word.chip ? ` in ${word.chip.name} chips` : ''}; chip 0 holds bit 0`);
-  lines.push(`# address lines: ${store.address!.sources.map((s) => `${s.label} ${s.lo === s.hi ? s.lo : `${s.lo}..${s.hi}`}`).join('  ')}`);
-  lines.push(`# ${enc.usedCount} words from the table, ${nAddresses - enc.usedCount} hold the fill word (every strobe inactive): ${chipHexOfWord(enc.fillWord, enc.store.word!.chipWidths).join(' ')}`);
-  lines.push('# Fields are shown where a step sets them or where they differ from their idle code.');
-  lines.push('# Check the images against your chips\' data sheets before programming them.');
-  lines.push('#');
-  lines.push(`# ${'address'.padEnd(addressDigits + 2)}  ${'inputs'.padEnd(describeAddress(enc, 0).length)}  ${'class'.padEnd(10)} ${chipNames.map((n, i) => n.padEnd(Math.max(n.length, Math.ceil(word.chipWidths[i] / 4)))).join(' ')}  asserted`);
+  let lines: string[] = [];
+  let pending = 0;
+  const push = (line: string) => {
+    lines.push(line);
+    pending += line.length + 1;
+  };
+  push('# Phasewright control-store listing');
+  push(`# machine: ${machine.title || '(untitled)'}    source: ${options.source}    store: ${store.name}`);
+  push(`# ${enc.addressBits} address lines (${nAddresses} words); ${word.width}-bit word as ${word.chipWidths.map((w) => `${w}`).join(' + ')} bits${word.chip ? ` in ${word.chip.name} chips` : ''}; chip 0 holds bit 0`);
+  push(`# address lines: ${store.address!.sources.map((s) => `${s.label} ${s.lo === s.hi ? s.lo : `${s.lo}..${s.hi}`}`).join('  ')}`);
+  push(`# ${enc.usedCount} words from the table, ${nAddresses - enc.usedCount} hold the fill word (every strobe inactive): ${chipHexOfWord(enc.fillWord, enc.store.word!.chipWidths).join(' ')}`);
+  push('# Fields are shown where a step sets them or where they differ from their idle code.');
+  push('# Check the images against your chips\' data sheets before programming them.');
+  const reach = formedAddresses(machine, encoded, enc);
+  if (reach) push('# The address lines carry another store\'s field: a word no step reaches through them is marked unreached, and a fill word a step does reach is named.');
+  push('#');
+  push(`# ${'address'.padEnd(addressDigits + 2)}  ${'inputs'.padEnd(describeAddress(enc, 0).length)}  ${'class'.padEnd(10)} ${chipNames.map((n, i) => n.padEnd(Math.max(n.length, Math.ceil(word.chipWidths[i] / 4)))).join(' ')}  asserted`);
   let fillStart = -1;
   const flushFill = (end: number) => {
     if (fillStart < 0) return;
     const range = fillStart === end - 1 ? `0x${toHex(fillStart, addressDigits)}` : `0x${toHex(fillStart, addressDigits)}-0x${toHex(end - 1, addressDigits)}`;
-    lines.push(`  ${range}  fill (${end - fillStart} word${end - fillStart > 1 ? 's' : ''})`);
+    push(`  ${range}  fill (${end - fillStart} word${end - fillStart > 1 ? 's' : ''})`);
     fillStart = -1;
+  };
+  /** A fill address some step's address lines do form: its own line, saying who lands there. */
+  const strayFill = (address: number, point: number) => {
+    const decoded = encoded.decoder.decodeShared(pointInputsInto(encoded.universe, point, inputs));
+    push(`  0x${hexDigits(address, addressDigits)}  ${inputsText(address)}  fill: ${stepName(decoded)} forms this address and finds the fill word here (the table put its word at another address)`);
   };
   // Many addresses hold the same word for the same step: describe each (decode, word) once.
   const described = new Map<unknown, Map<number | string, string>>();
@@ -114,7 +141,10 @@ export function writeListing(machine: Machine, encoded: EncodedMachine, enc: Enc
   for (let address = 0; address < nAddresses; address++) {
     const point = enc.origin[address];
     if (point < 0) {
-      if (fillStart < 0) fillStart = address;
+      if (reach && reach.stray[address] >= 0) {
+        flushFill(address);
+        strayFill(address, reach.stray[address]);
+      } else if (fillStart < 0) fillStart = address;
       continue;
     }
     flushFill(address);
@@ -128,10 +158,30 @@ export function writeListing(machine: Machine, encoded: EncodedMachine, enc: Enc
       tail = `${(decoded?.cls?.name ?? '-').padEnd(10)} ${hex.join(' ')}  ${describeWord(machine, enc, address, new Set(decoded?.fieldCodes.keys() ?? []))}`;
       byWord.set(wordKey, tail);
     }
-    lines.push('  0x' + hexDigits(address, addressDigits) + '  ' + inputsText(address) + '  ' + tail);
+    const reached = !reach || reach.formed[address] === 1;
+    push('  0x' + hexDigits(address, addressDigits) + '  ' + inputsText(address) + '  ' + (reached ? tail : unreachedTail(tail, decoded)));
+    if (pending >= chunkChars) {
+      yield lines.join('\n') + '\n';
+      lines = [];
+      pending = 0;
+    }
   }
   flushFill(nAddresses);
-  return lines.join('\n') + '\n';
+  if (lines.length > 0) yield lines.join('\n') + '\n';
+}
+
+type Decoded = ReturnType<EncodedMachine['decoder']['decodeShared']>;
+
+/** "step 0 of phase fetch in class OP-IMM", for notes. */
+function stepName(decoded: Decoded): string {
+  if (!decoded?.alt) return 'a step';
+  return `step ${decoded.alt.step} of ${decoded.alt.phase ? `phase ${decoded.alt.phase.name} in ` : ''}class ${decoded.cls?.name}`;
+}
+
+/** The line tail of a table word no address lines reach: `unreached` in the class column, and for whom it was laid. */
+function unreachedTail(tail: string, decoded: Decoded): string {
+  const width = Math.max(10, (decoded?.cls?.name ?? '-').length);
+  return `${'unreached'.padEnd(width)}${tail.slice(width)}  (laid for ${stepName(decoded)}, whose address lines form another address)`;
 }
 
 /** A word (in 32-bit lanes) as hex per chip, chip 0 (the lowest bits) first. */

@@ -5,7 +5,7 @@
 import type { Machine, Store } from '../model/types';
 import { encodeMachine, type EncodedMachine, type EncodedStore } from './encoder';
 import { type ChipImage, type ChipWidth, type ImageFormatName, type ImageWriteOptions, imageFormats } from './formats';
-import { writeListing } from './listing';
+import { listingChunks } from './listing';
 
 export type BuildFormat = ImageFormatName | 'list';
 export const buildFormats: BuildFormat[] = ['ihex', 'srec', 'bin', 'memh', 'list'];
@@ -26,7 +26,8 @@ export interface PlannedText {
   name: string;
   format: 'list';
   store: string;
-  text: string;
+  /** The text, made chunk by chunk when asked for (a listing can be larger than memory). */
+  chunks: () => Iterable<string>;
 }
 
 export type PlannedFile = PlannedImage | PlannedText;
@@ -98,15 +99,28 @@ export function planBuild(machine: Machine, options: PlanOptions): BuildPlan {
     if (!s.word) problems.push(`store ${s.name} has no word layout`);
     if (!s.address) problems.push(`store ${s.name} has no address layout`);
   }
-  const encoded = encodeMachine(machine, { stores: wanted.map((s) => s.name) });
+  // Stores whose fields feed a wanted store's address lines are encoded too (not written): the
+  // listing reads their words to tell which addresses the hardware really forms.
+  const feeding = new Set(wanted.map((s) => s.name));
+  for (const s of wanted) {
+    for (const source of s.address?.sources ?? []) {
+      if (source.input.kind !== 'field') continue;
+      const name = source.input.name;
+      const holder = machine.stores.find((other) => other.word?.placements.some((p) => p.signal === name));
+      if (holder) feeding.add(holder.name);
+    }
+  }
+  const encoded = encodeMachine(machine, { stores: [...feeding] });
   if (encoded.stores.length === 0 && wanted.length > 0 && problems.length === 0) {
     problems.push(`the address inputs of all stores together take ${encoded.universe.bits} bits; Phasewright encodes up to 24`);
   }
   const files: PlannedFile[] = [];
   const stores: StoreSummary[] = [];
   for (const enc of encoded.stores) {
+    if (!wanted.includes(enc.store)) continue;
     const store: Store = enc.store;
-    const images = chipImagesOf(enc);
+    // Chip images only when an image format is wanted (the listing reads the encoded store).
+    const images = formats.some((f) => f !== 'list') ? chipImagesOf(enc) : [];
     stores.push({
       store: store.name,
       addressBits: enc.addressBits,
@@ -118,7 +132,7 @@ export function planBuild(machine: Machine, options: PlanOptions): BuildPlan {
     });
     for (const format of formats) {
       if (format === 'list') {
-        files.push({ kind: 'text', name: `${options.stem}.${store.name}.lst`, format: 'list', store: store.name, text: writeListing(machine, encoded, enc, { source: options.source }) });
+        files.push({ kind: 'text', name: `${options.stem}.${store.name}.lst`, format: 'list', store: store.name, chunks: () => listingChunks(machine, encoded, enc, { source: options.source }) });
         continue;
       }
       images.forEach((image, chip) => {

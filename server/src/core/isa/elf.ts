@@ -83,10 +83,56 @@ function hex(value: number): string {
   return `0x${(value >>> 0).toString(16)}`;
 }
 
-function readCString(bytes: Uint8Array, offset: number, limit: number): string {
-  let text = '';
-  for (let at = offset; at < limit && bytes[at] !== 0; at++) text += String.fromCharCode(bytes[at]!);
-  return text;
+/** Longest symbol name kept; longer names are cut (they only label addresses in reports). */
+export const MAX_SYMBOL_NAME_CHARS = 1024;
+
+/**
+ * The names of one string table, read so that the whole walk costs the table's size plus a
+ * logarithm per symbol, whatever the file holds: the table is decoded once into one string
+ * and its NUL positions found in the same pass; each name's end is looked up among them
+ * (binary search) instead of scanned for, which an unterminated table would make quadratic.
+ * Names are slices of the one string, so a million symbols pointing into one long name take
+ * no more memory than the table itself.
+ */
+class StringTable {
+  private readonly text: string;
+  private readonly nulPositions: Uint32Array;
+
+  constructor(bytes: Uint8Array, start: number, end: number) {
+    const pieces: string[] = [];
+    // apply takes the typed array as it is (a spread would walk it through an iterator).
+    for (let at = start; at < end; at += 4096) pieces.push(String.fromCharCode.apply(null, bytes.subarray(at, Math.min(end, at + 4096)) as unknown as number[]));
+    this.text = pieces.join('');
+    let count = 0;
+    for (let at = start; at < end; at++) if (bytes[at] === 0) count++;
+    this.nulPositions = new Uint32Array(count);
+    for (let at = start, i = 0; at < end; at++) if (bytes[at] === 0) this.nulPositions[i++] = at - start;
+  }
+
+  /** Whether the table ends with a NUL, as the gABI requires of every string table. */
+  get terminated(): boolean {
+    return this.text.length > 0 && this.text.charCodeAt(this.text.length - 1) === 0;
+  }
+
+  /** Names cut to MAX_SYMBOL_NAME_CHARS so far. */
+  cutNames = 0;
+
+  /**
+   * The name at `offset` into the table (the caller checks offset < the table's size). A cut
+   * name stays a plain slice (no marker appended), so it never needs memory of its own.
+   */
+  nameAt(offset: number): string {
+    let lo = 0;
+    let hi = this.nulPositions.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >>> 1;
+      if (this.nulPositions[mid]! < offset) lo = mid + 1;
+      else hi = mid;
+    }
+    const nul = lo < this.nulPositions.length ? this.nulPositions[lo]! : this.text.length;
+    if (nul - offset > MAX_SYMBOL_NAME_CHARS) this.cutNames++;
+    return this.text.slice(offset, Math.min(nul, offset + MAX_SYMBOL_NAME_CHARS));
+  }
 }
 
 /** Reads and checks the ELF header, program headers and symbol table without loading anything. */
@@ -178,44 +224,57 @@ export function parseElf(bytes: Uint8Array): ElfResult {
     }
   }
 
-  const symbolsResult = readSymbols(bytes, view, sectionHeaderOffset, sectionHeaderSize, sectionHeaderCount);
+  const symbolsResult = readSymbols(bytes, view, sectionHeaderOffset, sectionHeaderSize, sectionHeaderCount, warnings);
   if (typeof symbolsResult === 'string') return fail(symbolsResult);
   return { ok: true, image: { entry, segments, symbols: symbolsResult, warnings } };
 }
 
 // Returns the symbols, or an error message. A file without section headers (stripped) has none.
-function readSymbols(bytes: Uint8Array, view: DataView, offset: number, entrySize: number, count: number): ElfSymbol[] | string {
+// Every walk is bounded by the file's size: the section headers and the symbol table lie
+// inside the file (checked), only the first SHT_SYMTAB section is read (the gABI allows one per
+// file), and names come from a StringTable, whose cost is linear in its size.
+function readSymbols(bytes: Uint8Array, view: DataView, offset: number, entrySize: number, count: number, warnings: string[]): ElfSymbol[] | string {
   if (offset === 0 || count === 0) return [];
   if (entrySize < SECTION_HEADER_BYTES) return `section header entries are ${entrySize} bytes; ELF32 needs at least ${SECTION_HEADER_BYTES}`;
   if (offset + count * entrySize > bytes.length) {
     return `truncated ELF file: the section headers end at byte ${offset + count * entrySize} but the file has ${bytes.length} bytes`;
   }
   const u32 = (at: number) => view.getUint32(at, true);
-  const symbols: ElfSymbol[] = [];
+  let symbolTable = -1;
+  let extraTables = 0;
   for (let index = 0; index < count; index++) {
-    const header = offset + index * entrySize;
-    if (u32(header + 4) !== SHT_SYMTAB) continue;
-    const tableOffset = u32(header + 16);
-    const tableBytes = u32(header + 20);
-    const stringSection = u32(header + 24);
-    if (tableOffset + tableBytes > bytes.length) return `truncated ELF file: the symbol table ends past the end of the file`;
-    if (stringSection >= count) return `the symbol table names string section ${stringSection}, which does not exist`;
-    const stringHeader = offset + stringSection * entrySize;
-    const stringsOffset = u32(stringHeader + 16);
-    const stringsEnd = stringsOffset + u32(stringHeader + 20);
-    if (stringsEnd > bytes.length) return `truncated ELF file: the symbol names end past the end of the file`;
-    for (let at = tableOffset; at + SYMBOL_BYTES <= tableOffset + tableBytes; at += SYMBOL_BYTES) {
-      const nameOffset = u32(at);
-      const sectionIndex = view.getUint16(at + 14, true);
-      if (nameOffset === 0 || sectionIndex === 0 || stringsOffset + nameOffset >= stringsEnd) continue;
-      const name = readCString(bytes, stringsOffset + nameOffset, stringsEnd);
-      const symbolType = bytes[at + 12]! & 0xf;
-      // Local labels such as .L3 and the RISC-V mapping symbols ($x, $d) are not useful as names.
-      if (name.startsWith('.L') || name.startsWith('$')) continue;
-      symbols.push({ name, address: u32(at + 4), sizeBytes: u32(at + 8), kind: symbolType === 2 ? 'function' : symbolType === 1 ? 'object' : 'other' });
-    }
+    if (u32(offset + index * entrySize + 4) !== SHT_SYMTAB) continue;
+    if (symbolTable < 0) symbolTable = index;
+    else extraTables++;
   }
-  symbols.sort((a, b) => a.address - b.address || a.name.localeCompare(b.name));
+  if (symbolTable < 0) return [];
+  if (extraTables > 0) warnings.push(`the ELF file has ${extraTables + 1} symbol tables (SHT_SYMTAB); the gABI allows one, and only the first is read`);
+  const header = offset + symbolTable * entrySize;
+  const tableOffset = u32(header + 16);
+  const tableBytes = u32(header + 20);
+  const stringSection = u32(header + 24);
+  if (tableOffset + tableBytes > bytes.length) return `truncated ELF file: the symbol table ends past the end of the file`;
+  if (stringSection >= count) return `the symbol table names string section ${stringSection}, which does not exist`;
+  const stringHeader = offset + stringSection * entrySize;
+  const stringsOffset = u32(stringHeader + 16);
+  const stringsEnd = stringsOffset + u32(stringHeader + 20);
+  if (stringsEnd > bytes.length) return `truncated ELF file: the symbol names end past the end of the file`;
+  const strings = new StringTable(bytes, stringsOffset, stringsEnd);
+  if (stringsEnd > stringsOffset && !strings.terminated) warnings.push('the symbol name table does not end with a NUL byte as the gABI requires; its last name may be cut');
+  const symbols: ElfSymbol[] = [];
+  for (let at = tableOffset; at + SYMBOL_BYTES <= tableOffset + tableBytes; at += SYMBOL_BYTES) {
+    const nameOffset = u32(at);
+    const sectionIndex = view.getUint16(at + 14, true);
+    if (nameOffset === 0 || sectionIndex === 0 || stringsOffset + nameOffset >= stringsEnd) continue;
+    const name = strings.nameAt(nameOffset);
+    const symbolType = bytes[at + 12]! & 0xf;
+    // Local labels such as .L3 and the RISC-V mapping symbols ($x, $d) are not useful as names.
+    if (name.startsWith('.L') || name.startsWith('$')) continue;
+    symbols.push({ name, address: u32(at + 4), sizeBytes: u32(at + 8), kind: symbolType === 2 ? 'function' : symbolType === 1 ? 'object' : 'other' });
+  }
+  if (strings.cutNames > 0) warnings.push(`${strings.cutNames} symbol name(s) are longer than ${MAX_SYMBOL_NAME_CHARS} characters and were cut to that length`);
+  // A plain comparison: locale-aware ordering costs far more and names are ASCII in practice.
+  symbols.sort((a, b) => a.address - b.address || (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
   return symbols;
 }
 

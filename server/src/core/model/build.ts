@@ -12,7 +12,7 @@ import { parseBits, parseNumber } from './numbers';
 import type * as M from './types';
 import { controlVocabulary, instructionFields, partKinds, strobeKinds } from './vocabulary';
 import { buildBodies } from './buildSteps';
-import { type FigureHost, figureInfo, figureNamesFor } from '../budget/figures';
+import { type FigureHost, figureInfo, figureNamesFor, figureRangeProblem, figureTextProblem, parseFigureValue } from '../budget/figures';
 import { acceptableCodes, codeInfo } from '../checks/catalogue';
 
 export interface BuildResult {
@@ -187,7 +187,26 @@ export function buildModel(tree: A.FileNode): BuildResult {
   finishParts(ctx, tree);
   buildStores(ctx, tree);
   buildBodies(ctx, tree);
+  checkLedVoltages(ctx);
   return { machine: ctx.machine, diagnostics: ctx.diagnostics };
+}
+
+/**
+ * An LED whose forward voltage is at or above the supply never lights: the figure is wrong
+ * for this machine, so it is reported where it is written and left out (the budget then lists
+ * the LED figures as missing instead of adding up a current of zero).
+ */
+function checkLedVoltages(ctx: BuildContext): void {
+  const supply = ctx.machine.figures.get('supply_v');
+  if (!supply) return;
+  const hosts = [...ctx.machine.buses.values(), ...ctx.machine.parts.values(), ...ctx.machine.signals.values()];
+  for (const host of hosts) {
+    const figures = 'figures' in host ? host.figures : undefined;
+    const vf = figures?.get('led_vf');
+    if (!figures || !vf || vf.value < supply.value) continue;
+    ctx.report('bad-number', vf.span, `\`led_vf=${vf.value}\` is at or above the ${supply.value} V supply, so these LEDs would never light; check the LED's data sheet and supply_v`, [{ span: supply.span, message: `supply_v=${supply.value}` }]);
+    figures.delete('led_vf');
+  }
 }
 
 /** First pass: every declared name, so references may come before declarations. */
@@ -265,9 +284,15 @@ function readFigures(ctx: BuildContext, options: A.OptionNode[], host: FigureHos
       );
       continue;
     }
-    const value = option.value && 'text' in option.value ? Number(option.value.text) : NaN;
-    if (!Number.isFinite(value) || value < 0) {
-      ctx.report('bad-number', option.value?.span ?? option.span, `\`${option.key.text}\` needs a number in ${info.unit}, e.g. \`${option.key.text}=24\``);
+    const written = option.value && 'text' in option.value ? option.value.text : undefined;
+    const value = written === undefined ? undefined : parseFigureValue(written);
+    if (value === undefined) {
+      ctx.report('bad-number', option.value?.span ?? option.span, figureTextProblem(info, written));
+      continue;
+    }
+    const problem = figureRangeProblem(info, value, written);
+    if (problem) {
+      ctx.report('bad-number', option.value!.span, problem);
       continue;
     }
     figures.set(option.key.text, { value, span: option.span });
