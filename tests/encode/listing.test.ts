@@ -12,9 +12,12 @@ import { planBuild } from '../../server/src/core/encode/plan';
 import { entryDecoderFixed, entryDecoderTable } from '../support/fixtures';
 import { store24Table } from '../support/hostile';
 
-function mainListing(text: string, stores?: string[]): string[] {
+// `allowed`: the error codes the table is known to have (the broken decoder table is reported
+// by entry-unreachable, and the listing must still show what the hardware would do).
+function mainListing(text: string, stores?: string[], allowed: string[] = []): string[] {
   const analysis = analyse(text);
-  expect(analysis.diagnostics.filter((d) => d.severity === 'error')).toEqual([]);
+  const errors = analysis.diagnostics.filter((d) => d.severity === 'error');
+  expect([...new Set(errors.map((d) => d.code))]).toEqual(allowed);
   const plan = planBuild(analysis.machine, { stem: 't', source: 't.pwt', formats: ['list'], stores });
   const file = plan.files.find((f) => f.name === 't.main.lst')!;
   expect(file.kind).toBe('text');
@@ -23,7 +26,8 @@ function mainListing(text: string, stores?: string[]): string[] {
 
 describe('the listing of a store addressed through another store\'s field', () => {
   it('marks the fetch word nothing reaches and names the steps that find the fill word', () => {
-    expect(mainListing(entryDecoderTable)).toEqual([
+    const broken = (stores?: string[]) => mainListing(entryDecoderTable, stores, ['entry-unreachable']);
+    expect(broken()).toEqual([
       '  0x0000  step=0 entry=00  fill: step 0 of phase fetch in class OP forms this address and finds the fill word here (the table put its word at another address)',
       '  0x0001  step=1 entry=00  OP         06     a.oe b.ck done',
       '  0x0002  step=0 entry=01  fill: step 0 of phase fetch in class SUBTRACT forms this address and finds the fill word here (the table put its word at another address)',
@@ -33,7 +37,7 @@ describe('the listing of a store addressed through another store\'s field', () =
       '  0x0007  fill (1 word)',
     ]);
     // The same when only the main store is built: the decoder store is still read.
-    expect(mainListing(entryDecoderTable, ['main'])).toEqual(mainListing(entryDecoderTable));
+    expect(broken(['main'])).toEqual(broken());
   });
 
   it('labels every word with its step when the steps set the field the hardware forms', () => {
