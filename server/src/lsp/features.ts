@@ -76,6 +76,8 @@ const symbolKinds: Record<OutlineKind, SymbolKind> = {
   class: SymbolKind.Class,
   step: SymbolKind.Event,
   use: SymbolKind.Event,
+  kind: SymbolKind.Interface,
+  port: SymbolKind.Property,
 };
 
 function toLspEdits(analysis: Analysis, edits: readonly CoreEdit[]): TextEdit[] {

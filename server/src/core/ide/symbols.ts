@@ -8,7 +8,7 @@ import type * as A from '../syntax/ast';
 import type { Span } from '../text/span';
 import { contentSpan } from './lookup';
 
-export type OutlineKind = 'section' | 'machine' | 'bus' | 'part' | 'strobe' | 'field' | 'value' | 'store' | 'word' | 'address' | 'map' | 'phase' | 'class' | 'step' | 'use';
+export type OutlineKind = 'section' | 'machine' | 'bus' | 'part' | 'strobe' | 'field' | 'value' | 'store' | 'word' | 'address' | 'map' | 'phase' | 'class' | 'step' | 'use' | 'kind' | 'port';
 
 export interface OutlineSymbol {
   name: string;
@@ -22,6 +22,7 @@ export interface OutlineSymbol {
 }
 
 const sectionOrder: { title: string; kinds: A.Decl['kind'][] }[] = [
+  { title: 'kinds', kinds: ['kind'] },
   { title: 'buses', kinds: ['bus'] },
   { title: 'parts', kinds: ['part'] },
   { title: 'strobes', kinds: ['strobe'] },
@@ -98,6 +99,13 @@ function declSymbol(analysis: Analysis, decl: A.Decl): OutlineSymbol | undefined
       return named(decl.name, 'map', decl.output ? `-> ${decl.output.name.text}` : undefined);
     case 'phase':
       return named(decl.name, 'phase', decl.description?.value, bodyItems(analysis, decl.body));
+    case 'kind':
+      return named(
+        decl.name,
+        'kind',
+        decl.description?.value,
+        decl.items.map((item) => ({ name: `${item.item} ${item.name?.text ?? ''}`.trim(), detail: shorten(text(analysis, item.span)), kind: 'port', span: item.span, selection: item.name?.span ?? item.keyword, children: [] })),
+      );
     case 'class': {
       const opcode = decl.options.find((o) => o.key.text === 'opcode')?.value?.text;
       return named(decl.name, 'class', opcode ? `opcode=${opcode}` : undefined, bodyItems(analysis, decl.body));

@@ -229,7 +229,97 @@ export interface ClassDecl extends DeclBase {
   body: BodyItem[];
 }
 
+/** Text of an expression as written (parsed by `core/parts/expr`), with its exact span. */
+export interface ExprText {
+  text: string;
+  span: Span;
+}
+
+/** A width or count as written: a number, or the name of a number setting of the kind. */
+export type SizeRef = Literal | Name;
+
+interface KindLineBase {
+  keyword: Span;
+  name?: Name;
+  description?: StringLit;
+  span: Span;
+}
+
+/** `setting NAME number [= N]` or `setting NAME choice A B C [= A]`. */
+export interface KindSettingLine extends KindLineBase {
+  item: 'setting';
+  type?: Name;
+  choices: Name[];
+  default?: Name | Literal;
+}
+
+/** `input NAME WIDTH [after WORD | instruction]`: an operand wired on the part line. */
+export interface KindInputLine extends KindLineBase {
+  item: 'input';
+  width?: SizeRef;
+  /** `after from`: the part line writes `from NAME` for this input. */
+  after?: Name;
+  /** `instruction`: wired to the machine's instruction register, never written on the part line. */
+  instruction?: Span;
+  /** `keyed`: written `NAME=SOURCE` on the part line. */
+  keyed?: Span;
+}
+
+/** `control NAME: A B C`: the value names a field controlling the part may use. */
+export interface KindControlLine extends KindLineBase {
+  item: 'control';
+  values: Name[];
+}
+
+/** `state NAME WIDTH [x COUNT] [= RESET]`. */
+export interface KindStateLine extends KindLineBase {
+  item: 'state';
+  width?: SizeRef;
+  count?: SizeRef;
+  reset?: ExprText;
+}
+
+/** `drive NAME WIDTH = EXPR`: a port an enable or read strobe puts on a bus. */
+export interface KindDriveLine extends KindLineBase {
+  item: 'drive';
+  width?: SizeRef;
+  expr?: ExprText;
+}
+
+/** `flag NAME = EXPR`: a one-bit output the address lines and guards may read. */
+export interface KindFlagLine extends KindLineBase {
+  item: 'flag';
+  expr?: ExprText;
+}
+
+/** One `TARGET[INDEX] <= EXPR [when COND]` of an `on` line. */
+export interface KindAssign {
+  target: Name;
+  index?: ExprText;
+  expr?: ExprText;
+  when?: ExprText;
+  span: Span;
+}
+
+/** `on NAME [WIDTH]: TARGET <= EXPR, ...`: what a clock, count or write strobe does at the closing edge. */
+export interface KindEdgeLine extends KindLineBase {
+  item: 'on';
+  /** Width of the bus value the strobe brings (`in`); none for a count or a latch. */
+  width?: SizeRef;
+  assigns: KindAssign[];
+}
+
+export type KindItem = KindSettingLine | KindInputLine | KindControlLine | KindStateLine | KindDriveLine | KindFlagLine | KindEdgeLine;
+
+/** `kind NAME "description"` and its indented lines: a part kind defined in the notation. */
+export interface KindDecl extends DeclBase {
+  kind: 'kind';
+  name?: Name;
+  items: KindItem[];
+}
+
 export type Decl =
+  | KindDecl
   | MachineDecl
   | BusDecl
   | PartDecl
@@ -250,6 +340,7 @@ export interface FileNode {
 /** Words that start a declaration when they begin a line. */
 export const declarationKeywords = [
   'machine',
+  'kind',
   'bus',
   'part',
   'strobe',

@@ -22,6 +22,8 @@ export interface ParseResult {
 }
 
 const keywordSet = new Set<string>(declarationKeywords);
+/** Words that begin the lines of a `kind` declaration. */
+const kindLineWords = new Set(['setting', 'input', 'control', 'state', 'drive', 'flag', 'on']);
 
 /** Parses a whole file. Never throws. */
 export function parse(text: string): ParseResult {
@@ -204,6 +206,8 @@ class Parser {
     switch (keyword) {
       case 'machine':
         return this.parseMachine();
+      case 'kind':
+        return this.parseKind();
       case 'bus':
         return this.parseBus();
       case 'part':
@@ -632,6 +636,197 @@ class Parser {
   }
 
   /** phase = "phase" name [string] NL {step | use} */
+  // ---- part kinds ---------------------------------------------------------------------
+
+  /**
+   * kind = "kind" name [string] NL { kind-line NL }
+   * kind-line = setting | input | control | state | drive | flag | on   (see docs/notation.md)
+   * Expressions are kept as text with their spans; `core/parts/expr` parses and checks them.
+   */
+  private parseKind(): A.KindDecl {
+    const keyword = this.keywordSpan();
+    const decl: A.KindDecl = { kind: 'kind', keyword, span: keyword, items: [] };
+    decl.name = this.expectName('a kind name after `kind`, e.g. `kind mux2`');
+    decl.description = this.optionalString();
+    this.endLine('the kind declaration');
+    this.parseBodyLines(() => {
+      const item = this.parseKindLine();
+      if (item) decl.items.push(item);
+    });
+    return this.finish(decl, keyword.start);
+  }
+
+  private parseKindLine(): A.KindItem | undefined {
+    const tok = this.peek();
+    if (tok.kind !== T.Ident || !kindLineWords.has(tok.text)) {
+      this.unexpected(`a line of the kind (${[...kindLineWords].join(', ')})`);
+      this.skipToEol();
+      return undefined;
+    }
+    const word = tok.text as A.KindItem['item'];
+    const keyword = this.keywordSpan();
+    const start = keyword.start;
+    const name = this.expectName(`a name after \`${word}\``);
+    const done = <L extends A.KindItem>(line: L): L => {
+      line.description ??= this.optionalString();
+      line.span = mkSpan(start, Math.max(start, this.prevEnd));
+      return line;
+    };
+    switch (word) {
+      case 'setting': {
+        const line: A.KindSettingLine = { item: 'setting', keyword, name, choices: [], span: keyword };
+        if (name) line.type = this.atWord('number') || this.atWord('choice') ? this.name(this.next()) : undefined;
+        if (name && !line.type) this.unexpected('`number` or `choice` after the setting name');
+        if (line.type?.text === 'choice') while (this.at(T.Ident)) line.choices.push(this.name(this.next()));
+        if (line.type && this.eat(T.Equals)) {
+          if (this.at(T.Ident)) line.default = this.name(this.next());
+          else if (this.at(T.Number) || this.at(T.Pattern)) line.default = this.literal(this.next());
+          else this.unexpected('a default value after `=`');
+        }
+        return done(line);
+      }
+      case 'input': {
+        const line: A.KindInputLine = { item: 'input', keyword, name, span: keyword };
+        if (name) line.width = this.parseSize('the input\'s width (a number or a number setting)');
+        if (this.atWord('after')) {
+          this.next();
+          line.after = this.expectName('the word the part line writes before this input, e.g. `after from`');
+        } else if (this.atWord('instruction')) line.instruction = this.keywordSpan();
+        else if (this.atWord('keyed')) line.keyed = this.keywordSpan();
+        return done(line);
+      }
+      case 'control': {
+        const line: A.KindControlLine = { item: 'control', keyword, name, values: [], span: keyword };
+        if (name && !this.eat(T.Colon)) this.unexpected('`:` and the value names, e.g. `control fn: add sub`');
+        while (this.at(T.Ident)) line.values.push(this.name(this.next()));
+        return done(line);
+      }
+      case 'state': {
+        const line: A.KindStateLine = { item: 'state', keyword, name, span: keyword };
+        if (name) line.width = this.parseSize('the state\'s width (a number or a number setting)');
+        if (this.atWord('x')) {
+          this.next();
+          line.count = this.parseSize('how many registers, e.g. `x 32`');
+        }
+        if (this.eat(T.Equals)) line.reset = this.restOfLineExpr('the value after reset');
+        return done(line);
+      }
+      case 'drive': {
+        const line: A.KindDriveLine = { item: 'drive', keyword, name, span: keyword };
+        if (name) line.width = this.parseSize('the width this port drives');
+        if (line.width && !this.eat(T.Equals)) this.unexpected('`=` and the value the port drives');
+        else if (line.width) line.expr = this.restOfLineExpr('the value the port drives');
+        return done(line);
+      }
+      case 'flag': {
+        const line: A.KindFlagLine = { item: 'flag', keyword, name, span: keyword };
+        if (name && !this.eat(T.Equals)) this.unexpected('`=` and the flag\'s one-bit value');
+        else if (name) line.expr = this.restOfLineExpr('the flag\'s value');
+        return done(line);
+      }
+      case 'on': {
+        const line: A.KindEdgeLine = { item: 'on', keyword, name, assigns: [], span: keyword };
+        if (name && !this.at(T.Colon)) line.width = this.parseSize('the width of the bus value or `:`');
+        if (name && !this.eat(T.Colon)) {
+          this.unexpected('`:` and what happens at the closing edge, e.g. `on load 32: q <= in`');
+          this.skipToEol();
+          return done(line);
+        }
+        for (const piece of this.splitTopLevel()) {
+          const assign = this.kindAssign(piece);
+          if (assign) line.assigns.push(assign);
+        }
+        return done(line);
+      }
+    }
+  }
+
+  private parseSize(what: string): A.SizeRef | undefined {
+    if (this.at(T.Number)) return this.literal(this.next());
+    if (this.at(T.Ident)) return this.name(this.next());
+    this.unexpected(what);
+    return undefined;
+  }
+
+  /** The tokens up to the end of the line (a trailing description excepted), as one expression text. */
+  private restOfLineExpr(what: string): A.ExprText | undefined {
+    const toks: Token[] = [];
+    while (!this.atEol() && !(this.at(T.String) && this.lineEndsAfter(1))) toks.push(this.next());
+    if (toks.length === 0) {
+      this.unexpected(what);
+      return undefined;
+    }
+    return this.exprOf(toks);
+  }
+
+  private lineEndsAfter(ahead: number): boolean {
+    const kind = this.peek(ahead).kind;
+    return kind === T.Newline || kind === T.Eof;
+  }
+
+  private exprOf(toks: Token[]): A.ExprText {
+    const span = mkSpan(toks[0].start, toks[toks.length - 1].end);
+    return { text: this.text.slice(span.start, span.end), span };
+  }
+
+  /** The rest of the line split at commas outside brackets (`{a, b}` and `sext(x, 32)` stay whole). */
+  private splitTopLevel(): Token[][] {
+    const pieces: Token[][] = [[]];
+    let depth = 0;
+    while (!this.atEol() && !(this.at(T.String) && this.lineEndsAfter(1))) {
+      const tok = this.next();
+      if (tok.kind === T.LParen || tok.kind === T.LBracket || tok.kind === T.LBrace) depth++;
+      if ((tok.kind === T.RParen || tok.kind === T.RBracket || tok.kind === T.RBrace) && depth > 0) depth--;
+      if (tok.kind === T.Comma && depth === 0) pieces.push([]);
+      else pieces[pieces.length - 1].push(tok);
+    }
+    return pieces;
+  }
+
+  /** `TARGET [ "[" INDEX "]" ] "<=" EXPR [ "when" COND ]`, from one comma-separated piece. */
+  private kindAssign(toks: Token[]): A.KindAssign | undefined {
+    const whole = toks.length ? mkSpan(toks[0].start, toks[toks.length - 1].end) : mkSpan(this.prevEnd, this.prevEnd);
+    if (toks.length === 0 || toks[0].kind !== T.Ident) {
+      this.error(whole, 'expected a state name and `<=`, e.g. `q <= in`');
+      return undefined;
+    }
+    const assign: A.KindAssign = { target: this.name(toks[0]), span: whole };
+    let i = 1;
+    if (toks[i]?.kind === T.LBracket) {
+      let depth = 0;
+      const from = i + 1;
+      for (; i < toks.length; i++) {
+        if (toks[i].kind === T.LBracket) depth++;
+        if (toks[i].kind === T.RBracket && --depth === 0) break;
+      }
+      if (i >= toks.length || i === from) {
+        this.error(whole, 'expected `]` after the register index, e.g. `r[ir[11:7]] <= in`');
+        return undefined;
+      }
+      assign.index = this.exprOf(toks.slice(from, i));
+      i++;
+    }
+    if (!(toks[i]?.kind === T.Error && toks[i].text === '<' && toks[i + 1]?.kind === T.Equals && toks[i + 1].start === toks[i].end)) {
+      const at = toks[i] ? mkSpan(toks[i].start, toks[i].end) : mkSpan(whole.end, whole.end);
+      this.error(at, `expected \`<=\` after \`${assign.target.text}\`, e.g. \`${assign.target.text} <= in\``);
+      return undefined;
+    }
+    i += 2;
+    const whenAt = toks.findIndex((t, k) => k >= i && t.kind === T.Ident && t.text === 'when');
+    const exprToks = toks.slice(i, whenAt < 0 ? undefined : whenAt);
+    if (exprToks.length === 0) {
+      this.error(mkSpan(toks[i - 1].end, toks[i - 1].end), 'expected the value to store after `<=`');
+      return undefined;
+    }
+    assign.expr = this.exprOf(exprToks);
+    if (whenAt >= 0) {
+      const cond = toks.slice(whenAt + 1);
+      if (cond.length === 0) this.error(mkSpan(toks[whenAt].start, toks[whenAt].end), 'expected a one-bit condition after `when`');
+      else assign.when = this.exprOf(cond);
+    }
+    return assign;
+  }
+
   private parsePhase(): A.PhaseDecl {
     const keyword = this.keywordSpan();
     const decl: A.PhaseDecl = { kind: 'phase', keyword, span: keyword, body: [] };

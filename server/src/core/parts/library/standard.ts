@@ -1,0 +1,85 @@
+// The standard library: the nine part kinds every machine may use without declaring them,
+// written in the notation itself (`kind` declarations, docs/notation.md) so that hover shows
+// what a part does, go-to-definition opens it, and a builder can copy one as the start of their
+// own kind. It is read like any table (parse, build, width-check); a test keeps it clean.
+//
+// The RV32I meanings follow the RISC-V Unprivileged ISA, version 20191213, chapter 2: register
+// x0 reads zero (2.1), the immediate formats I, S, B, U and J (2.3, figure 2.4), shifts use the
+// low five bits of the amount and SLT/SLTU compare signed/unsigned (2.4), the branch
+// conditions (2.5), loads sign- or zero-extend and memory is little-endian (2.6).
+
+/** Where the library's text is shown in the editor (a read-only document). */
+export const standardLibraryName = 'standard.pwt';
+
+export const standardLibraryText = String.raw`# Phasewright standard library: the built-in part kinds, written in the notation.
+# Read-only. Copy a kind into your table under a new name to make your own.
+
+kind register "register: loads a bus at the closing edge, can drive a bus"
+  setting width number = 32 "bits"
+  setting reset number = 0 "value after reset"
+  state q width = reset
+  drive q width = q
+  on load width: q <= in
+
+kind instruction "instruction register: its bits feed the address lines, register selects and immediate generator"
+  setting width number = 32 "bits"
+  setting reset number = 0 "value after reset"
+  state q width = reset
+  drive q width = q
+  on load width: q <= in
+
+kind counter "counter: a register that can also count up by its increment"
+  setting width number = 32 "bits"
+  setting inc number = 4 "what a count strobe adds"
+  setting bit0 choice keep zero = keep "zero: bit 0 is always stored as 0 (RV32I jump targets)"
+  setting reset number = 0 "value after reset"
+  state q width = reset
+  drive q width = q
+  on load width: q <= select bit0 { keep: in, zero: in & ~zext(0b1, width) }
+  on count: q <= q + inc
+
+kind regfile "register file: 32 registers selected by the instruction's rs1, rs2 and rd fields"
+  setting width number = 32 "bits per register"
+  setting x0 choice hardwired stored guarded = hardwired "hardwired: x0 reads 0 and ignores writes; stored: a real register; guarded: stored, its clock blocked when rd = 0"
+  input ir 32 instruction "the instruction register: rs1 = bits 19..15, rs2 = 24..20, rd = 11..7"
+  state r width x 32 = 0
+  drive rs1 width = r[ir[19:15]]
+  drive rs2 width = r[ir[24:20]]
+  on rd width: r[ir[11:7]] <= in when select x0 { stored: 0b1, else: ir[11:7] != 0 }
+
+kind immediate "immediate generator: sign-extended I, S, B, U and J immediate of the instruction"
+  input ir 32 after from "the instruction register it rearranges (spec 2.3, figure 2.4)"
+  control fmt: i s b u j
+  drive imm 32 = select fmt { i: sext(ir[31:20], 32), s: sext({ir[31:25], ir[11:7]}, 32), b: sext({ir[31], ir[7], ir[30:25], ir[11:8], 0b0}, 32), u: {ir[31:12], 0x000}, j: sext({ir[31], ir[19:12], ir[20], ir[30:21], 0b0}, 32) }
+
+kind alu "ALU: combines its two operand buses"
+  setting width number = 32 "bits"
+  input a width "operand a (a bus)"
+  input b width "operand b (a bus)"
+  control fn: add sub sll slt sltu xor srl sra or and passa passb
+  drive y width = select fn { add: a + b, sub: a - b, sll: a << b[4:0], slt: zext(a <s b, width), sltu: zext(a < b, width), xor: a ^ b, srl: a >> b[4:0], sra: a >>> b[4:0], or: a | b, and: a & b, passa: a, passb: b }
+
+kind compare "comparator: tests its two operand buses and latches a flag"
+  setting width number = 32 "bits"
+  setting cond choice field funct3 = field "funct3: the condition is the branch's funct3 (spec 2.5); field: a field chooses it"
+  input a width "operand a (a bus)"
+  input b width "operand b (a bus)"
+  input ir 32 instruction "the instruction register, for cond=funct3"
+  control test: eq ne lt ge ltu geu
+  state f 1 = 0
+  on latch: f <= select cond { funct3: select ir[14:12] { 0: a == b, 1: a != b, 4: a <s b, 5: a >=s b, 6: a < b, 7: a >= b, else: 0b0 }, field: select test { eq: a == b, ne: a != b, lt: a <s b, ge: a >=s b, ltu: a < b, geu: a >= b } }
+  flag taken = f
+
+kind memory "memory port: reads and writes bytes, halfwords and words (little-endian, spec 2.6)"
+  setting width number = 32 "bits"
+  input addr 32 keyed "the byte address: a register part or a bus"
+  control size: byte half word ubyte uhalf
+  state m 8 x memory
+  drive data width = select size { byte: sext(m[addr], 32), half: sext({m[addr + 1], m[addr]}, 32), word: {m[addr + 3], m[addr + 2], m[addr + 1], m[addr]}, ubyte: zext(m[addr], 32), uhalf: zext({m[addr + 1], m[addr]}, 32) }
+  on write width: m[addr] <= in[7:0], m[addr + 1] <= in[15:8] when select size { half: 0b1, word: 0b1, uhalf: 0b1, else: 0b0 }, m[addr + 2] <= in[23:16] when select size { word: 0b1, else: 0b0 }, m[addr + 3] <= in[31:24] when select size { word: 0b1, else: 0b0 }
+
+kind constant "constant source: a fixed value"
+  setting width number = 32 "bits"
+  setting value number "the value it drives"
+  drive k width = value
+`;
