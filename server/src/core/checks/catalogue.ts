@@ -45,6 +45,18 @@ export const catalogue: CodeInfo[] = [
     explanation: 'A strobe or field that no step asserts, a bus no strobe touches, a part nothing is wired to, a map or phase nobody uses, or a flag no guard or address tests. Harmless in itself, but often a sign of a forgotten step or a misspelt name. The quick fix removes an unused strobe and its placement in the word.',
   },
   {
+    code: 'kind-definition',
+    severity: 'error',
+    title: 'a part kind\'s definition cannot be read as written',
+    explanation: 'A `kind` declaration describes what a part does: its settings, inputs, controls, state, the ports strobes use and what happens at the closing edge (docs/notation.md, "Part kinds"). This line breaks one of its rules: a size that is neither a number nor a number setting declared above, a default that is not one of the choices, a closing-edge action on something that is not state, an index missing on (or added to) a register array, or a kind with no port at all. The line is left out, so the kind does less than you meant until it is fixed.',
+  },
+  {
+    code: 'kind-not-wired',
+    severity: 'error',
+    title: 'a part uses a kind of the table\'s own, which is not yet simulated or checked',
+    explanation: 'Kinds you declare with `kind` are read and checked, but this version does not yet run them in the simulator, count them in the contention, latch and timing checks, or in the budgets. Rather than build images whose meaning it has not checked, Phasewright reports every part of such a kind and leaves it out. Until then, describe the part with one of the standard library\'s kinds (hover a kind to read its definition).',
+  },
+  {
     code: 'unknown-kind',
     severity: 'error',
     title: 'an unknown part kind, strobe kind, setting or chip',

@@ -148,6 +148,7 @@ export const addressInputTexts: Record<string, string> = {
 /** Words that have a fixed meaning where they stand. */
 export const keywordTexts: Record<string, string> = {
   machine: 'names the machine; `isa rv32i` promises the whole RV32I base instruction set',
+  kind: 'defines a part kind in the notation: its settings, inputs, controls, state, ports and closing-edge actions (docs/notation.md, "Part kinds")',
   bus: 'a shared bus: `bus NAME WIDTH [keeper]`',
   part: 'a part on the buses: `part NAME KIND ...`',
   strobe: 'a one-bit control output of the control store: `strobe NAME KIND ...`',

@@ -42,6 +42,7 @@ export interface SemanticToken {
 }
 
 const typeOfSymbol: Record<SymbolKind, SemanticTokenType> = {
+  kind: 'type',
   strobe: 'variable',
   field: 'property',
   value: 'enumMember',

@@ -14,13 +14,15 @@ import { controlVocabulary, instructionFields, partKinds, strobeKinds } from './
 import { buildBodies } from './buildSteps';
 import { type FigureHost, figureInfo, figureNamesFor, figureRangeProblem, figureTextProblem, parseFigureValue } from '../budget/figures';
 import { acceptableCodes, codeInfo } from '../checks/catalogue';
+import { buildKind } from '../parts/kinds';
+import { libraryKind, standardLibrary } from '../parts/library';
 
 export interface BuildResult {
   machine: M.Machine;
   diagnostics: Diagnostic[];
 }
 
-type Namespace = 'structure' | 'signal' | 'map' | 'phase' | 'class' | 'store';
+type Namespace = 'structure' | 'signal' | 'map' | 'phase' | 'class' | 'store' | 'kind';
 
 const namespaceOf: Record<M.SymbolKind, Namespace> = {
   bus: 'structure',
@@ -34,12 +36,14 @@ const namespaceOf: Record<M.SymbolKind, Namespace> = {
   phase: 'phase',
   class: 'class',
   store: 'store',
+  kind: 'kind',
 };
 
 /** Shared state of one model build; the step builder uses it too. */
 export class BuildContext {
   readonly diagnostics: Diagnostic[] = [];
   readonly machine: M.Machine = {
+    kinds: new Map(),
     figures: new Map(),
     buses: new Map(),
     parts: new Map(),
@@ -176,6 +180,7 @@ export class BuildContext {
 /** Builds the model. Never throws on any tree the parser can produce. */
 export function buildModel(tree: A.FileNode): BuildResult {
   const ctx = new BuildContext();
+  buildKinds(ctx, tree);
   declareAll(ctx, tree);
   for (const decl of tree.decls) {
     if (decl.kind === 'machine') buildMachine(ctx, decl);
@@ -206,6 +211,28 @@ function checkLedVoltages(ctx: BuildContext): void {
     if (!figures || !vf || vf.value < supply.value) continue;
     ctx.report('bad-number', vf.span, `\`led_vf=${vf.value}\` is at or above the ${supply.value} V supply, so these LEDs would never light; check the LED's data sheet and supply_v`, [{ span: supply.span, message: `supply_v=${supply.value}` }]);
     figures.delete('led_vf');
+  }
+}
+
+/**
+ * Part kinds first: the standard library's, then the table's own `kind` declarations. A table's
+ * kind may not reuse a library name (a part line would then mean two different things).
+ */
+function buildKinds(ctx: BuildContext, tree: A.FileNode): void {
+  for (const kind of standardLibrary().kinds.values()) {
+    const symbol: M.SymbolInfo = { kind: 'kind', name: kind.name, key: kind.name, span: kind.span, declSpan: kind.declSpan, origin: 'library' };
+    ctx.names.get('kind')?.set(kind.name, symbol) ?? ctx.names.set('kind', new Map([[kind.name, symbol]]));
+    ctx.machine.kinds.set(kind.name, kind);
+  }
+  for (const decl of tree.decls) {
+    if (decl.kind !== 'kind' || !decl.name) continue;
+    if (libraryKind(decl.name.text)) {
+      ctx.report('duplicate-name', decl.name.span, `\`${decl.name.text}\` is a kind of the standard library; give your kind another name (hover a part's kind to read the library's definition)`);
+      continue;
+    }
+    if (!ctx.declare('kind', decl.name, decl.span)) continue;
+    const kind = buildKind(decl, 'table', (d) => ctx.diagnostics.push(d));
+    if (kind) ctx.machine.kinds.set(kind.name, kind);
   }
 }
 
@@ -373,8 +400,20 @@ function buildPart(ctx: BuildContext, decl: A.PartDecl): void {
   if (!owns(ctx, 'structure', decl.name, decl.span) || !decl.partKind) return;
   const name = decl.name!.text;
   const kindText = decl.partKind.text as M.PartKind;
+  const kindSymbol = ctx.lookup('kind', kindText);
+  if (kindSymbol) ctx.reference(decl.partKind.span, kindSymbol);
+  if (kindSymbol && !kindSymbol.origin) {
+    // A kind of the table's own: read and checked (kinds.ts), not yet run by the simulator, the
+    // encoder's checks or the budget, so using it would be a silent misreading. Say so.
+    ctx.report(
+      'kind-not-wired',
+      decl.partKind.span,
+      `\`${kindText}\` is a kind of this table: its definition is read and checked, but parts of your own kinds are not yet simulated, checked for contention or counted in budgets; until they are, describe this part with a standard-library kind`,
+    );
+    return;
+  }
   if (!partKinds.includes(kindText)) {
-    const guess = closest(decl.partKind.text, partKinds);
+    const guess = closest(decl.partKind.text, [...partKinds, ...ctx.machine.kinds.keys()]);
     ctx.report(
       'unknown-kind',
       decl.partKind.span,

@@ -3,10 +3,11 @@
 // holds only what could be understood; problems were reported while building it. Names map to
 // the first declaration of that name (later duplicates are reported and left out).
 import type { Span } from '../text/span';
+import type { KindDef } from '../parts/kinds';
 
 export type Level = 'high' | 'low';
 
-export type SymbolKind = 'bus' | 'part' | 'port' | 'flag' | 'strobe' | 'field' | 'value' | 'map' | 'phase' | 'class' | 'store';
+export type SymbolKind = 'bus' | 'part' | 'port' | 'flag' | 'strobe' | 'field' | 'value' | 'map' | 'phase' | 'class' | 'store' | 'kind';
 
 /** A declared name. `key` identifies it uniquely (values are `field/value`, ports `part.port`). */
 export interface SymbolInfo {
@@ -17,6 +18,8 @@ export interface SymbolInfo {
   span: Span;
   /** The whole declaration (line or block). */
   declSpan: Span;
+  /** `library`: declared in the standard library; its spans are offsets in the library's text. */
+  origin?: 'library';
 }
 
 /** A use of a declared name, at `span` (the name's text only). */
@@ -265,6 +268,8 @@ export interface ClassDef {
 
 export interface Machine {
   title?: string;
+  /** Part kinds by name: the standard library's and the table's own (`kind` declarations). */
+  kinds: Map<string, KindDef>;
   isa?: string;
   /** Machine-wide figures from the `machine` line: supply, budget, planned clock. */
   figures: Figures;

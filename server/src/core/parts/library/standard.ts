@@ -18,24 +18,24 @@ kind register "register: loads a bus at the closing edge, can drive a bus"
   setting width number = 32 "bits"
   setting reset number = 0 "value after reset"
   state q width = reset
-  drive q width = q
+  drive out width = q
   on load width: q <= in
 
 kind instruction "instruction register: its bits feed the address lines, register selects and immediate generator"
   setting width number = 32 "bits"
   setting reset number = 0 "value after reset"
   state q width = reset
-  drive q width = q
+  drive out width = q
   on load width: q <= in
 
 kind counter "counter: a register that can also count up by its increment"
   setting width number = 32 "bits"
   setting inc number = 4 "what a count strobe adds"
-  setting bit0 choice keep zero = keep "zero: bit 0 is always stored as 0 (RV32I jump targets)"
+  setting bit0 choice kept zero = kept "zero: bit 0 is always stored as 0 (RV32I jump targets need it)"
   setting reset number = 0 "value after reset"
   state q width = reset
-  drive q width = q
-  on load width: q <= select bit0 { keep: in, zero: in & ~zext(0b1, width) }
+  drive out width = q
+  on load width: q <= select bit0 { kept: in, zero: in & ~zext(0b1, width) }
   on count: q <= q + inc
 
 kind regfile "register file: 32 registers selected by the instruction's rs1, rs2 and rd fields"

@@ -1,0 +1,272 @@
+// Part kinds as data: a `kind` declaration (docs/notation.md, "Part kinds") read into a
+// KindDef — its settings, the inputs a part line wires, the controls a field may name, its state,
+// the ports strobes use (drive ports for enable and read, edge ports for clock, count and write),
+// its flags and what happens at the closing edge. The standard library's nine kinds and a
+// table's own kinds are read by this one function, so both are held to the same rules.
+//
+// What is checked here is the shape of the definition: names unique within the kind, sizes
+// that are numbers or number settings, defaults among the choices, edge targets that are state.
+// Expressions stay text with their spans here; `expr/` parses and width-checks them per part,
+// where the settings are known.
+import type * as A from '../syntax/ast';
+import type { Diagnostic } from '../text/diagnostic';
+import type { Span } from '../text/span';
+import { parseNumber } from '../model/numbers';
+
+/** A width or count: a number, or a number setting of the kind (resolved per part). */
+export type Size = { kind: 'number'; value: number; span: Span } | { kind: 'setting'; name: string; span: Span };
+
+export interface KindSetting {
+  name: string;
+  type: 'number' | 'choice';
+  choices: string[];
+  /** A number for a number setting, a choice name for a choice; undefined when the part line must give it. */
+  default?: number | string;
+  description?: string;
+  span: Span;
+}
+
+export type InputWiring = 'positional' | 'after' | 'instruction' | 'keyed';
+
+export interface KindInput {
+  name: string;
+  width: Size;
+  wiring: InputWiring;
+  /** For `after WORD`: the word the part line writes before the source. */
+  after?: string;
+  description?: string;
+  span: Span;
+}
+
+export interface KindControl {
+  name: string;
+  values: string[];
+  span: Span;
+}
+
+export interface KindState {
+  name: string;
+  width: Size;
+  /** Number of registers for an array (`x 32`); `memory` for the program's byte memory. */
+  count?: Size | 'memory';
+  reset?: A.ExprText;
+  span: Span;
+}
+
+export interface KindDrive {
+  name: string;
+  width: Size;
+  expr: A.ExprText;
+  description?: string;
+  span: Span;
+}
+
+export interface KindFlag {
+  name: string;
+  expr: A.ExprText;
+  span: Span;
+}
+
+export interface KindAssign {
+  target: string;
+  targetSpan: Span;
+  index?: A.ExprText;
+  expr: A.ExprText;
+  when?: A.ExprText;
+  span: Span;
+}
+
+export interface KindEdge {
+  name: string;
+  /** Width of the bus value (`in`) the strobe brings; none for a count or a latch. */
+  width?: Size;
+  assigns: KindAssign[];
+  description?: string;
+  span: Span;
+}
+
+export interface KindDef {
+  name: string;
+  description?: string;
+  /** `library` for the standard library (its spans are offsets in the library text). */
+  origin: 'library' | 'table';
+  settings: KindSetting[];
+  inputs: KindInput[];
+  controls: KindControl[];
+  states: KindState[];
+  drives: KindDrive[];
+  flags: KindFlag[];
+  edges: KindEdge[];
+  /** The name in the declaration. */
+  span: Span;
+  declSpan: Span;
+}
+
+/** Names an expression of a kind may always use besides its own: the bus value of an edge port. */
+export const edgeInputName = 'in';
+
+/** Reads one `kind` declaration. Problems are reported; broken lines are left out. */
+export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (d: Diagnostic) => void): KindDef | undefined {
+  if (!decl.name) return undefined;
+  const error = (span: Span, message: string, code = 'kind-definition') => report({ code, severity: 'error', span, message });
+  const def: KindDef = {
+    name: decl.name.text,
+    description: decl.description?.value,
+    origin,
+    settings: [],
+    inputs: [],
+    controls: [],
+    states: [],
+    drives: [],
+    flags: [],
+    edges: [],
+    span: decl.name.span,
+    declSpan: decl.span,
+  };
+  // One set of names per kind: settings, inputs, controls, state, ports and flags are all named
+  // in its expressions or on strobe lines, so two of them sharing a name would be ambiguous.
+  const seen = new Map<string, Span>();
+  const claim = (name: A.Name | undefined, what: string): name is A.Name => {
+    if (!name) return false;
+    const earlier = seen.get(name.text);
+    if (earlier) {
+      report({ code: 'duplicate-name', severity: 'error', span: name.span, message: `\`${name.text}\` is already a name in kind \`${def.name}\`; give this ${what} another name`, related: [{ span: earlier, message: `first use of \`${name.text}\`` }] });
+      return false;
+    }
+    if (name.text === edgeInputName) {
+      error(name.span, `\`${edgeInputName}\` is the bus value an edge port brings; choose another name for this ${what}`);
+      return false;
+    }
+    seen.set(name.text, name.span);
+    return true;
+  };
+  const numberSettings = () => new Set(def.settings.filter((s) => s.type === 'number').map((s) => s.name));
+  const size = (ref: A.SizeRef | undefined, what: string, max = 64): Size | undefined => {
+    if (!ref) return undefined;
+    const value = parseNumber(ref.text);
+    if (value !== undefined) {
+      if (value < 1 || value > max) {
+        error(ref.span, `${what} must be between 1 and ${max}; \`${ref.text}\` is out of range`, 'bad-number');
+        return undefined;
+      }
+      return { kind: 'number', value, span: ref.span };
+    }
+    if (/^[0-9]/.test(ref.text)) {
+      error(ref.span, `\`${ref.text}\` is not a number; write ${what} in decimal, or with 0x (hex) or 0b (binary)`, 'bad-number');
+      return undefined;
+    }
+    if (!numberSettings().has(ref.text)) {
+      error(ref.span, `${what} must be a number or a number setting declared above this line; kind \`${def.name}\` has no number setting \`${ref.text}\``);
+      return undefined;
+    }
+    return { kind: 'setting', name: ref.text, span: ref.span };
+  };
+
+  for (const item of decl.items) {
+    switch (item.item) {
+      case 'setting': {
+        if (!claim(item.name, 'setting') || !item.type) break;
+        const type = item.type.text as KindSetting['type'];
+        const choices = item.choices.map((c) => c.text);
+        let dflt: number | string | undefined;
+        if (item.default) {
+          if (type === 'number') {
+            dflt = parseNumber(item.default.text);
+            if (dflt === undefined) error(item.default.span, `the default of a number setting must be a number; \`${item.default.text}\` is not`, 'bad-number');
+          } else if (!choices.includes(item.default.text)) {
+            error(item.default.span, `the default \`${item.default.text}\` is not one of the choices (${choices.join(', ')})`);
+          } else dflt = item.default.text;
+        } else if (type === 'choice') dflt = choices[0];
+        if (type === 'choice' && choices.length < 2) error(item.type.span, 'a choice setting lists at least two choices, e.g. `setting x0 choice hardwired stored`');
+        def.settings.push({ name: item.name.text, type, choices, default: dflt, description: item.description?.value, span: item.name.span });
+        break;
+      }
+      case 'input': {
+        if (!claim(item.name, 'input')) break;
+        const width = size(item.width, 'an input width');
+        if (!width) break;
+        const wiring: InputWiring = item.after ? 'after' : item.instruction ? 'instruction' : item.keyed ? 'keyed' : 'positional';
+        def.inputs.push({ name: item.name.text, width, wiring, after: item.after?.text, description: item.description?.value, span: item.name.span });
+        break;
+      }
+      case 'control': {
+        if (!claim(item.name, 'control')) break;
+        const values = item.values.map((v) => v.text);
+        const dup = item.values.find((v, i) => values.indexOf(v.text) !== i);
+        if (dup) error(dup.span, `\`${dup.text}\` is listed twice in control \`${item.name.text}\``, 'duplicate-name');
+        if (values.length === 0) error(item.name.span, `control \`${item.name.text}\` lists no values; write the operations a field may choose, e.g. \`control fn: add sub\``);
+        def.controls.push({ name: item.name.text, values: [...new Set(values)], span: item.name.span });
+        break;
+      }
+      case 'state': {
+        if (!claim(item.name, 'state')) break;
+        const width = size(item.width, 'a state width');
+        if (!width) break;
+        let count: KindState['count'];
+        if (item.count?.text === 'memory') count = 'memory';
+        else if (item.count) {
+          count = size(item.count, 'a register count', 4096);
+          if (!count) break;
+        }
+        if (count === 'memory' && item.reset) error(item.reset.span, 'the program memory is loaded from the program, not reset: remove `= ...`');
+        def.states.push({ name: item.name.text, width, count, reset: count === 'memory' ? undefined : item.reset, span: item.name.span });
+        break;
+      }
+      case 'drive': {
+        if (!claim(item.name, 'drive port')) break;
+        const width = size(item.width, 'a port width');
+        if (!width || !item.expr) break;
+        def.drives.push({ name: item.name.text, width, expr: item.expr, description: item.description?.value, span: item.name.span });
+        break;
+      }
+      case 'flag': {
+        if (!claim(item.name, 'flag') || !item.expr) break;
+        def.flags.push({ name: item.name.text, expr: item.expr, span: item.name.span });
+        break;
+      }
+      case 'on': {
+        if (!claim(item.name, 'edge port')) break;
+        const width = item.width ? size(item.width, 'the width of the bus value') : undefined;
+        if (item.width && !width) break;
+        const assigns: KindAssign[] = [];
+        for (const a of item.assigns) {
+          const state = def.states.find((s) => s.name === a.target.text);
+          if (!state) {
+            error(a.target.span, `\`${a.target.text}\` is not state of kind \`${def.name}\`: only state declared above (\`state NAME WIDTH\`) changes at the closing edge`);
+            continue;
+          }
+          if (state.count && !a.index) {
+            error(a.target.span, `\`${a.target.text}\` holds several registers: say which, e.g. \`${a.target.text}[ir[11:7]] <= in\``);
+            continue;
+          }
+          if (!state.count && a.index) {
+            error(a.index.span, `\`${a.target.text}\` is one register, not several: remove the index`);
+            continue;
+          }
+          if (!a.expr) continue;
+          assigns.push({ target: a.target.text, targetSpan: a.target.span, index: a.index, expr: a.expr, when: a.when, span: a.span });
+        }
+        def.edges.push({ name: item.name.text, width, assigns, description: item.description?.value, span: item.name.span });
+        break;
+      }
+    }
+  }
+  if (def.drives.length === 0 && def.edges.length === 0 && def.flags.length === 0) {
+    error(def.span, `kind \`${def.name}\` has no drive port, edge port or flag, so no strobe or address line could ever use it`);
+  }
+  return def;
+}
+
+/** The port a strobe names when it writes only the part (`enable pc -> left`): the first of its kind. */
+export function defaultDrive(kind: KindDef): KindDrive | undefined {
+  return kind.drives[0];
+}
+
+export function defaultEdge(kind: KindDef): KindEdge | undefined {
+  return kind.edges[0];
+}
+
+/** The kind's declaration as written, for hover (the source text it came from). */
+export function kindSource(kind: KindDef, text: string): string {
+  return text.slice(kind.declSpan.start, kind.declSpan.end).replace(/\s+$/, '');
+}
