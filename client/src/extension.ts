@@ -9,6 +9,7 @@ import { LanguageClient, type LanguageClientOptions, type ServerOptions, Transpo
 import { buildImagesCommand } from './buildCommand';
 import { newMachineCommand } from './newMachine';
 import { runProgramCommand } from './runCommand';
+import { LibraryProvider, libraryScheme } from './libraryView';
 import { ListingProvider, listingScheme, showListingCommand } from './listingView';
 import { ServerCommands } from './serverCommands';
 import { StatusBar } from './statusBar';
@@ -31,7 +32,12 @@ export async function activate(context: vscode.ExtensionContext): Promise<void> 
     debug: { module: serverModule, transport: TransportKind.ipc, options: { execArgv: ['--nolazy', '--inspect=6019'] } },
   };
   const clientOptions: LanguageClientOptions = {
-    documentSelector: [{ language: 'phasewright' }],
+    // Files on disk and unsaved ones only: the listing and standard-library documents are
+    // read-only views, not tables to analyse.
+    documentSelector: [
+      { language: 'phasewright', scheme: 'file' },
+      { language: 'phasewright', scheme: 'untitled' },
+    ],
     synchronize: { configurationSection: 'phasewright' },
     outputChannelName: 'Phasewright Language Server',
   };
@@ -44,6 +50,7 @@ export async function activate(context: vscode.ExtensionContext): Promise<void> 
     output,
     listings,
     vscode.workspace.registerTextDocumentContentProvider(listingScheme, listings),
+    vscode.workspace.registerTextDocumentContentProvider(libraryScheme, new LibraryProvider()),
     vscode.commands.registerCommand('phasewright.newMachine', () => newMachineCommand(context.extensionUri)),
     vscode.commands.registerCommand('phasewright.buildImages', () => buildImagesCommand(server, output, phasewrightEditor()?.document)),
     vscode.commands.registerCommand('phasewright.runProgram', () => runProgramCommand(server, output, phasewrightEditor()?.document)),

@@ -177,6 +177,17 @@ describe('navigation', () => {
     expect(refs.map((r) => r.range.start)).toEqual([pos(demo, 'strobe t.oe', 7), pos(demo, 't.oe 9'), pos(demo, '4: t.oe', 3)]);
   });
 
+  it('goes from a part\'s kind to its definition in the read-only standard library, and hovers it', async () => {
+    const { standardLibraryText } = await import('../../server/src/core/parts/library');
+    const definition = await client.request<Location>('textDocument/definition', { textDocument: { uri: demoUri }, position: pos(demo, 'part alu  alu', 10) });
+    expect(definition.uri).toBe('phasewright-library:/standard.pwt');
+    expect(definition.range).toEqual({ start: pos(standardLibraryText, 'kind alu ', 5), end: pos(standardLibraryText, 'kind alu ', 8) });
+    const hover = await hoverAt('part alu  alu', 10);
+    expect(hover?.value).toContain('**part kind `alu`** — ALU: combines its two operand buses');
+    expect(hover?.value).toContain('the standard library (read-only');
+    expect(hover?.value).toContain('control fn: add sub sll slt sltu xor srl sra or and passa passb');
+  });
+
   it('renames a field value across steps, idle settings and map rows', async () => {
     const prepared = await client.request<{ range: unknown; placeholder: string }>('textDocument/prepareRename', { textDocument: { uri: demoUri }, position: pos(demo, 'idle=passa', 6) });
     expect(prepared.placeholder).toBe('passa');

@@ -7,6 +7,7 @@ import { analyse } from '../../server/src/core/analysis';
 import { standardLibrary, standardLibraryText } from '../../server/src/core/parts/library';
 import type { KindDecl } from '../../server/src/core/syntax/ast';
 import { dedent, expectDiagnostics } from '../support/annotated';
+import { formatDocument } from '../../server/src/core/ide/format';
 
 const machineTail = dedent(`
   bus result 8
@@ -146,5 +147,20 @@ describe('the standard library', () => {
     expect(demo.diagnostics).toEqual([]);
     const ref = demo.machine.references.find((r) => r.symbol.kind === 'kind');
     expect(ref?.symbol).toMatchObject({ name: 'register', origin: 'library' });
+  });
+});
+
+describe('formatting a kind', () => {
+  it('changes only the indentation of its lines: the spacing inside expressions is the author\'s', () => {
+    const text = 'kind   mux2 "two-way"\n      input a 8\n  drive y 8 = select pick { first: a,  second: b }\n     on load 8: q <= in when a != b\n';
+    const analysis = analyse(text);
+    const edits = formatDocument(analysis);
+    let out = text;
+    for (const e of [...edits].sort((a, b) => b.span.start - a.span.start)) out = out.slice(0, e.span.start) + e.newText + out.slice(e.span.end);
+    expect(out).toBe('kind mux2 "two-way"\n  input a 8\n  drive y 8 = select pick { first: a,  second: b }\n  on load 8: q <= in when a != b\n');
+  });
+
+  it('leaves the standard library exactly as written', () => {
+    expect(formatDocument(analyse(standardLibraryText))).toEqual([]);
   });
 });

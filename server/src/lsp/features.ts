@@ -33,6 +33,8 @@ import { hover } from '../core/ide/hover';
 import { stepWordHints } from '../core/ide/inlayHints';
 import { definition, prepareRename, references, rename } from '../core/ide/navigation';
 import { semanticTokenModifiers, semanticTokenTypes, semanticTokens } from '../core/ide/semanticTokens';
+import { LineIndex } from '../core/text/lineIndex';
+import { standardLibraryName, standardLibraryText } from '../core/parts/library';
 import { type OutlineKind, type OutlineSymbol, documentSymbols, flatSymbols, matchesQuery } from '../core/ide/symbols';
 import type { TextEdit as CoreEdit } from '../core/text/diagnostic';
 import { executeCommand } from './commands';
@@ -59,6 +61,13 @@ const completionKinds: Record<CompletionKind, CompletionItemKind> = {
   setting: CompletionItemKind.Property,
   chip: CompletionItemKind.Value,
 };
+
+/** The standard library as the client shows it: a read-only document of its own scheme. */
+export const libraryUri = `phasewright-library:/${standardLibraryName}`;
+let libraryIndex: LineIndex | undefined;
+function libraryLines(): LineIndex {
+  return (libraryIndex ??= new LineIndex(standardLibraryText));
+}
 
 const symbolKinds: Record<OutlineKind, SymbolKind> = {
   section: SymbolKind.Package,
@@ -119,7 +128,10 @@ export function registerFeatures(connection: Connection, store: DocumentStore, o
       const analysis = analysisOf(params.textDocument.uri);
       if (!analysis) return null;
       const found = definition(analysis, toOffset(analysis.lines, params.position));
-      return found ? ({ uri: params.textDocument.uri, range: toRange(analysis.lines, found.span) } satisfies Location) : null;
+      if (!found) return null;
+      // A standard-library kind lives in the library's read-only document (the client shows it).
+      if (found.symbol.origin === 'library') return { uri: libraryUri, range: toRange(libraryLines(), found.span) } satisfies Location;
+      return { uri: params.textDocument.uri, range: toRange(analysis.lines, found.span) } satisfies Location;
     }),
   );
 

@@ -221,7 +221,11 @@ function inDeclarationLine(analysis: Analysis, keyword: string, tokens: Token[],
     case 'bus':
       return tokens.length >= 3 && !tokens.some((t) => t.text === 'keeper') && last.kind !== T.Equals ? [{ label: 'keeper', kind: 'keyword', documentation: keywordTexts.keeper }] : [];
     case 'part': {
-      if (tokens.length === 2) return words(partKinds, 'kind', 'part kind', (k) => partKindText(k as PartKind));
+      if (tokens.length === 2) {
+        // The standard library's kinds, then the table's own (`kind` declarations).
+        const own = [...machine.kinds.values()].filter((k) => k.origin === 'table');
+        return [...words(partKinds, 'kind', 'part kind', (k) => partKindText(k as PartKind)), ...own.map((k) => ({ label: k.name, kind: 'kind' as const, detail: 'part kind of this table', documentation: k.description }))];
+      }
       if (tokens.length < 3) return [];
       const kind = tokens[2].text as PartKind;
       if (afterEquals === 'x0') return words(['hardwired', 'stored', 'guarded'], 'setting', 'x0', (v) => keywordTexts[v] ?? { hardwired: 'x0 reads 0 and ignores writes', stored: 'x0 is a real register', guarded: 'stored, but a zero detector on rd blocks its clock' }[v]);

@@ -20,7 +20,7 @@ const cellGap = '   ';
 const outlierSlack = 20;
 const declarationWords = new Set<string>(declarationKeywords);
 
-type Role = 'blank' | 'comment' | 'frozen' | 'header' | 'step' | 'stepCont' | 'use' | 'placement' | 'source' | 'row' | 'body';
+type Role = 'blank' | 'comment' | 'frozen' | 'header' | 'step' | 'stepCont' | 'use' | 'placement' | 'source' | 'row' | 'body' | 'kindLine';
 
 interface Line {
   index: number;
@@ -106,7 +106,9 @@ function assignRoles(analysis: Analysis, lines: Line[]): void {
   }
   for (const error of analysis.parse.errors) freeze(error.span.start, error.span.end);
   for (const line of lines) {
-    if (line.tokens.some((t) => t.kind === T.Error || (t.kind === T.String && t.unterminated))) frozen.add(line.index);
+    // Expression characters (`<`, `?`, `|`...) are legitimate in a kind's lines; elsewhere they freeze the line.
+    const inKind = line.decl?.kind === 'kind';
+    if (line.tokens.some((t) => (t.kind === T.Error && !inKind) || (t.kind === T.String && t.unterminated))) frozen.add(line.index);
     const first = line.tokens[0];
     if (frozen.has(line.index)) line.role = 'frozen';
     else if (!first) line.role = line.comment ? 'comment' : 'blank';
@@ -117,7 +119,8 @@ function assignRoles(analysis: Analysis, lines: Line[]): void {
       else if (line.step && line.step.number.span.start === first.start) line.role = 'step';
       else if (line.step) line.role = 'stepCont';
       else line.role = 'frozen';
-    } else if (line.decl.kind === 'word') line.role = 'placement';
+    } else if (line.decl.kind === 'kind') line.role = 'kindLine';
+    else if (line.decl.kind === 'word') line.role = 'placement';
     else if (line.decl.kind === 'address') line.role = 'source';
     else if (line.decl.kind === 'map') line.role = 'row';
     else line.role = 'body';
@@ -176,6 +179,8 @@ function withComment(text: string, comment: string | undefined): string {
 
 function plainLine(line: Line): string {
   if (line.role === 'blank') return '';
+  // A kind's lines hold expressions whose spacing is the author's: only the indentation changes.
+  if (line.role === 'kindLine') return (line.indent + line.original.trim()).trimEnd();
   return (line.indent + withComment(join(line.tokens), line.comment)).trimEnd();
 }
 

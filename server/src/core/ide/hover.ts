@@ -6,6 +6,8 @@
 import { type CodeInfo, codeInfo } from '../checks/catalogue';
 import { budgetOf, type LineLoad } from '../budget/budget';
 import type { Analysis } from '../analysis';
+import { kindSource } from '../parts/kinds';
+import { standardLibraryText } from '../parts/library';
 import { RV32I_INSTRUCTIONS, majorOpcodeOf } from '../isa/rv32i';
 import { controlVocabulary } from '../model/vocabulary';
 import { T } from '../syntax/tokens';
@@ -42,7 +44,7 @@ export function hover(analysis: Analysis, offset: number): HoverResult | undefin
   const machine = analysis.machine;
   const occurrence = occurrenceAt(analysis, offset);
   if (occurrence) {
-    const markdown = hoverSymbol(machine, occurrence.symbol);
+    const markdown = occurrence.symbol.kind === 'kind' ? kindHover(analysis, occurrence.symbol) : hoverSymbol(machine, occurrence.symbol);
     if (markdown) return { markdown, span: occurrence.span };
   }
   const step = writtenStepAt(machine, offset);
@@ -384,6 +386,24 @@ function stepHover(machine: Machine, w: WrittenAlt): string {
     lines.push('');
   }
   return lines.join('\n').trimEnd();
+}
+
+/**
+ * A part kind: what it is, its settings and ports, and its definition as written — from the
+ * standard library (read-only; go to definition opens it) or from this table.
+ */
+function kindHover(analysis: Analysis, symbol: SymbolInfo): string | undefined {
+  const kind = analysis.machine.kinds.get(symbol.name);
+  if (!kind) return undefined;
+  const lines = [header('part kind', kind.name, kind.description), ''];
+  lines.push(kind.origin === 'library' ? '- **defined in** the standard library (read-only; go to definition opens it)' : '- **defined in** this table');
+  if (kind.settings.length) lines.push(`- **settings** ${kind.settings.map((s) => `\`${s.name}=\`` + (s.type === 'choice' ? ` ${s.choices.join(' | ')}` : '') + (s.default !== undefined ? ` (default ${s.default})` : ' (required)')).join(', ')}`);
+  const ports = [...kind.drives.map((d) => `\`${d.name}\` (drive)`), ...kind.edges.map((e) => `\`${e.name}\` (closing edge${e.width ? ', loads a bus' : ''})`), ...kind.flags.map((f) => `\`${f.name}\` (flag)`)];
+  if (ports.length) lines.push(`- **ports** ${ports.join(', ')}`);
+  for (const control of kind.controls) lines.push(`- **control** \`${control.name}\`: a field \`-> PART\` may use ${control.values.map((v) => `\`${v}\``).join(', ')}`);
+  const source = kind.origin === 'library' ? standardLibraryText : analysis.text;
+  lines.push('', '```phasewright', kindSource(kind, source), '```');
+  return lines.join('\n');
 }
 
 /** Keywords, kinds and address inputs: what they mean where they stand. */
