@@ -193,6 +193,12 @@ export function partPorts(part: Part): string[] {
       return [`inputs: buses \`${part.a}\` and \`${part.b}\``, `output: flag \`${part.flag}\`, latched at its clock strobe's edge`];
     case 'memory':
       return ['data out: drives a bus through a read strobe', 'data in: stores a bus at a write strobe\'s closing edge'];
+    case 'custom':
+      return [
+        ...part.def.drives.map((d) => `\`${d.name}\`: output, drives a bus through an enable strobe` + (d.description ? ` (${d.description})` : '')),
+        ...part.def.edges.map((e) => `\`${e.name}\`: ${e.width ? 'input, loads a bus' : 'acts'} at a strobe's closing edge` + (e.description ? ` (${e.description})` : '')),
+        ...part.def.flags.map((f) => `\`${f.name}\`: flag \`${part.flagNames.get(f.name) ?? f.name}\``),
+      ];
   }
 }
 

@@ -15,6 +15,7 @@ import { buildBodies } from './buildSteps';
 import { type FigureHost, figureInfo, figureNamesFor, figureRangeProblem, figureTextProblem, parseFigureValue } from '../budget/figures';
 import { acceptableCodes, codeInfo } from '../checks/catalogue';
 import { buildKind } from '../parts/kinds';
+import { buildCustomPart, customPortFor } from './buildCustomPart';
 import { libraryKind, standardLibrary } from '../parts/library';
 
 export interface BuildResult {
@@ -266,14 +267,24 @@ function declareAll(ctx: BuildContext, tree: A.FileNode): void {
         break;
     }
   }
-  // Flags are declared by the comparators that produce them (`-> taken`).
+  // Flags are declared by the parts that produce them (`-> taken`); a flag of a table's own kind
+  // that the part line does not name is called PART.FLAG (`cnt.zero`).
   for (const decl of tree.decls) {
-    if (decl.kind !== 'part') continue;
+    if (decl.kind !== 'part' || !decl.name || ctx.lookup('structure', decl.name.text)?.declSpan !== decl.span) continue;
+    let arrows = 0;
     for (const arg of decl.args) {
-      if (arg.kind === 'arrow' && arg.target && decl.name && ctx.lookup('structure', decl.name.text)?.declSpan === decl.span) {
+      if (arg.kind === 'arrow') arrows++;
+      if (arg.kind === 'arrow' && arg.target) {
         const symbol = ctx.declare('flag', arg.target, decl.span);
         if (symbol) ctx.machine.flags.set(arg.target.text, { name: arg.target.text, part: decl.name.text, symbol });
       }
+    }
+    const own = decl.partKind && ctx.lookup('kind', decl.partKind.text) && !ctx.lookup('kind', decl.partKind.text)!.origin ? ctx.machine.kinds.get(decl.partKind.text) : undefined;
+    for (const flag of own?.flags.slice(arrows) ?? []) {
+      const flagName = `${decl.name.text}.${flag.name}`;
+      // Not written anywhere: an empty span at the part's name keeps it out of the editor's occurrences.
+      const symbol = ctx.declare('flag', { text: flagName, span: { start: decl.name.span.end, end: decl.name.span.end } }, decl.span);
+      if (symbol) ctx.machine.flags.set(flagName, { name: flagName, part: decl.name.text, symbol });
     }
   }
 }
@@ -402,9 +413,14 @@ function buildPart(ctx: BuildContext, decl: A.PartDecl): void {
   const kindText = decl.partKind.text as M.PartKind;
   const kindSymbol = ctx.lookup('kind', kindText);
   if (kindSymbol) ctx.reference(decl.partKind.span, kindSymbol);
+  const ownKind = kindSymbol && !kindSymbol.origin ? ctx.machine.kinds.get(kindText) : undefined;
   if (kindSymbol && !kindSymbol.origin) {
-    // A kind of the table's own: read and checked (kinds.ts), not yet run by the simulator, the
-    // encoder's checks or the budget, so using it would be a silent misreading. Say so.
+    if (!ownKind) return; // its definition could not be read; that is reported there
+    const symbol = ctx.lookup('structure', name)!;
+    const part = buildCustomPart(ctx, decl, ownKind, { name, description: decl.description?.value, symbol }, (options) => readFigures(ctx, options, 'part'));
+    if (part) ctx.machine.parts.set(name, part);
+    // Read and checked, but not yet run by the simulator, the encoder's checks or the budget,
+    // so using it would be a silent misreading. Say so.
     ctx.report(
       'kind-not-wired',
       decl.partKind.span,
@@ -569,7 +585,18 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
   if (width === undefined) return;
   const field: M.Field = { type: 'field', name, width, values: new Map(), idle: 0, description: decl.description?.value, symbol: ctx.lookup('signal', name)! };
   let vocabulary: readonly string[] | undefined;
-  if (decl.target) {
+  const custom = decl.target ? customControlTarget(ctx, decl.target) : undefined;
+  if (custom) {
+    if (custom.control) {
+      vocabulary = custom.control.values;
+      const other = custom.part.controlFields.get(custom.control.name);
+      if (other) ctx.report('wrong-wiring', decl.target!.span, `control \`${custom.control.name}\` of \`${custom.part.name}\` is already driven by the field \`${other}\``, [{ span: ctx.machine.signals.get(other)!.symbol.span, message: 'the other field' }]);
+      else {
+        custom.part.controlFields.set(custom.control.name, name);
+        field.target = custom.part.name;
+      }
+    }
+  } else if (decl.target) {
     const sym = ctx.resolve('structure', decl.target.name, 'part', (s) => s.kind === 'part');
     const part = sym ? ctx.machine.parts.get(decl.target.name.text) : undefined;
     if (sym && !part) {
@@ -626,6 +653,28 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
     field.idle = idle.code;
   }
   ctx.machine.signals.set(name, field);
+}
+
+/**
+ * `-> PART` or `-> PART.CONTROL` naming a part of a table's own kind: the control the field
+ * drives (the kind's only control when none is named). Undefined when the target is not such a part.
+ */
+function customControlTarget(ctx: BuildContext, target: A.Ref): { part: M.CustomPart; control?: M.CustomPart['def']['controls'][number] } | undefined {
+  const text = target.name.text;
+  const dot = text.indexOf('.');
+  const partName = ctx.machine.parts.get(text)?.kind === 'custom' || dot < 0 ? text : text.slice(0, dot);
+  const part = ctx.machine.parts.get(partName);
+  if (part?.kind !== 'custom') return undefined;
+  const partSpan = { start: target.name.span.start, end: target.name.span.start + partName.length };
+  ctx.reference(partSpan, part.symbol);
+  const controlName = partName === text ? undefined : text.slice(dot + 1);
+  const controls = part.def.controls;
+  const control = controlName ? controls.find((c) => c.name === controlName) : controls.length === 1 ? controls[0] : undefined;
+  if (!control) {
+    const list = controls.map((c) => `\`${part.name}.${c.name}\``).join(', ');
+    ctx.report('wrong-wiring', target.span, controls.length === 0 ? `kind \`${part.def.name}\` has no control for a field to drive` : controlName ? `kind \`${part.def.name}\` has no control \`${controlName}\`; its controls are ${list}` : `\`${part.name}\` has several controls: name one, e.g. ${list}`);
+  }
+  return { part, control };
 }
 
 function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
@@ -693,14 +742,15 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
   }
   const bus = strobe.bus ? ctx.machine.buses.get(strobe.bus) : undefined;
   const part = strobe.part ? ctx.machine.parts.get(strobe.part) : undefined;
-  if (bus && part && part.kind !== 'regfile' && part.kind !== 'memory' && bus.width !== part.width && !accepted.has('width-mismatch')) {
+  const partWidth = part?.kind === 'custom' ? (customPortFor(part, kind, strobe.kindPort) as { width?: number }).width ?? part.width : part?.width;
+  if (bus && part && partWidth !== undefined && part.kind !== 'regfile' && part.kind !== 'memory' && bus.width !== partWidth && !accepted.has('width-mismatch')) {
     // The fix accepts the change on this line: before the description, or at the line's end.
     const at = decl.description?.span.start ?? decl.span.end;
     ctx.diagnostics.push({
       code: 'width-mismatch',
       severity: 'warning',
       span: decl.span,
-      message: `\`${part.name}\` is ${part.width} bits wide but the bus \`${bus.name}\` is ${bus.width}; the extra bits ${bus.width > part.width ? 'of the bus are undriven or ignored' : 'of the part are lost'}. If that is deliberate, end the line with \`accept width-mismatch\``,
+      message: `\`${part.name}${part.kind === 'custom' ? `.${strobe.kindPort}` : ''}\` is ${partWidth} bits wide but the bus \`${bus.name}\` is ${bus.width}; the extra bits ${bus.width > partWidth ? 'of the bus are undriven or ignored' : 'of the part are lost'}. If that is deliberate, end the line with \`accept width-mismatch\``,
       fixes: [{ title: 'Accept this width change on this line', edits: [{ span: { start: at, end: at }, newText: decl.description ? 'accept width-mismatch ' : ' accept width-mismatch' }] }],
     });
   }
@@ -796,6 +846,12 @@ function wirePart(ctx: BuildContext, strobe: M.Strobe, ref: A.Ref, role: M.Strob
     ctx.report('wrong-wiring', ref.span, message);
     return false;
   };
+  if (part.kind === 'custom') {
+    const found = customPortFor(part, role, port);
+    if ('problem' in found) return fail(found.problem);
+    strobe.kindPort = found.port;
+    return true;
+  }
   if (part.kind === 'regfile') {
     const outPorts = ['rs1', 'rs2'];
     if (!port) return fail(`say which port of the register file: \`${partName}.rs1\`, \`${partName}.rs2\`, \`${partName}.rd\` or \`${partName}[n]\``);

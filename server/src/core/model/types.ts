@@ -37,7 +37,7 @@ export interface Bus {
   figures: Figures;
 }
 
-export type PartKind = 'regfile' | 'register' | 'counter' | 'instruction' | 'immediate' | 'alu' | 'compare' | 'memory' | 'constant';
+export type PartKind = 'regfile' | 'register' | 'counter' | 'instruction' | 'immediate' | 'alu' | 'compare' | 'memory' | 'constant' | 'custom';
 
 interface PartBase {
   name: string;
@@ -94,7 +94,25 @@ export interface ConstantPart extends PartBase {
   value: number;
 }
 
-export type Part = RegfilePart | RegisterPart | CounterPart | ImmediatePart | AluPart | ComparePart | MemoryPart | ConstantPart;
+/** Where an input of a part of the table's own kind comes from. */
+export type InputSource = { from: 'bus'; name: string } | { from: 'part'; name: string } | { from: 'instruction' };
+
+/** A part of a kind the table declares itself (`kind`): its definition and what its part line set. */
+export interface CustomPart extends PartBase {
+  kind: 'custom';
+  /** The kind's name (`def.name`). */
+  kindName: string;
+  def: KindDef;
+  /** Every setting of the kind, with the part line's value or the kind's default. */
+  settings: Map<string, number | string>;
+  inputs: Map<string, InputSource>;
+  /** Machine flag name of each of the kind's flags (`-> NAME` on the part line, in order). */
+  flagNames: Map<string, string>;
+  /** The field that drives each of the kind's controls (`field F W -> PART.CONTROL`). */
+  controlFields: Map<string, string>;
+}
+
+export type Part = RegfilePart | RegisterPart | CounterPart | ImmediatePart | AluPart | ComparePart | MemoryPart | ConstantPart | CustomPart;
 
 /** A one-bit flag produced by a part (a comparator) and usable as an address input. */
 export interface Flag {
@@ -122,6 +140,8 @@ export interface Strobe {
   port?: string;
   /** For `x[n]` ports. */
   register?: number;
+  /** For a part of a table's own kind: the drive or edge port the strobe uses (named or the default). */
+  kindPort?: string;
   /** The bus driven (enable, read) or loaded from (clock, write). */
   bus?: string;
   symbol: SymbolInfo;

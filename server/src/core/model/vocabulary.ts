@@ -41,6 +41,7 @@ export const partKindDescriptions: Record<PartKind, string> = {
   compare: 'comparator: tests its two operand buses and latches a flag',
   memory: 'memory port: reads and writes bytes, halfwords and words',
   constant: 'constant source: a fixed value',
+  custom: 'a part of a kind this table declares (`kind`); hover the kind for its definition',
 };
 
 export const strobeKindDescriptions: Record<StrobeKind, string> = {
