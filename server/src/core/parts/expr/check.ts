@@ -226,9 +226,13 @@ class Checker {
     const field = e.selector.kind === 'name' ? this.scope(e.selector.name)?.values : undefined;
     const selectorName = shown(e.selector);
     const seen = new Map<bigint, SelectArm>();
+    let allKeysKnown = true;
     for (const arm of e.arms) {
       const code = this.armCode(arm, field, selectorName, selectorWidth);
-      if (code === undefined) continue;
+      if (code === undefined) {
+        allKeysKnown = false;
+        continue;
+      }
       const first = seen.get(code);
       if (first) {
         this.report('expr-value', arm.key.span, `${keyText(arm)} is listed twice in this select (code ${code}); the second arm would never be chosen`, [{ span: first.key.span, message: 'first listed here' }]);
@@ -237,7 +241,8 @@ class Checker {
       seen.set(code, arm);
       this.codes.set(arm, code);
     }
-    if (field && !e.otherwise) {
+    // A misspelt key usually stands for the value that then looks missing: report it once.
+    if (field && !e.otherwise && allKeysKnown) {
       const missing = [...field].filter(([, code]) => !seen.has(BigInt(code))).map(([name]) => name);
       if (missing.length) {
         this.report('expr-value', e.head, `\`select ${formatExpression(e.selector)}\` has no arm for ${missing.join(', ')} and no \`else\`; add ${missing.length === 1 ? 'the arm' : 'the arms'} or an \`else\` arm`);
@@ -257,7 +262,8 @@ class Checker {
       const code = field.get(key.name);
       if (code === undefined) {
         const suggestion = closest(key.name, field.keys());
-        this.report('expr-value', key.span, `${selector} has no value \`${key.name}\`; its values are ${[...field.keys()].join(', ')}`, undefined, suggestion);
+        const hint = suggestion ? `; did you mean \`${suggestion}\`?` : '';
+        this.report('expr-value', key.span, `${selector} has no value \`${key.name}\`; its values are ${[...field.keys()].join(', ')}${hint}`, undefined, suggestion);
         return undefined;
       }
       return BigInt(code);
