@@ -261,6 +261,36 @@ export const catalogue: CodeInfo[] = [
     title: 'the planned step clock is faster than the slowest step allows',
     explanation: 'For every step the longest path runs from the control word changing (access_ns) through the enabled drivers (en_ns), the ALU or other logic (tpd_ns) and the bus (settle_ns) to the setup time (tsu_ns) of the part that loads at the closing edge. A clock period shorter than that path latches values before they settle. Slow the clock (the message gives the fastest safe one before margin) or shorten the path. Estimates from entered figures: real boards need margin and measurement.',
   },
+  {
+    code: 'expr-syntax',
+    severity: 'error',
+    title: 'an expression does not follow the expression syntax',
+    explanation: 'An expression in a part definition (the behaviour of a port, flag or next value) could not be read: a missing operand or bracket, an unknown function, or an operator the syntax does not have (there is no `*`, `/` or lone `=`). The message says what was expected at that place; inside brackets the rest is still read, so one typo does not hide the next. See docs/expressions.md for the grammar.',
+  },
+  {
+    code: 'expr-width',
+    severity: 'error',
+    title: 'the widths in an expression do not agree',
+    explanation: 'Operands of `+ - & | ^`, of comparisons, the two choices of `?:` and the arms of a `select` must have the same width; a condition and a carry-in are one bit; the whole expression must have the width its place needs. The message names both widths. Hardware does not widen silently: say what the extra bits are with `zext` (zeros), `sext` (copies of the sign bit) or a slice `x[7:0]`. A decimal literal takes its width from its context, so where nothing gives one (alone in a `{..}` concatenation) write it in hex or binary, whose digits give the width.',
+  },
+  {
+    code: 'expr-slice',
+    severity: 'error',
+    title: 'a bit range lies outside its operand or is written low bit first',
+    explanation: 'In `x[hi:lo]` and `x[bit]` every bit number must be below the width of `x` (an 8-bit signal has bits 7 down to 0), and the high bit comes first. Reading a bit the signal does not have would wire an input to nothing. Correct the bit numbers or the width of the signal.',
+  },
+  {
+    code: 'expr-name',
+    severity: 'error',
+    title: 'an expression names a signal that does not exist',
+    explanation: 'A name in an expression is not a port, setting, control field or signal of the definition it stands in. Usually a typo: the message suggests the closest known name and the quick fix replaces it. Otherwise declare the port or field.',
+  },
+  {
+    code: 'expr-value',
+    severity: 'error',
+    title: 'a select key or literal does not fit what it stands for',
+    explanation: 'A `select` on a control field is keyed by the field\'s value names, and without an `else` arm it must have an arm for every value name (the message lists the missing ones); a `select` on a plain signal is keyed by numbers that fit its width; no key may be listed twice. A decimal literal must fit the width its place gives it (255 fits 8 bits, 256 does not). A code the field can carry that no arm lists gives 0 at run time, and the evaluator reports it to its caller (the simulator) rather than passing it on silently; list it or add `else`.',
+  },
 ];
 
 const byCode = new Map(catalogue.map((c) => [c.code, c]));

@@ -1,0 +1,233 @@
+// Compiles expressions to one JavaScript function (new Function). Values of up to 32 bits are
+// JS numbers kept unsigned (`>>> 0`), wider ones BigInt, so the common narrow datapath never
+// allocates. evaluate.ts is the definition; a property test holds the two equal on random trees.
+// Operands are evaluated left to right and only the chosen arm of `?:` and `select` runs, as in
+// the evaluator, so an uncovered-select callback fires at the same moments in both.
+import type { Expr, SelectExpr } from './ast';
+import { resolveForRun, type NameInfo, type Resolution } from './check';
+import type { RunOptions } from './evaluate';
+
+export type CompiledExpressions = (inputs: ArrayLike<number | bigint>) => (number | bigint)[];
+
+const isWide = (width: number) => width > 32;
+const bigMask = (width: number) => `0x${((1n << BigInt(width)) - 1n).toString(16)}n`;
+
+/** `code` (a number expression) reduced to `width` <= 32 bits, unsigned. */
+function wrap(code: string, width: number): string {
+  return width === 32 ? `((${code}) >>> 0)` : `((${code}) & ${2 ** width - 1})`;
+}
+
+/** A narrow unsigned value read as a signed 32-bit number. */
+function signed32(code: string, width: number): string {
+  return width === 32 ? `(${code} | 0)` : `((${code} << ${32 - width}) >> ${32 - width})`;
+}
+
+const toBig = (code: string, width: number) => (isWide(width) ? code : `BigInt(${code})`);
+
+class Generator {
+  readonly temps: string[] = [];
+  readonly selects: SelectExpr[] = [];
+  r!: Resolution;
+
+  constructor(
+    private readonly slot: (name: string) => string,
+    private readonly reportUncovered: boolean,
+  ) {}
+
+  private temp(wide: boolean): string {
+    const name = `t${this.temps.length}`;
+    this.temps.push(`${name} = ${wide ? '0n' : '0'}`);
+    return name;
+  }
+
+  private width(e: Expr): number {
+    return this.r.widths.get(e)!;
+  }
+
+  gen(e: Expr): string {
+    const w = this.width(e);
+    const wide = isWide(w);
+    switch (e.kind) {
+      case 'name':
+        return this.slot(e.name);
+      case 'number':
+        return wide ? `${e.value}n` : `${e.value}`;
+      case 'slice': {
+        const ow = this.width(e.operand);
+        const o = this.gen(e.operand);
+        if (!isWide(ow)) return w === 32 ? o : `((${o} >>> ${e.lo}) & ${2 ** w - 1})`;
+        const big = `((${o} >> ${e.lo}n) & ${bigMask(w)})`;
+        return wide ? big : `Number(${big})`;
+      }
+      case 'concat': {
+        let shift = w;
+        const parts = e.items.map((item) => {
+          const iw = this.width(item);
+          shift -= iw;
+          const code = this.gen(item);
+          if (wide) return shift ? `(${toBig(code, iw)} << ${shift}n)` : toBig(code, iw);
+          return shift ? `(${code} << ${shift})` : code;
+        });
+        return wide ? `(${parts.join(' | ')})` : `((${parts.join(' | ')}) >>> 0)`;
+      }
+      case 'rep': {
+        // Copies side by side are the value times 1 + 2^ow + 2^2ow + ... (exact: below 2^32 when narrow).
+        const ow = this.width(e.operand);
+        let k = 0n;
+        for (let i = 0; i < e.count; i++) k = (k << BigInt(ow)) | 1n;
+        const o = this.gen(e.operand);
+        return wide ? `(${toBig(o, ow)} * ${k}n)` : `(${o} * ${k})`;
+      }
+      case 'extend': {
+        const ow = this.width(e.operand);
+        const o = this.gen(e.operand);
+        if (!e.signed) return wide && !isWide(ow) ? `BigInt(${o})` : o;
+        if (!wide) return wrap(signed32(o, ow), w);
+        return isWide(ow) ? `BigInt.asUintN(${w}, BigInt.asIntN(${ow}, ${o}))` : `BigInt.asUintN(${w}, BigInt(${signed32(o, ow)}))`;
+      }
+      case 'carry':
+      case 'borrow': {
+        const ow = this.width(e.left);
+        const l = this.gen(e.left);
+        const r = this.gen(e.right);
+        const cin = e.carryIn ? this.gen(e.carryIn) : undefined;
+        const plusIn = cin === undefined ? '' : ` + ${isWide(ow) ? toBig(cin, 1) : cin}`;
+        if (e.kind === 'carry') return isWide(ow) ? `Number((${l} + ${r}${plusIn}) >> ${ow}n)` : `((${l} + ${r}${plusIn}) > ${2 ** ow - 1} ? 1 : 0)`;
+        // Operands in order: a, then b and the borrow-in.
+        return `(${l} < ${r}${plusIn} ? 1 : 0)`;
+      }
+      case 'unary': {
+        const o = this.gen(e.operand);
+        const code = e.op === '~' ? `~${o}` : `-(${o})`;
+        return wide ? `((${code}) & ${bigMask(w)})` : wrap(code, w);
+      }
+      case 'binary':
+        return this.binary(e, w);
+      case 'cond':
+        return `(${this.gen(e.cond)} ? ${this.gen(e.then)} : ${this.gen(e.otherwise)})`;
+      case 'select': {
+        const sw = this.width(e.selector);
+        const s = this.temp(isWide(sw));
+        const lit = (code: bigint) => (isWide(sw) ? `${code}n` : `${code}`);
+        let fallback: string;
+        if (e.otherwise) fallback = this.gen(e.otherwise);
+        else if (this.reportUncovered) {
+          this.selects.push(e);
+          fallback = `(uncovered(${this.selects.length - 1}, ${s}), ${wide ? '0n' : '0'})`;
+        } else fallback = wide ? '0n' : '0';
+        const chain = e.arms.reduceRight((rest, arm) => `${s} === ${lit(this.r.codes.get(arm)!)} ? ${this.gen(arm.value)} : ${rest}`, fallback);
+        return `(${s} = ${this.gen(e.selector)}, ${chain})`;
+      }
+    }
+  }
+
+  private binary(e: Extract<Expr, { kind: 'binary' }>, w: number): string {
+    const ow = this.width(e.left);
+    const wideOperands = isWide(ow);
+    const l = this.gen(e.left);
+    const r = this.gen(e.right);
+    const bit = (cond: string) => `(${cond} ? 1 : 0)`;
+    const sl = () => (wideOperands ? `BigInt.asIntN(${ow}, ${l})` : signed32(l, ow));
+    const sr = () => (wideOperands ? `BigInt.asIntN(${ow}, ${r})` : signed32(r, ow));
+    switch (e.op) {
+      case '+':
+      case '-':
+        return wideOperands ? `((${l} ${e.op} ${r}) & ${bigMask(w)})` : wrap(`${l} ${e.op} ${r}`, w);
+      case '&':
+      case '|':
+      case '^':
+        return wideOperands || w < 32 ? `(${l} ${e.op} ${r})` : `((${l} ${e.op} ${r}) >>> 0)`;
+      case '==': return bit(`${l} === ${r}`);
+      case '!=': return bit(`${l} !== ${r}`);
+      case '<':
+      case '<=':
+      case '>':
+      case '>=':
+        return bit(`${l} ${e.op} ${r}`);
+      case '<s':
+      case '<=s':
+      case '>s':
+      case '>=s':
+        return bit(`${sl()} ${e.op.slice(0, -1)} ${sr()}`);
+      case '<<':
+      case '>>':
+      case '>>>':
+        return this.shift(e.op, l, r, w, this.width(e.right));
+    }
+  }
+
+  /** A shift; the value is taken before the amount (evaluation order), the amount clamped to the width. */
+  private shift(op: '<<' | '>>' | '>>>', l: string, r: string, w: number, amountWidth: number): string {
+    const wide = isWide(w);
+    const value = this.temp(wide);
+    const amount = this.temp(false);
+    const a = isWide(amountWidth) ? this.clampBig(r, w) : r;
+    const head = `${value} = ${l}, ${amount} = ${a}`;
+    if (!wide) {
+      if (op === '<<') return `(${head}, ${amount} >= ${w} ? 0 : ${wrap(`${value} << ${amount}`, w)})`;
+      if (op === '>>') return `(${head}, ${amount} >= ${w} ? 0 : (${value} >>> ${amount}))`;
+      return `(${head}, ${wrap(`${signed32(value, w)} >> (${amount} >= ${w} ? ${w - 1} : ${amount})`, w)})`;
+    }
+    if (op === '<<') return `(${head}, ${amount} >= ${w} ? 0n : ((${value} << BigInt(${amount})) & ${bigMask(w)}))`;
+    if (op === '>>') return `(${head}, ${amount} >= ${w} ? 0n : (${value} >> BigInt(${amount})))`;
+    return `(${head}, BigInt.asUintN(${w}, BigInt.asIntN(${w}, ${value}) >> BigInt(${amount} >= ${w} ? ${w - 1} : ${amount})))`;
+  }
+
+  /** A BigInt amount as a number no larger than `w` (every larger amount shifts the same). */
+  private clampBig(r: string, w: number): string {
+    const t = this.temp(true);
+    return `(${t} = ${r}, ${t} >= ${w}n ? ${w} : Number(${t}))`;
+  }
+}
+
+/** Reads input `k` of width `w` from the caller's array as the compiled code holds it. */
+function readInput(k: number, w: number): string {
+  const x = `inputs[${k}]`;
+  if (isWide(w)) return `BigInt.asUintN(${w}, typeof ${x} === 'bigint' ? ${x} : BigInt(${x}))`;
+  return wrap(`typeof ${x} === 'bigint' ? Number(BigInt.asUintN(${w}, ${x})) : ${x}`, w);
+}
+
+/**
+ * Compiles `list` into one function from the input values (in the order of `inputs`) to the
+ * values of the list's expressions (in list order). An expression may read the inputs and the
+ * expressions listed before it. `width`, when given, is the width the expression's place needs.
+ * Results of up to 32 bits are numbers, wider ones BigInt. Throws when an expression does not
+ * check (the caller should have shown the diagnostics) or names something neither listed nor an input.
+ */
+export function compileExpressions(
+  list: { name: string; expr: Expr; width?: number }[],
+  inputs: string[],
+  widthOf: (name: string) => number,
+  options: RunOptions = {},
+): CompiledExpressions {
+  const slots = new Map<string, { code: string; width: number }>();
+  inputs.forEach((name, k) => {
+    if (slots.has(name)) throw new Error(`compileExpressions: input \`${name}\` is listed twice`);
+    slots.set(name, { code: `i${k}`, width: widthOf(name) });
+  });
+  const gen = new Generator((name) => slots.get(name)!.code, options.onUncovered !== undefined);
+  const lines = inputs.map((name, k) => `const i${k} = ${readInput(k, slots.get(name)!.width)};`);
+  list.forEach((entry, k) => {
+    const scope = (name: string): NameInfo | undefined => {
+      const s = slots.get(name);
+      if (!s) return undefined;
+      const values = options.values?.(name);
+      return values ? { width: s.width, values } : { width: s.width };
+    };
+    gen.r = resolveForRun(entry.expr, scope, entry.width);
+    lines.push(`const o${k} = ${gen.gen(entry.expr)};`);
+    if (slots.has(entry.name)) throw new Error(`compileExpressions: \`${entry.name}\` is defined twice (or is also an input)`);
+    slots.set(entry.name, { code: `o${k}`, width: gen.r.widths.get(entry.expr)! });
+  });
+  const body = [
+    '"use strict";',
+    'return function compiledExpressions(inputs) {',
+    ...(gen.temps.length ? [`let ${gen.temps.join(', ')};`] : []),
+    ...lines,
+    `return [${list.map((_, k) => `o${k}`).join(', ')}];`,
+    '};',
+  ].join('\n');
+  const selects = gen.selects;
+  const uncovered = (index: number, code: number | bigint) => options.onUncovered!(selects[index], BigInt(code));
+  return new Function('uncovered', body)(uncovered) as CompiledExpressions;
+}
