@@ -15,6 +15,7 @@ import { buildBodies } from './buildSteps';
 import { type FigureHost, figureInfo, figureNamesFor, figureRangeProblem, figureTextProblem, parseFigureValue } from '../budget/figures';
 import { acceptableCodes, codeInfo } from '../checks/catalogue';
 import { buildKind } from '../parts/kinds';
+import { checkBehaviour, defaultSetting } from '../parts/behaviour';
 import { buildCustomPart, customPortFor } from './buildCustomPart';
 import { libraryKind, standardLibrary } from '../parts/library';
 
@@ -191,6 +192,7 @@ export function buildModel(tree: A.FileNode): BuildResult {
   for (const decl of tree.decls) if (decl.kind === 'field') buildField(ctx, decl);
   for (const decl of tree.decls) if (decl.kind === 'strobe') buildStrobe(ctx, decl);
   finishParts(ctx, tree);
+  checkKindBehaviours(ctx);
   buildStores(ctx, tree);
   buildBodies(ctx, tree);
   checkLedVoltages(ctx);
@@ -550,6 +552,37 @@ function buildPart(ctx: BuildContext, decl: A.PartDecl): void {
     }
   }
   if (part) ctx.machine.parts.set(name, part);
+}
+
+/**
+ * The expressions of the table's own kinds, width-checked where each kind is declared (with its
+ * defaults) and in every part whose settings or control fields differ. A problem is reported
+ * once, at its place in the kind, with the part that shows it when only a part does.
+ */
+function checkKindBehaviours(ctx: BuildContext): void {
+  const seen = new Set<string>();
+  const report = (d: Diagnostic, part?: M.CustomPart) => {
+    const key = `${d.code}@${d.span.start}-${d.span.end}`;
+    if (seen.has(key)) return;
+    seen.add(key);
+    ctx.diagnostics.push(part ? { ...d, message: `${d.message} (in part \`${part.name}\`)`, related: [...(d.related ?? []), { span: part.symbol.span, message: `part \`${part.name}\` of kind \`${part.kindName}\`` }] } : d);
+  };
+  for (const kind of ctx.machine.kinds.values()) {
+    if (kind.origin !== 'table') continue;
+    const defaults = defaultSetting(kind);
+    if (defaults) checkBehaviour(kind, defaults, (d) => report(d));
+  }
+  for (const part of ctx.machine.parts.values()) {
+    if (part.kind !== 'custom') continue;
+    const controls = new Map<string, { width: number; values: ReadonlyMap<string, number> }>();
+    for (const control of part.def.controls) {
+      const fieldName = part.controlFields.get(control.name);
+      const field = fieldName ? ctx.machine.signals.get(fieldName) : undefined;
+      if (field?.type === 'field') controls.set(control.name, { width: field.width, values: new Map([...field.values.values()].map((v) => [v.name, v.code])) });
+      else controls.set(control.name, { width: Math.max(1, Math.ceil(Math.log2(Math.max(2, control.values.length)))), values: new Map(control.values.map((v, i) => [v, i])) });
+    }
+    checkBehaviour(part.def, { settings: part.settings, controls }, (d) => report(d, part));
+  }
 }
 
 /** Checks what needs every part and field: the IR, immediate sources, comparator conditions. */

@@ -1,0 +1,169 @@
+// The behaviour of a kind, in one part: every expression of the kind parsed once, then checked
+// and compiled in the scope of one part, where its settings are known. Number settings stand
+// for their values (a decimal literal, so `q + inc` takes q's width); choice settings and
+// controls are names whose values are their choices or the driving field's codes.
+//
+// One scope serves every reader: the checker (diagnostics), the simulator (compiled functions)
+// and, later, the prover. A kind is checked with its defaults where it is declared, and again
+// in each part whose settings differ, so a width that only breaks for one part is still found.
+import type { ExprText } from '../syntax/ast';
+import type { Diagnostic } from '../text/diagnostic';
+import { type Expr, type NameInfo, checkExpression, children, compileExpressions, namesUsed, parseExpression } from './expr';
+import { type KindDef, type Size, edgeInputName } from './kinds';
+
+/** A part's settings and the codes of the fields driving its controls. */
+export interface PartSetting {
+  settings: ReadonlyMap<string, number | string>;
+  /** Control name -> the driving field's width and value codes; a control no field drives is absent. */
+  controls: ReadonlyMap<string, { width: number; values: ReadonlyMap<string, number> }>;
+}
+
+const parsedKinds = new WeakMap<KindDef, Map<ExprText, { expr?: Expr; diagnostics: Diagnostic[] }>>();
+
+/** The parse of one expression of a kind (cached per kind). */
+export function parsedExpr(def: KindDef, text: ExprText): { expr?: Expr; diagnostics: Diagnostic[] } {
+  let cache = parsedKinds.get(def);
+  if (!cache) parsedKinds.set(def, (cache = new Map()));
+  let parsed = cache.get(text);
+  if (!parsed) cache.set(text, (parsed = parseExpression(text.text, text.span.start)));
+  return parsed;
+}
+
+export function sizeOf(size: Size, settings: ReadonlyMap<string, number | string>): number {
+  if (size.kind === 'number') return size.value;
+  const v = settings.get(size.name);
+  return typeof v === 'number' ? v : 0;
+}
+
+const bitsFor = (n: number) => Math.max(1, Math.ceil(Math.log2(Math.max(2, n))));
+
+/** The defaults of a kind as a part would have them, with each control numbered in order. */
+export function defaultSetting(def: KindDef): PartSetting | undefined {
+  const settings = new Map<string, number | string>();
+  for (const s of def.settings) {
+    if (s.default === undefined) return undefined;
+    settings.set(s.name, s.default);
+  }
+  const controls = new Map(def.controls.map((c) => [c.name, { width: bitsFor(c.values.length), values: new Map(c.values.map((v, i) => [v, i])) }]));
+  return { settings, controls };
+}
+
+/** Replaces number settings by their values (decimal literals take their context's width). */
+function substitute(expr: Expr, numbers: ReadonlyMap<string, number>): Expr {
+  if (expr.kind === 'name') {
+    const value = numbers.get(expr.name);
+    return value === undefined ? expr : { kind: 'number', value: BigInt(value), radix: 10, span: expr.span };
+  }
+  if (children(expr).length === 0) return expr;
+  const copy = { ...expr } as Record<string, unknown>;
+  for (const [key, value] of Object.entries(expr)) {
+    if (value && typeof value === 'object' && 'kind' in value && key !== 'key') copy[key] = substitute(value as Expr, numbers);
+    else if (Array.isArray(value)) {
+      copy[key] = value.map((item) => {
+        if (item && typeof item === 'object' && 'kind' in item) return substitute(item as Expr, numbers);
+        if (item && typeof item === 'object' && 'value' in item && 'key' in item) return { ...item, value: substitute(item.value as Expr, numbers) };
+        return item;
+      });
+    }
+  }
+  return copy as unknown as Expr;
+}
+
+/** The names an expression of this kind may read, with their widths, in one part. */
+function scopeEntries(def: KindDef, setting: PartSetting, edgeWidth?: number): Map<string, NameInfo> {
+  const entries = new Map<string, NameInfo>();
+  for (const input of def.inputs) entries.set(input.name, { width: sizeOf(input.width, setting.settings) });
+  for (const state of def.states) if (!state.count) entries.set(state.name, { width: sizeOf(state.width, setting.settings) });
+  for (const s of def.settings) if (s.type === 'choice') entries.set(s.name, { width: bitsFor(s.choices.length), values: new Map(s.choices.map((c, i) => [c, i])) });
+  for (const [name, control] of setting.controls) entries.set(name, control);
+  if (edgeWidth !== undefined) entries.set(edgeInputName, { width: edgeWidth });
+  return entries;
+}
+
+function numberSettings(setting: PartSetting): Map<string, number> {
+  return new Map([...setting.settings].filter((e): e is [string, number] => typeof e[1] === 'number'));
+}
+
+/** One expression of the kind, ready to check or compile in a part. */
+export interface PlacedExpr {
+  expr: Expr;
+  width: number;
+  scope: Map<string, NameInfo>;
+}
+
+/** Every expression of the kind with the width its place needs, in one part (unparsable ones left out). */
+function placedExpressions(def: KindDef, setting: PartSetting, report: (d: Diagnostic) => void): Map<ExprText, PlacedExpr> {
+  const numbers = numberSettings(setting);
+  const placed = new Map<ExprText, PlacedExpr>();
+  const place = (text: ExprText, width: number, scope: Map<string, NameInfo>) => {
+    const parsed = parsedExpr(def, text);
+    parsed.diagnostics.forEach(report);
+    if (parsed.expr) placed.set(text, { expr: substitute(parsed.expr, numbers), width, scope });
+  };
+  const base = scopeEntries(def, setting);
+  for (const state of def.states) if (state.reset) place(state.reset, sizeOf(state.width, setting.settings), base);
+  for (const drive of def.drives) place(drive.expr, sizeOf(drive.width, setting.settings), base);
+  for (const flag of def.flags) place(flag.expr, 1, base);
+  for (const edge of def.edges) {
+    const scope = scopeEntries(def, setting, edge.width ? sizeOf(edge.width, setting.settings) : undefined);
+    for (const assign of edge.assigns) {
+      const state = def.states.find((s) => s.name === assign.target)!;
+      place(assign.expr, sizeOf(state.width, setting.settings), scope);
+      if (assign.when) place(assign.when, 1, scope);
+      if (assign.index) place(assign.index, 0, scope);
+    }
+  }
+  return placed;
+}
+
+/**
+ * Checks every expression of the kind in one part's scope. Register arrays (`x COUNT`) and the
+ * program memory are the standard library's own for now: a table's kind using one is reported.
+ */
+export function checkBehaviour(def: KindDef, setting: PartSetting, report: (d: Diagnostic) => void): void {
+  const placed = placedExpressions(def, setting, report);
+  for (const [text, p] of placed) {
+    if (p.width === 0) continue; // an array index: its width is the array's business
+    for (const d of checkExpression(p.expr, (name) => p.scope.get(name), p.width).diagnostics) report(d);
+    void text;
+  }
+  const stateNames = new Set(def.states.map((s) => s.name));
+  for (const flag of def.flags) {
+    const parsed = parsedExpr(def, flag.expr).expr;
+    const reads = parsed ? namesUsed(parsed).filter((n) => !stateNames.has(n) && !def.settings.some((s) => s.name === n)) : [];
+    if (reads.length) {
+      report({
+        code: 'kind-definition',
+        severity: 'error',
+        span: flag.expr.span,
+        message: `flag \`${flag.name}\` reads ${reads.map((r) => `\`${r}\``).join(', ')}: the address lines read a flag after the closing edge, so in this version a flag may depend only on the part's state and settings; latch the value into a state with an \`on\` line and make the flag read that state`,
+      });
+    }
+  }
+  if (def.origin === 'table') {
+    for (const state of def.states) {
+      if (state.count) report({ code: 'kind-not-wired', severity: 'error', span: state.span, message: `\`${state.name}\` is ${state.count === 'memory' ? 'the program memory' : 'an array of registers'}: in this version only the standard library's kinds (regfile, memory) hold those; use one of them for this part` });
+    }
+  }
+}
+
+/** A compiled port of one part: values in the part's input order, results in the port's order. */
+export interface CompiledPort {
+  /** The names the function reads, in the order its input array holds them. */
+  inputs: string[];
+  run: (values: ArrayLike<number | bigint>) => (number | bigint)[];
+}
+
+/**
+ * Compiles the expressions of one port of a part: a drive port (one value), a flag (one bit), a
+ * state's reset value, or an edge port (per assignment its value and, with `when`, its condition,
+ * in that order). The part must have checked clean.
+ */
+export function compilePort(def: KindDef, setting: PartSetting, texts: { text: ExprText; width: number }[], edgeWidth?: number): CompiledPort {
+  const numbers = numberSettings(setting);
+  const scope = scopeEntries(def, setting, edgeWidth);
+  const exprs = texts.map((t, k) => ({ name: `r${k}`, expr: substitute(parsedExpr(def, t.text).expr!, numbers), width: t.width }));
+  const inputs = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))];
+  const run = compileExpressions(exprs, inputs, (name) => scope.get(name)!.width, { values: (name) => scope.get(name)?.values });
+  return { inputs, run };
+}
