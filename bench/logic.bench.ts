@@ -14,7 +14,8 @@ import { analyse } from '../server/src/core/analysis';
 import { encodeMachine } from '../server/src/core/encode/encoder';
 import { storeTruthTable } from '../server/src/core/encode/storeTable';
 import { minimise } from '../server/src/core/logic/minimise';
-import { type TruthTable, createTruthTable, verifyCover } from '../server/src/core/logic/truthTable';
+import { type TruthTable, verifyCover } from '../server/src/core/logic/truthTable';
+import { unconstrainedTable } from '../tests/support/unconstrained';
 import { minimisedLevels, verifyFitSafety } from '../server/src/core/logic/verifyFit';
 import type { EncodedStore } from '../server/src/core/encode/encoder';
 import { generateTable } from './generate';
@@ -68,28 +69,13 @@ function compare(label: string, table: TruthTable): void {
   row('time ours (positive) / reference', (oursMs / refMs).toFixed(3));
 }
 
-/**
- * The table `fit` would have used before its don't-cares were made safe: every output a
- * don't-care at every address no step reaches. Built here, for this figure only.
- */
-function unconstrained(table: TruthTable, unreachable: Uint32Array): TruthTable {
-  const copy = createTruthTable(table.inputNames, table.outputs.map((o) => o.name));
-  table.outputs.forEach((o, k) => {
-    for (let w = 0; w < table.nWords; w++) {
-      copy.outputs[k].dc[w] = o.dc[w] | unreachable[w];
-      copy.outputs[k].on[w] = o.on[w] & ~unreachable[w];
-    }
-  });
-  return copy;
-}
-
 function safetyCost(label: string, source: string): void {
   const { machine } = analyse(source);
   const encoded = encodeMachine(machine);
   const enc: EncodedStore = encoded.stores[0];
   const { table, outputBits, unreachableBits, safety } = storeTruthTable(machine, encoded, enc);
   console.log(`${label}: ${table.nInputs} inputs, ${table.outputs.length} outputs, cost of safe don't-cares`);
-  for (const [kind, t] of [['safe (what fit uses)', table], ['unconstrained (unsafe)', unconstrained(table, unreachableBits)]] as const) {
+  for (const [kind, t] of [['safe (what fit uses)', table], ['unconstrained (unsafe)', unconstrainedTable(table, unreachableBits)]] as const) {
     let start = nowMs();
     const minimised = minimise(t, { polarity: 'best' });
     const minimiseMs = nowMs() - start;

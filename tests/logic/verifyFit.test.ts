@@ -14,10 +14,11 @@ import { buildGalImage } from '../../server/src/core/logic/galImage';
 import { fitDevices } from '../../server/src/core/logic/fit';
 import { minimise, type Minimised } from '../../server/src/core/logic/minimise';
 import { ruledBits, storeSafety, wordHazards } from '../../server/src/core/logic/safeCare';
-import { createTruthTable, type TruthTable, wordsFor } from '../../server/src/core/logic/truthTable';
+import { type TruthTable, wordsFor } from '../../server/src/core/logic/truthTable';
 import { type FittedLevels, coverLevels, fuseMapsLevels, minimisedLevels, verifyFitSafety } from '../../server/src/core/logic/verifyFit';
 import type { Machine } from '../../server/src/core/model/types';
 import { randomMachine, seededRandom } from '../support/randomMachines';
+import { unconstrainedTable } from '../support/unconstrained';
 
 const demo = analyse(readFileSync(join(__dirname, '../../examples/halyard-32.pwt'), 'utf8')).machine;
 const encoded = encodeMachine(demo);
@@ -56,13 +57,7 @@ describe('the demo fit', () => {
   });
 
   it('fails for the old unconstrained don\'t-cares, with two drivers on a bus at thousands of addresses', () => {
-    const loose = createTruthTable(built.table.inputNames, built.table.outputs.map((o) => o.name));
-    built.table.outputs.forEach((o, k) => {
-      for (let w = 0; w < built.table.nWords; w++) {
-        loose.outputs[k].dc[w] = o.dc[w] | built.unreachableBits[w];
-        loose.outputs[k].on[w] = o.on[w] & ~built.unreachableBits[w];
-      }
-    });
+    const loose = unconstrainedTable(built.table, built.unreachableBits);
     const report = verifyFitSafety(demo, enc, built.safety, minimisedLevels(minimise(loose, { polarity: 'best' }), built.outputBits));
     expect(report.contended).toBeGreaterThan(1000);
     expect(report.unsafe).toBeGreaterThan(report.contended - 1);

@@ -16,13 +16,14 @@ import { analyse } from '../../server/src/core/analysis';
 import { encodeMachine, type EncodedStore } from '../../server/src/core/encode/encoder';
 import { storeTruthTable, type StoreTable } from '../../server/src/core/encode/storeTable';
 import { buildGalImage, fitDevices, minimise, verilogModule, type Minimised } from '../../server/src/core/logic';
-import { createTruthTable, type TruthTable } from '../../server/src/core/logic/truthTable';
+import type { TruthTable } from '../../server/src/core/logic/truthTable';
 import type { Machine } from '../../server/src/core/model/types';
 import { runCommand } from '../../server/src/cli/commands';
 import { memoryIo } from '../../server/src/cli/io';
 import { evaluatePrinted, parseJedutilEquations } from '../support/jedutil';
 import { randomMachine } from '../support/randomMachines';
 import { haveTools } from '../support/tools';
+import { unconstrainedTable } from '../support/unconstrained';
 import { monitorWords, monitoredStrobes } from '../support/wordMonitor';
 
 const root = join(__dirname, '../..');
@@ -49,18 +50,6 @@ function subject(label: string, text: string): Subject {
 
 const demoText = readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8');
 const subjects = (): Subject[] => [subject('demo', demoText), ...SEEDS.map((seed) => subject(`random ${seed}`, randomMachine(seed).text))];
-
-/** The table with every output free where no step covers: what `fit` did before, kept here as the failing control. */
-function unconstrained(table: TruthTable, unreachable: Uint32Array): TruthTable {
-  const loose = createTruthTable(table.inputNames, table.outputs.map((o) => o.name));
-  table.outputs.forEach((o, k) => {
-    for (let w = 0; w < table.nWords; w++) {
-      loose.outputs[k].dc[w] = o.dc[w] | unreachable[w];
-      loose.outputs[k].on[w] = o.on[w] & ~unreachable[w];
-    }
-  });
-  return loose;
-}
 
 /** Fits `table` into GAL22V10s, writes the fuse maps, and returns each output's level at every address as jedutil prints the logic. */
 function levelsFromJedutil(s: Subject, table: TruthTable, tag: string): Map<number, Uint8Array> {
@@ -133,7 +122,7 @@ describe.skipIf(!haveJedutil)('jedutil reads our fuse maps: safe at every addres
     const verdict = monitorWords(s.machine, s.enc, (a, bit) => safe.get(bit)?.[a] as 0 | 1 | undefined);
     expect(verdict.checked).toBe(2048);
     expect(verdict.findings).toEqual([]);
-    const loose = levelsFromJedutil(s, unconstrained(s.built.table, s.built.unreachableBits), 'loose');
+    const loose = levelsFromJedutil(s, unconstrainedTable(s.built.table, s.built.unreachableBits), 'loose');
     expect(monitorWords(s.machine, s.enc, (a, bit) => loose.get(bit)?.[a] as 0 | 1 | undefined).unsafe).toBeGreaterThan(0);
   }, 60_000);
 });
@@ -194,7 +183,7 @@ describe.skipIf(!haveIverilog)('iverilog runs our Verilog equations over every a
 
   it('finds the fights of the old unconstrained equations on the demo', () => {
     const s = subject('demo', demoText);
-    const found = runBench(s, minimise(unconstrained(s.built.table, s.built.unreachableBits), { polarity: 'best' }), 'loose');
+    const found = runBench(s, minimise(unconstrainedTable(s.built.table, s.built.unreachableBits), { polarity: 'best' }), 'loose');
     expect(found.filter((l) => l.startsWith('CONTENTION')).length).toBeGreaterThan(1000);
   }, 120_000);
 });
