@@ -1,14 +1,36 @@
 // `phasewright fit FILE --device gal16v8|gal22v10 [--store NAME] [--outputs a,b] [--pins FILE]
 // [--out DIR] [--keep-fill] [--vectors N]`: minimises each control output of a store over its
 // address lines, fits the outputs into as many GAL devices as needed, and writes one JEDEC fuse
-// map per device plus the equations as text and as a Verilog module. Every fuse map is read
-// back and checked against the truth table before it is reported. Exit 0 when everything
-// fits, 1 when an output cannot fit (nothing is written) or the table has errors, 2 on usage.
+// map per device plus the equations as text and as a Verilog module. Before anything is
+// written, the equations and every fuse map are evaluated at every address the inputs can form
+// and each word checked for bus contention and, where no step covers the address, for anything
+// not idle (core/logic/verifyFit.ts); an unsafe result is refused. Every fuse map is read back
+// and checked against the truth table and the same rule before it is reported. Exit 0 when
+// everything fits, 1 when an output cannot fit or the result is unsafe (nothing is written) or
+// the table has errors, 2 on usage.
 import { basename, extname, resolve } from 'node:path';
 import { analyse, errorCount } from '../../core/analysis';
 import { encodeMachine } from '../../core/encode/encoder';
 import { storeTruthTable } from '../../core/encode/storeTable';
-import { buildGalImage, checkGalImage, equationsText, fitDevices, minimise, verilogModule, type DeviceName } from '../../core/logic';
+import type { EncodedStore } from '../../core/encode/encoder';
+import {
+  buildGalImage,
+  checkGalImage,
+  describeHazards,
+  equationsText,
+  fitDevices,
+  fuseMapsLevels,
+  minimise,
+  minimisedLevels,
+  verifyFitSafety,
+  verilogModule,
+  type DeviceName,
+  type FittedDevice,
+  type FittedLevels,
+  type SafetyReport,
+  type StoreSafety,
+} from '../../core/logic';
+import type { Machine } from '../../core/model/types';
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { readJsonFile, readSource } from '../readSource';
@@ -30,13 +52,13 @@ export const fitCommand = defineCommand({
     { name: 'outputs', value: 'LIST', help: 'comma-separated signals to fit (default: all of the store)' },
     { name: 'pins', value: 'FILE', help: 'JSON { "signal": pin, ... } fixing pins (outputs, or inputs such as step[0])' },
     { name: 'out', value: 'DIR', help: 'the folder to write into (default out)' },
-    { name: 'keep-fill', help: 'keep the fill word at addresses no step covers instead of treating them as don\'t-cares' },
+    { name: 'keep-fill', help: 'keep the whole fill word at addresses no step covers (by default fields and one driver per bus may take any value there)' },
     { name: 'vectors', value: 'N', help: 'at most N test vectors per fuse map (0 for none; default: every care address)' },
     { name: 'mode', value: 'MODE', help: 'the device mode: auto (default), simple or complex for the GAL16V8, combinational for the GAL22V10' },
   ],
   exitCodes: [
     [0, 'everything fits; fuse maps, equations and Verilog written'],
-    [1, 'an output cannot fit, the table has errors, no such store, or an output could not be written (nothing written)'],
+    [1, 'an output cannot fit, the result would be unsafe at some address, the table has errors, no such store, or an output could not be written (nothing written)'],
     [2, 'usage error, or a file that cannot be read'],
   ],
   async run(args, io) {
@@ -95,7 +117,7 @@ export const fitCommand = defineCommand({
     }
     const outputsOption = parsed.options.get('outputs');
     const wanted = typeof outputsOption === 'string' ? outputsOption.split(',').map((s) => s.trim()).filter(Boolean) : undefined;
-    const { table, unreachable } = storeTruthTable(machine, encoded, enc, { keepFill: parsed.options.has('keep-fill'), outputs: wanted });
+    const { table, unreachable, outputBits, safety } = storeTruthTable(machine, encoded, enc, { keepFill: parsed.options.has('keep-fill'), outputs: wanted });
     if (table.outputs.length === 0) {
       io.err(`phasewright fit: no outputs selected${wanted ? ` (--outputs ${wanted.join(',')} matches no signal of store ${store.name})` : ''}\n`);
       return 2;
@@ -104,7 +126,7 @@ export const fitCommand = defineCommand({
     const minimised = minimise(table, { polarity: 'best' });
     const fit = fitDevices(minimised, { device, pins, mode: typeof parsed.options.get('mode') === 'string' ? (parsed.options.get('mode') as string) : undefined });
     const lines: string[] = [];
-    lines.push(`store ${store.name}: ${table.nInputs} address inputs, ${table.outputs.length} outputs; ${unreachable} of ${2 ** table.nInputs} addresses are never reached and left as don't-cares${parsed.options.has('keep-fill') ? ' (no: --keep-fill keeps the fill word)' : ''}`);
+    lines.push(`store ${store.name}: ${table.nInputs} address inputs, ${table.outputs.length} outputs; ${unreachableText(unreachable, 2 ** table.nInputs, safety, parsed.options.has('keep-fill'))}`);
     lines.push(`minimised in ${Date.now() - started} ms: ${minimised.outputs.reduce((n, o) => n + o.terms.length, 0)} product terms in all`);
     if (!fit.ok) {
       lines.push(`does not fit ${device} devices:`);
@@ -122,6 +144,19 @@ export const fitCommand = defineCommand({
       const check = checkGalImage(table, d, image.jedec);
       if (!check.ok) throw new Error(`fuse map of device ${d.index + 1} failed its own check: ${check.message}`);
     }
+    // Safety at every address, of the equations (and so the Verilog) and of the fuse maps as written.
+    const equationsSafety = verifyFitSafety(machine, enc, safety, minimisedLevels(minimised, outputBits));
+    const mapsSafety = fuseMapSafety(machine, enc, safety, images.map(({ device: d, image }) => ({ fitted: d, jedec: image.jedec })), outputBits);
+    const unsafe = [['the equations', equationsSafety], ['the fuse maps', mapsSafety]] as const;
+    for (const [what, report] of unsafe) {
+      if (typeof report === 'string' || report.unsafe > 0) {
+        lines.push(typeof report === 'string' ? `safety: ${report}` : safetyLine(report));
+        io.out(lines.join('\n') + '\n');
+        io.err(`phasewright fit: ${what} would be unsafe${typeof report === 'string' ? '' : ` at ${report.unsafe} address(es), first at ${describeAddress(enc, report.first!.address)}: ${describeHazards(report.first!)}`}; nothing was written. Please report this as a bug.\n`);
+        return 1;
+      }
+    }
+    lines.push(safetyLine(equationsSafety) + ' (equations, Verilog and every fuse map)');
     const outOption = parsed.options.get('out');
     const outDir = typeof outOption === 'string' ? outOption : 'out';
     try {
@@ -136,12 +171,18 @@ export const fitCommand = defineCommand({
           { name: `${stem}.v`, format: 'verilog', store: store.name, bytes: Buffer.from(verilogModule(minimised, `${stem.replace(/[^A-Za-z0-9_]/g, '_')}_logic`), 'utf8') },
         ],
       });
-      // Read each fuse map back from disk and check it against the truth table once more.
+      // Read each fuse map back from disk and check it against the truth table once more, then all together at every address.
+      const readBack: { fitted: FittedDevice; jedec: string }[] = [];
       for (const [i, { device: d }] of images.entries()) {
         const read = readInputFile(report.files[i].absolutePath, { maxBytes: report.files[i].sizeBytes, what: 'fuse maps', give: 'a file' }, report.files[i].displayPath);
         if (!read.ok) throw new OutputError(report.files[i].displayPath, `the written fuse map cannot be read back: ${read.reason}`);
         const check = checkGalImage(table, d, read.bytes.toString('latin1'));
         if (!check.ok) throw new OutputError(report.files[i].displayPath, `the written fuse map does not match the table: ${check.message}`);
+        readBack.push({ fitted: d, jedec: read.bytes.toString('latin1') });
+      }
+      const safe = fuseMapSafety(machine, enc, safety, readBack, outputBits);
+      if (typeof safe === 'string' || safe.unsafe > 0) {
+        throw new OutputError(report.files[0].displayPath, `the fuse maps read back are unsafe: ${typeof safe === 'string' ? safe : `${describeAddress(enc, safe.first!.address)}: ${describeHazards(safe.first!)}`}`);
       }
       lines.push(`fits ${fit.devices.length} ${device} device${fit.devices.length > 1 ? 's' : ''} (${fit.devices[0].mode} mode):`);
       for (const d of fit.devices) {
@@ -151,7 +192,7 @@ export const fitCommand = defineCommand({
       }
       lines.push(`wrote to ${outDir}:`);
       for (const f of report.files) lines.push(`  ${f.entry.name}  ${f.sizeBytes} bytes  sha256 ${f.sha256.slice(0, 16)}`);
-      lines.push('Caution: check the fuse maps against the device data sheets and your programmer before burning; test a programmed device with the vectors in the file.');
+      lines.push('Caution: check the fuse maps against the device data sheets and your programmer before burning, use the programmer\'s verify, and test a programmed device with the vectors in the file before it drives a bus.');
       io.out(lines.join('\n') + '\n');
       return 0;
     } catch (err) {
@@ -163,6 +204,32 @@ export const fitCommand = defineCommand({
     }
   },
 });
+
+/** What the table does at the addresses no step reaches, in one clause. */
+function unreachableText(unreachable: number, total: number, safety: StoreSafety, keepFill: boolean): string {
+  if (keepFill) return `the fill word is kept at every address no step reaches (--keep-fill)`;
+  const free = [...safety.freeDriver].map(([bus, driver]) => `${driver} on ${bus}`);
+  return `${unreachable} of ${total} addresses are never reached: there fields${free.length ? ` and one driver per bus (${free.join(', ')})` : ''} may take any value, every other strobe keeps the fill word`;
+}
+
+/** "safety: 8192 of 8192 addresses checked, 0 unsafe". */
+function safetyLine(report: SafetyReport): string {
+  return `safety: ${report.checked} of ${report.checked} addresses checked, ${report.unsafe} unsafe`;
+}
+
+/** An address with its lines by source: `0x0a43 (step=011 taken=0 ...)`. */
+function describeAddress(enc: EncodedStore, address: number): string {
+  const lines = enc.store.address!.sources.map((s) => `${s.label}=${((address >>> s.lo) & ((1 << (s.hi - s.lo + 1)) - 1)).toString(2).padStart(s.hi - s.lo + 1, '0')}`);
+  return `address 0x${address.toString(16).padStart(Math.ceil(enc.addressBits / 4), '0')} (${lines.join(' ')})`;
+}
+
+/** The safety of fuse maps evaluated together (their outputs make up the fitted part of the word), or why they cannot be read. */
+function fuseMapSafety(machine: Machine, enc: EncodedStore, safety: StoreSafety, maps: { fitted: FittedDevice; jedec: string }[], outputBits: number[]): SafetyReport | string {
+  const read = fuseMapsLevels(maps, outputBits, enc.addressBits);
+  if (!read.ok) return read.message;
+  const levels: FittedLevels[] = read.levels;
+  return verifyFitSafety(machine, enc, safety, levels);
+}
 
 /** A pins file: JSON `{ "signal": pin, ... }`, signals being outputs (`x.rs1.oe`, `alu.fn[2]`) or inputs (`step[0]`). */
 function loadPins(path: string): { ok: true; pins: Record<string, number> } | { ok: false; reason: string } {

@@ -4,6 +4,7 @@
 // expanded and point at the `use` line as a related location.
 import type { Diagnostic, Fix, RelatedInfo } from '../text/diagnostic';
 import type { Span } from '../text/span';
+import { drivenBus } from '../model/busDrivers';
 import type { Action, ClassDef, Machine, StepAlt, Strobe } from '../model/types';
 import { defaultSeverity } from './catalogue';
 
@@ -88,10 +89,11 @@ export function driversByBus(machine: Machine, alt: StepAlt): Map<string, Action
   cache.set(alt, result);
   for (const action of alt.actions) {
     const strobe = strobeOf(machine, action);
-    if (!strobe || !strobe.bus || (strobe.kind !== 'enable' && strobe.kind !== 'read')) continue;
-    const list = result.get(strobe.bus);
+    const bus = strobe && drivenBus(strobe);
+    if (bus === undefined) continue;
+    const list = result.get(bus);
     if (list) list.push(action);
-    else result.set(strobe.bus, [action]);
+    else result.set(bus, [action]);
   }
   return result;
 }

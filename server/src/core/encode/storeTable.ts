@@ -1,11 +1,14 @@
 // The truth tables of a control store for programmable logic: every control output bit as a
-// function of the store's address lines. Addresses the table can never reach — opcodes without
-// a class, steps past the end of a class, instruction encodings that are not RV32I, address
-// lines nothing drives — and field bits a step leaves open are don't-cares, so the minimiser
-// may choose them freely; `keepFill` keeps the fill word there instead. Reachable addresses
-// holding the fill word (a skipped step inside a class) always keep it.
+// function of the store's address lines. At addresses the table can never reach — opcodes
+// without a class, steps past the end of a class, instruction encodings that are not RV32I,
+// address lines nothing drives — only the bits logic/safeCare.ts lets float are don't-cares
+// (plain fields, and one driver per bus); strobes that act and the other drivers keep the fill
+// word's level, so no minimised cover can ever fight on a bus or write there. `keepFill` keeps
+// the whole fill word there. Field bits a step leaves open are don't-cares; reachable
+// addresses holding the fill word (a skipped step inside a class) always keep it.
 import { instructionCube, instructionsOfClass, intersects } from '../checks/inputSpace';
-import { createTruthTable, setValue, type TruthTable } from '../logic/truthTable';
+import { storeSafety, type StoreSafety } from '../logic/safeCare';
+import { createTruthTable, setValue, wordsFor, type TruthTable } from '../logic/truthTable';
 import type { Machine } from '../model/types';
 import type { EncodedMachine, EncodedStore } from './encoder';
 import { PointDecoder } from './decodePoint';
@@ -22,8 +25,12 @@ export interface StoreTable {
   table: TruthTable;
   /** Word bit of each output, in output order. */
   outputBits: number[];
-  /** Addresses treated as don't-care because the table never reaches them. */
+  /** Addresses the table never reaches (where some outputs may float). */
   unreachable: number;
+  /** The same addresses as a bitset (bit a of word a >> 5), for reports and the benchmark. */
+  unreachableBits: Uint32Array;
+  /** How each word bit is treated at those addresses. */
+  safety: StoreSafety;
 }
 
 /** Names of the address lines: `step[0]`, `taken`, `funct3[2]`, `ir20`, in address-bit order. */
@@ -53,25 +60,32 @@ export function storeTruthTable(machine: Machine, encoded: EncodedMachine, enc: 
   const all = storeOutputs(machine, enc);
   const chosen = options.outputs ? all.filter((o) => options.outputs!.some((w) => w === o.name || o.name.startsWith(`${w}[`))) : all;
   const table = createTruthTable(addressInputNames(enc), chosen.map((o) => o.name));
+  const safety = storeSafety(machine, enc, new Set(chosen.map((o) => o.name)));
+  const mayFloat = new Set(safety.bits.filter((b) => b.mayFloat).map((b) => b.bit));
   const reachable = reachableFill(machine, encoded, enc);
   const nAddresses = 2 ** enc.addressBits;
+  const unreachableBits = new Uint32Array(wordsFor(enc.addressBits));
   let unreachable = 0;
   for (let address = 0; address < nAddresses; address++) {
     const base = address * enc.lanes;
     const used = enc.origin[address] >= 0;
-    const dontCareAll = !used && !reachable[address] && !options.keepFill;
-    if (dontCareAll) unreachable++;
+    const floating = !used && !reachable[address] && !options.keepFill;
+    if (floating) {
+      unreachable++;
+      unreachableBits[address >>> 5] |= 1 << (address & 31);
+    }
     chosen.forEach((o, k) => {
       const lane = base + (o.bit >>> 5);
       const mask = 1 << (o.bit & 31);
-      if (dontCareAll || (used && !(enc.care[lane] & mask))) {
+      // Unused addresses hold the fill word in `words`: a held bit keeps that level.
+      if ((floating && mayFloat.has(o.bit)) || (used && !(enc.care[lane] & mask))) {
         setValue(table, k, address, '-');
         return;
       }
       setValue(table, k, address, enc.words[lane] & mask ? 1 : 0);
     });
   }
-  return { table, outputBits: chosen.map((o) => o.bit), unreachable };
+  return { table, outputBits: chosen.map((o) => o.bit), unreachable, unreachableBits, safety };
 }
 
 /**

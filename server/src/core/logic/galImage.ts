@@ -6,7 +6,7 @@ import { LogicInputError } from './errors';
 import { type DevicePlan, modeOf } from './devices/device';
 import { DEVICES, type FittedDevice } from './fit';
 import { readJedec, writeJedec } from './jedec';
-import type { TruthTable } from './truthTable';
+import { type TruthTable, wordsFor } from './truthTable';
 
 /** Vectors written when the caller does not say: every input combination of a 14-input device. */
 export const DEFAULT_MAX_VECTORS = 16384;
@@ -186,4 +186,36 @@ export function checkGalImage(table: TruthTable, fitted: FittedDevice, jedecText
     }
   }
   return { ok: true, vectorsChecked: combos.length };
+}
+
+/**
+ * The level of every fitted output of a fuse map at every one of the table's 2^nInputs
+ * addresses (bit a of word a >> 5), computed from the fuses alone as the device would: each
+ * combination of the device's inputs is evaluated once and spread over the addresses that
+ * form it. Used to check a fuse map read back from disk at every address (verifyFit.ts).
+ */
+export function fuseMapLevels(fitted: FittedDevice, fuses: Uint8Array, nInputs: number): Map<number, Uint32Array> {
+  const device = DEVICES[fitted.device];
+  const nCombos = 2 ** fitted.inputs.length;
+  const byCombo = fitted.outputs.map(() => new Uint8Array(nCombos));
+  for (let combo = 0; combo < nCombos; combo++) {
+    const levels = new Map<number, 0 | 1>(fitted.inputs.map((input, k) => [input.pin, ((combo >>> k) & 1) as 0 | 1]));
+    const actual = device.evaluate(fuses, levels);
+    fitted.outputs.forEach((output, k) => {
+      const level = actual.get(output.pin);
+      if (level === 'Z' || level === undefined) throw new LogicInputError(`pin ${output.pin} (${output.name}) of the fuse map is not driven as an output`);
+      byCombo[k][combo] = level;
+    });
+  }
+  const result = new Map<number, Uint32Array>();
+  fitted.outputs.forEach((output) => result.set(output.outputIndex, new Uint32Array(wordsFor(nInputs))));
+  const nAddresses = 2 ** nInputs;
+  for (let address = 0; address < nAddresses; address++) {
+    let combo = 0;
+    for (let k = 0; k < fitted.inputs.length; k++) combo |= ((address >>> fitted.inputs[k].inputIndex) & 1) << k;
+    fitted.outputs.forEach((output, k) => {
+      if (byCombo[k][combo]) result.get(output.outputIndex)![address >>> 5] |= 1 << (address & 31);
+    });
+  }
+  return result;
 }

@@ -35,7 +35,7 @@ export {
   type FittedOutput,
   fitDevices,
 } from './fit';
-export { DEFAULT_MAX_VECTORS, type GalImage, type GalImageOptions, type ImageCheck, buildGalImage, checkGalImage, testVectors } from './galImage';
+export { DEFAULT_MAX_VECTORS, type GalImage, type GalImageOptions, type ImageCheck, buildGalImage, checkGalImage, fuseMapLevels, testVectors } from './galImage';
 export {
   type JedecFile,
   type JedecReadResult,
@@ -47,3 +47,14 @@ export {
   writeJedec,
 } from './jedec';
 export { EQUATION_NOTATION, type Equation, equationText, equationsText, parseEquations, verilogModule } from './equations';
+export { type BitRole, type StoreSafety, type WordBit, type WordHazards, storeSafety, wordHazards } from './safeCare';
+export {
+  type FittedLevels,
+  type SafetyReport,
+  type UnsafeAddress,
+  coverLevels,
+  describeHazards,
+  fuseMapsLevels,
+  minimisedLevels,
+  verifyFitSafety,
+} from './verifyFit';

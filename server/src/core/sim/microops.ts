@@ -15,6 +15,7 @@
 // hot loop only checks a flag.
 //
 // Deliberately not here: values (simulator.ts computes them) and reports (describe.ts).
+import { contendedBuses } from '../model/busDrivers';
 import type { Field, Part, Strobe } from '../model/types';
 import { GrowableInt32 } from './growable';
 import { CONDITION_FROM_FUNCT3, SIZE_WORD, aluFunctionNumber, aluOperandsUsed, conditionNumber, immediateFormatNumber, memorySizeNumber } from './operations';
@@ -191,12 +192,9 @@ export class MicroOps {
     }
     const nBuses = plan.busNames.length;
     const driven = new Uint8Array(nBuses);
-    const byBus = new Map<number, DriverSpec[]>();
-    for (const d of drivers) {
-      driven[d.bus] = 1;
-      byBus.set(d.bus, [...(byBus.get(d.bus) ?? []), d]);
-    }
-    const contention = [...byBus].filter(([, list]) => list.length > 1).map(([bus, list]) => ({ bus, strobes: list.map((d) => d.strobe) }));
+    for (const d of drivers) driven[d.bus] = 1;
+    // The one contention rule (model/busDrivers.ts), over the drivers this word really has.
+    const contention = contendedBuses(machine, drivers.map((d) => d.strobe)).map(({ bus, strobes }) => ({ bus: plan.busIndex.get(bus)!, strobes }));
     const { ordered, loop } = settleOrder(drivers, plan.busNames);
     if (contention.length > 0 || loop !== '') header |= HEADER_STOP;
     let floatMask = 0;
