@@ -53,8 +53,8 @@ export const catalogue: CodeInfo[] = [
   {
     code: 'kind-not-wired',
     severity: 'error',
-    title: 'a part uses a kind of the table\'s own, which is not yet simulated or checked',
-    explanation: 'Kinds you declare with `kind` are read and checked, but this version does not yet run them in the simulator, count them in the contention, latch and timing checks, or in the budgets. Rather than build images whose meaning it has not checked, Phasewright reports every part of such a kind and leaves it out. Until then, describe the part with one of the standard library\'s kinds (hover a kind to read its definition).',
+    title: 'a kind of the table\'s own uses something this version does not run yet',
+    explanation: 'Kinds you declare with `kind` are read, width-checked, simulated and checked like the standard library\'s, except for a few things this version does not run in a table\'s own kinds yet: arrays of registers (`state r 32 x 32`) and the program memory (`state m 8 x memory`), which only the standard library\'s register file and memory port hold. Rather than simulate or check a part whose behaviour it cannot run, Phasewright reports the line. Use the standard library\'s `regfile` or `memory` for that part of the machine.',
   },
   {
     code: 'unknown-kind',

@@ -421,13 +421,6 @@ function buildPart(ctx: BuildContext, decl: A.PartDecl): void {
     const symbol = ctx.lookup('structure', name)!;
     const part = buildCustomPart(ctx, decl, ownKind, { name, description: decl.description?.value, symbol }, (options) => readFigures(ctx, options, 'part'));
     if (part) ctx.machine.parts.set(name, part);
-    // Read and checked, but not yet run by the simulator, the encoder's checks or the budget,
-    // so using it would be a silent misreading. Say so.
-    ctx.report(
-      'kind-not-wired',
-      decl.partKind.span,
-      `\`${kindText}\` is a kind of this table: its definition is read and checked, but parts of your own kinds are not yet simulated, checked for contention or counted in budgets; until they are, describe this part with a standard-library kind`,
-    );
     return;
   }
   if (!partKinds.includes(kindText)) {
@@ -578,7 +571,8 @@ function checkKindBehaviours(ctx: BuildContext): void {
     for (const control of part.def.controls) {
       const fieldName = part.controlFields.get(control.name);
       const field = fieldName ? ctx.machine.signals.get(fieldName) : undefined;
-      if (field?.type === 'field') controls.set(control.name, { width: field.width, values: new Map([...field.values.values()].map((v) => [v.name, v.code])) });
+      // A field whose values were all refused has its own errors; check with the kind's numbering then.
+      if (field?.type === 'field' && field.values.size > 0) controls.set(control.name, { width: field.width, values: new Map([...field.values.values()].map((v) => [v.name, v.code])) });
       else controls.set(control.name, { width: Math.max(1, Math.ceil(Math.log2(Math.max(2, control.values.length)))), values: new Map(control.values.map((v, i) => [v, i])) });
     }
     checkBehaviour(part.def, { settings: part.settings, controls }, (d) => report(d, part));
@@ -626,6 +620,7 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
       if (other) ctx.report('wrong-wiring', decl.target!.span, `control \`${custom.control.name}\` of \`${custom.part.name}\` is already driven by the field \`${other}\``, [{ span: ctx.machine.signals.get(other)!.symbol.span, message: 'the other field' }]);
       else {
         custom.part.controlFields.set(custom.control.name, name);
+        custom.part.controlValues.set(custom.control.name, new Map()); // filled with the field's values below
         field.target = custom.part.name;
       }
     }
@@ -659,7 +654,7 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
       ctx.report(
         'wrong-wiring',
         value.name.span,
-        `\`${value.name.text}\` means nothing to a ${ctx.machine.parts.get(field.target!)!.kind} part; its values are ${vocabulary.join(', ')}` + (guess ? ` (did you mean \`${guess}\`?)` : ''),
+        `\`${value.name.text}\` means nothing to ${partPhrase(ctx.machine.parts.get(field.target!)!)}; its values are ${vocabulary.join(', ')}` + (guess ? ` (did you mean \`${guess}\`?)` : ''),
       );
       continue;
     }
@@ -670,6 +665,7 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
       continue;
     }
     field.values.set(value.name.text, { name: value.name.text, code, symbol });
+    if (custom?.control && custom.part.controlFields.get(custom.control.name) === name) (custom.part.controlValues.get(custom.control.name) as Map<string, number>).set(value.name.text, code);
   }
   for (const option of decl.options) {
     if (option.key.text !== 'idle') {
@@ -708,6 +704,11 @@ function customControlTarget(ctx: BuildContext, target: A.Ref): { part: M.Custom
     ctx.report('wrong-wiring', target.span, controls.length === 0 ? `kind \`${part.def.name}\` has no control for a field to drive` : controlName ? `kind \`${part.def.name}\` has no control \`${controlName}\`; its controls are ${list}` : `\`${part.name}\` has several controls: name one, e.g. ${list}`);
   }
   return { part, control };
+}
+
+/** `a memory part`, or `part \`amux\` (kind \`opa_mux\`)` for a part of the table's own kind. */
+function partPhrase(part: M.Part): string {
+  return part.kind === 'custom' ? `part \`${part.name}\` (kind \`${part.kindName}\`)` : `a ${part.kind} part`;
 }
 
 function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {

@@ -8,6 +8,7 @@ import type * as A from '../syntax/ast';
 import { closest } from '../text/suggest';
 import { figureInfo, figureNamesFor } from '../budget/figures';
 import type { KindDef, Size } from '../parts/kinds';
+import { choiceCodes, liveNames, parsedExpr } from '../parts/behaviour';
 import type { BuildContext } from './build';
 import { parseNumber } from './numbers';
 import type * as M from './types';
@@ -109,6 +110,7 @@ export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDe
     inputs,
     flagNames,
     controlFields: new Map(),
+    controlValues: new Map(),
     figures: readFigures(figureOptions),
   };
 }
@@ -144,4 +146,31 @@ export function customPortFor(part: M.CustomPart, role: M.StrobeKind | 'clock-fl
   }
   if (!fits(edge)) return { problem: takesBus ? `\`${part.name}.${edge.name}\` takes no bus value: write \`${role === 'write' ? 'clock' : role} ${part.name}.${edge.name}\` without a bus` : `\`${part.name}.${edge.name}\` loads a bus value: write \`clock BUS -> ${part.name}.${edge.name}\`` };
   return { port: edge.name, width: edge.width ? sizeIn(part, edge.width) : undefined };
+}
+
+/**
+ * The buses a port of the part reads when its controls hold `controlCodes` (a control not listed
+ * is unknown: every arm it selects counts). `edge`: the port is an edge port, whose `in` is the
+ * bus its strobe loads (listed by the caller, not here). The simulator requires these buses to
+ * be defined; the latch checks require them to be driven.
+ */
+export function customPortBusReads(part: M.CustomPart, port: string, controlCodes: ReadonlyMap<string, number>): string[] {
+  const def = part.def;
+  const known = new Map([...choiceCodes(def, part.settings), ...controlCodes]);
+  const values = (name: string): ReadonlyMap<string, number> | undefined => {
+    const setting = def.settings.find((s) => s.name === name);
+    if (setting?.type === 'choice') return new Map(setting.choices.map((c, i) => [c, i]));
+    return part.controlValues.get(name);
+  };
+  const texts = [...def.drives.filter((d) => d.name === port).map((d) => d.expr), ...def.edges.filter((e) => e.name === port).flatMap((e) => e.assigns.flatMap((a) => [a.expr, ...(a.when ? [a.when] : []), ...(a.index ? [a.index] : [])]))];
+  const buses = new Set<string>();
+  for (const text of texts) {
+    const expr = parsedExpr(def, text).expr;
+    if (!expr) continue;
+    for (const name of liveNames(expr, known, values)) {
+      const input = part.inputs.get(name);
+      if (input?.from === 'bus') buses.add(input.name);
+    }
+  }
+  return [...buses];
 }

@@ -110,6 +110,8 @@ export interface CustomPart extends PartBase {
   flagNames: Map<string, string>;
   /** The field that drives each of the kind's controls (`field F W -> PART.CONTROL`). */
   controlFields: Map<string, string>;
+  /** Each driven control's value names and the codes its field gives them. */
+  controlValues: Map<string, ReadonlyMap<string, number>>;
 }
 
 export type Part = RegfilePart | RegisterPart | CounterPart | ImmediatePart | AluPart | ComparePart | MemoryPart | ConstantPart | CustomPart;

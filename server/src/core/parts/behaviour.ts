@@ -167,3 +167,36 @@ export function compilePort(def: KindDef, setting: PartSetting, texts: { text: E
   const run = compileExpressions(exprs, inputs, (name) => scope.get(name)!.width, { values: (name) => scope.get(name)?.values });
   return { inputs, run };
 }
+
+/**
+ * The names an expression really reads when some names hold known codes (the controls of one
+ * step, the part's choice settings): a `select` on a known name reads only the arm it takes.
+ * A multiplexer whose field picks input a does not read input b, so b may float in that step.
+ */
+export function liveNames(expr: Expr, known: ReadonlyMap<string, number>, values: (name: string) => ReadonlyMap<string, number> | undefined): Set<string> {
+  const out = new Set<string>();
+  const visit = (e: Expr): void => {
+    if (e.kind === 'name') {
+      out.add(e.name);
+      return;
+    }
+    if (e.kind === 'select' && e.selector.kind === 'name' && known.has(e.selector.name)) {
+      const code = known.get(e.selector.name)!;
+      const names = values(e.selector.name);
+      const arm = e.arms.find((a) => (a.key.kind === 'number' ? Number(a.key.value) === code : names?.get(a.key.name) === code));
+      if (arm) visit(arm.value);
+      else if (e.otherwise) visit(e.otherwise);
+      return;
+    }
+    for (const c of children(e)) visit(c);
+  };
+  visit(expr);
+  return out;
+}
+
+/** The codes a part's choice settings stand for (their index among the choices). */
+export function choiceCodes(def: KindDef, settings: ReadonlyMap<string, number | string>): Map<string, number> {
+  const out = new Map<string, number>();
+  for (const s of def.settings) if (s.type === 'choice') out.set(s.name, s.choices.indexOf(String(settings.get(s.name))));
+  return out;
+}

@@ -111,7 +111,8 @@ const MAX_CHAIN_STEPS = 16;
 
 /** Whether the fast path can run this machine at all. */
 export function canCompile(plan: SimPlan): boolean {
-  return plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
+  // Parts of the table's own kinds run on the interpreter (their ports are compiled on their own).
+  return plan.custom.runtimes.length === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
 }
 
 const ALU_EXPRESSIONS: ((a: string, b: string) => string)[] = [

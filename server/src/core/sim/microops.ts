@@ -34,6 +34,7 @@ export const D_ALU = 6; // A = function, B = bus a, C = bus b
 export const D_MEM_PART = 7; // A = size, B = address part
 export const D_MEM_BUS = 8; // A = size, B = address bus
 export const D_CONSTANT = 9; // A = value
+export const D_CUSTOM = 10; // A = driver of a part of the table's own kind (plan.custom.drivers), B = mask of the buses it reads
 
 // Closing-edge operations, in the order they are applied.
 export const E_FAULT = 0; // stop before any update; the message is in MicroOpInfo.edges
@@ -44,6 +45,12 @@ export const E_REG_FIXED = 4; // bus = data, A = register file, B = register num
 export const E_COMPARE = 5; // bus slot = flag, A = condition (or CONDITION_FROM_FUNCT3), B = bus a, C = bus b
 export const E_COUNT = 6; // A = part, B = increment, C = mask
 export const E_CLOCK = 7; // bus = data, A = part, B = mask, C = 1 for the instruction register
+// A part of the table's own kind: A = its edge port (plan.custom.edges). It computes from the
+// values before the edge, so it runs right after the faults; what it computed is stored once
+// every other action has run (HEADER_CUSTOM).
+export const E_CUSTOM = 8;
+/** Sort key of an edge action: the order in which they run. */
+const edgeOrder = (op: number) => (op === E_CUSTOM ? 0.5 : op);
 
 /** Layout of a compiled micro-op in `MicroOps.code`, from its base offset. */
 export const U_HEADER = 0; // bit 0: stops the machine (contention or loop), bit 1: end, bit 2: trap
@@ -58,6 +65,8 @@ export const EDGE_WORDS = 5;
 export const HEADER_STOP = 1;
 export const HEADER_END = 2;
 export const HEADER_TRAP = 4;
+/** Edge ports of parts of the table's own kinds ran: store what they computed. */
+export const HEADER_CUSTOM = 8;
 
 /** Most buses a machine may have: definedness is one bit per bus in a 32-bit word. */
 export const MAX_BUSES = 31;
@@ -201,7 +210,8 @@ export class MicroOps {
     for (let bus = 0; bus < nBuses; bus++) if (!driven[bus] && !plan.busKeeper[bus]) floatMask |= 1 << bus;
     let needMask = 0;
     for (const e of edges) for (const bus of e.reads) needMask |= 1 << bus;
-    edges.sort((x, y) => x.op - y.op);
+    edges.sort((x, y) => edgeOrder(x.op) - edgeOrder(y.op));
+    if (edges.some((e) => e.op === E_CUSTOM)) header |= HEADER_CUSTOM;
     const index = this.count++;
     const code = this.code;
     const base = code.length;
@@ -235,6 +245,11 @@ export class MicroOps {
     const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: [] as number[] };
     const undefinedDriver = (note: string): DriverSpec => ({ ...base, op: D_UNDEFINED, note });
     switch (part.kind) {
+      case 'custom': {
+        const op = plan.custom.driver(strobe, fields);
+        if ('problem' in op) return undefinedDriver(op.problem);
+        return { ...base, op: D_CUSTOM, a: op.index, b: op.reads.reduce((m, b) => m | (1 << b), 0), reads: op.reads };
+      }
       case 'regfile': {
         const file = plan.regfileIndex.get(part.name)!;
         if (strobe.register !== undefined) return { ...base, op: D_REG_FIXED, a: file, b: strobe.register };
@@ -286,6 +301,11 @@ export class MicroOps {
     const bus = strobe.bus === undefined ? -1 : (plan.busIndex.get(strobe.bus) ?? -1);
     const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: bus >= 0 ? [bus] : [] };
     const fault = (message: string): EdgeSpec => ({ ...base, op: E_FAULT, fault: message, reads: [] });
+    if (part.kind === 'custom') {
+      const op = plan.custom.edge(strobe, fields, bus);
+      if ('problem' in op) return fault(`${op.problem}, while \`${strobe.name}\` acts at the closing edge`);
+      return { ...base, op: E_CUSTOM, a: op.index, reads: op.reads };
+    }
     if (strobe.kind === 'write') {
       if (part.kind !== 'memory') return fault(`\`${strobe.name}\` writes to \`${part.name}\`, which is not a memory`);
       const control = this.controlValue(part, fields);

@@ -13,6 +13,7 @@ import { decodeWord, encodeMachine, type EncodedMachine, type EncodedStore } fro
 import { pointInputs } from '../encode/universe';
 import type { ClassDef, Machine, Part, RegfilePart, StepAlt, Store } from '../model/types';
 import { MAX_BUSES, MicroOps } from './microops';
+import { CustomParts } from './customParts';
 
 /** One distinct control word of a store, read back from its bits. */
 export interface StoreWord {
@@ -75,6 +76,8 @@ export class SimPlan {
   /** Index in machine.classes of the class for each 7-bit opcode, or -1. */
   readonly classOfOpcode: Int16Array;
   readonly microOps: MicroOps;
+  /** Parts of the table's own kinds: their compiled behaviour and state slots. */
+  readonly custom: CustomParts;
 
   private constructor(
     readonly machine: Machine,
@@ -105,6 +108,7 @@ export class SimPlan {
     machine.classes.forEach((cls, i) => {
       if (cls.opcode !== undefined && this.classOfOpcode[cls.opcode] === -1) this.classOfOpcode[cls.opcode] = i;
     });
+    this.custom = new CustomParts(machine, this.busIndex, this.partIndex, this.flagIndex);
     this.microOps = new MicroOps(this);
   }
 
@@ -120,6 +124,7 @@ export class SimPlan {
     if (!parts.some((p) => p.kind === 'regfile')) errors.push('the machine has no register file (`part x regfile 32`), so it cannot hold x1..x31');
     if (machine.buses.size > MAX_BUSES) errors.push(`the machine has ${machine.buses.size} buses; the simulator handles up to ${MAX_BUSES}`);
     if (!machine.stepBits) errors.push('no control-store address carries the step counter (`step 0..N` in an `address` layout)');
+    errors.push(...CustomParts.problems(machine));
     const usable = machine.stores.filter((s) => s.word && s.address);
     for (const s of machine.stores) {
       if (!s.word) errors.push(`store ${s.name} has no word layout`);

@@ -51,6 +51,7 @@ import {
   U_INDEX,
   type MicroOpInfo,
 } from './microops';
+import type { CustomAccess } from './customParts';
 import { FAST_BUDGET, FAST_RETIRED, FAST_SLOW_STEP, FAST_WRAP, canCompile, compileStepper, type FastStepper } from './compile';
 import { aluCompute, compareHolds, conditionOfFunct3, immediateOf, sizeBytes } from './operations';
 import type { SimPlan } from './plan';
@@ -143,7 +144,11 @@ export class BusSimulator implements MachineAccess {
   /** Lock-step support: keep the state at each instruction's start so the instruction can be replayed with its bus values recorded. */
   checkpointing = false;
   private checkpointValid = false;
-  private readonly saved: { regs: Int32Array; partValue: Int32Array; flags: Uint8Array; busValue: Int32Array; definedMask: number; instructionPc: number; instructionLoaded: boolean };
+  private readonly saved: { regs: Int32Array; partValue: Int32Array; flags: Uint8Array; busValue: Int32Array; customState: Int32Array; definedMask: number; instructionPc: number; instructionLoaded: boolean };
+  /** State of the parts of the table's own kinds (plan.custom's slots), what their ports read, and their staged edge values. */
+  readonly customState: Int32Array;
+  private readonly custom: CustomAccess;
+  private readonly customStage: number[] = [];
   private readonly undoAddress = new Int32Array(MAX_RECORDED_WRITES);
   private readonly undoSize = new Int32Array(MAX_RECORDED_WRITES);
   private readonly undoOld = new Int32Array(MAX_RECORDED_WRITES);
@@ -165,6 +170,7 @@ export class BusSimulator implements MachineAccess {
     // One spare entry after the register files takes the writes to x0 they ignore (compiled code).
     this.regs = new Int32Array(32 * Math.max(1, plan.regfiles.length) + 1);
     this.flags = new Uint8Array(plan.flagNames.length);
+    this.customState = Int32Array.from(plan.custom.resetValues);
     this.env = options.environment ?? new LinuxUserEnvironment();
     this.recordBuses = options.recordBuses ?? false;
     this.useCompiled = (options.compiled ?? true) && canCompile(plan);
@@ -180,11 +186,13 @@ export class BusSimulator implements MachineAccess {
     plan.parts.forEach((part, i) => {
       if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') this.partValue[i] = part.reset & plan.partMask[i];
     });
+    this.custom = { busValue: this.busValue, partValue: this.partValue, ir: 0, customState: this.customState };
+    plan.custom.refresh(this.custom, this.flags);
     this.partValue[plan.pcPart] = entry & plan.partMask[plan.pcPart];
     this.instructionPc = this.partValue[plan.pcPart] >>> 0;
     for (let f = 0; f < plan.regfiles.length; f++) this.regs[f * 32 + 2] = options.stackPointer ?? DEFAULT_STACK_POINTER;
     this.refreshStaticParts();
-    this.saved = { regs: this.regs.slice(), partValue: this.partValue.slice(), flags: this.flags.slice(), busValue: this.busValue.slice(), definedMask: 0, instructionPc: 0, instructionLoaded: false };
+    this.saved = { regs: this.regs.slice(), partValue: this.partValue.slice(), flags: this.flags.slice(), busValue: this.busValue.slice(), customState: this.customState.slice(), definedMask: 0, instructionPc: 0, instructionLoaded: false };
   }
 
   /** The environment serving this machine's system calls (its captured stdout and stderr). */
@@ -415,6 +423,14 @@ export class BusSimulator implements MachineAccess {
           case 9: // D_CONSTANT
             value = code[p + 2];
             break;
+          case 10: {
+            // D_CUSTOM: a drive port of a part of the table's own kind; every bus it reads must be defined.
+            const custom = this.custom;
+            custom.ir = ir;
+            value = plan.custom.drivers[code[p + 2]](custom);
+            ok = (defined & code[p + 3]) === code[p + 3] ? 1 : 0;
+            break;
+          }
           default: // D_UNDEFINED
             ok = 0;
         }
@@ -490,7 +506,16 @@ export class BusSimulator implements MachineAccess {
               this.instructionLoaded = true;
             }
             break;
+          case 8: // E_CUSTOM: computes from the values before the edge; stored below
+            this.custom.ir = ir;
+            plan.custom.edges[code[p + 2]](this.custom, this.customStage);
+            break;
         }
+      }
+      if ((header & 8) !== 0) {
+        // HEADER_CUSTOM: store what the edge ports computed; their flags may feed the address.
+        plan.custom.commit(this.custom, this.customStage, flags);
+        inputsChanged = true;
       }
       // The instruction that retires in this step is the one whose bits were in place during it.
       const retiring = ir;
@@ -573,6 +598,7 @@ export class BusSimulator implements MachineAccess {
     copyInto(saved.partValue, this.partValue);
     copyInto(saved.flags, this.flags);
     copyInto(saved.busValue, this.busValue);
+    copyInto(saved.customState, this.customState);
     saved.definedMask = this.definedMask;
     saved.instructionPc = this.instructionPc;
     saved.instructionLoaded = this.instructionLoaded;
@@ -604,6 +630,7 @@ export class BusSimulator implements MachineAccess {
     this.partValue.set(saved.partValue);
     this.flags.set(saved.flags);
     this.busValue.set(saved.busValue);
+    this.customState.set(saved.customState);
     this.definedMask = saved.definedMask;
     this.instructionPc = saved.instructionPc;
     this.instructionLoaded = saved.instructionLoaded;

@@ -1,3 +1,0 @@
-import { readFileSync } from 'node:fs';
-import { analyse } from './server/src/core/analysis';
-for (const f of process.argv.slice(2)) { const a = analyse(readFileSync(f,'utf8')); console.log(f, a.diagnostics.map(d=>d.code+' @'+a.lines.position(d.span.start).line+': '+d.message)); console.log([...a.machine.parts.values()].filter(p=>p.kind==='custom').map(p=>JSON.stringify({n:p.name,s:[...(p as any).settings],i:[...(p as any).inputs],f:[...(p as any).flagNames],c:[...(p as any).controlFields]}))); console.log([...a.machine.signals.values()].filter((s:any)=>s.kindPort).map((s:any)=>s.name+'->'+s.kindPort)); }
