@@ -24,6 +24,11 @@ describe('examples', () => {
     expect(a.diagnostics).toEqual([]);
   });
 
+  it.each(readdirSync(new URL('../../examples/', import.meta.url)).filter((f) => f.endsWith('.pwt')))('the example machine %s has no diagnostics at all', (file) => {
+    const a = analyse(readFileSync(new URL(`../../examples/${file}`, import.meta.url), 'utf8'));
+    expect(a.diagnostics).toEqual([]);
+  });
+
   it.each(faults)('%s produces exactly its own code', (file) => {
     const code = file.replace(/\.pwt$/, '');
     const a = analyse(readFileSync(new URL(file, dir), 'utf8'));

@@ -106,16 +106,32 @@ describe('kind declarations', () => {
     );
   });
 
-  it('a part of the table\'s own kind is reported, not silently left unsimulated', () => {
-    expectDiagnostics(
+  it('a part of the table\'s own kind is built from its part line; an array in a table\'s kind is reported', () => {
+    const a = expectDiagnostics(
       dedent(`
         kind mux2
-          input a 8
-          drive y 8 = a
-        part m mux2 result
-        #      ^^^^ kind-not-wired: not yet simulated
+          setting width number = 8
+          input a width
+          input b width
+          control pick: first second
+          drive y width = select pick { first: a, second: b }
+        kind bank
+          state r 8 x 4
+        #       ^ kind-not-wired: array of registers
+          drive out 8 = 0
+        part m mux2 4 result result
+        field m.pick 1 -> m { first=0 second=1 }
+        strobe m.oe enable m -> result
+       #^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^ width-mismatch: \`m.y\` is 4 bits wide
       ` + machineTail),
+      ['kind-not-wired', 'width-mismatch', 'wrong-wiring', 'expr-width'],
     );
+    const part = a.machine.parts.get('m');
+    expect(part?.kind).toBe('custom');
+    if (part?.kind !== 'custom') return;
+    expect(part.settings.get('width')).toBe(4);
+    expect([...part.inputs]).toEqual([['a', { from: 'bus', name: 'result' }], ['b', { from: 'bus', name: 'result' }]]);
+    expect([...part.controlFields]).toEqual([['pick', 'm.pick']]);
   });
 });
 

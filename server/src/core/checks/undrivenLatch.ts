@@ -2,7 +2,8 @@
 // that nothing drives in that step, directly or through the ALU whose operand bus is undriven.
 // Without keepers the bus floats and the part stores noise (error); with keepers it stores the
 // last value some earlier step drove, which is rarely what was meant (warning).
-import type { Action, AluPart, Machine, StepAlt } from '../model/types';
+import type { Action, AluPart, CustomPart, Machine, StepAlt } from '../model/types';
+import { customPortBusReads } from '../model/buildCustomPart';
 import { type Check, type CheckContext, driversByBus, strobeOf, writtenAlternatives } from './context';
 
 export const undrivenLatch: Check = {
@@ -32,6 +33,11 @@ export const undrivenLatch: Check = {
           need(part.a, action, () => `\`${action.signal}\` latches the comparison of \`${part.a}\` and \`${part.b}\``);
           need(part.b, action, () => `\`${action.signal}\` latches the comparison of \`${part.a}\` and \`${part.b}\``);
         }
+        if (part?.kind === 'custom' && strobe.kind !== 'enable' && strobe.kind !== 'read') {
+          for (const bus of customReadsIn(ctx.machine, alt, part, strobe.kindPort ?? '')) {
+            need(bus, action, () => `\`${action.signal}\` makes \`${part.name}\` compute from bus \`${bus}\` at the closing edge`);
+          }
+        }
         if ((strobe.kind === 'read' || strobe.kind === 'write') && part?.kind === 'memory' && part.addressFrom === 'bus') {
           need(part.address, action, () => `\`${action.signal}\` takes its memory address from bus \`${part.address}\``);
         }
@@ -47,19 +53,61 @@ interface Undriven {
   via?: string;
 }
 
-function undrivenReason(machine: Machine, alt: StepAlt, drivers: Map<string, Action[]>, bus: string): Undriven | undefined {
+function undrivenReason(machine: Machine, alt: StepAlt, drivers: Map<string, Action[]>, bus: string, seen = new Set<string>()): Undriven | undefined {
   const busInfo = machine.buses.get(bus);
   const driving = drivers.get(bus);
   if (!driving || driving.length === 0) return { bus, keeper: !!busInfo?.keeper };
+  // A driver that computes from other buses (the ALU, a part of the table's own kind) needs
+  // them driven too, through any number of such parts (a loop is the settle check's business).
+  if (seen.has(bus)) return undefined;
+  seen.add(bus);
   for (const action of driving) {
     const strobe = strobeOf(machine, action);
     const part = strobe?.part ? machine.parts.get(strobe.part) : undefined;
-    if (part?.kind !== 'alu') continue;
-    for (const operand of aluOperandsUsed(machine, alt, part)) {
-      if (!drivers.get(operand)?.length) return { bus: operand, keeper: !!machine.buses.get(operand)?.keeper, via: `the ALU output \`${part.name}\` on \`${bus}\`` };
+    let reads: string[] = [];
+    let output = '';
+    if (part?.kind === 'custom') {
+      reads = customReadsIn(machine, alt, part, strobe!.kindPort ?? '');
+      output = `the output \`${part.name}.${strobe!.kindPort}\``;
+    } else if (part?.kind === 'alu') {
+      reads = aluOperandsUsed(machine, alt, part);
+      output = `the ALU output \`${part.name}\``;
+    }
+    for (const operand of reads) {
+      if (!drivers.get(operand)?.length) return { bus: operand, keeper: !!machine.buses.get(operand)?.keeper, via: `${output} on \`${bus}\`` };
+      const deeper = undrivenReason(machine, alt, drivers, operand, seen);
+      if (deeper) return deeper;
     }
   }
   return undefined;
+}
+
+/**
+ * Buses a port of a part of the table's own kind reads in this step: a control the step sets to
+ * a value reads only the arm that value selects; one set from a map, or unset (its idle code),
+ * counts every value it may hold.
+ */
+function customReadsIn(machine: Machine, alt: StepAlt, part: CustomPart, port: string): string[] {
+  const known = new Map<string, number>();
+  for (const [control, fieldName] of part.controlFields) {
+    const field = machine.signals.get(fieldName);
+    if (field?.type !== 'field') continue;
+    const action = alt.actions.find((a) => a.signal === fieldName && a.value);
+    if (!action) known.set(control, field.idle);
+    else if (action.value!.kind === 'code') known.set(control, action.value!.code);
+  }
+  const reads = new Set(customPortBusReads(part, port, known));
+  // Controls set from a map: every value the map may give.
+  for (const [control, fieldName] of part.controlFields) {
+    const action = alt.actions.find((a) => a.signal === fieldName && a.value?.kind === 'map');
+    if (!action || action.value!.kind !== 'map') continue;
+    const field = machine.signals.get(fieldName);
+    for (const row of machine.maps.get(action.value!.map)?.rows ?? []) {
+      for (const bus of customPortBusReads(part, port, new Map([...known, [control, row.code]]))) reads.add(bus);
+    }
+    void field;
+  }
+  return [...reads];
 }
 
 /** Operand buses the ALU's function in this step reads: pass-throughs read one, the rest both. */

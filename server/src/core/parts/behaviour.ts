@@ -98,7 +98,8 @@ function placedExpressions(def: KindDef, setting: PartSetting, report: (d: Diagn
   const place = (text: ExprText, width: number, scope: Map<string, NameInfo>) => {
     const parsed = parsedExpr(def, text);
     parsed.diagnostics.forEach(report);
-    if (parsed.expr) placed.set(text, { expr: substitute(parsed.expr, numbers), width, scope });
+    // An expression reading a name whose line has an error would only repeat that error.
+    if (parsed.expr && !namesUsed(parsed.expr).some((n) => def.brokenNames.has(n))) placed.set(text, { expr: substitute(parsed.expr, numbers), width, scope });
   };
   const base = scopeEntries(def, setting);
   for (const state of def.states) if (state.reset) place(state.reset, sizeOf(state.width, setting.settings), base);

@@ -97,6 +97,8 @@ export interface KindDef {
   drives: KindDrive[];
   flags: KindFlag[];
   edges: KindEdge[];
+  /** Names whose line was left out for an error reported there: expressions using them are not checked again. */
+  brokenNames: Set<string>;
   /** The name in the declaration. */
   span: Span;
   declSpan: Span;
@@ -120,6 +122,7 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
     drives: [],
     flags: [],
     edges: [],
+    brokenNames: new Set(),
     span: decl.name.span,
     declSpan: decl.span,
   };
@@ -251,6 +254,8 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
       }
     }
   }
+  const built = new Set([...def.settings, ...def.inputs, ...def.controls, ...def.states, ...def.drives, ...def.flags, ...def.edges].map((x) => x.name));
+  for (const name of seen.keys()) if (!built.has(name)) def.brokenNames.add(name);
   if (def.drives.length === 0 && def.edges.length === 0 && def.flags.length === 0) {
     error(def.span, `kind \`${def.name}\` has no drive port, edge port or flag, so no strobe or address line could ever use it`);
   }
