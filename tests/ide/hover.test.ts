@@ -239,7 +239,11 @@ describe('exact hover texts', () => {
   });
 
   it('jargon words: kinds, address inputs, keywords and ports', () => {
-    expect(hoverAt('regfile', 1)).toBe('**part kind `regfile`** — register file: 32 registers selected by the instruction\'s rs1, rs2 and rd fields');
+    // The kind's header, then its definition from the standard library (parts/library/standard.ts).
+    const kind = hoverAt('regfile', 1)!;
+    expect(kind.split('\n')[0]).toBe('**part kind `regfile`** — register file: 32 registers selected by the instruction\'s rs1, rs2 and rd fields');
+    expect(kind).toContain('- **defined in** the standard library (read-only; go to definition opens it)');
+    expect(kind).toContain('```phasewright\nkind regfile ');
     expect(hoverAt('funct3 5..7', 1)).toBe('**address input `funct3`** — instruction bits 14..12: selects the operation, branch condition or access size');
     expect(hoverAt('keeper', 1)).toContain('**`keeper`** — bus-hold keepers');
     expect(hoverAt('enable x.rs1', 10)).toBe("**port `rs1` of `x`** — output, the register the instruction's rs1 field (bits 19..15) selects");
