@@ -213,18 +213,23 @@ describe('declarations', () => {
 });
 
 describe('bus indexes', () => {
-  it('an index on a bus is an error on the index, never ignored (no partial-width drives)', () => {
-    expectDiagnostics(
+  it('bus lines on a strobe: a line or range it has is read, one it does not have is an error on the index', () => {
+    const a = expectDiagnostics(
       dedent(`
         bus result 8
-        part a register 8
+        part a register 1
+        part b register 8
         strobe a.oe enable a -> result[1] active low
-        #                             ^^^ wrong-wiring: \`result[1]\` names line 1 of the bus, but a strobe drives the whole bus
-        strobe a.ck clock result[99] -> a
-        #                       ^^^^ wrong-wiring: \`result[99]\` names a line bus \`result\` does not have (its lines are 0..7)
+        strobe b.oe enable b -> result[99]
+        #                             ^^^^ wrong-wiring: \`result[99]\` names a line bus \`result\` does not have (its lines are 7..0)
+        strobe c.oe enable b -> result[2:5]
+        #                             ^^^^^ bad-number: write the high line first
+        strobe b.ck clock result[7:4] -> b
+        #                       ^^^^^ wrong-wiring: loading some lines of a bus is not supported yet
       `),
-      ['wrong-wiring'],
+      ['wrong-wiring', 'bad-number'],
     );
+    expect(a.machine.signals.get('a.oe')).toMatchObject({ bus: 'result', lines: { hi: 1, lo: 1 } });
   });
 });
 

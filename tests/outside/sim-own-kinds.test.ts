@@ -7,7 +7,8 @@
 // definitions. Together the programs must make every RV32I instruction retire through each
 // example's microcode.
 import { spawnSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { ProgramRun } from '../../server/src/core/sim/lockstep';
 import { loadProgram } from '../../server/src/core/sim/program';
@@ -18,11 +19,26 @@ import { haveTools } from '../support/tools';
 import { QEMU, runQemu, type QemuRun } from '../isa/support/riscv-tools';
 import { buildPrograms, type BuiltProgram } from '../programs/build.mjs';
 import { CLI, REPO, ensureCli, planOf } from '../sim/support';
+import { gantryWithHalves } from '../support/ownKinds';
 
 const toolsPresent = haveTools(['riscv64-unknown-elf-gcc'], 'gcc-riscv64-unknown-elf') && haveTools([QEMU], 'qemu-user');
 
-/** Every example that declares kinds of its own, and the kinds it declares. */
-const EXAMPLES = ['gantry-32.pwt'];
+/** Every example that declares kinds of its own, and a variant with partial-width drives. */
+const EXAMPLES = ['gantry-32.pwt', 'gantry-32-halves.pwt'];
+
+/** The text of an example, or of a variant written under tests/.tmp (its name ends in the variant). */
+function exampleText(example: string): string {
+  if (example === 'gantry-32-halves.pwt') return gantryWithHalves(readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8'));
+  return readFileSync(new URL(`../../examples/${example}`, import.meta.url), 'utf8');
+}
+
+function examplePath(example: string): string {
+  if (!example.endsWith('-halves.pwt')) return `examples/${example}`;
+  mkdirSync(join(REPO, 'tests/.tmp/own-kinds'), { recursive: true });
+  const path = `tests/.tmp/own-kinds/${example}`;
+  writeFileSync(join(REPO, path), exampleText(example));
+  return path;
+}
 /** The long benchmark is left to the demo's test; the short one runs here. */
 const NAMES = ['selfcheck', 'syscalls', 'ebreak', 'crc_sieve', 'arith', 'sort', 'bench_short'];
 
@@ -34,16 +50,17 @@ function qemuStatus(run: QemuRun): number | null {
 
 describe.skipIf(!toolsPresent).each(EXAMPLES)('test programs through %s (kinds of its own) against qemu-riscv32', (example) => {
   let programs: BuiltProgram[] = [];
-  const text = readFileSync(new URL(`../../examples/${example}`, import.meta.url), 'utf8');
+  const text = exampleText(example);
   const qemu = new Map<string, QemuRun>();
   const ours = new Map<string, { stdout: Buffer; stderr: string; status: number | null }>();
 
   beforeAll(() => {
     ensureCli();
     programs = buildPrograms().filter((p) => NAMES.includes(p.name));
+    const path = examplePath(example);
     for (const program of programs) {
       qemu.set(program.name, runQemu(program.elfPath));
-      const r = spawnSync(process.execPath, [CLI, 'run', `examples/${example}`, program.elfPath], { cwd: REPO, timeout: 300_000, maxBuffer: 64 * 1024 * 1024 });
+      const r = spawnSync(process.execPath, [CLI, 'run', path, program.elfPath], { cwd: REPO, timeout: 300_000, maxBuffer: 64 * 1024 * 1024 });
       if (r.error) throw r.error;
       ours.set(program.name, { stdout: r.stdout, stderr: r.stderr.toString('latin1'), status: r.status });
     }
@@ -81,7 +98,7 @@ describe.skipIf(!toolsPresent).each(EXAMPLES)('test programs through %s (kinds o
   }, 300_000);
 
   it('a wrong definition of one of its kinds is caught: a return-address adder that adds 8', () => {
-    if (!text.includes('drive sum width = x + 4')) return;
+    if (!text.includes('drive sum width = x + 4') || !text.includes('part p4   plus4')) return;
     const faulty = text.replace('drive sum width = x + 4', 'drive sum width = x + 8');
     expect(analyse(faulty).diagnostics).toEqual([]);
     const selfcheck = programs.find((p) => p.name === 'selfcheck')!;

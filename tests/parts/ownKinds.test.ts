@@ -4,6 +4,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
+import { gantryWithHalves } from '../support/ownKinds';
 
 const gantry = readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8');
 const lui = '  2: imm.fmt=u, imm.oe, bsel=imm, bmux.oe, alu.fn=passb, alu.oe, x.rd.ck, pc.inc, done';
@@ -36,5 +37,25 @@ describe('checks on parts of the table\'s own kinds', () => {
   it('two drivers on one bus through parts of the table\'s own kinds are contention', () => {
     const broken = gantry.replace(lui, '  2: imm.fmt=u, imm.oe, bsel=imm, bmux.oe, alu.fn=passb, alu.oe, p4.oe, x.rd.ck, pc.inc, done');
     expect(codesOf(broken).map((d) => d.code)).toContain('bus-contention');
+  });
+
+  describe('strobes that drive some lines of a bus', () => {
+    const halves = gantryWithHalves(gantry);
+    const jal = '  2: p4lo.oe, p4hi.oe, x.rd.ck';
+
+    it('two drivers of different lines of one bus do not fight, and together feed a load', () => {
+      expect(halves).toContain(jal);
+      expect(codesOf(halves)).toEqual([]);
+    });
+
+    it('a load of a bus some of whose lines nobody drives names those lines', () => {
+      const found = codesOf(halves.replace(jal, '  2: p4lo.oe, x.rd.ck')).filter((d) => d.code === 'undriven-latch');
+      expect(found.map((d) => d.message)).toEqual([expect.stringContaining('nothing drives lines 31..16 of `result` in step 2 of class JAL')]);
+    });
+
+    it('drivers that share lines fight, and the message names the lines', () => {
+      const found = codesOf(halves.replace(jal, '  2: p4lo.oe, alu.fn=passa, alu.oe, x.rd.ck')).filter((d) => d.code === 'bus-contention');
+      expect(found.map((d) => d.message)).toEqual([expect.stringContaining('`p4lo.oe` and `alu.oe` both drive lines 15..0 of bus `result` in step 2 of class JAL')]);
+    });
   });
 });

@@ -4,6 +4,7 @@
 // last value some earlier step drove, which is rarely what was meant (warning).
 import type { Action, AluPart, CustomPart, Machine, StepAlt } from '../model/types';
 import { customPortBusReads } from '../model/buildCustomPart';
+import { drivenLines, lineMask } from '../model/busDrivers';
 import { type Check, type CheckContext, driversByBus, strobeOf, writtenAlternatives } from './context';
 
 export const undrivenLatch: Check = {
@@ -13,8 +14,8 @@ export const undrivenLatch: Check = {
       const drivers = driversByBus(ctx.machine, alt);
       let reported: Set<string> | undefined;
       // `what` is a function so the message is only written when there is a problem.
-      const need = (bus: string, action: Action, what: () => string) => {
-        const problem = undrivenReason(ctx.machine, alt, drivers, bus);
+      const need = (bus: string, action: Action, what: () => string, lines?: { hi: number; lo: number }) => {
+        const problem = undrivenReason(ctx.machine, alt, drivers, bus, new Set(), lines);
         if (!problem) return;
         const key = `${action.signal}:${problem.bus}`;
         reported ??= new Set();
@@ -27,7 +28,7 @@ export const undrivenLatch: Check = {
         if (!strobe) continue;
         const part = strobe.part ? ctx.machine.parts.get(strobe.part) : undefined;
         if ((strobe.kind === 'clock' || strobe.kind === 'write') && strobe.bus) {
-          need(strobe.bus, action, () => (strobe.kind === 'write' ? `\`${action.signal}\` writes bus \`${strobe.bus}\` to memory` : `\`${action.signal}\` loads \`${strobe.part}\` from bus \`${strobe.bus}\``));
+          need(strobe.bus, action, () => (strobe.kind === 'write' ? `\`${action.signal}\` writes bus \`${strobe.bus}\` to memory` : `\`${action.signal}\` loads \`${strobe.part}\` from bus \`${strobe.bus}\``), strobe.lines);
         }
         if (strobe.kind === 'clock' && part?.kind === 'compare') {
           need(part.a, action, () => `\`${action.signal}\` latches the comparison of \`${part.a}\` and \`${part.b}\``);
@@ -49,14 +50,21 @@ export const undrivenLatch: Check = {
 interface Undriven {
   bus: string;
   keeper: boolean;
+  /** The lines nobody drives when other lines of the bus are driven, e.g. `15..8`. */
+  lines?: string;
   /** Set when the bus is driven by the ALU but the ALU's operand bus is not. */
   via?: string;
 }
 
-function undrivenReason(machine: Machine, alt: StepAlt, drivers: Map<string, Action[]>, bus: string, seen = new Set<string>()): Undriven | undefined {
+function undrivenReason(machine: Machine, alt: StepAlt, drivers: Map<string, Action[]>, bus: string, seen = new Set<string>(), needed?: { hi: number; lo: number }): Undriven | undefined {
   const busInfo = machine.buses.get(bus);
   const driving = drivers.get(bus);
   if (!driving || driving.length === 0) return { bus, keeper: !!busInfo?.keeper };
+  // Drivers of some lines only (byte lanes): every line the reader takes must be driven.
+  // (Buses wider than 32 lines are only ever driven whole: the model refuses ranges on them.)
+  const want = needed ?? { hi: Math.min(busInfo?.width ?? 1, 32) - 1, lo: 0 };
+  const missing = lineMask(want.hi, want.lo) & ~drivenLines(machine, driving.map((a) => a.signal), bus);
+  if (missing !== 0) return { bus, keeper: !!busInfo?.keeper, lines: lineRanges(missing) };
   // A driver that computes from other buses (the ALU, a part of the table's own kind) needs
   // them driven too, through any number of such parts (a loop is the settle check's business).
   if (seen.has(bus)) return undefined;
@@ -131,17 +139,31 @@ function aluOperandsUsed(machine: Machine, alt: StepAlt, alu: AluPart): string[]
 function report(ctx: CheckContext, alt: StepAlt, owner: string, action: Action, what: string, problem: Undriven): void {
   const where = `step ${alt.step} of ${owner}`;
   const subject = problem.via ? `${what}, which is ${problem.via} computed from bus \`${problem.bus}\`` : what;
+  const nobody = problem.lines ? `nothing drives lines ${problem.lines} of \`${problem.bus}\`` : `nothing drives \`${problem.bus}\``;
   if (problem.keeper) {
     ctx.report(
       'stale-latch',
       action.span,
-      `${subject}, but nothing drives \`${problem.bus}\` in ${where}: its keepers hold the value of an earlier step, which is stored instead; drive \`${problem.bus}\` in this step`,
+      `${subject}, but ${nobody} in ${where}: its keepers hold the value of an earlier step, which is stored instead; drive \`${problem.bus}\` in this step`,
     );
   } else {
     ctx.report(
       'undriven-latch',
       action.span,
-      `${subject}, but nothing drives \`${problem.bus}\` in ${where} and it has no keepers: the lines float and noise is stored; enable a driver on \`${problem.bus}\` in this step`,
+      `${subject}, but ${nobody} in ${where} and it has no keepers: the lines float and noise is stored; enable a driver on \`${problem.bus}\` in this step`,
     );
   }
+}
+
+/** Lines of a mask as ranges, highest first: `31..24, 7..0`. */
+function lineRanges(mask: number): string {
+  const out: string[] = [];
+  for (let hi = 31; hi >= 0; hi--) {
+    if (((mask >>> hi) & 1) === 0) continue;
+    let lo = hi;
+    while (lo > 0 && ((mask >>> (lo - 1)) & 1) === 1) lo--;
+    out.push(hi === lo ? `${hi}` : `${hi}..${lo}`);
+    hi = lo;
+  }
+  return out.join(', ');
 }

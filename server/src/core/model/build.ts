@@ -751,7 +751,7 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
     }
     if (!wirePart(ctx, strobe, decl.source, kind)) return;
     const bus = busArg(ctx, decl.target.name, 'target', name);
-    if (!bus || !wholeBus(ctx, decl.target, kind)) return;
+    if (!bus || !busLines(ctx, decl.target, strobe)) return;
     strobe.bus = bus;
   } else if (form === 'bus-to-part') {
     if (kind === 'clock' && decl.source && !decl.target) {
@@ -763,7 +763,13 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
         return;
       }
       const bus = busArg(ctx, decl.source.name, 'source', name);
-      if (!bus || !wholeBus(ctx, decl.source, kind)) return;
+      if (!bus) return;
+      if (decl.source.index && !decl.source.indexLo && ctx.machine.buses.get(bus)?.width === 1) {
+        // `bus[0]` of a one-line bus is the whole bus.
+      } else if (decl.source.index) {
+        ctx.report('wrong-wiring', { start: decl.source.name.span.end, end: decl.source.span.end }, `a ${kind} strobe loads the whole bus; loading some lines of a bus is not supported yet (drive them onto a narrower bus, or give the part a kind that picks the lines it keeps)`);
+        return;
+      }
       strobe.bus = bus;
       if (!wirePart(ctx, strobe, decl.target, kind)) return;
     }
@@ -777,14 +783,15 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
   const bus = strobe.bus ? ctx.machine.buses.get(strobe.bus) : undefined;
   const part = strobe.part ? ctx.machine.parts.get(strobe.part) : undefined;
   const partWidth = part?.kind === 'custom' ? (customPortFor(part, kind, strobe.kindPort) as { width?: number }).width ?? part.width : part?.width;
-  if (bus && part && partWidth !== undefined && part.kind !== 'regfile' && part.kind !== 'memory' && bus.width !== partWidth && !accepted.has('width-mismatch')) {
+  const lineCount = strobe.lines ? strobe.lines.hi - strobe.lines.lo + 1 : bus?.width;
+  if (bus && part && partWidth !== undefined && part.kind !== 'regfile' && part.kind !== 'memory' && lineCount !== partWidth && !accepted.has('width-mismatch')) {
     // The fix accepts the change on this line: before the description, or at the line's end.
     const at = decl.description?.span.start ?? decl.span.end;
     ctx.diagnostics.push({
       code: 'width-mismatch',
       severity: 'warning',
       span: decl.span,
-      message: `\`${part.name}${part.kind === 'custom' ? `.${strobe.kindPort}` : ''}\` is ${partWidth} bits wide but the bus \`${bus.name}\` is ${bus.width}; the extra bits ${bus.width > partWidth ? 'of the bus are undriven or ignored' : 'of the part are lost'}. If that is deliberate, end the line with \`accept width-mismatch\``,
+      message: `\`${part.name}${part.kind === 'custom' ? `.${strobe.kindPort}` : ''}\` is ${partWidth} bits wide but ${strobe.lines ? `lines ${strobe.lines.hi}..${strobe.lines.lo} of the bus \`${bus.name}\` are ${lineCount}` : `the bus \`${bus.name}\` is ${bus.width}`}; the extra bits ${lineCount! > partWidth ? 'of the bus are undriven or ignored' : 'of the part are lost'}. If that is deliberate, end the line with \`accept width-mismatch\``,
       fixes: [{ title: 'Accept this width change on this line', edits: [{ span: { start: at, end: at }, newText: decl.description ? 'accept width-mismatch ' : ' accept width-mismatch' }] }],
     });
   }
@@ -811,23 +818,34 @@ function acceptedCodes(ctx: BuildContext, clause: A.AcceptClause | undefined): S
 }
 
 /**
- * A strobe drives or loads a whole bus: the notation has no partial-width drives, so an index
- * on a bus (`-> result[1]`) would be silently ignored. It is an error on the index instead.
+ * The lines of a bus a strobe drives or loads: the whole bus, or `bus[hi:lo]` / `bus[n]`. Lines
+ * the bus does not have, or a range written low to high, are errors on the index.
  */
-function wholeBus(ctx: BuildContext, ref: A.Ref, kind: M.StrobeKind): boolean {
+function busLines(ctx: BuildContext, ref: A.Ref, strobe: M.Strobe): boolean {
   if (!ref.index) return true;
   const busName = ref.name.text;
   const width = ctx.machine.buses.get(busName)?.width ?? 0;
-  const line = parseNumber(ref.index.text);
-  const written = `${busName}[${ref.index.text}]`;
-  const verb = kind === 'enable' || kind === 'read' ? 'drives' : 'loads from';
-  const what = line !== undefined && line < width ? `names line ${line} of the bus` : `names a line bus \`${busName}\` does not have (its lines are 0..${width - 1})`;
-  ctx.report(
-    'wrong-wiring',
-    { start: ref.name.span.end, end: ref.span.end },
-    `\`${written}\` ${what}, but a strobe ${verb} the whole bus: driving or loading part of a bus is not supported yet. Write \`${busName}\`, or declare a narrower bus for those lines`,
-  );
-  return false;
+  const at = { start: ref.name.span.end, end: ref.span.end };
+  const hi = parseNumber(ref.index.text);
+  const lo = ref.indexLo ? parseNumber(ref.indexLo.text) : hi;
+  if (hi === undefined || lo === undefined) {
+    ctx.report('bad-number', at, `write the bus lines as numbers, e.g. \`${busName}[7:0]\``);
+    return false;
+  }
+  if (lo > hi) {
+    ctx.report('bad-number', at, `write the high line first, e.g. \`${busName}[${lo}:${hi}]\``);
+    return false;
+  }
+  if (hi >= width) {
+    ctx.report('wrong-wiring', at, `\`${busName}[${ref.index.text}${ref.indexLo ? `:${ref.indexLo.text}` : ''}]\` names a line bus \`${busName}\` does not have (its lines are ${width - 1}..0)`);
+    return false;
+  }
+  if (hi - lo + 1 < width && width > 32) {
+    ctx.report('wrong-wiring', at, `driving or loading some lines of a bus wider than 32 lines is not supported yet; \`${busName}\` has ${width}`);
+    return false;
+  }
+  if (hi - lo + 1 < width) strobe.lines = { hi, lo };
+  return true;
 }
 
 const strobeForms: Record<M.StrobeKind, 'none' | 'part-to-bus' | 'bus-to-part' | 'part'> = {

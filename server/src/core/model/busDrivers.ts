@@ -9,23 +9,69 @@ export function drivenBus(strobe: Strobe): string | undefined {
   return strobe.bus !== undefined && (strobe.kind === 'enable' || strobe.kind === 'read') ? strobe.bus : undefined;
 }
 
-/** A bus two or more asserted strobes drive at once. */
+/** A bus two or more asserted strobes drive at once, on at least one common line. */
 export interface Contention {
   readonly bus: string;
-  /** The drivers, in the order given. */
+  /** The drivers that share a line with another, in the order given. */
   readonly strobes: string[];
+  /** The lines the first two of them both drive (high, low). */
+  readonly lines: { hi: number; lo: number };
 }
 
-/** The buses that two or more of the (distinct) asserted strobes drive at once, in order of their first driver. */
+/** The lines of its bus a strobe drives or loads (the whole bus unless it names a range). */
+export function linesOf(machine: Machine, strobe: Strobe): { hi: number; lo: number } {
+  return strobe.lines ?? { hi: (machine.buses.get(strobe.bus ?? '')?.width ?? 1) - 1, lo: 0 };
+}
+
+/**
+ * The buses on which two or more of the (distinct) asserted strobes drive a common line, in
+ * order of their first driver. Drivers of different lines of one bus (byte lanes) do not fight.
+ */
 export function contendedBuses(machine: Machine, asserted: Iterable<string>): Contention[] {
-  const byBus = new Map<string, string[]>();
+  const byBus = new Map<string, Strobe[]>();
   for (const name of asserted) {
     const signal = machine.signals.get(name);
     const bus = signal?.type === 'strobe' ? drivenBus(signal) : undefined;
-    if (bus === undefined) continue;
+    if (bus === undefined || signal?.type !== 'strobe') continue;
     const list = byBus.get(bus);
-    if (!list) byBus.set(bus, [name]);
-    else if (!list.includes(name)) list.push(name);
+    if (!list) byBus.set(bus, [signal]);
+    else if (!list.includes(signal)) list.push(signal);
   }
-  return [...byBus].filter(([, strobes]) => strobes.length > 1).map(([bus, strobes]) => ({ bus, strobes }));
+  const out: Contention[] = [];
+  for (const [bus, strobes] of byBus) {
+    if (strobes.length < 2) continue;
+    const fighting: string[] = [];
+    let lines: { hi: number; lo: number } | undefined;
+    for (let i = 0; i < strobes.length; i++) {
+      const a = linesOf(machine, strobes[i]);
+      for (let j = 0; j < strobes.length; j++) {
+        if (i === j) continue;
+        const b = linesOf(machine, strobes[j]);
+        const hi = Math.min(a.hi, b.hi);
+        const lo = Math.max(a.lo, b.lo);
+        if (hi < lo) continue;
+        if (!fighting.includes(strobes[i].name)) fighting.push(strobes[i].name);
+        lines ??= { hi, lo };
+      }
+    }
+    if (lines) out.push({ bus, strobes: fighting, lines });
+  }
+  return out;
+}
+
+/** The lines of a bus the asserted strobes drive together, as a mask (bit n = line n). */
+export function drivenLines(machine: Machine, asserted: Iterable<string>, bus: string): number {
+  let mask = 0;
+  for (const name of asserted) {
+    const signal = machine.signals.get(name);
+    if (signal?.type !== 'strobe' || drivenBus(signal) !== bus) continue;
+    const { hi, lo } = linesOf(machine, signal);
+    mask |= lineMask(hi, lo);
+  }
+  return mask;
+}
+
+/** Lines hi..lo as a mask (up to 32 lines). */
+export function lineMask(hi: number, lo: number): number {
+  return hi - lo + 1 >= 32 ? -1 << lo : (((1 << (hi - lo + 1)) - 1) << lo) | 0;
 }

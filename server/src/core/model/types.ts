@@ -146,6 +146,8 @@ export interface Strobe {
   kindPort?: string;
   /** The bus driven (enable, read) or loaded from (clock, write). */
   bus?: string;
+  /** The lines of the bus it drives or loads (`result[7:0]`); undefined for the whole bus. */
+  lines?: { hi: number; lo: number };
   symbol: SymbolInfo;
   figures: Figures;
 }

@@ -112,7 +112,9 @@ const MAX_CHAIN_STEPS = 16;
 /** Whether the fast path can run this machine at all. */
 export function canCompile(plan: SimPlan): boolean {
   // Parts of the table's own kinds run on the interpreter (their ports are compiled on their own).
-  return plan.custom.runtimes.length === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
+  // So do strobes that drive some lines of a bus.
+  const partial = [...plan.machine.signals.values()].some((s) => s.type === 'strobe' && s.lines !== undefined);
+  return !partial && plan.custom.runtimes.length === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
 }
 
 const ALU_EXPRESSIONS: ((a: string, b: string) => string)[] = [

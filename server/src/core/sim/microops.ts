@@ -15,7 +15,7 @@
 // hot loop only checks a flag.
 //
 // Deliberately not here: values (simulator.ts computes them) and reports (describe.ts).
-import { contendedBuses } from '../model/busDrivers';
+import { contendedBuses, lineMask } from '../model/busDrivers';
 import type { Field, Part, Strobe } from '../model/types';
 import { GrowableInt32 } from './growable';
 import { CONDITION_FROM_FUNCT3, SIZE_WORD, aluFunctionNumber, aluOperandsUsed, conditionNumber, immediateFormatNumber, memorySizeNumber } from './operations';
@@ -117,6 +117,12 @@ export class MicroOps {
   count = 0;
   /** Every compiled micro-op, back to back (layout: U_* above). */
   readonly code = new GrowableInt32(1024);
+  /**
+   * Beside `code`, at the offset of each driver: the mask of the bus lines it drives (0: the
+   * whole bus), the lowest of them, and 1 when its value's definedness joins that of another
+   * driver of the same bus in this step (byte lanes) instead of setting it.
+   */
+  readonly lines = new GrowableInt32(1024);
   readonly info: MicroOpInfo[] = [];
   /** Multiplier of each store's word number in the combined key. */
   readonly strides: number[] = [];
@@ -202,6 +208,34 @@ export class MicroOps {
     const nBuses = plan.busNames.length;
     const driven = new Uint8Array(nBuses);
     for (const d of drivers) driven[d.bus] = 1;
+    // Lines each driver drives; lines of a keeper-less bus that some drivers leave undriven float,
+    // so a part that computes from that whole bus gets no defined value, and a load of it faults.
+    const coverage = new Int32Array(nBuses);
+    const strobeLines = (d: { strobe: string }) => {
+      const strobe = machine.signals.get(d.strobe) as Strobe;
+      return strobe.lines ? { mask: lineMask(strobe.lines.hi, strobe.lines.lo), lo: strobe.lines.lo } : { mask: 0, lo: 0 };
+    };
+    for (const d of drivers) {
+      const { mask } = strobeLines(d);
+      coverage[d.bus] |= mask === 0 ? plan.busMask[d.bus] : mask;
+    }
+    const incomplete = (bus: number) => driven[bus] === 1 && !plan.busKeeper[bus] && (coverage[bus] & plan.busMask[bus]) !== plan.busMask[bus];
+    for (const d of drivers) {
+      const floating = d.reads.find(incomplete);
+      if (floating !== undefined) {
+        d.op = D_UNDEFINED;
+        d.note = `it computes from bus \`${plan.busNames[floating]}\`, some of whose lines nobody drives in this step`;
+        d.reads = [];
+      }
+    }
+    for (const e of edges) {
+      const floating = e.reads.find(incomplete);
+      if (floating !== undefined && e.op !== E_FAULT) {
+        e.op = E_FAULT;
+        e.fault = `\`${e.strobe}\` loads bus \`${plan.busNames[floating]}\`, some of whose lines nobody drives in this step and which has no keepers`;
+        e.reads = [];
+      }
+    }
     // The one contention rule (model/busDrivers.ts), over the drivers this word really has.
     const contention = contendedBuses(machine, drivers.map((d) => d.strobe)).map(({ bus, strobes }) => ({ bus: plan.busIndex.get(bus)!, strobes }));
     const { ordered, loop } = settleOrder(drivers, plan.busNames);
@@ -220,7 +254,20 @@ export class MicroOps {
     code.push(floatMask);
     code.push(needMask);
     code.push(ordered.length);
-    for (const d of ordered) for (const v of [d.op, d.bus, d.a, d.b, d.c]) code.push(v);
+    const joined = new Set<number>();
+    for (const d of ordered) {
+      const at = code.length;
+      for (const v of [d.op, d.bus, d.a, d.b, d.c]) code.push(v);
+      while (this.lines.length < code.length) this.lines.push(0);
+      const { mask, lo } = strobeLines(d);
+      this.lines.data[at] = mask;
+      this.lines.data[at + 1] = lo;
+      // The first driver of a fully covered bus sets its definedness; the others (and every
+      // driver of a bus whose other lines are kept) join in.
+      const partial = mask !== 0;
+      this.lines.data[at + 2] = partial && (joined.has(d.bus) || plan.busKeeper[d.bus] === 1) ? 1 : 0;
+      if (partial) joined.add(d.bus);
+    }
     code.push(edges.length);
     for (const e of edges) for (const v of [e.op, e.bus, e.a, e.b, e.c]) code.push(v);
     this.info.push({

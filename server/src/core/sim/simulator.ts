@@ -353,6 +353,7 @@ export class BusSimulator implements MachineAccess {
     // The compiled stepper keeps its own copy of the address's static part: start from the state.
     this.refreshStaticParts();
     let code = mo.code.data;
+    let lines = mo.lines.data;
     let defined = this.definedMask;
     let step = this.step;
     let ir = partValue[irPart];
@@ -369,6 +370,7 @@ export class BusSimulator implements MachineAccess {
       } else {
         base = this.multiStoreUop(step);
         code = mo.code.data; // compiling a new micro-op may have grown the code
+        lines = mo.lines.data;
       }
       const header = code[base];
       const uop = code[base + 1];
@@ -434,8 +436,16 @@ export class BusSimulator implements MachineAccess {
           default: // D_UNDEFINED
             ok = 0;
         }
-        busValue[bus] = value & busMask[bus];
-        defined = ok !== 0 ? defined | (1 << bus) : defined & ~(1 << bus);
+        const driven = lines[p];
+        if (driven === 0) {
+          busValue[bus] = value & busMask[bus];
+          defined = ok !== 0 ? defined | (1 << bus) : defined & ~(1 << bus);
+        } else {
+          // Some lines of the bus (a byte lane): the others keep what they hold.
+          busValue[bus] = (busValue[bus] & ~driven) | ((value << lines[p + 1]) & driven);
+          if (lines[p + 2] === 0) defined = ok !== 0 ? defined | (1 << bus) : defined & ~(1 << bus);
+          else if (ok === 0) defined &= ~(1 << bus);
+        }
       }
       if (recordBuses) {
         const at = step * nBuses;

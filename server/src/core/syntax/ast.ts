@@ -25,6 +25,8 @@ export interface StringLit {
 export interface Ref {
   name: Name;
   index?: Literal;
+  /** `result[7:0]`: the low end of a range of bus lines (`index` is the high end). */
+  indexLo?: Literal;
   span: Span;
 }
 

@@ -331,7 +331,9 @@ class Parser {
     const ref: A.Ref = { name, span: name.span };
     if (this.at(T.LBracket)) {
       this.next();
-      ref.index = this.expectNumber('a register number, e.g. `x[0]`');
+      ref.index = this.expectNumber('a register number, e.g. `x[0]`, or bus lines, e.g. `result[7:0]`');
+      // `bus[hi:lo]`: lines of a bus a strobe drives or loads (the model decides what the name is).
+      if (ref.index && this.eat(T.Colon)) ref.indexLo = this.expectNumber('the lowest line, e.g. `result[7:0]`');
       const close = this.eat(T.RBracket);
       if (!close) this.unexpected("']'");
       ref.span = mkSpan(name.span.start, this.prevEnd);

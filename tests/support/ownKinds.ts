@@ -1,0 +1,21 @@
+// Variants of the examples that declare kinds of their own, shared by the checks and the
+// simulator tests.
+
+/**
+ * gantry-32 with its return-address adder split into two 16-bit halves that drive lines 15..0
+ * and 31..16 of the result bus in the same step (partial-width drives joined on one bus).
+ */
+export function gantryWithHalves(text: string): string {
+  const replaced = text
+    .replace('part p4   plus4 pc "pc + 4 for JAL and JALR."', 'part p4lo half4 pc half=low\npart p4hi half4 pc half=high')
+    .replace('kind hold ', 'kind half4 "one half of pc + 4"\n  input x 32\n  setting half choice low high = low\n  drive part 16 = select half { low: (x + 4)[15:0], high: (x + 4)[31:16] }\n\nkind hold ')
+    .replace('strobe p4.oe    enable p4 -> result', 'strobe p4lo.oe  enable p4lo -> result[15:0]\nstrobe p4hi.oe  enable p4hi -> result[31:16]')
+    .replace('p4.oe 15', 'p4lo.oe 15')
+    .replace('alu.fn 16..19  t.ck 20  t.oe 21  sys.trap 22  done 23', 'alu.fn 16..19  t.ck 20  t.oe 21  sys.trap 22  done 23  p4hi.oe 24')
+    .replace('imm.fmt 24..26  mem.size 27..29  asel 30  bsel 31', 'imm.fmt 25..27  mem.size 28..30  asel 31  bsel 32')
+    .replace('word 32 as 4 x 8 chip=28C64', 'word 40 as 5 x 8 chip=28C64')
+    .replaceAll('  2: p4.oe, x.rd.ck', '  2: p4lo.oe, p4hi.oe, x.rd.ck')
+    .replaceAll('  3: p4.oe, x.rd.ck', '  3: p4lo.oe, p4hi.oe, x.rd.ck');
+  if (replaced.includes('p4.oe') || !replaced.includes('p4hi.oe 24')) throw new Error('gantry-32 changed: update gantryWithHalves');
+  return replaced;
+}
