@@ -33,6 +33,9 @@ export const unusedName: Check = {
       if (part.kind === 'memory') (part.addressFrom === 'bus' ? usedBuses : usedParts).add(part.address);
       if (part.kind === 'immediate' && part.source) usedParts.add(part.source);
       if (part.kind === 'instruction' || part.kind === 'regfile') usedParts.add(part.name);
+      // A part of the table's own kind is reported (kind-not-wired) and left out of the
+      // machine's checks; whether strobes use it is judged once its kind is wired.
+      if (part.kind === 'custom') usedParts.add(part.name);
     }
     for (const flag of machine.flags.values()) usedParts.add(flag.part);
     const warn = (name: string, span: typeof machine.symbols[number]['span'], what: string, fixes?: Parameters<typeof ctx.report>[4]) =>

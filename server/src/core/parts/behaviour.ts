@@ -101,7 +101,8 @@ function placedExpressions(def: KindDef, setting: PartSetting, report: (d: Diagn
   const place = (text: ExprText, where: PlacedExpr['place'], scope: Map<string, NameInfo>) => {
     const parsed = parsedExpr(def, text);
     parsed.diagnostics.forEach(report);
-    if (parsed.expr) placed.set(text, { expr: substitute(parsed.expr, numbers), place: where, scope });
+    // An expression reading a line left out for its own problem would only repeat that problem.
+    if (parsed.expr && !namesUsed(parsed.expr).some((n) => def.leftOut.has(n))) placed.set(text, { expr: substitute(parsed.expr, numbers), place: where, scope });
   };
   const bits = (size: Size) => ({ width: sizeOf(size, setting.settings) });
   const base = scopeEntries(def, setting);
@@ -135,7 +136,7 @@ export function checkBehaviour(def: KindDef, setting: PartSetting, report: (d: D
   const stateNames = new Set(def.states.map((s) => s.name));
   for (const flag of def.flags) {
     const parsed = parsedExpr(def, flag.expr).expr;
-    const reads = parsed ? namesUsed(parsed).filter((n) => !stateNames.has(n) && !def.settings.some((s) => s.name === n)) : [];
+    const reads = parsed ? namesUsed(parsed).filter((n) => !stateNames.has(n) && !def.leftOut.has(n) && !def.settings.some((s) => s.name === n)) : [];
     if (reads.length) {
       report({
         code: 'kind-definition',
