@@ -54,7 +54,7 @@ export const catalogue: CodeInfo[] = [
     code: 'kind-not-wired',
     severity: 'error',
     title: 'a part uses a kind of the table\'s own, which is not yet simulated or checked',
-    explanation: 'Kinds you declare with `kind` are read and checked, but this version does not yet run them in the simulator, count them in the contention, latch and timing checks, or in the budgets. Rather than build images whose meaning it has not checked, Phasewright reports every part of such a kind and leaves it out. Until then, describe the part with one of the standard library\'s kinds (hover a kind to read its definition).',
+    explanation: 'Kinds you declare with `kind` are read and checked, but this version does not yet run them in the simulator, count them in the contention, latch and timing checks, or in the budgets. Rather than build images whose meaning it has not checked, Phasewright reports every part of such a kind and leaves it out. Until then, describe the part with one of the standard library\'s kinds (hover a kind to read its definition). A register array or memory (`x COUNT`, `x memory`) in such a kind is reported too, at its state line: its reads and writes are checked, but only the library\'s regfile and memory hold arrays in the simulator.',
   },
   {
     code: 'unknown-kind',
