@@ -1,7 +1,6 @@
 // The bundled examples: the demo machine checks clean, and every fault example produces
 // exactly its own diagnostic code (its file name) and nothing else. Every code in the
-// catalogue has a fault example and a section in docs/diagnostics.md, except the expression
-// codes listed below, whose examples wait for the notation of part definitions.
+// catalogue has a fault example and a section in docs/diagnostics.md.
 import { describe, expect, it } from 'vitest';
 import { readFileSync, readdirSync } from 'node:fs';
 import { analyse } from '../../server/src/core/analysis';
@@ -9,14 +8,6 @@ import { catalogue } from '../../server/src/core/checks/catalogue';
 
 const dir = new URL('../../examples/faults/', import.meta.url);
 const faults = readdirSync(dir).filter((f) => f.endsWith('.pwt')).sort();
-
-/**
- * Codes of the expression checker (server/src/core/parts/expr). Expressions stand in part
- * definitions, which have no notation in a .pwt file yet, so no file can produce these codes;
- * docs/diagnostics.md shows each on an expression instead. Remove a code here when its fault
- * example is added (the test fails while both exist).
- */
-const awaitingFaultExample = ['expr-name', 'expr-slice', 'expr-syntax', 'expr-value', 'expr-width'];
 
 describe('examples', () => {
   it('the demo machine has no diagnostics at all', () => {
@@ -39,8 +30,7 @@ describe('examples', () => {
     const doc = readFileSync(new URL('../../docs/diagnostics.md', import.meta.url), 'utf8');
     const documented = [...doc.matchAll(/^## `([a-z0-9-]+)`/gm)].map((m) => m[1]);
     const withExample = faults.map((f) => f.replace(/\.pwt$/, ''));
-    for (const code of awaitingFaultExample) expect(withExample, `${code} has a fault example now: drop it from awaitingFaultExample`).not.toContain(code);
-    expect([...withExample, ...awaitingFaultExample].sort()).toEqual(catalogue.map((c) => c.code).sort());
+    expect(withExample.sort()).toEqual(catalogue.map((c) => c.code).sort());
     expect(documented.sort()).toEqual(catalogue.map((c) => c.code).sort());
   });
 });

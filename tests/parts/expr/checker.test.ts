@@ -1,7 +1,7 @@
 // The width checker: correct expressions check clean with the right width, and each problem is
 // reported once, with its code, at the exact span, saying both widths where widths disagree.
 import { describe, expect, it } from 'vitest';
-import { checkExpression, namesUsed, parseExpression, scopeOf, selectCovers, type NameInfo, type SelectExpr } from '../../../server/src/core/parts/expr';
+import { checkElementIndex, checkExpression, namesUsed, parseExpression, scopeOf, selectCovers, type NameInfo, type SelectExpr } from '../../../server/src/core/parts/expr';
 
 const BASE = 40;
 
@@ -14,6 +14,12 @@ const fields: [string, NameInfo][] = [
   ['cnt.zero', { width: 1 }],
   ['op', { width: 3 }],
   ['fn', { width: 2, values: new Map([['add', 0], ['sub', 1], ['xor', 2]]) }],
+  ['ir', { width: 32 }],
+  ['addr', { width: 32 }],
+  // Arrays: 32 registers of 32 bits, 5 of 8 bits, and the byte memory.
+  ['r', { width: 32, elements: 32 }],
+  ['q', { width: 8, elements: 5 }],
+  ['m', { width: 8, elements: 'memory' }],
 ];
 const scope = scopeOf(new Map(fields));
 
@@ -145,9 +151,58 @@ describe('expression checker', () => {
     ]);
   });
 
+  it.each([
+    ['r[ir[19:15]]', 32],
+    ['r[a]', 32],
+    ['r[w]', 32],
+    ['r[3]', 32],
+    ['r[31][7:0]', 8],
+    ['r[ir[24:20]] + r[ir[19:15]]', 32],
+    ['q[1 + 1]', 8],
+    ['q[(4)]', 8],
+    ['m[addr]', 8],
+    ['m[addr + 1]', 8],
+    ['{m[addr + 1], m[addr]}', 16],
+    ['m[0]', 8],
+    ['m[(5)]', 8],
+    ['m[r[ir[19:15]] + 4]', 8],
+  ])('array read %s checks clean, %i bits', (text, width) => {
+    expect(check(text)).toEqual({ width, diagnostics: [] });
+  });
+
+  it('arrays: one index, an element the array has, a 32-bit memory address; not used whole; no computed index elsewhere', () => {
+    expect(problems('r[7:0]')).toEqual(['expr-slice @7:0: an array element is read with one index: `r[7]` is element 7; slice the element after it, e.g. `r[0][7:0]`, if you meant its bits']);
+    expect(problems('r[32]')).toEqual(['expr-slice @32: element 32 is outside `r`, which has 32 elements (31..0)']);
+    expect(problems('q[(5)]')).toEqual(['expr-slice @5: element 5 is outside `q`, which has 5 elements (4..0)']);
+    expect(problems('m[0x1_0000_0000]')).toEqual(['expr-slice @0x1_0000_0000: element 4294967296 is outside the memory `m`, whose byte addresses are 32 bits']);
+    expect(problems('a[b]')).toEqual(['expr-slice @b: `a` is not an array: only register arrays and the memory take a computed index; a bit is chosen by a number, e.g. `[0]`']);
+    expect(problems('(a + b)[c]')).toEqual(['expr-slice @c: `a + b` is not an array: only register arrays and the memory take a computed index; a bit is chosen by a number, e.g. `[0]`']);
+    expect(problems('r + 1')).toEqual(['expr-width @r: `r` is an array of 32 elements of 32 bits, not one value: read one element with an index, e.g. `r[i]`']);
+    expect(problems('m')).toEqual(['expr-width @m: `m` is the byte memory, not one value: read one element with an index, e.g. `m[addr]`']);
+    expect(problems('m[a]')).toEqual(['expr-width @a: `a` is 8 bits wide, but 32 bits are needed here (a memory index is a 32-bit byte address); make the widths equal, e.g. with a slice, zext or sext']);
+    expect(problems('r[ir[19:15]]', 8)).toEqual(['expr-width @r[ir[19:15]]: `r[ir[19:15]]` is 32 bits wide, but 8 bits are needed here (the width expected where the expression is used); make the widths equal, e.g. with a slice, zext or sext']);
+    // An unknown name is the one problem reported.
+    expect(problems('q[quux]')).toEqual(['expr-name @quux: `quux` is not a known signal, port or field']);
+    expect(problems('zz[a]')).toEqual(['expr-name @zz: `zz` is not a known signal, port or field']);
+  });
+
+  it('checkElementIndex holds an assignment\'s index to the rules of an index in an expression', () => {
+    const index = (text: string, array: string) => {
+      const r = checkElementIndex(parseExpression(text, BASE).expr!, scope, array);
+      return { width: r.width, problems: r.diagnostics.map((d) => `${d.code} @${text.slice(d.span.start - BASE, d.span.end - BASE)}`) };
+    };
+    expect(index('ir[11:7]', 'r')).toEqual({ width: 5, problems: [] });
+    expect(index('3', 'q')).toEqual({ width: 3, problems: [] });
+    expect(index('addr + 3', 'm')).toEqual({ width: 32, problems: [] });
+    expect(index('40', 'r')).toEqual({ width: undefined, problems: ['expr-slice @40'] });
+    expect(index('a', 'm')).toEqual({ width: 8, problems: ['expr-width @a'] });
+    expect(() => index('a', 'a')).toThrow(/not an array/);
+  });
+
   it('namesUsed lists each name read once, in order', () => {
     expect(namesUsed(parseExpression('select fn { add: a + b, else: a } ^ rep(c, 8) ^ cnt.zero', 0).expr!)).toEqual(['fn', 'a', 'b', 'c', 'cnt.zero']);
     expect(namesUsed(parseExpression('0x1f', 0).expr!)).toEqual([]);
+    expect(namesUsed(parseExpression('{m[addr + 1], r[ir[19:15]][7:0]}', 0).expr!)).toEqual(['m', 'addr', 'r', 'ir']);
   });
 
   it('selectCovers says which codes a select takes to an arm (the simulator faults on the others)', () => {

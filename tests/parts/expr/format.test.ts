@@ -41,8 +41,19 @@ describe('expression printer', () => {
     expect(reprint('{carry(a, b, c), borrow(a, b), rep(x, 0x3), sext(y, 32), zext(y, 33)}')).toBe('{carry(a, b, c), borrow(a, b), rep(x, 3), sext(y, 32), zext(y, 33)}');
   });
 
-  it('parses its own print back to the same tree, on 3 000 seeded random trees', () => {
-    const gen = new ExprGenerator(42);
+  it('prints element reads: a computed index in brackets, a number index in parentheses (a bare number is a slice)', () => {
+    expect(reprint('r[ir[19:15]]')).toBe('r[ir[19:15]]');
+    expect(reprint('m[(addr + 1)]')).toBe('m[addr + 1]');
+    expect(reprint('m[(3)]')).toBe('m[(3)]');
+    expect(reprint('(r[i])[7:0]')).toBe('r[i][7:0]');
+    expect(reprint('(a + b)[c]')).toBe('(a + b)[c]');
+  });
+
+  it.each([
+    ['', {}],
+    [' reading arrays', { arrays: true }],
+  ])('parses its own print back to the same tree, on 3 000 seeded random trees%s', (_label, options) => {
+    const gen = new ExprGenerator(42, options);
     for (let i = 0; i < 3000; i++) {
       const expr: Expr = gen.expr(gen.pick(WIDTHS), 1 + gen.int(5), true);
       const text = formatExpression(expr);

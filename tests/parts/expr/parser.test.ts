@@ -54,6 +54,17 @@ describe('expression parser', () => {
     expect(tree('select fn { add: a + b, else: a }')).toBe('(select@0-33 head0-9 add fn@7-9 (+@17-22 a@17-18 b@21-22) a@30-31)');
   });
 
+  it('reads a bracketed number as a slice and anything else as an index (only arrays take one; the checker says)', () => {
+    expect(tree('r[ir[19:15]]')).toBe('(index@0-12 r@0-1 (slice 19:15@2-11 ir@2-4))');
+    expect(tree('m[addr + 1]')).toBe('(index@0-11 m@0-1 (+@2-10 addr@2-6 1@9-10))');
+    expect(tree('m[3]')).toBe('(slice 3:3@0-4 m@0-1)');
+    // A number in parentheses is an index expression, so format keeps its parentheses.
+    expect(tree('m[(3)]')).toBe('(index@0-6 m@0-1 3@3-4)');
+    expect(formatExpression(parseExpression('m[(3)]', 0).expr!)).toBe('m[(3)]');
+    expect(tree('r[i][7:0]')).toBe('(slice 7:0@0-9 (index@0-4 r@0-1 i@2-3))');
+    expect(tree('-r[i]')).toBe('(-u@0-5 (index@1-5 r@1-2 i@3-4))');
+  });
+
   it('binds as documented: ?: loosest, then | ^ & == comparisons shifts + -, unary, slices; binary levels left-associative', () => {
     expect(tree('a | b ^ c & d')).toBe('(|@0-13 a@0-1 (^@4-13 b@4-5 (&@8-13 c@8-9 d@12-13)))');
     expect(tree('a == b < c')).toBe('(==@0-10 a@0-1 (<@5-10 b@5-6 c@9-10))');
@@ -91,7 +102,9 @@ describe('expression parser', () => {
     expect(errors('a b')).toEqual(['expected an operator or the end of the expression, found `b` @2-3']);
     expect(errors('(a + b')).toEqual(['expected `)` to close `(`, found the end of the expression @6-6']);
     expect(errors('a[7:]')).toEqual(['expected a bit number, found `]` @4-5']);
-    expect(errors('a[x]')).toEqual(['expected a bit number, found `x` @2-3']);
+    expect(errors('a[x:0]')).toEqual(['a bit range takes two numbers, `[hi:lo]`; only a single index may be computed @2-3']);
+    expect(errors('r[i + 1')).toEqual(['expected `]` to close the index, found the end of the expression @7-7']);
+    expect(errors('r[]')).toEqual(['expected a name, a number, `(`, `{`, `~` or `-`, found `]` @2-3']);
     expect(errors('0x')).toEqual(['`0x` is not a number: expected hex digits after 0x @0-2']);
     expect(errors('0b102')).toEqual(['`0b102` is not a number: expected only 0 and 1 after 0b @0-5']);
     expect(errors('12abc')).toEqual(['`12abc` is not a number: expected decimal digits (or 0x.. hex, 0b.. binary) @0-5']);

@@ -1,6 +1,7 @@
 // Seeded random expression trees that check clean, for the compiled-versus-evaluated and the
 // print-and-parse-back properties (and the benchmark). Every tree is built over the inputs
-// below; a decimal literal is placed only where its context gives it a width.
+// below (and, when asked, reads elements of the arrays below); a decimal literal is placed only
+// where its context gives it a width.
 import type { Expr } from '../../../server/src/core/parts/expr';
 import { seededRandom } from '../../logic/randomTables';
 
@@ -9,15 +10,27 @@ export const WIDTHS = [1, 2, 3, 5, 8, 16, 31, 32, 33, 40, 64] as const;
 /** One input per width (`n8` has 8 bits) and the field `fn` with three named values of its four codes. */
 export const INPUTS = [...WIDTHS.map((w) => `n${w}`), 'fn'];
 export const FIELD_VALUES: ReadonlyMap<string, number> = new Map([['add', 0], ['sub', 1], ['and', 2]]);
-export const widthOf = (name: string): number => (name === 'fn' ? 2 : Number(name.slice(1)));
 export const valuesOf = (name: string) => (name === 'fn' ? FIELD_VALUES : undefined);
+
+/** Arrays a tree may read: register arrays of several sizes and element widths, and a byte memory. */
+export const ARRAYS: readonly { name: string; width: number; elements: number | 'memory' }[] = [
+  { name: 'regs', width: 32, elements: 32 },
+  { name: 'five', width: 8, elements: 5 },
+  { name: 'wide', width: 40, elements: 3 },
+  { name: 'bit', width: 1, elements: 1 },
+  { name: 'mem', width: 8, elements: 'memory' },
+];
+const arrayNamed = new Map(ARRAYS.map((a) => [a.name, a]));
+export const elementsOf = (name: string) => arrayNamed.get(name)?.elements;
+export const widthOf = (name: string): number => arrayNamed.get(name)?.width ?? (name === 'fn' ? 2 : Number(name.slice(1)));
 
 const NO_SPAN = { start: 0, end: 0 };
 
 export class ExprGenerator {
   readonly random: () => number;
 
-  constructor(seed: number) {
+  /** With `arrays`, trees also read elements of ARRAYS (their callers must give an element reader). */
+  constructor(seed: number, private readonly options: { arrays?: boolean } = {}) {
     this.random = seededRandom(seed);
   }
 
@@ -60,7 +73,7 @@ export class ExprGenerator {
     if (depth <= 0) return leaf();
     const d = depth - 1;
     const span = NO_SPAN;
-    switch (this.int(14)) {
+    switch (this.int(this.options.arrays ? 16 : 14)) {
       case 0:
         return leaf();
       case 1: {
@@ -114,9 +127,36 @@ export class ExprGenerator {
         const [then, otherwise] = this.pair(width, d, context);
         return { kind: 'cond', cond: this.expr(1, d, true), then, otherwise, span };
       }
-      default:
+      case 12:
+      case 13:
         return this.select(width, d, context);
+      default:
+        return this.elementRead(width, d);
     }
+  }
+
+  /**
+   * An element of a random array, at a fixed element (`five[3]`) or a computed index of any
+   * width (past a register array's end now and then), sliced or zero-extended to `width`.
+   */
+  private elementRead(width: number, depth: number): Expr {
+    const span = NO_SPAN;
+    const array = this.pick(ARRAYS);
+    const operand: Expr = { kind: 'name', name: array.name, span };
+    let read: Expr;
+    if (this.int(4) === 0) {
+      const at = array.elements === 'memory' ? Number(this.value(32)) : this.int(array.elements);
+      read = { kind: 'slice', operand, hi: at, lo: at, hiSpan: span, loSpan: span, span };
+    } else {
+      let index = array.elements === 'memory' ? this.expr(32, depth, true) : this.expr(this.pick(WIDTHS), depth, false);
+      // A constant index must name an element; a computed one may run past the end.
+      if (index.kind === 'number' && array.elements !== 'memory') index = { ...index, value: index.value % BigInt(array.elements) };
+      read = { kind: 'index', operand, index, span };
+    }
+    if (array.width === width) return read;
+    if (array.width < width) return { kind: 'extend', signed: this.int(2) === 0, operand: read, width, widthSpan: span, span };
+    const lo = this.int(array.width - width + 1);
+    return { kind: 'slice', operand: read, hi: lo + width - 1, lo, hiSpan: span, loSpan: span, span };
   }
 
   /** Two operands that must share `width`: without context the first has a width of its own. */

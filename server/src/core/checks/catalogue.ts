@@ -54,7 +54,7 @@ export const catalogue: CodeInfo[] = [
     code: 'kind-not-wired',
     severity: 'error',
     title: 'a kind of the table\'s own uses something this version does not run yet',
-    explanation: 'Kinds you declare with `kind` are read, width-checked, simulated and checked like the standard library\'s, except for a few things this version does not run in a table\'s own kinds yet: arrays of registers (`state r 32 x 32`) and the program memory (`state m 8 x memory`), which only the standard library\'s register file and memory port hold. Rather than simulate or check a part whose behaviour it cannot run, Phasewright reports the line. Use the standard library\'s `regfile` or `memory` for that part of the machine.',
+    explanation: 'Kinds you declare with `kind` are read, width-checked, simulated and checked like the standard library\'s, except for what this version does not run in a table\'s own kinds yet: arrays of registers (`state r 32 x 32`) and the program memory (`state m 8 x memory`). Their reads and writes are checked, but only the standard library\'s register file and memory port hold arrays in the simulator. Rather than simulate a part whose behaviour it cannot run, Phasewright reports the state line. Use the standard library\'s `regfile` or `memory` for that part of the machine.',
   },
   {
     code: 'unknown-kind',
@@ -271,13 +271,13 @@ export const catalogue: CodeInfo[] = [
     code: 'expr-width',
     severity: 'error',
     title: 'the widths in an expression do not agree',
-    explanation: 'Operands of `+ - & | ^`, of comparisons, the two choices of `?:` and the arms of a `select` must have the same width; a condition and a carry-in are one bit; the whole expression must have the width its place needs. The message names both widths. Hardware does not widen silently: say what the extra bits are with `zext` (zeros), `sext` (copies of the sign bit) or a slice `x[7:0]`. A decimal literal takes its width from its context, so where nothing gives one (alone in a `{..}` concatenation) write it in hex or binary, whose digits give the width.',
+    explanation: 'Operands of `+ - & | ^`, of comparisons, the two choices of `?:` and the arms of a `select` must have the same width; a condition and a carry-in are one bit; the whole expression must have the width its place needs. The message names both widths. Hardware does not widen silently: say what the extra bits are with `zext` (zeros), `sext` (copies of the sign bit) or a slice `x[7:0]`. A decimal literal takes its width from its context, so where nothing gives one (alone in a `{..}` concatenation) write it in hex or binary, whose digits give the width. A register array or the memory is not one value: read one element, `r[i]`, and index the memory with a 32-bit byte address.',
   },
   {
     code: 'expr-slice',
     severity: 'error',
-    title: 'a bit range lies outside its operand or is written low bit first',
-    explanation: 'In `x[hi:lo]` and `x[bit]` every bit number must be below the width of `x` (an 8-bit signal has bits 7 down to 0), and the high bit comes first. Reading a bit the signal does not have would wire an input to nothing. Correct the bit numbers or the width of the signal.',
+    title: 'a bit range or element lies outside its operand, or an index is misused',
+    explanation: 'In `x[hi:lo]` and `x[bit]` every bit number must be below the width of `x` (an 8-bit signal has bits 7 down to 0), and the high bit comes first. Reading a bit the signal does not have would wire an input to nothing. Correct the bit numbers or the width of the signal. On a register array `r[3]` is element 3, which the array must have, and an element is read with one index (`r[3][7:0]` slices it afterwards); only arrays take a computed index such as `r[ir[19:15]]`, a plain signal\'s bits are chosen by numbers.',
   },
   {
     code: 'expr-name',

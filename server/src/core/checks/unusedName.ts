@@ -33,6 +33,8 @@ export const unusedName: Check = {
       if (part.kind === 'memory') (part.addressFrom === 'bus' ? usedBuses : usedParts).add(part.address);
       if (part.kind === 'immediate' && part.source) usedParts.add(part.source);
       if (part.kind === 'instruction' || part.kind === 'regfile') usedParts.add(part.name);
+      // A part of the table's own kind uses the buses and parts its inputs are wired to.
+      if (part.kind === 'custom') for (const input of part.inputs.values()) if (input.from !== 'instruction') (input.from === 'bus' ? usedBuses : usedParts).add(input.name);
     }
     for (const flag of machine.flags.values()) usedParts.add(flag.part);
     const warn = (name: string, span: typeof machine.symbols[number]['span'], what: string, fixes?: Parameters<typeof ctx.report>[4]) =>

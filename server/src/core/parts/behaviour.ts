@@ -1,14 +1,15 @@
 // The behaviour of a kind, in one part: every expression of the kind parsed once, then checked
 // and compiled in the scope of one part, where its settings are known. Number settings stand
 // for their values (a decimal literal, so `q + inc` takes q's width); choice settings and
-// controls are names whose values are their choices or the driving field's codes.
+// controls are names whose values are their choices or the driving field's codes. Register
+// arrays (`state r 32 x 32`) and the memory (`x memory`) are arrays of the scope, read `r[i]`.
 //
 // One scope serves every reader: the checker (diagnostics), the simulator (compiled functions)
 // and, later, the prover. A kind is checked with its defaults where it is declared, and again
 // in each part whose settings differ, so a width that only breaks for one part is still found.
 import type { ExprText } from '../syntax/ast';
 import type { Diagnostic } from '../text/diagnostic';
-import { type Expr, type NameInfo, checkExpression, children, compileExpressions, namesUsed, parseExpression } from './expr';
+import { type Expr, type NameInfo, type RunOptions, bitsFor, checkElementIndex, checkExpression, children, compileExpressions, namesUsed, parseExpression, scopeOf } from './expr';
 import { type KindDef, type Size, edgeInputName } from './kinds';
 
 /** A part's settings and the codes of the fields driving its controls. */
@@ -34,8 +35,6 @@ export function sizeOf(size: Size, settings: ReadonlyMap<string, number | string
   const v = settings.get(size.name);
   return typeof v === 'number' ? v : 0;
 }
-
-const bitsFor = (n: number) => Math.max(1, Math.ceil(Math.log2(Math.max(2, n))));
 
 /** The defaults of a kind as a part would have them, with each control numbered in order. */
 export function defaultSetting(def: KindDef): PartSetting | undefined {
@@ -73,7 +72,11 @@ function substitute(expr: Expr, numbers: ReadonlyMap<string, number>): Expr {
 function scopeEntries(def: KindDef, setting: PartSetting, edgeWidth?: number): Map<string, NameInfo> {
   const entries = new Map<string, NameInfo>();
   for (const input of def.inputs) entries.set(input.name, { width: sizeOf(input.width, setting.settings) });
-  for (const state of def.states) if (!state.count) entries.set(state.name, { width: sizeOf(state.width, setting.settings) });
+  for (const state of def.states) {
+    const width = sizeOf(state.width, setting.settings);
+    if (!state.count) entries.set(state.name, { width });
+    else entries.set(state.name, { width, elements: state.count === 'memory' ? 'memory' : sizeOf(state.count, setting.settings) });
+  }
   for (const s of def.settings) if (s.type === 'choice') entries.set(s.name, { width: bitsFor(s.choices.length), values: new Map(s.choices.map((c, i) => [c, i])) });
   for (const [name, control] of setting.controls) entries.set(name, control);
   if (edgeWidth !== undefined) entries.set(edgeInputName, { width: edgeWidth });
@@ -84,10 +87,10 @@ function numberSettings(setting: PartSetting): Map<string, number> {
   return new Map([...setting.settings].filter((e): e is [string, number] => typeof e[1] === 'number'));
 }
 
-/** One expression of the kind, ready to check or compile in a part. */
+/** One expression of the kind, ready to check or compile in a part: a value of `width` bits, or an index into `array`. */
 export interface PlacedExpr {
   expr: Expr;
-  width: number;
+  place: { width: number } | { array: string };
   scope: Map<string, NameInfo>;
 }
 
@@ -95,43 +98,45 @@ export interface PlacedExpr {
 function placedExpressions(def: KindDef, setting: PartSetting, report: (d: Diagnostic) => void): Map<ExprText, PlacedExpr> {
   const numbers = numberSettings(setting);
   const placed = new Map<ExprText, PlacedExpr>();
-  const place = (text: ExprText, width: number, scope: Map<string, NameInfo>) => {
+  const place = (text: ExprText, where: PlacedExpr['place'], scope: Map<string, NameInfo>) => {
     const parsed = parsedExpr(def, text);
     parsed.diagnostics.forEach(report);
-    // An expression reading a name whose line has an error would only repeat that error.
-    if (parsed.expr && !namesUsed(parsed.expr).some((n) => def.brokenNames.has(n))) placed.set(text, { expr: substitute(parsed.expr, numbers), width, scope });
+    // An expression reading a line left out for its own problem would only repeat that problem.
+    if (parsed.expr && !namesUsed(parsed.expr).some((n) => def.leftOut.has(n))) placed.set(text, { expr: substitute(parsed.expr, numbers), place: where, scope });
   };
+  const bits = (size: Size) => ({ width: sizeOf(size, setting.settings) });
   const base = scopeEntries(def, setting);
-  for (const state of def.states) if (state.reset) place(state.reset, sizeOf(state.width, setting.settings), base);
-  for (const drive of def.drives) place(drive.expr, sizeOf(drive.width, setting.settings), base);
-  for (const flag of def.flags) place(flag.expr, 1, base);
+  for (const state of def.states) if (state.reset) place(state.reset, bits(state.width), base);
+  for (const drive of def.drives) place(drive.expr, bits(drive.width), base);
+  for (const flag of def.flags) place(flag.expr, { width: 1 }, base);
   for (const edge of def.edges) {
     const scope = scopeEntries(def, setting, edge.width ? sizeOf(edge.width, setting.settings) : undefined);
     for (const assign of edge.assigns) {
       const state = def.states.find((s) => s.name === assign.target)!;
-      place(assign.expr, sizeOf(state.width, setting.settings), scope);
-      if (assign.when) place(assign.when, 1, scope);
-      if (assign.index) place(assign.index, 0, scope);
+      place(assign.expr, bits(state.width), scope);
+      if (assign.when) place(assign.when, { width: 1 }, scope);
+      if (assign.index) place(assign.index, { array: state.name }, scope);
     }
   }
   return placed;
 }
 
 /**
- * Checks every expression of the kind in one part's scope. Register arrays (`x COUNT`) and the
- * program memory are the standard library's own for now: a table's kind using one is reported.
+ * Checks every expression of the kind in one part's scope. A table's kind holding a register
+ * array (`x COUNT`) or the program memory is checked like any other but reported: the simulator
+ * holds arrays only for the standard library's kinds so far.
  */
 export function checkBehaviour(def: KindDef, setting: PartSetting, report: (d: Diagnostic) => void): void {
   const placed = placedExpressions(def, setting, report);
-  for (const [text, p] of placed) {
-    if (p.width === 0) continue; // an array index: its width is the array's business
-    for (const d of checkExpression(p.expr, (name) => p.scope.get(name), p.width).diagnostics) report(d);
-    void text;
+  for (const p of placed.values()) {
+    const scope = scopeOf(p.scope);
+    const result = 'array' in p.place ? checkElementIndex(p.expr, scope, p.place.array) : checkExpression(p.expr, scope, p.place.width);
+    result.diagnostics.forEach(report);
   }
   const stateNames = new Set(def.states.map((s) => s.name));
   for (const flag of def.flags) {
     const parsed = parsedExpr(def, flag.expr).expr;
-    const reads = parsed ? namesUsed(parsed).filter((n) => !stateNames.has(n) && !def.settings.some((s) => s.name === n)) : [];
+    const reads = parsed ? namesUsed(parsed).filter((n) => !stateNames.has(n) && !def.leftOut.has(n) && !def.settings.some((s) => s.name === n)) : [];
     if (reads.length) {
       report({
         code: 'kind-definition',
@@ -143,7 +148,7 @@ export function checkBehaviour(def: KindDef, setting: PartSetting, report: (d: D
   }
   if (def.origin === 'table') {
     for (const state of def.states) {
-      if (state.count) report({ code: 'kind-not-wired', severity: 'error', span: state.span, message: `\`${state.name}\` is ${state.count === 'memory' ? 'the program memory' : 'an array of registers'}: in this version only the standard library's kinds (regfile, memory) hold those; use one of them for this part` });
+      if (state.count) report({ code: 'kind-not-wired', severity: 'error', span: state.span, message: `\`${state.name}\` is ${state.count === 'memory' ? 'the program memory' : 'an array of registers'}: its reads and writes are checked, but in this version the simulator holds ${state.count === 'memory' ? 'the memory' : 'register arrays'} only for the standard library's ${state.count === 'memory' ? 'memory' : 'regfile'} kind; use it for this part` });
     }
   }
 }
@@ -158,14 +163,21 @@ export interface CompiledPort {
 /**
  * Compiles the expressions of one port of a part: a drive port (one value), a flag (one bit), a
  * state's reset value, or an edge port (per assignment its value and, with `when`, its condition,
- * in that order). The part must have checked clean.
+ * in that order). The part must have checked clean. Arrays are not inputs: `arrays.element`
+ * reads their elements from the caller's storage.
  */
-export function compilePort(def: KindDef, setting: PartSetting, texts: { text: ExprText; width: number }[], edgeWidth?: number): CompiledPort {
+export function compilePort(
+  def: KindDef,
+  setting: PartSetting,
+  texts: { text: ExprText; width: number }[],
+  edgeWidth?: number,
+  arrays: Pick<RunOptions, 'element' | 'onOutOfRange'> = {},
+): CompiledPort {
   const numbers = numberSettings(setting);
   const scope = scopeEntries(def, setting, edgeWidth);
   const exprs = texts.map((t, k) => ({ name: `r${k}`, expr: substitute(parsedExpr(def, t.text).expr!, numbers), width: t.width }));
-  const inputs = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))];
-  const run = compileExpressions(exprs, inputs, (name) => scope.get(name)!.width, { values: (name) => scope.get(name)?.values });
+  const inputs = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))].filter((name) => scope.get(name)?.elements === undefined);
+  const run = compileExpressions(exprs, inputs, (name) => scope.get(name)!.width, { ...arrays, values: (name) => scope.get(name)?.values, elements: (name) => scope.get(name)?.elements });
   return { inputs, run };
 }
 

@@ -97,8 +97,11 @@ export interface KindDef {
   drives: KindDrive[];
   flags: KindFlag[];
   edges: KindEdge[];
-  /** Names whose line was left out for an error reported there: expressions using them are not checked again. */
-  brokenNames: Set<string>;
+  /**
+   * Names of input and state lines left out for a problem already reported: an expression
+   * reading one is not checked, so that one mistake is not reported again as an unknown name.
+   */
+  leftOut: Set<string>;
   /** The name in the declaration. */
   span: Span;
   declSpan: Span;
@@ -122,7 +125,7 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
     drives: [],
     flags: [],
     edges: [],
-    brokenNames: new Set(),
+    leftOut: new Set(),
     span: decl.name.span,
     declSpan: decl.span,
   };
@@ -187,7 +190,10 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
       case 'input': {
         if (!claim(item.name, 'input')) break;
         const width = size(item.width, 'an input width');
-        if (!width) break;
+        if (!width) {
+          def.leftOut.add(item.name.text);
+          break;
+        }
         const wiring: InputWiring = item.after ? 'after' : item.instruction ? 'instruction' : item.keyed ? 'keyed' : 'positional';
         def.inputs.push({ name: item.name.text, width, wiring, after: item.after?.text, description: item.description?.value, span: item.name.span });
         break;
@@ -204,12 +210,12 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
       case 'state': {
         if (!claim(item.name, 'state')) break;
         const width = size(item.width, 'a state width');
-        if (!width) break;
         let count: KindState['count'];
         if (item.count?.text === 'memory') count = 'memory';
-        else if (item.count) {
-          count = size(item.count, 'a register count', 4096);
-          if (!count) break;
+        else if (item.count) count = size(item.count, 'a register count', 4096);
+        if (!width || (item.count && !count)) {
+          def.leftOut.add(item.name.text);
+          break;
         }
         if (count === 'memory' && item.reset) error(item.reset.span, 'the program memory is loaded from the program, not reset: remove `= ...`');
         def.states.push({ name: item.name.text, width, count, reset: count === 'memory' ? undefined : item.reset, span: item.name.span });
@@ -254,8 +260,6 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
       }
     }
   }
-  const built = new Set([...def.settings, ...def.inputs, ...def.controls, ...def.states, ...def.drives, ...def.flags, ...def.edges].map((x) => x.name));
-  for (const name of seen.keys()) if (!built.has(name)) def.brokenNames.add(name);
   if (def.drives.length === 0 && def.edges.length === 0 && def.flags.length === 0) {
     error(def.span, `kind \`${def.name}\` has no drive port, edge port or flag, so no strobe or address line could ever use it`);
   }

@@ -19,8 +19,17 @@ export interface NameExpr { kind: 'name'; name: string; span: Span }
  */
 export interface NumberExpr { kind: 'number'; value: bigint; radix: 2 | 10 | 16; width?: number; span: Span }
 
-/** `x[hi:lo]`, or `x[bit]` when hi === lo. */
+/**
+ * `x[hi:lo]`, or `x[bit]` when hi === lo. When x names a register array or the memory, `x[n]`
+ * is element n instead (the checker knows which; its Resolution lists such reads).
+ */
 export interface SliceExpr { kind: 'slice'; operand: Expr; hi: number; lo: number; hiSpan: Span; loSpan: Span; span: Span }
+
+/**
+ * `a[i]` with an index that is not a bare number: element i of the register array or memory
+ * `a`, chosen at run time. Only arrays take such an index (the checker says so for anything else).
+ */
+export interface IndexExpr { kind: 'index'; operand: Expr; index: Expr; span: Span }
 
 /** `{a, b, c}`: the first item is the most significant. */
 export interface ConcatExpr { kind: 'concat'; items: Expr[]; span: Span }
@@ -53,7 +62,7 @@ export interface SelectArm { key: SelectKey; value: Expr; span: Span }
 export interface SelectExpr { kind: 'select'; selector: Expr; arms: SelectArm[]; otherwise?: Expr; head: Span; span: Span }
 
 export type Expr =
-  | NameExpr | NumberExpr | SliceExpr | ConcatExpr | RepExpr | ExtendExpr | CarryExpr
+  | NameExpr | NumberExpr | SliceExpr | IndexExpr | ConcatExpr | RepExpr | ExtendExpr | CarryExpr
   | UnaryExpr | BinaryExpr | CondExpr | SelectExpr;
 
 /** The direct sub-expressions of `expr` (select keys are not expressions and are left out). */
@@ -67,6 +76,8 @@ export function children(expr: Expr): Expr[] {
     case 'extend':
     case 'unary':
       return [expr.operand];
+    case 'index':
+      return [expr.operand, expr.index];
     case 'concat':
       return expr.items;
     case 'carry':
@@ -81,7 +92,10 @@ export function children(expr: Expr): Expr[] {
   }
 }
 
-/** Every name the expression reads, each once, in order of first appearance (for dependency analysis). */
+/**
+ * Every name the expression reads, each once, in order of first appearance (for dependency
+ * analysis); an array whose element it reads counts as read.
+ */
 export function namesUsed(expr: Expr): string[] {
   const seen = new Set<string>();
   const visit = (e: Expr): void => {

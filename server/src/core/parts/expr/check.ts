@@ -7,14 +7,35 @@
 import type { Diagnostic, RelatedInfo } from '../../text/diagnostic';
 import type { Span } from '../../text/span';
 import { closest } from '../../text/suggest';
-import type { BinaryOp, Expr, NumberExpr, SelectArm, SelectExpr } from './ast';
+import type { BinaryOp, Expr, IndexExpr, NumberExpr, SelectArm, SelectExpr, SliceExpr } from './ast';
 import { formatExpression } from './format';
 
 export interface NameInfo {
+  /** The width of the value; for an array, of each element. */
   width: number;
   /** A control field's value names and their codes. */
   values?: ReadonlyMap<string, number>;
+  /**
+   * An array, read one element at a time (`r[i]`): a register array of this many elements, or
+   * `memory`, the program's byte memory, whose index is a 32-bit byte address.
+   */
+  elements?: number | 'memory';
 }
+
+/** What an element read reads: its array's name and size. */
+export interface ElementRead {
+  array: string;
+  elements: number | 'memory';
+}
+
+/**
+ * The width of a memory index: a byte address. RV32I has an address space of 2^XLEN bytes with
+ * XLEN = 32 (RISC-V Unprivileged ISA 20191213, 1.4 "Memory"; section number from memory).
+ */
+export const ADDRESS_WIDTH = 32;
+
+/** The bits that number `n` things (at least 1): control codes, and the width an index of decimals only takes. */
+export const bitsFor = (n: number) => Math.max(1, Math.ceil(Math.log2(Math.max(2, n))));
 
 /**
  * Looks a name up. A scope may also list its names (`names`), which lets the checker suggest the
@@ -34,6 +55,8 @@ export interface Resolution {
   widths: Map<Expr, number>;
   /** The code each select arm's key stands for. */
   codes: Map<SelectArm, bigint>;
+  /** Every element read (`r[i]`, and `r[3]` on an array) with the array it reads. */
+  reads: Map<SliceExpr | IndexExpr, ElementRead>;
   diagnostics: Diagnostic[];
 }
 
@@ -81,6 +104,7 @@ type Want = number | typeof NONE | typeof UNKNOWN;
 class Checker {
   readonly widths = new Map<Expr, number>();
   readonly codes = new Map<SelectArm, bigint>();
+  readonly reads = new Map<SliceExpr | IndexExpr, ElementRead>();
   readonly diagnostics: Diagnostic[] = [];
 
   constructor(private readonly scope: Scope) {}
@@ -127,6 +151,12 @@ class Checker {
     switch (e.kind) {
       case 'name': {
         const info = this.scope(e.name);
+        if (info?.elements !== undefined) {
+          const what = info.elements === 'memory' ? 'the byte memory' : `an array of ${info.elements} elements of ${info.width} bit${info.width === 1 ? '' : 's'}`;
+          const example = info.elements === 'memory' ? `\`${e.name}[addr]\`` : `\`${e.name}[i]\``;
+          this.report('expr-width', e.span, `\`${e.name}\` is ${what}, not one value: read one element with an index, e.g. ${example}`);
+          return undefined;
+        }
         if (info) return info.width;
         const suggestion = this.scope.names ? closest(e.name, this.scope.names()) : undefined;
         this.report('expr-name', e.span, `\`${e.name}\` is not a known signal, port or field${suggestion ? `; did you mean \`${suggestion}\`?` : ''}`, undefined, suggestion);
@@ -135,6 +165,8 @@ class Checker {
       case 'number':
         return this.number(e, want);
       case 'slice': {
+        const array = this.arrayOf(e.operand);
+        if (array) return this.fixedElement(e, array);
         const w = this.width(e.operand, NONE);
         if (w === undefined) return undefined;
         const range = `${shown(e.operand)}, which has ${w} bit${w === 1 ? '' : 's'} (${w - 1}..0)`;
@@ -147,6 +179,17 @@ class Checker {
           return undefined;
         }
         return e.hi - e.lo + 1;
+      }
+      case 'index': {
+        const array = this.arrayOf(e.operand);
+        if (!array) {
+          const w = this.width(e.operand, NONE);
+          if (w !== undefined) this.report('expr-slice', e.index.span, `${shown(e.operand)} is not an array: only register arrays and the memory take a computed index; a bit is chosen by a number, e.g. \`[0]\``);
+          return undefined;
+        }
+        if (!this.elementIndex(e.index, array)) return undefined;
+        this.reads.set(e, array);
+        return this.elementWidth(e.operand);
       }
       case 'concat': {
         let total = 0;
@@ -199,6 +242,50 @@ class Checker {
       case 'select':
         return this.select(e, want);
     }
+  }
+
+  /** The array `e` names, when it is the name of one. */
+  private arrayOf(e: Expr): ElementRead | undefined {
+    if (e.kind !== 'name') return undefined;
+    const elements = this.scope(e.name)?.elements;
+    return elements === undefined ? undefined : { array: e.name, elements };
+  }
+
+  /** The element width of the array `operand` names (recorded as the name's width). */
+  private elementWidth(operand: Expr): number {
+    const w = this.scope((operand as { name: string }).name)!.width;
+    this.widths.set(operand, w);
+    return w;
+  }
+
+  /** `r[3]` on an array: element 3, which it must have; a bit range is not an element. */
+  private fixedElement(e: SliceExpr, array: ElementRead): number | undefined {
+    if (e.hi !== e.lo) {
+      this.report('expr-slice', { start: e.hiSpan.start, end: e.loSpan.end }, `an array element is read with one index: \`${array.array}[${e.hi}]\` is element ${e.hi}; slice the element after it, e.g. \`${array.array}[${e.lo}][${e.hi}:${e.lo}]\`, if you meant its bits`);
+      return undefined;
+    }
+    if (!this.inRange(e.hi, e.hiSpan, array)) return undefined;
+    this.reads.set(e, array);
+    return this.elementWidth(e.operand);
+  }
+
+  private inRange(index: number | bigint, span: Span, array: ElementRead): boolean {
+    if (array.elements === 'memory' ? BigInt(index) < 1n << BigInt(ADDRESS_WIDTH) : BigInt(index) < BigInt(array.elements)) return true;
+    const has = array.elements === 'memory' ? `the memory \`${array.array}\`, whose byte addresses are ${ADDRESS_WIDTH} bits` : `\`${array.array}\`, which has ${array.elements} element${array.elements === 1 ? '' : 's'} (${array.elements - 1}..0)`;
+    this.report('expr-slice', span, `element ${index} is outside ${has}`);
+    return false;
+  }
+
+  /**
+   * An index into `array`: into the memory a 32-bit byte address; into a register array any
+   * width (an element past the last reads 0, and the caller is told), where an index of decimals
+   * only takes the bits that number the elements. A constant index must name an element.
+   */
+  elementIndex(index: Expr, array: ElementRead): boolean {
+    if (index.kind === 'number' && !this.inRange(index.value, index.span, array)) return false;
+    if (array.elements === 'memory') return this.expect(index, ADDRESS_WIDTH, `a memory index is a ${ADDRESS_WIDTH}-bit byte address`) === ADDRESS_WIDTH;
+    const n = array.elements;
+    return this.width(index, takesContextWidth(index) ? bitsFor(n) : NONE) !== undefined;
   }
 
   private number(e: NumberExpr, want: Want): number | undefined {
@@ -288,13 +375,32 @@ function keyText(arm: SelectArm): string {
 export function resolveExpression(expr: Expr, scope: Scope, expectedWidth?: number): Resolution {
   const checker = new Checker(scope);
   checker.expect(expr, expectedWidth, 'the width expected where the expression is used');
+  return resolution(checker);
+}
+
+function resolution(checker: Checker): Resolution {
   const diagnostics = checker.diagnostics.sort((a, b) => a.span.start - b.span.start || a.span.end - b.span.end);
-  return { widths: checker.widths, codes: checker.codes, diagnostics };
+  return { widths: checker.widths, codes: checker.codes, reads: checker.reads, diagnostics };
 }
 
 /**
- * Width inference and checking. Codes: expr-width (widths disagree or none can be inferred),
- * expr-slice (a bit range outside the operand or reversed), expr-name (an unknown name),
+ * Checks `index` where it chooses an element of the array `array` (an edge assignment's target
+ * `r[ir[11:7]] <= in`): the rules of an index inside an expression, `r[...]`.
+ */
+export function checkElementIndex(index: Expr, scope: Scope, array: string): { width?: number; diagnostics: Diagnostic[] } {
+  const checker = new Checker(scope);
+  const elements = scope(array)?.elements;
+  if (elements === undefined) throw new Error(`checkElementIndex: \`${array}\` is not an array of the scope`);
+  checker.elementIndex(index, { array, elements });
+  const r = resolution(checker);
+  const width = r.widths.get(index);
+  return width === undefined ? { diagnostics: r.diagnostics } : { width, diagnostics: r.diagnostics };
+}
+
+/**
+ * Width inference and checking. Codes: expr-width (widths disagree or none can be inferred, an
+ * array used without an index), expr-slice (a bit range outside the operand or reversed, an
+ * element an array does not have, a computed index on something not an array), expr-name (an unknown name),
  * expr-value (a select key the selector does not have, a missing arm, a literal too large).
  * `width` is the expression's width whenever it could be inferred, even beside other problems.
  */

@@ -2,10 +2,11 @@
 // JS numbers kept unsigned (`>>> 0`), wider ones BigInt, so the common narrow datapath never
 // allocates. evaluate.ts is the definition; a property test holds the two equal on random trees.
 // Operands are evaluated left to right and only the chosen arm of `?:` and `select` runs, as in
-// the evaluator, so an uncovered-select callback fires at the same moments in both.
-import type { Expr, SelectExpr } from './ast';
+// the evaluator, so an uncovered-select callback fires at the same moments in both, and array
+// elements are read through the caller's `element` in the same order (index first, then the read).
+import type { Expr, IndexExpr, SelectExpr } from './ast';
 import { resolveForRun, type NameInfo, type Resolution } from './check';
-import type { RunOptions } from './evaluate';
+import { needsElementReader, type RunOptions } from './evaluate';
 
 export type CompiledExpressions = (inputs: ArrayLike<number | bigint>) => (number | bigint)[];
 
@@ -27,12 +28,22 @@ const toBig = (code: string, width: number) => (isWide(width) ? code : `BigInt($
 class Generator {
   readonly temps: string[] = [];
   readonly selects: SelectExpr[] = [];
+  readonly outOfRange: IndexExpr[] = [];
+  /** One reader per array read, `rd0`, `rd1`, ...: its element width fixes how it masks. */
+  readonly readers = new Map<string, { code: string; width: number }>();
   r!: Resolution;
 
   constructor(
     private readonly slot: (name: string) => string,
     private readonly reportUncovered: boolean,
+    private readonly reportOutOfRange: boolean,
   ) {}
+
+  private reader(array: string, width: number): string {
+    let reader = this.readers.get(array);
+    if (!reader) this.readers.set(array, (reader = { code: `rd${this.readers.size}`, width }));
+    return reader.code;
+  }
 
   private temp(wide: boolean): string {
     const name = `t${this.temps.length}`;
@@ -53,12 +64,16 @@ class Generator {
       case 'number':
         return wide ? `${e.value}n` : `${e.value}`;
       case 'slice': {
+        const read = this.r.reads.get(e);
+        if (read) return `${this.reader(read.array, w)}(${e.lo})`;
         const ow = this.width(e.operand);
         const o = this.gen(e.operand);
         if (!isWide(ow)) return w === 32 ? o : `((${o} >>> ${e.lo}) & ${2 ** w - 1})`;
         const big = `((${o} >> ${e.lo}n) & ${bigMask(w)})`;
         return wide ? big : `Number(${big})`;
       }
+      case 'index':
+        return this.element(e, w);
       case 'concat': {
         let shift = w;
         const parts = e.items.map((item) => {
@@ -119,6 +134,24 @@ class Generator {
         return `(${s} = ${this.gen(e.selector)}, ${chain})`;
       }
     }
+  }
+
+  /** A computed element read: the index first; past a register array's last element, 0 (and the caller told). */
+  private element(e: IndexExpr, w: number): string {
+    const read = this.r.reads.get(e)!;
+    const index = this.gen(e.index);
+    const rd = this.reader(read.array, w);
+    // A memory index is 32 bits, so a number.
+    if (read.elements === 'memory') return `${rd}(${index})`;
+    const wideIndex = isWide(this.width(e.index));
+    const t = this.temp(wideIndex);
+    const zero = isWide(w) ? '0n' : '0';
+    let past = zero;
+    if (this.reportOutOfRange) {
+      this.outOfRange.push(e);
+      past = `(outOfRange(${this.outOfRange.length - 1}, ${t}), ${zero})`;
+    }
+    return `(${t} = ${index}, ${t} < ${read.elements}${wideIndex ? 'n' : ''} ? ${rd}(${wideIndex ? `Number(${t})` : t}) : ${past})`;
   }
 
   private binary(e: Extract<Expr, { kind: 'binary' }>, w: number): string {
@@ -187,12 +220,30 @@ function readInput(k: number, w: number): string {
   return wrap(`typeof ${x} === 'bigint' ? Number(BigInt.asUintN(${w}, ${x})) : ${x}`, w);
 }
 
+/** Reads an element through the caller's `element` and holds it as the compiled code does (as readInput). */
+function elementReader(element: NonNullable<RunOptions['element']>, array: string, w: number): (index: number) => number | bigint {
+  if (isWide(w)) {
+    return (index) => {
+      const v = element(array, index);
+      return BigInt.asUintN(w, typeof v === 'bigint' ? v : BigInt(v));
+    };
+  }
+  const m = 2 ** w - 1;
+  return (index) => {
+    const v = element(array, index);
+    const n = typeof v === 'bigint' ? Number(BigInt.asUintN(w, v)) : v;
+    return w === 32 ? n >>> 0 : n & m;
+  };
+}
+
 /**
  * Compiles `list` into one function from the input values (in the order of `inputs`) to the
  * values of the list's expressions (in list order). An expression may read the inputs and the
  * expressions listed before it. `width`, when given, is the width the expression's place needs.
- * Results of up to 32 bits are numbers, wider ones BigInt. Throws when an expression does not
- * check (the caller should have shown the diagnostics) or names something neither listed nor an input.
+ * Results of up to 32 bits are numbers, wider ones BigInt. Arrays (`options.elements`) are not
+ * inputs: their elements are read through `options.element` while the function runs. Throws when
+ * an expression does not check (the caller should have shown the diagnostics), names something
+ * neither listed nor an input nor an array, or reads an array without an `element` reader.
  */
 export function compileExpressions(
   list: { name: string; expr: Expr; width?: number }[],
@@ -201,26 +252,33 @@ export function compileExpressions(
   options: RunOptions = {},
 ): CompiledExpressions {
   const slots = new Map<string, { code: string; width: number }>();
+  const isArray = (name: string) => options.elements?.(name) !== undefined;
   inputs.forEach((name, k) => {
     if (slots.has(name)) throw new Error(`compileExpressions: input \`${name}\` is listed twice`);
+    if (isArray(name)) throw new Error(`compileExpressions: \`${name}\` is an array: its elements are read through \`element\`, not passed as an input`);
     slots.set(name, { code: `i${k}`, width: widthOf(name) });
   });
-  const gen = new Generator((name) => slots.get(name)!.code, options.onUncovered !== undefined);
+  const gen = new Generator((name) => slots.get(name)!.code, options.onUncovered !== undefined, options.onOutOfRange !== undefined);
   const lines = inputs.map((name, k) => `const i${k} = ${readInput(k, slots.get(name)!.width)};`);
   list.forEach((entry, k) => {
     const scope = (name: string): NameInfo | undefined => {
+      const elements = options.elements?.(name);
+      if (elements !== undefined) return { width: widthOf(name), elements };
       const s = slots.get(name);
       if (!s) return undefined;
       const values = options.values?.(name);
       return values ? { width: s.width, values } : { width: s.width };
     };
     gen.r = resolveForRun(entry.expr, scope, entry.width);
+    needsElementReader(gen.r, options);
     lines.push(`const o${k} = ${gen.gen(entry.expr)};`);
-    if (slots.has(entry.name)) throw new Error(`compileExpressions: \`${entry.name}\` is defined twice (or is also an input)`);
+    if (slots.has(entry.name) || isArray(entry.name)) throw new Error(`compileExpressions: \`${entry.name}\` is defined twice (or is also an input or an array)`);
     slots.set(entry.name, { code: `o${k}`, width: gen.r.widths.get(entry.expr)! });
   });
+  const readers = [...gen.readers].map(([array, r]) => elementReader(options.element!, array, r.width));
   const body = [
     '"use strict";',
+    ...[...gen.readers.values()].map((r, k) => `const ${r.code} = readers[${k}];`),
     'return function compiledExpressions(inputs) {',
     ...(gen.temps.length ? [`let ${gen.temps.join(', ')};`] : []),
     ...lines,
@@ -229,5 +287,7 @@ export function compileExpressions(
   ].join('\n');
   const selects = gen.selects;
   const uncovered = (index: number, code: number | bigint) => options.onUncovered!(selects[index], BigInt(code));
-  return new Function('uncovered', body)(uncovered) as CompiledExpressions;
+  const reads = gen.outOfRange;
+  const outOfRange = (index: number, at: number | bigint) => options.onOutOfRange!(reads[index], BigInt(at));
+  return new Function('uncovered', 'outOfRange', 'readers', body)(uncovered, outOfRange, readers) as CompiledExpressions;
 }

@@ -18,6 +18,7 @@ function precedence(e: Expr): number {
     case 'unary':
       return UNARY;
     case 'slice':
+    case 'index':
       return POSTFIX;
     default:
       return PRIMARY;
@@ -44,6 +45,11 @@ export function formatExpression(expr: Expr): string {
       return formatNumber(expr);
     case 'slice':
       return `${at(expr.operand, POSTFIX)}[${expr.hi === expr.lo ? expr.hi : `${expr.hi}:${expr.lo}`}]`;
+    case 'index': {
+      // A bare number in brackets reads back as a slice, so a number index keeps its parentheses.
+      const index = formatExpression(expr.index);
+      return `${at(expr.operand, POSTFIX)}[${expr.index.kind === 'number' ? `(${index})` : index}]`;
+    }
     case 'concat':
       return `{${expr.items.map(formatExpression).join(', ')}}`;
     case 'rep':

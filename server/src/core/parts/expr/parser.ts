@@ -1,6 +1,6 @@
 // The expression parser: recursive descent over scanExpression's tokens, one function per
 // precedence level (loosest first: ?:, |, ^, &, == !=, comparisons, shifts, + -, unary, postfix
-// slices). It never throws: a problem is an 'expr-syntax' diagnostic at the exact token, and
+// slices and indexes). It never throws: a problem is an 'expr-syntax' diagnostic at the exact token, and
 // inside a bracketed list ({..}, (..), select arms) parsing resumes at the next comma or the
 // closing bracket, so one typo does not hide the next. A tree is returned only when the text
 // has no syntax problem, so later stages never see a broken tree.
@@ -144,25 +144,49 @@ class ExprParser {
     return this.node({ kind: 'unary', op: opTok.text as '~' | '-', operand, span: cover(opTok, this.spanOf(operand)) }, operand);
   }
 
-  /** postfix = primary { "[" number [ ":" number ] "]" } */
+  /**
+   * postfix = primary { "[" ( number [ ":" number ] | cond ) "]" }. A bare number (or a range of
+   * two) is a bit slice, or a fixed element when the operand is an array; anything else is a
+   * run-time index, which only an array takes (the checker decides, knowing the names).
+   */
   private postfix(): Expr | undefined {
     let e = this.primary();
     while (e && this.atOp('[')) {
-      this.next();
-      const hi = this.index();
-      if (!hi) return undefined;
-      let lo = hi;
-      if (this.atOp(':')) {
-        this.next();
-        const l = this.index();
-        if (!l) return undefined;
-        lo = l;
+      const open = this.next();
+      const after = this.tokens[this.pos + 1];
+      if (this.at('number') && after.kind === 'op' && (after.text === ']' || after.text === ':')) {
+        e = this.slice(e);
+        continue;
       }
-      const close = this.expectOp(']', 'to close the bit range');
+      if (!this.enter(open)) return undefined;
+      const index = this.cond();
+      this.nesting--;
+      if (!index) return undefined;
+      if (this.atOp(':')) {
+        this.error(this.spanOf(index), 'a bit range takes two numbers, `[hi:lo]`; only a single index may be computed');
+        return undefined;
+      }
+      const close = this.expectOp(']', 'to close the index');
       if (!close) return undefined;
-      e = this.node({ kind: 'slice', operand: e, hi: hi.value, lo: lo.value, hiSpan: hi.span, loSpan: lo.span, span: cover(this.spanOf(e), close) }, e);
+      e = this.node({ kind: 'index', operand: e, index, span: cover(this.spanOf(e), close) }, e, index);
     }
     return e;
+  }
+
+  /** The rest of `x[hi:lo]` or `x[bit]` after the `[`. */
+  private slice(e: Expr): Expr | undefined {
+    const hi = this.index();
+    if (!hi) return undefined;
+    let lo = hi;
+    if (this.atOp(':')) {
+      this.next();
+      const l = this.index();
+      if (!l) return undefined;
+      lo = l;
+    }
+    const close = this.expectOp(']', 'to close the bit range');
+    if (!close) return undefined;
+    return this.node({ kind: 'slice', operand: e, hi: hi.value, lo: lo.value, hiSpan: hi.span, loSpan: lo.span, span: cover(this.spanOf(e), close) }, e);
   }
 
   private index(): { value: number; span: Span } | undefined {

@@ -35,7 +35,7 @@ kind counter "counter: a register that can also count up by its increment"
   setting reset number = 0 "value after reset"
   state q width = reset
   drive out width = q
-  on load width: q <= select bit0 { kept: in, zero: in & ~zext(0b1, width) }
+  on load width: q <= select bit0 { kept: in, zero: in & ~1 }
   on count: q <= q + inc
 
 kind regfile "register file: 32 registers selected by the instruction's rs1, rs2 and rd fields"
@@ -57,7 +57,7 @@ kind alu "ALU: combines its two operand buses"
   input a width "operand a (a bus)"
   input b width "operand b (a bus)"
   control fn: add sub sll slt sltu xor srl sra or and passa passb
-  drive y width = select fn { add: a + b, sub: a - b, sll: a << b[4:0], slt: zext(a <s b, width), sltu: zext(a < b, width), xor: a ^ b, srl: a >> b[4:0], sra: a >>> b[4:0], or: a | b, and: a & b, passa: a, passb: b }
+  drive y width = select fn { add: a + b, sub: a - b, sll: a << b[4:0], slt: a <s b ? 1 : 0, sltu: a < b ? 1 : 0, xor: a ^ b, srl: a >> b[4:0], sra: a >>> b[4:0], or: a | b, and: a & b, passa: a, passb: b }
 
 kind compare "comparator: tests its two operand buses and latches a flag"
   setting width number = 32 "bits"
