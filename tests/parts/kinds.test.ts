@@ -120,7 +120,7 @@ describe('kind declarations', () => {
     );
   });
 
-  it('a part of the table\'s own kind is built from its part line; an array in a table\'s kind is reported', () => {
+  it('a part of the table\'s own kind is built from its part line; a state wider than the simulator holds is reported', () => {
     const a = expectDiagnostics(
       dedent(`
         kind mux2
@@ -129,10 +129,10 @@ describe('kind declarations', () => {
           input b width
           control pick: first second
           drive y width = select pick { first: a, second: b }
-        kind bank
-          state r 8 x 4
-        #       ^ kind-not-wired: array of registers
-          drive out 8 = 0
+        kind wide
+          state q 40
+        #       ^ kind-not-wired: at most 32 bits
+          drive out 8 = q[7:0]
         part m mux2 4 result result
         field m.pick 1 -> m { first=0 second=1 }
         strobe m.oe enable m -> result
@@ -148,15 +148,13 @@ describe('kind declarations', () => {
     expect([...part.controlFields]).toEqual([['pick', 'm.pick']]);
   });
 
-  it('reads register arrays and the memory by index, checks every index at its place, and reports the arrays as not yet simulated', () => {
+  it('reads register arrays and the memory by index and checks every index at its place', () => {
     expectDiagnostics(
       dedent(`
         kind bank
           input ir 32 instruction
           state r 8 x 4 = 0
-        #       ^ kind-not-wired: the simulator holds register arrays only for the standard library's regfile kind
           state m 8 x memory
-        #       ^ kind-not-wired: the simulator holds the memory only for the standard library's memory kind
           drive y 8 = r[ir[1:0]]
           drive z 16 = {m[ir + 1], m[ir]}
           drive bad 8 = r[ir[1:0]] + r

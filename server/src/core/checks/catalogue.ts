@@ -54,7 +54,7 @@ export const catalogue: CodeInfo[] = [
     code: 'kind-not-wired',
     severity: 'error',
     title: 'a kind of the table\'s own uses something this version does not run yet',
-    explanation: 'Kinds you declare with `kind` are read, width-checked, simulated and checked like the standard library\'s, except for what this version does not run in a table\'s own kinds yet: arrays of registers (`state r 32 x 32`) and the program memory (`state m 8 x memory`). Their reads and writes are checked, but only the standard library\'s register file and memory port hold arrays in the simulator. Rather than simulate a part whose behaviour it cannot run, Phasewright reports the state line. Use the standard library\'s `regfile` or `memory` for that part of the machine.',
+    explanation: 'Kinds you declare with `kind` are read, width-checked, simulated and checked like the standard library\'s, except for what this version does not run yet: a state or a drive port wider than 32 bits (the simulator holds values of up to 32 bits). Its expressions are still checked, but rather than simulate a part it cannot hold, Phasewright reports the line. Split the state or port into parts of 32 bits or fewer.',
   },
   {
     code: 'unknown-kind',

@@ -148,7 +148,12 @@ export function checkBehaviour(def: KindDef, setting: PartSetting, report: (d: D
   }
   if (def.origin === 'table') {
     for (const state of def.states) {
-      if (state.count) report({ code: 'kind-not-wired', severity: 'error', span: state.span, message: `\`${state.name}\` is ${state.count === 'memory' ? 'the program memory' : 'an array of registers'}: its reads and writes are checked, but in this version the simulator holds ${state.count === 'memory' ? 'the memory' : 'register arrays'} only for the standard library's ${state.count === 'memory' ? 'memory' : 'regfile'} kind; use it for this part` });
+      const width = sizeOf(state.width, setting.settings);
+      if (width > 32) report({ code: 'kind-not-wired', severity: 'error', span: state.span, message: `\`${state.name}\` is ${width} bits wide: its expressions are checked, but in this version the simulator holds a state of at most 32 bits; split it into narrower states` });
+    }
+    for (const drive of def.drives) {
+      const width = sizeOf(drive.width, setting.settings);
+      if (width > 32) report({ code: 'kind-not-wired', severity: 'error', span: drive.span, message: `port \`${drive.name}\` is ${width} bits wide: in this version the simulator drives buses of at most 32 lines; split it into narrower ports` });
     }
   }
 }
@@ -169,7 +174,7 @@ export interface CompiledPort {
 export function compilePort(
   def: KindDef,
   setting: PartSetting,
-  texts: { text: ExprText; width: number }[],
+  texts: { text: ExprText; width?: number }[],
   edgeWidth?: number,
   arrays: Pick<RunOptions, 'element' | 'onOutOfRange'> = {},
 ): CompiledPort {

@@ -8,6 +8,7 @@
 // at the closing edge every edge port of every part computes from the values before the edge,
 // then all of them are stored at once, then the flags are read from the new state.
 import type { CustomPart, Field, Machine, Strobe } from '../model/types';
+import type { Memory } from '../isa/memory';
 import { type PartSetting, compilePort, sizeOf } from '../parts/behaviour';
 import { edgeInputName } from '../parts/kinds';
 import { customPortBusReads } from '../model/buildCustomPart';
@@ -18,6 +19,10 @@ export interface CustomAccess {
   partValue: Int32Array;
   ir: number;
   customState: Int32Array;
+  /** The program memory (a kind's `x memory` state reads its bytes). */
+  memory: Memory;
+  /** Stores bytes at a closing edge, recorded as the board's write (size code: 0 byte, 1 half, 2 word). */
+  store: (size: number, address: number, value: number) => void;
 }
 
 type Getter = (m: CustomAccess) => number;
@@ -25,9 +30,11 @@ type Getter = (m: CustomAccess) => number;
 interface PartRuntime {
   part: CustomPart;
   partNumber: number;
-  /** Slot of each scalar state, by name. */
+  /** Slot of each scalar state, by name (an array's first element). */
   slots: Map<string, number>;
   widths: Map<string, number>;
+  /** Register arrays: element count; the program memory: `memory`. */
+  arrays: Map<string, number | 'memory'>;
   /** Computes every flag from the state; indices into the simulator's flags. */
   flags?: { run: (m: CustomAccess) => number[]; flagNumbers: number[] };
 }
@@ -53,11 +60,17 @@ export class CustomParts {
   ) {
     for (const part of machine.parts.values()) {
       if (part.kind !== 'custom') continue;
-      const rt: PartRuntime = { part, partNumber: partIndex.get(part.name)!, slots: new Map(), widths: new Map() };
+      const rt: PartRuntime = { part, partNumber: partIndex.get(part.name)!, slots: new Map(), widths: new Map(), arrays: new Map() };
       for (const state of part.def.states) {
-        if (state.count) continue;
-        rt.slots.set(state.name, this.stateCount++);
         rt.widths.set(state.name, sizeOf(state.width, part.settings));
+        if (state.count === 'memory') {
+          rt.arrays.set(state.name, 'memory');
+          continue;
+        }
+        const count = state.count ? sizeOf(state.count, part.settings) : 1;
+        if (state.count) rt.arrays.set(state.name, count);
+        rt.slots.set(state.name, this.stateCount);
+        this.stateCount += count;
       }
       this.runtimes.push(rt);
       this.byName.set(part.name, rt);
@@ -67,14 +80,16 @@ export class CustomParts {
       const def = rt.part.def;
       const setting = this.settingOf(rt.part, new Map());
       for (const state of def.states) {
-        if (state.count) continue;
+        if (state.count === 'memory') continue;
         const slot = rt.slots.get(state.name)!;
-        if (!state.reset) this.resetValues[slot] = 0;
-        else {
+        const count = rt.arrays.get(state.name) ?? 1;
+        let value = 0;
+        if (state.reset) {
           const port = compilePort(def, setting, [{ text: state.reset, width: rt.widths.get(state.name)! }]);
           // Number settings are already their values; a reset reads nothing that changes.
-          this.resetValues[slot] = Number(port.run(port.inputs.map(() => 0))[0]) | 0;
+          value = Number(port.run(port.inputs.map(() => 0))[0]) | 0;
         }
+        for (let k = 0; k < (count as number); k++) this.resetValues[slot + k] = value;
       }
       if (def.flags.length) {
         const port = compilePort(def, setting, def.flags.map((f) => ({ text: f.expr, width: 1 })));
@@ -91,14 +106,27 @@ export class CustomParts {
     }
   }
 
+  /** The machine a compiled port runs on right now (element reads go through it). */
+  private current: CustomAccess | undefined;
+  private currentPart: PartRuntime | undefined;
+
+  /** Element reads of register arrays and of the program memory, for the part that runs now. */
+  private readonly arrayAccess = {
+    element: (array: string, index: number): number => {
+      const m = this.current!;
+      const rt = this.currentPart!;
+      if (rt.arrays.get(array) === 'memory') return m.memory.load8(index >>> 0);
+      return m.customState[rt.slots.get(array)! + index] >>> 0;
+    },
+  };
+
   /** Problems that stop the simulator from running these parts at all (widths it does not hold). */
   static problems(machine: Machine): string[] {
     const out: string[] = [];
     for (const part of machine.parts.values()) {
       if (part.kind !== 'custom') continue;
       for (const state of part.def.states) {
-        if (state.count) out.push(`part \`${part.name}\`: state \`${state.name}\` is an array; the simulator runs arrays only in the standard library's kinds`);
-        else if (sizeOf(state.width, part.settings) > 32) out.push(`part \`${part.name}\`: state \`${state.name}\` is wider than 32 bits, which the simulator does not hold yet`);
+        if (sizeOf(state.width, part.settings) > 32) out.push(`part \`${part.name}\`: state \`${state.name}\` is wider than 32 bits, which the simulator does not hold yet`);
       }
       for (const drive of part.def.drives) if (sizeOf(drive.width, part.settings) > 32) out.push(`part \`${part.name}\`: port \`${drive.name}\` is wider than 32 bits, which the simulator does not hold yet`);
     }
@@ -180,7 +208,7 @@ export class CustomParts {
   driver(strobe: Strobe, fields: ReadonlyMap<string, number>): CustomOp {
     const rt = this.byName.get(strobe.part ?? '')!;
     const drive = rt.part.def.drives.find((d) => d.name === strobe.kindPort)!;
-    const port = compilePort(rt.part.def, this.settingOf(rt.part, fields), [{ text: drive.expr, width: sizeOf(drive.width, rt.part.settings) }]);
+    const port = compilePort(rt.part.def, this.settingOf(rt.part, fields), [{ text: drive.expr, width: sizeOf(drive.width, rt.part.settings) }], undefined, this.arrayAccess);
     const problem = this.unnamedControl(rt, port.inputs, fields);
     if (problem) return { problem };
     const getters = port.inputs.map((name) => this.getter(rt, name, fields, -1));
@@ -188,6 +216,8 @@ export class CustomParts {
     const run = port.run;
     this.drivers.push((m) => {
       for (let i = 0; i < getters.length; i++) values[i] = getters[i](m);
+      this.current = m;
+      this.currentPart = rt;
       return Number(run(values)[0]) | 0;
     });
     return { index: this.drivers.length - 1, reads: this.busReads(rt, drive.name, fields) };
@@ -198,24 +228,38 @@ export class CustomParts {
     const rt = this.byName.get(strobe.part ?? '')!;
     const def = rt.part.def;
     const edge = def.edges.find((e) => e.name === strobe.kindPort)!;
-    const texts = edge.assigns.flatMap((a) => [{ text: a.expr, width: rt.widths.get(a.target)! }, ...(a.when ? [{ text: a.when, width: 1 }] : [])]);
+    const texts = edge.assigns.flatMap((a) => [{ text: a.expr, width: rt.widths.get(a.target)! }, ...(a.when ? [{ text: a.when, width: 1 }] : []), ...(a.index ? [{ text: a.index }] : [])]);
     const edgeWidth = edge.width ? sizeOf(edge.width, rt.part.settings) : undefined;
-    const port = compilePort(def, this.settingOf(rt.part, fields), texts, edgeWidth);
+    const port = compilePort(def, this.settingOf(rt.part, fields), texts, edgeWidth, this.arrayAccess);
     const problem = this.unnamedControl(rt, port.inputs, fields);
     if (problem) return { problem };
     const getters = port.inputs.map((name) => this.getter(rt, name, fields, bus));
     const values = new Array<number>(getters.length);
     // For each assignment: its slot and where its value and condition stand in the results.
-    const plan: { slot: number; value: number; when: number }[] = [];
+    // For each assignment: its slot (-1: the program memory), where its value, condition and
+    // index stand in the results, and an array's element count.
+    const plan: { slot: number; value: number; when: number; index: number; count: number }[] = [];
     let k = 0;
     for (const a of edge.assigns) {
-      plan.push({ slot: rt.slots.get(a.target)!, value: k++, when: a.when ? k++ : -1 });
+      const array = rt.arrays.get(a.target);
+      const value = k++;
+      const when = a.when ? k++ : -1;
+      const index = a.index ? k++ : -1;
+      plan.push({ slot: array === 'memory' ? -1 : rt.slots.get(a.target)!, value, when, index, count: typeof array === 'number' ? array : 1 });
     }
     const run = port.run;
     this.edges.push((m, stage) => {
       for (let i = 0; i < getters.length; i++) values[i] = getters[i](m);
+      this.current = m;
+      this.currentPart = rt;
       const out = run(values);
-      for (const a of plan) if (a.when < 0 || Number(out[a.when]) !== 0) stage.push(a.slot, Number(out[a.value]) | 0);
+      for (const a of plan) {
+        if (a.when >= 0 && Number(out[a.when]) === 0) continue;
+        const index = a.index < 0 ? 0 : Number(out[a.index]);
+        // A write to the memory is staged as (-1 - address); an index past an array's end writes nothing.
+        if (a.slot < 0) stage.push(-1 - (index >>> 0), Number(out[a.value]) & 0xff);
+        else if (index < a.count) stage.push(a.slot + index, Number(out[a.value]) | 0);
+      }
     });
     const reads = this.busReads(rt, edge.name, fields);
     return { index: this.edges.length - 1, reads: bus >= 0 && port.inputs.includes(edgeInputName) ? [bus, ...reads] : reads };
@@ -223,8 +267,13 @@ export class CustomParts {
 
   /** Stores what the edge ports computed, mirrors first states into part values and reads the flags. */
   commit(m: CustomAccess, stage: number[], flags: Uint8Array): void {
-    for (let i = 0; i < stage.length; i += 2) m.customState[stage[i]] = stage[i + 1];
+    let bytes: { address: number; value: number }[] | undefined;
+    for (let i = 0; i < stage.length; i += 2) {
+      if (stage[i] >= 0) m.customState[stage[i]] = stage[i + 1];
+      else (bytes ??= []).push({ address: (-1 - stage[i]) >>> 0, value: stage[i + 1] });
+    }
     stage.length = 0;
+    if (bytes) storeBytes(m, bytes);
     this.refresh(m, flags);
   }
 
@@ -240,5 +289,24 @@ export class CustomParts {
         });
       }
     }
+  }
+}
+
+/**
+ * The bytes one closing edge writes, stored as the board writes them: a run of 2 or 4 bytes at
+ * ascending addresses (a halfword or word lane set, low byte first, little-endian as RV32I
+ * memory is, RISC-V Unprivileged ISA 20191213, section 2.6) is one write of that size, the
+ * rest single bytes. The lock-step comparison then sees the sizes the reference reports.
+ */
+function storeBytes(m: CustomAccess, bytes: { address: number; value: number }[]): void {
+  bytes.sort((a, b) => a.address - b.address);
+  for (let i = 0; i < bytes.length; ) {
+    let run = 1;
+    while (i + run < bytes.length && run < 4 && bytes[i + run].address === bytes[i].address + run) run++;
+    const size = run >= 4 ? 4 : run >= 2 ? 2 : 1;
+    let value = 0;
+    for (let k = size - 1; k >= 0; k--) value = (value << 8) | bytes[i + k].value;
+    m.store(size === 4 ? 2 : size === 2 ? 1 : 0, bytes[i].address, value | 0);
+    i += size;
   }
 }
