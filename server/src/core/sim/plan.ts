@@ -120,7 +120,9 @@ export class SimPlan {
     if (typeof pc === 'string') errors.push(pc);
     const ir = machine.instructionRegister ? machine.parts.get(machine.instructionRegister) : parts.find((p) => p.kind === 'instruction');
     if (!ir) errors.push('the machine has no instruction register (`part ir instruction 32`), so it cannot hold an instruction');
-    if (!parts.some((p) => p.kind === 'memory')) errors.push('the machine has no memory part, so it cannot fetch instructions');
+    // A memory: the standard library's memory port, or a part of the table's own kind that holds the program memory (`x memory`).
+    const holdsMemory = (p: Part) => p.kind === 'memory' || (p.kind === 'custom' && p.def.states.some((s) => s.count === 'memory'));
+    if (!parts.some(holdsMemory)) errors.push('the machine has no memory part, so it cannot fetch instructions');
     if (!parts.some((p) => p.kind === 'regfile')) errors.push('the machine has no register file (`part x regfile 32`), so it cannot hold x1..x31');
     if (machine.buses.size > MAX_BUSES) errors.push(`the machine has ${machine.buses.size} buses; the simulator handles up to ${MAX_BUSES}`);
     if (!machine.stepBits) errors.push('no control-store address carries the step counter (`step 0..N` in an `address` layout)');
