@@ -98,7 +98,8 @@ describe.skipIf(!haveGcc)('the debug adapter over stdio', () => {
   it('stops on a table step line, shows the step, the registers, the buses and the control word', async () => {
     const opStep2 = demoLine('2: x.rs1.oe, x.rs2.oe, alu.fn=op_fn');
     const [bp] = await startSession({ lines: [{ line: opStep2 }] });
-    expect(bp.verified).toBe(true);
+    // The ten OP instructions of RV32I (spec 2.4: ADD SUB SLL SLT SLTU XOR SRL SRA OR AND), each with the taken flag 0 or 1.
+    expect(bp).toMatchObject({ verified: true, message: 'class OP step 2: 20 addresses in the store' });
     const event = await stopAfter(() => dc.continueRequest({ threadId: 1 }));
     expect(event.body.reason).toBe('breakpoint');
     const [step, instruction] = await frames();
@@ -118,5 +119,139 @@ describe.skipIf(!haveGcc)('the debug adapter over stdio', () => {
     expect(v['Control word']['alu.fn']).toBe('add (0)');
     const ir = await children('Step', 'ir');
     expect(ir).toMatchObject({ disassembly: 'add x10,x10,x11', opcode: '0b0110011', rd: 'x10', rs1: 'x10', rs2: 'x11', funct3: '0b000', funct7: '0b0000000', format: 'R', class: 'OP' });
+  });
+
+  it('stops on a function by name and steps out of it to the instruction after the call', async () => {
+    const [bp] = await startSession({ functions: ['add3'] });
+    expect(bp).toMatchObject({ verified: true, instructionReference: '0x00010038' });
+    await stopAfter(() => dc.continueRequest({ threadId: 1 }));
+    let [step, instruction] = await frames();
+    expect(step.name).toBe('step 0: phase fetch step 0 (used by class JAL)');
+    expect(instruction.name).toBe('0x00010038 <add3>: add x10,x10,x11');
+    await stopAfter(() => dc.stepOutRequest({ threadId: 1 }));
+    [step, instruction] = await frames();
+    expect(instruction.name).toBe('0x0001000c <_start+0xc>: addi x8,x10,0');
+    const v = await variables();
+    expect(v.Registers['x10 (a0)']).toBe('0x0000000f (15)'); // 5 + 7 + 3
+    expect(v.Step['instructions retired']).toBe('6');
+  });
+
+  it('steps by microcycle (step in) and by instruction (next), and back by one of each', async () => {
+    await startSession();
+    const cycle = async () => (await variables()).Step.cycle.split(' ')[0];
+    await stopAfter(() => dc.stepInRequest({ threadId: 1 }));
+    expect(await cycle()).toBe('1');
+    // At reset the instruction register holds 0, whose opcode bits select LOAD's row of the store.
+    expect((await frames())[0].name).toBe('step 1: phase fetch step 1 (used by class LOAD)');
+    await stopAfter(() => dc.nextRequest({ threadId: 1 }));
+    // addi x10,x0,5 runs steps 0..2: the next instruction starts at cycle 3.
+    let v = await variables();
+    expect(v.Step.cycle).toBe('3  (steps run since reset)');
+    expect(v.Registers['x10 (a0)']).toBe('0x00000005 (5)');
+    await stopAfter(() => dc.nextRequest({ threadId: 1 }));
+    expect((await variables()).Registers['x11 (a1)']).toBe('0x00000007 (7)');
+    // One microcycle back: before the closing edge of step 2 of addi x11, which loads x11.
+    await stopAfter(() => dc.stepBackRequest({ threadId: 1 }));
+    v = await variables();
+    expect(v.Step.cycle).toBe('5  (steps run since reset)');
+    expect(v.Step.step).toBe('2  class OP-IMM step 2');
+    expect(v.Registers['x11 (a1)']).toBe('0x00000000 (0)');
+    expect(v.Buses.result).toBe('0x00000007  driven by alu.oe (alu)');
+    // One instruction back: the start of addi x11 (cycle 3), then of addi x10 (cycle 0).
+    await stopAfter(() => dc.stepBackRequest({ threadId: 1, granularity: 'instruction' }));
+    expect(await cycle()).toBe('3');
+    await stopAfter(() => dc.stepBackRequest({ threadId: 1, granularity: 'instruction' }));
+    expect(await cycle()).toBe('0');
+    expect((await variables()).Registers['x10 (a0)']).toBe('0x00000000 (0)');
+    // And forward again to the same state.
+    await stopAfter(() => dc.nextRequest({ threadId: 1 }));
+    await stopAfter(() => dc.nextRequest({ threadId: 1 }));
+    v = await variables();
+    expect(v.Step.cycle).toBe('6  (steps run since reset)');
+    expect(v.Registers['x11 (a1)']).toBe('0x00000007 (7)');
+  });
+
+  it('goes back one microcycle at a time to reset, and says when the history ends', async () => {
+    await startSession();
+    let event = await stopAfter(() => dc.customRequest('setInstructionBreakpoints', { breakpoints: [{ instructionReference: '0x00010034' }] }).then(() => dc.continueRequest({ threadId: 1 })));
+    expect(event.body.reason).toBe('breakpoint');
+    const at = Number((await variables()).Step.cycle.split(' ')[0]);
+    for (let i = 0; i < at; i++) await stopAfter(() => dc.stepBackRequest({ threadId: 1 }));
+    expect((await variables()).Step.cycle).toBe('0  (steps run since reset)');
+    event = await stopAfter(() => dc.stepBackRequest({ threadId: 1 }));
+    expect(event.body.description).toBe('oldest step in the history');
+  });
+
+  it('conditional breakpoints: a register value, an instruction count', async () => {
+    const [conditional] = await startSession({ lines: [{ line: demoLine('class OP-IMM'), condition: 'a0 == 15' }] });
+    expect(conditional.verified).toBe(true);
+    await stopAfter(() => dc.continueRequest({ threadId: 1 }));
+    // a0 becomes 15 at the closing edge of addi x10,x10,3; the next step is the fetch of `ret`,
+    // which still runs under OP-IMM's row (the instruction register loads at the end of fetch).
+    const [fetch, ret] = await frames();
+    expect(ret.name).toBe('0x00010040 <add3+0x8>: jalr x0,0(x1)');
+    expect(fetch.name).toBe('step 0: phase fetch step 0 (used by class OP-IMM)');
+    const bad = await dc.setBreakpointsRequest({ source: { path: DEMO }, breakpoints: [{ line: demoLine('class OP-IMM'), condition: 'q7 == 1' }, { line: demoLine('class OP-IMM'), condition: 'instructions == 4' }] });
+    expect(bad.body.breakpoints[0]).toMatchObject({ verified: false, message: 'condition: no register, bus, part or flag is named `q7`' });
+    expect(bad.body.breakpoints[1].verified).toBe(true);
+    expect((await stopAfter(() => dc.restartRequest({}))).body.reason).toBe('entry');
+    await stopAfter(() => dc.continueRequest({ threadId: 1 }));
+    // Four retired (addi, addi, jal, add): the fifth, addi x10,x10,3, is the first OP-IMM word with the count at 4.
+    const [step, instruction] = await frames();
+    expect(instruction.name).toBe('0x0001003c <add3+0x4>: addi x10,x10,3');
+    expect(step.name).toBe('step 2: class OP-IMM step 2');
+  });
+
+  it('memory around sp, changing a register, the program output in the console and the exit', async () => {
+    await startSession({ instructions: ['0x00010028'] });
+    await stopAfter(() => dc.continueRequest({ threadId: 1 }));
+    const memory = await variables();
+    expect(memory.Memory.around).toBe('0x7fff0000');
+    expect(memory.Memory['0x7ffefffc']).toBe('0x0000000f'); // sw x8,-4(x2) stored s0 = 15
+    // write(1, "ok\n", a2): a2 = 2 writes "ok" only.
+    const scope = (await dc.scopesRequest({ frameId: 1 })).body.scopes.find((s) => s.name === 'Registers')!;
+    const set = await dc.setVariableRequest({ variablesReference: scope.variablesReference, name: 'x12 (a2)', value: '2' });
+    expect(set.body.value).toBe('0x00000002');
+    const refused = await dc.setVariableRequest({ variablesReference: scope.variablesReference, name: 'x0 (zero)', value: '1' }).catch((e: Error) => e.message);
+    expect(refused).toContain('cannot be changed');
+    const output = dc.assertOutput('stdout', 'ok');
+    const exited = dc.waitForEvent('exited');
+    await dc.continueRequest({ threadId: 1 });
+    await output;
+    expect((await exited).body.exitCode).toBe(15);
+  });
+
+  it('a faulty table stops at the divergence, naming the register expected and obtained', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'pw-dap-'));
+    const faulty = join(dir, 'faulty.pwt');
+    // OP's funct3=000 funct7b5=0 row computes `or` instead of `add`.
+    writeFileSync(faulty, DEMO_TEXT.replace('000 0 add   000 1 sub', '000 0 or    000 1 sub'));
+    await startSession({ table: faulty });
+    const event = await stopAfter(() => dc.continueRequest({ threadId: 1 }));
+    expect(event.body.reason).toBe('exception');
+    const info = await dc.exceptionInfoRequest({ threadId: 1 });
+    // 5 + 7 = 12 by ADD (spec 2.4); the table's OR gives 5 | 7 = 7.
+    expect(info.body.description).toBe('x10: expected 0x0000000c (reference), got 0x00000007 (table)');
+    const [step] = await frames();
+    expect(step.line).toBe(demoLine('2: x.rs1.oe, x.rs2.oe, alu.fn=op_fn'));
+    expect(step.source?.path).toBe(faulty);
+    const back = await dc.stepBackRequest({ threadId: 1 }).catch((e: Error) => e.message);
+    expect(back).toContain('restart to run again');
+  });
+
+  it('disassembles the program around the pc', async () => {
+    await startSession();
+    const result = await dc.disassembleRequest({ memoryReference: '0x00010038', instructionCount: 3 });
+    expect(result.body!.instructions.map((i) => `${i.address} ${i.instructionBytes} ${i.instruction}${i.symbol ? ` <${i.symbol}>` : ''}`)).toEqual([
+      '0x00010038 00b50533 add x10,x10,x11 <add3>',
+      '0x0001003c 00350513 addi x10,x10,3',
+      '0x00010040 00008067 jalr x0,0(x1)',
+    ]);
+  });
+
+  it.skipIf(!haveTools(['qemu-riscv32'], 'qemu-user'))('the program exits with the code and output qemu-riscv32 gives', () => {
+    const qemu = spawnSync('qemu-riscv32', [elf], { encoding: 'utf8' });
+    expect(qemu.status).toBe(15);
+    expect(qemu.stdout).toBe('ok\n');
   });
 });

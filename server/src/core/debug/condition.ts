@@ -28,9 +28,13 @@ function numberOf(text: string): number | undefined {
 /** Parses a condition; the names it uses are returned so the caller can check them once. */
 export function parseCondition(text: string): ParsedCondition {
   const tokens: string[] = [];
+  let end = 0;
   TOKEN.lastIndex = 0;
-  for (let m = TOKEN.exec(text); m; m = TOKEN.exec(text)) tokens.push(m[1]);
-  if (text.slice(TOKEN.lastIndex).trim() !== '') return { ok: false, error: `cannot read "${text.slice(TOKEN.lastIndex).trim()}"` };
+  for (let m = TOKEN.exec(text); m; m = TOKEN.exec(text)) {
+    tokens.push(m[1]);
+    end = TOKEN.lastIndex;
+  }
+  if (text.slice(end).trim() !== '') return { ok: false, error: `cannot read "${text.slice(end).trim()}"` };
   if (tokens.length === 0) return { ok: false, error: 'the condition is empty' };
   let at = 0;
   const names: string[] = [];
