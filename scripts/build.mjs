@@ -1,5 +1,5 @@
-// Bundles the three entry points with esbuild: the CLI, the language server and the
-// VS Code client. Everything is CommonJS for Node 20; `vscode` stays external because
+// Bundles the four entry points with esbuild: the CLI, the language server, the debug adapter
+// and the VS Code client. Everything is CommonJS for Node 20; `vscode` stays external because
 // the editor provides it at run time.
 import { build } from 'esbuild';
 import { chmodSync } from 'node:fs';
@@ -20,6 +20,7 @@ const common = {
 await Promise.all([
   build({ ...common, entryPoints: ['server/src/cli/main.ts'], outfile: 'dist/cli.js', banner: { js: '#!/usr/bin/env node' } }),
   build({ ...common, entryPoints: ['server/src/lsp/main.ts'], outfile: 'dist/server.js' }),
+  build({ ...common, entryPoints: ['server/src/debug/main.ts'], outfile: 'dist/debug.js' }),
   build({ ...common, entryPoints: ['client/src/extension.ts'], outfile: 'dist/client.js', external: ['vscode'] }),
 ]);
 chmodSync('dist/cli.js', 0o755);

@@ -1,12 +1,13 @@
 // The VS Code side of Phasewright: starts the bundled language server (dist/server.js) over
 // Node IPC, and wires the editor-only parts: the status-bar item, the five commands (new
-// machine, build images, timing diagram, listing, run a program), the listing documents and the
-// `phasewright` task type.
+// machine, build images, timing diagram, listing, run a program), the listing documents, the
+// `phasewright` task type and the `phasewright` debugger (debugAdapter.ts).
 // Everything about the notation happens in the server; nothing here reads or runs workspace
 // code, so the extension is safe in untrusted workspaces (building asks for trust first).
 import * as vscode from 'vscode';
 import { LanguageClient, type LanguageClientOptions, type ServerOptions, TransportKind } from 'vscode-languageclient/node';
 import { buildImagesCommand } from './buildCommand';
+import { registerDebugger } from './debugAdapter';
 import { newMachineCommand } from './newMachine';
 import { runProgramCommand } from './runCommand';
 import { LibraryProvider, libraryScheme } from './libraryView';
@@ -65,6 +66,7 @@ export async function activate(context: vscode.ExtensionContext): Promise<void> 
     }),
     vscode.tasks.registerTaskProvider(taskType, new PhasewrightTaskProvider(context.asAbsolutePath('dist/cli.js'))),
     { dispose: () => TimingPanel.current?.dispose() },
+    ...registerDebugger(context),
   );
 
   await client.start();

@@ -16,7 +16,11 @@ const snippets = JSON.parse(readFileSync(join(root, 'snippets/phasewright.json')
 
 describe('manifest', () => {
   it('activates on the language and on its commands only', () => {
-    expect(pkg.activationEvents).toEqual(['onLanguage:phasewright', ...pkg.contributes.commands.map((c: { command: string }) => `onCommand:${c.command}`)]);
+    expect(pkg.activationEvents).toEqual(['onLanguage:phasewright', ...pkg.contributes.commands.map((c: { command: string }) => `onCommand:${c.command}`), 'onDebugResolve:phasewright']);
+    // The debugger: breakpoints on table lines, and one debugger type whose required attributes are documented.
+    expect(pkg.contributes.breakpoints).toEqual([{ language: 'phasewright' }]);
+    expect(pkg.contributes.debuggers.map((d: { type: string }) => d.type)).toEqual(['phasewright']);
+    expect(pkg.contributes.debuggers[0].configurationAttributes.launch.required).toEqual(['table', 'program']);
     expect(pkg.contributes.commands.map((c: { command: string }) => c.command)).toEqual(['phasewright.newMachine', 'phasewright.buildImages', 'phasewright.showTimingDiagram', 'phasewright.showListing', 'phasewright.runProgram']);
     expect(pkg.main).toBe('./dist/client.js');
     expect(pkg.engines.vscode).toBe('^1.91.0');

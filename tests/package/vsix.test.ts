@@ -19,7 +19,7 @@ describe('npm run package:vsix', () => {
     if (!haveTools(['unzip'], 'unzip')) return;
     const output = execFileSync('npm', ['run', 'package:vsix'], { cwd: root, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
     // vsce reports the file count and size of what it packed.
-    expect(output).toMatch(/DONE {2}Packaged: .*phasewright-0\.1\.0\.vsix \(16 files, [\d.]+ (KB|MB)\)/);
+    expect(output).toMatch(/DONE {2}Packaged: .*phasewright-0\.1\.0\.vsix \(17 files, [\d.]+ (KB|MB)\)/);
     expect(existsSync(vsix)).toBe(true);
     const names = execFileSync('unzip', ['-Z1', vsix], { encoding: 'utf8' }).trim().split('\n').sort();
     expect(names).toEqual(
@@ -29,6 +29,7 @@ describe('npm run package:vsix', () => {
         'extension/LICENSE.txt',
         'extension/dist/cli.js',
         'extension/dist/client.js',
+        'extension/dist/debug.js',
         'extension/dist/server.js',
         'extension/docs/images/hover.png',
         'extension/docs/images/timing-diagram.png',
@@ -55,7 +56,7 @@ describe('npm run package:vsix', () => {
     const manifestText = execFileSync('unzip', ['-p', vsix, 'extension/package.json'], { encoding: 'utf8' });
     expect(JSON.parse(manifestText).repository).toBeUndefined();
     // The bundles inside are the ones just built, byte for byte.
-    for (const bundle of ['client', 'server', 'cli']) {
+    for (const bundle of ['client', 'server', 'cli', 'debug']) {
       const packed = execFileSync('unzip', ['-p', vsix, `extension/dist/${bundle}.js`], { maxBuffer: 16 * 1024 * 1024 });
       expect(packed.equals(readFileSync(join(root, `dist/${bundle}.js`))), bundle).toBe(true);
     }

@@ -47,6 +47,7 @@ export const PROGRAMS = [
   { name: 'selfcheck', sources: ['selfcheck.S'], defines: {}, kind: 'exit', description: 'instruction-by-instruction check of all RV32I instructions but EBREAK' },
   { name: 'syscalls', sources: ['syscalls.S'], defines: {}, kind: 'exit', description: 'write to stdout/stderr/closed fd, exit code truncation' },
   { name: 'ebreak', sources: ['ebreak.S'], defines: {}, kind: 'ebreak', description: 'prints a line, then stops with EBREAK' },
+  { name: 'debugdemo', sources: ['debugdemo.S'], defines: {}, kind: 'exit', description: 'a call, a store, a write and exit(15), for the debugger tests' },
   { name: 'crc_sieve', sources: [...C_RUNTIME, 'crc_sieve.c'], defines: {}, kind: 'exit', description: 'CRC-32 check value and prime sieve (C)' },
   { name: 'arith', sources: [...C_RUNTIME, 'arith.c'], defines: {}, kind: 'exit', description: 'software multiply/divide through libgcc (C)' },
   { name: 'sort', sources: [...C_RUNTIME, 'sort.c'], defines: {}, kind: 'exit', description: 'signed/unsigned 8/16/32-bit sorting, recursion (C)' },

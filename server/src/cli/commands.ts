@@ -9,6 +9,8 @@ import { type Command, asksForHelp, commandHelp } from './help';
 import { checkCommand } from './commands/check';
 import { explainCommand } from './commands/explain';
 import { lspCommand } from './commands/lsp';
+import { debugCommand } from './commands/debug';
+import { traceCommand } from './commands/trace';
 import { buildCommand } from './commands/build';
 import { diffCommand } from './commands/diff';
 import { runCommand as runProgramCommand } from './commands/run';
@@ -19,7 +21,7 @@ import { compileCommand } from './commands/compile';
 
 export type { Command } from './help';
 
-export const commands: readonly Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand, fitCommand, diagramCommand, runProgramCommand, compileCommand, lspCommand];
+export const commands: readonly Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand, fitCommand, diagramCommand, runProgramCommand, compileCommand, lspCommand, debugCommand, traceCommand];
 
 export function usage(): string {
   const lines = ['Phasewright: control tables for microcoded RV32I processors built from discrete logic.', '', 'Usage:'];

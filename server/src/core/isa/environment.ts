@@ -80,6 +80,11 @@ class ByteSink {
     return this.used;
   }
 
+  /** Forgets everything after the first `length` bytes. */
+  truncate(length: number): void {
+    this.used = Math.min(this.used, Math.max(0, length));
+  }
+
   bytes(): Uint8Array {
     return this.buffer.slice(0, this.used);
   }
@@ -136,6 +141,17 @@ export class LinuxUserEnvironment {
   /** Bytes the program wrote to fd 2 so far (a copy). */
   stderr(): Uint8Array {
     return this.stderrSink.bytes();
+  }
+
+  /** Bytes captured so far on stdout and stderr (a mark for truncateOutput). */
+  outputLengths(): [stdoutBytes: number, stderrBytes: number] {
+    return [this.stdoutSink.length, this.stderrSink.length];
+  }
+
+  /** Takes the captured output back to an earlier mark (the debugger stepping backwards). */
+  truncateOutput(stdoutBytes: number, stderrBytes: number): void {
+    this.stdoutSink.truncate(stdoutBytes);
+    this.stderrSink.truncate(stderrBytes);
   }
 
   /** Captured stdout as text, bytes taken as Latin-1 (test programs print ASCII). */

@@ -103,8 +103,12 @@ export class ProgramRun {
     }
   }
 
-  /** Runs up to `maxSteps` more steps; returns the ending once the run has ended, else null. */
-  advance(maxSteps: number): RunEnding | null {
+  /**
+   * Runs up to `maxSteps` more steps; returns the ending once the run has ended, else null.
+   * With `untilRetired`, returns after the first instruction that retires (the debugger checks
+   * its breakpoints between instructions).
+   */
+  advance(maxSteps: number, untilRetired = false): RunEnding | null {
     if (this.ending) return this.ending;
     const sim = this.sim;
     let budget = maxSteps;
@@ -112,13 +116,16 @@ export class ProgramRun {
       const before = sim.steps;
       const pcBefore = sim.instructionPc;
       if (this.reference && sim.step === 0) sim.checkpoint();
-      const outcome = sim.run(budget, this.reference !== null);
+      const outcome = sim.run(budget, this.reference !== null || untilRetired);
       budget -= sim.steps - before;
       if (outcome.kind === 'budget') return null;
       if (outcome.kind === 'retired' || (outcome.kind === 'stopped' && outcome.retired)) {
         const report = this.compareRetired(pcBefore);
         if (report) return (this.ending = { kind: 'divergence', report });
-        if (outcome.kind === 'retired') continue;
+        if (outcome.kind === 'retired') {
+          if (untilRetired) return null;
+          continue;
+        }
       }
       if (outcome.kind === 'stopped') return (this.ending = this.endWith(outcome.stop, outcome.retired, pcBefore));
     }

@@ -19,7 +19,7 @@
 import { analyse, errorCount, type Analysis, type SeverityConfig } from '../analysis';
 import { ProgramRun, type RunEnding } from './lockstep';
 import { SimPlan } from './plan';
-import { loadProgram } from './program';
+import { loadProgram, type LoadedProgram } from './program';
 import { stopText } from './describe';
 
 export const EXIT_REFUSED = 2;
@@ -46,12 +46,17 @@ export interface RunRequest {
   severities?: SeverityConfig;
 }
 
-export type PreparedRun =
+export type PreparedTable =
   /** `untrusted`: set when forced past errors; the run shows a table that would not build. */
+  | { ok: true; plan: SimPlan; program: LoadedProgram; analysis: Analysis; warnings: readonly string[]; untrusted?: string }
+  | { ok: false; reason: string };
+
+export type PreparedRun =
   | { ok: true; run: ProgramRun; analysis: Analysis; warnings: readonly string[]; untrusted?: string }
   | { ok: false; reason: string };
 
-export function prepareRun(request: RunRequest): PreparedRun {
+/** The table checked and planned and the program loaded, for a run or a debug session. */
+export function prepareTable(request: RunRequest): PreparedTable {
   const analysis = analyse(request.text, { severities: request.severities });
   const errors = errorCount(analysis.diagnostics);
   if (errors > 0 && !request.force) {
@@ -63,8 +68,15 @@ export function prepareRun(request: RunRequest): PreparedRun {
   if (!planned.ok) return { ok: false, reason: `${request.sourceName} cannot be simulated: ${planned.errors.join('; ')}` };
   const loaded = loadProgram(request.program, request.loadAddress);
   if (!loaded.ok) return { ok: false, reason: `the program cannot be loaded: ${loaded.error}` };
-  const run = new ProgramRun(planned.plan, loaded.program, { reference: request.reference ?? true, format: { lines: analysis.lines, file: request.sourceName } });
-  return { ok: true, run, analysis, warnings: loaded.program.warnings, untrusted };
+  return { ok: true, plan: planned.plan, program: loaded.program, analysis, warnings: loaded.program.warnings, untrusted };
+}
+
+export function prepareRun(request: RunRequest): PreparedRun {
+  const prepared = prepareTable(request);
+  if (!prepared.ok) return prepared;
+  const { plan, program, analysis, warnings, untrusted } = prepared;
+  const run = new ProgramRun(plan, program, { reference: request.reference ?? true, format: { lines: analysis.lines, file: request.sourceName } });
+  return { ok: true, run, analysis, warnings, untrusted };
 }
 
 /** The exit code for a run that ended (`null`: the step limit came first). */

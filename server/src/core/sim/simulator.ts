@@ -89,6 +89,21 @@ export interface SimulatorOptions {
   compiled?: boolean;
 }
 
+/** A captured machine state (see BusSimulator.captureState); `numbers` holds the counters. */
+export interface SimState {
+  regs: Int32Array;
+  partValue: Int32Array;
+  flags: Uint8Array;
+  busValue: Int32Array;
+  writes: Int32Array;
+  /** The step log of the current instruction (addresses and micro-ops), so reports after a restore name the right steps. */
+  log: Int32Array;
+  numbers: Float64Array;
+  stopReason: SimStop | null;
+  pendingExit: { exitCode: number; status: number } | null;
+}
+const STATE_NUMBERS = 11;
+
 /** Most memory writes one instruction's record keeps (RV32I makes at most one). */
 const MAX_RECORDED_WRITES = 16;
 /** Steps per call of the stepping loops (see run()). */
@@ -114,6 +129,8 @@ export class BusSimulator implements MachineAccess {
   stopReason: SimStop | null = null;
   /** Called after the buses settle in every step, before the closing edge (traces use it); gets the micro-op's number. */
   observer: ((sim: BusSimulator, uop: number) => void) | null = null;
+  /** Told the old contents before every memory write (the debugger's history undoes writes with it). */
+  memoryJournal: ((address: number, bytes: number, old: number) => void) | null = null;
   /** The environment that serves system calls (a scratch one while an instruction is replayed). */
   private env: LinuxUserEnvironment;
   /** Retired instructions and their steps per class (index in machine.classes; the last slot: no class). */
@@ -571,6 +588,7 @@ export class BusSimulator implements MachineAccess {
   storeMemory(size: number, address: number, value: number): void {
     const bytes = sizeBytes(size);
     const at = address >>> 0;
+    if (this.memoryJournal !== null) this.memoryJournal(at, bytes, bytes === 1 ? this.memory.load8(at) : bytes === 2 ? this.memory.load16(at) : this.memory.load32(at));
     if (this.checkpointing) {
       if (this.undoCount >= MAX_RECORDED_WRITES) this.checkpointValid = false;
       else {
@@ -598,6 +616,99 @@ export class BusSimulator implements MachineAccess {
       out.push({ address: this.writeAddress[i] >>> 0, size: this.writeSize[i] as 1 | 2 | 4, value: this.writeValue[i] >>> 0 });
     }
     return out;
+  }
+
+  /**
+   * The machine's whole state between two steps (not memory, which the caller journals), for
+   * the debugger's history. `into` is reused when given, so a ring of states allocates once.
+   */
+  captureState(into?: SimState): SimState {
+    const state = into ?? { regs: new Int32Array(this.regs.length), partValue: new Int32Array(this.partValue.length), flags: new Uint8Array(this.flags.length), busValue: new Int32Array(this.busValue.length), writes: new Int32Array(3 * MAX_RECORDED_WRITES), log: new Int32Array(this.logAddress.length + this.logUop.length), numbers: new Float64Array(STATE_NUMBERS), stopReason: null, pendingExit: null };
+    copyInto(state.regs, this.regs);
+    copyInto(state.partValue, this.partValue);
+    copyInto(state.flags, this.flags);
+    copyInto(state.busValue, this.busValue);
+    state.writes.set(this.writeAddress, 0);
+    state.writes.set(this.writeSize, MAX_RECORDED_WRITES);
+    state.writes.set(this.writeValue, 2 * MAX_RECORDED_WRITES);
+    state.log.set(this.logAddress, 0);
+    state.log.set(this.logUop, this.logAddress.length);
+    const n = state.numbers;
+    n[0] = this.definedMask;
+    n[1] = this.step;
+    n[2] = this.steps;
+    n[3] = this.instructionsRetired;
+    n[4] = this.instructionPc;
+    n[5] = this.lastRetireStep;
+    n[6] = this.lastRetiredWord;
+    n[7] = this.lastWriteCount;
+    n[8] = this.writeCount;
+    n[9] = this.instructionLoaded ? 1 : 0;
+    n[10] = this.ebreaks;
+    state.stopReason = this.stopReason;
+    state.pendingExit = this.pendingExit;
+    return state;
+  }
+
+  /** Puts back a state from captureState (memory is the caller's to restore). */
+  restoreState(state: SimState): void {
+    this.regs.set(state.regs);
+    this.partValue.set(state.partValue);
+    this.flags.set(state.flags);
+    this.busValue.set(state.busValue);
+    this.writeAddress.set(state.writes.subarray(0, MAX_RECORDED_WRITES));
+    this.writeSize.set(state.writes.subarray(MAX_RECORDED_WRITES, 2 * MAX_RECORDED_WRITES));
+    this.writeValue.set(state.writes.subarray(2 * MAX_RECORDED_WRITES));
+    this.logAddress.set(state.log.subarray(0, this.logAddress.length));
+    this.logUop.set(state.log.subarray(this.logAddress.length));
+    const n = state.numbers;
+    this.definedMask = n[0] | 0;
+    this.step = n[1];
+    this.steps = n[2];
+    this.instructionsRetired = n[3];
+    this.instructionPc = n[4];
+    this.lastRetireStep = n[5];
+    this.lastRetiredWord = n[6];
+    this.lastWriteCount = n[7];
+    this.writeCount = n[8];
+    this.instructionLoaded = n[9] === 1;
+    this.ebreaks = n[10];
+    this.stopReason = state.stopReason;
+    this.pendingExit = state.pendingExit;
+    this.checkpointValid = false;
+    this.refreshStaticParts();
+  }
+
+  /**
+   * Settles the buses as the next step will (its drivers in settle order, floating buses
+   * undefined) without its trap or closing edge, so a stopped machine can show what that step
+   * puts on every bus. Logs the step's store addresses and returns its micro-op number. Running
+   * the step afterwards gives the same result: it settles from the same state.
+   */
+  settleNextStep(): number {
+    const plan = this.plan;
+    const mo = plan.microOps;
+    this.refreshStaticParts();
+    let base: number;
+    if (this.nStores === 1 && mo.byKey !== null) {
+      const address = this.staticParts[0] + plan.stores[0].stepPart[this.step];
+      this.logAddress[this.step] = address;
+      base = mo.byKey[plan.stores[0].wordOfAddress[address]];
+    } else {
+      base = this.multiStoreUop(this.step);
+    }
+    const code = mo.code.data;
+    const uop = code[base + 1];
+    this.logUop[this.step] = uop;
+    const info = mo.info[uop];
+    for (let bus = 0; bus < plan.busNames.length; bus++) if (!info.driven[bus] && !plan.busKeeper[bus]) this.definedMask &= ~(1 << bus);
+    for (let k = 0; k < info.drivers.length; k++) {
+      const { value, defined } = this.driverValue(base, k);
+      const bus = info.drivers[k].bus;
+      this.busValue[bus] = value;
+      this.definedMask = defined ? this.definedMask | (1 << bus) : this.definedMask & ~(1 << bus);
+    }
+    return uop;
   }
 
   /** Remembers the state at the start of an instruction (call with the step counter at 0). */
