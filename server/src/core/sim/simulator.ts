@@ -93,6 +93,8 @@ export interface SimulatorOptions {
 export interface SimState {
   regs: Int32Array;
   partValue: Int32Array;
+  /** State of the parts of the table's own kinds. */
+  customState: Int32Array;
   flags: Uint8Array;
   busValue: Int32Array;
   writes: Int32Array;
@@ -623,9 +625,10 @@ export class BusSimulator implements MachineAccess {
    * the debugger's history. `into` is reused when given, so a ring of states allocates once.
    */
   captureState(into?: SimState): SimState {
-    const state = into ?? { regs: new Int32Array(this.regs.length), partValue: new Int32Array(this.partValue.length), flags: new Uint8Array(this.flags.length), busValue: new Int32Array(this.busValue.length), writes: new Int32Array(3 * MAX_RECORDED_WRITES), log: new Int32Array(this.logAddress.length + this.logUop.length), numbers: new Float64Array(STATE_NUMBERS), stopReason: null, pendingExit: null };
+    const state = into ?? { regs: new Int32Array(this.regs.length), partValue: new Int32Array(this.partValue.length), customState: new Int32Array(this.customState.length), flags: new Uint8Array(this.flags.length), busValue: new Int32Array(this.busValue.length), writes: new Int32Array(3 * MAX_RECORDED_WRITES), log: new Int32Array(this.logAddress.length + this.logUop.length), numbers: new Float64Array(STATE_NUMBERS), stopReason: null, pendingExit: null };
     copyInto(state.regs, this.regs);
     copyInto(state.partValue, this.partValue);
+    copyInto(state.customState, this.customState);
     copyInto(state.flags, this.flags);
     copyInto(state.busValue, this.busValue);
     state.writes.set(this.writeAddress, 0);
@@ -654,6 +657,7 @@ export class BusSimulator implements MachineAccess {
   restoreState(state: SimState): void {
     this.regs.set(state.regs);
     this.partValue.set(state.partValue);
+    this.customState.set(state.customState);
     this.flags.set(state.flags);
     this.busValue.set(state.busValue);
     this.writeAddress.set(state.writes.subarray(0, MAX_RECORDED_WRITES));
