@@ -118,6 +118,7 @@ const describe = (text: string) => text.replace(/["\r\n]/g, ' ');
 function linesText(input: EquationInput): string {
   const { lines } = input;
   if (lines.length === 1) return `address line ${lines[0]}`;
+  if (lines.length === 2 && lines[0] >= 0) return `address lines ${lines[0]} and ${lines[1]}`;
   if (lines.every((l, k) => l === lines[0] + k)) return `address lines ${lines[0]} to ${lines[lines.length - 1]}`;
   return `address lines ${lines.map((l) => (l < 0 ? 'none' : l)).join(', ')} (bit 0 first)`;
 }
