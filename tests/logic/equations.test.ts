@@ -90,7 +90,7 @@ describe('equation text', () => {
   });
 
   it('explains text it cannot read, with the line', () => {
-    const table = tableFromFunction(['step[0]', 'step[1]', 'flag'], ['y', 'z'], (m, j) => (j === 0 ? m & 1 : (m >> 2) & 1));
+    const table = tableFromFunction(['step[0]', 'step[1]', 'flag'], ['y', 'z'], (m, j) => ((j === 0 ? m & 1 : (m >> 2) & 1) as 0 | 1));
     const minimised = minimise(table, { polarity: 'best' });
     const good = equationsText(minimised, 'small', 'small_logic');
     const y = /^ {2}drive y 1 = .*$/m.exec(good)![0];
@@ -120,7 +120,7 @@ describe('equation text', () => {
   });
 
   it('catches equations that read but differ from the covers, naming the output and the address', () => {
-    const table = tableFromFunction(['step[0]', 'step[1]', 'flag'], ['y'], (m) => m & 1);
+    const table = tableFromFunction(['step[0]', 'step[1]', 'flag'], ['y'], (m) => (m & 1) as 0 | 1);
     const minimised = minimise(table, { polarity: 'best' });
     const good = equationsText(minimised, 'small', 'small_logic');
     expect(equationsTextLevels(good, minimised, [5])).toMatchObject({ ok: true, levels: [{ bit: 5 }] });
