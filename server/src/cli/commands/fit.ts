@@ -1,13 +1,14 @@
 // `phasewright fit FILE --device gal16v8|gal22v10 [--store NAME] [--outputs a,b] [--pins FILE]
 // [--out DIR] [--keep-fill] [--vectors N]`: minimises each control output of a store over its
 // address lines, fits the outputs into as many GAL devices as needed, and writes one JEDEC fuse
-// map per device plus the equations as text and as a Verilog module. Before anything is
-// written, the equations and every fuse map are evaluated at every address the inputs can form
-// and each word checked for bus contention and, where no step covers the address, for anything
-// not idle (core/logic/verifyFit.ts); an unsafe result is refused. Every fuse map is read back
-// and checked against the truth table and the same rule before it is reported. Exit 0 when
-// everything fits, 1 when an output cannot fit or the result is unsafe (nothing is written) or
-// the table has errors, 2 on usage.
+// map per device, the equations as a part kind in the expression language, and a Verilog
+// module. Before anything is written, the equations text is read back and must equal the covers
+// at every address, and its values and every fuse map are evaluated at every address the inputs
+// can form and each word checked for bus contention and, where no step covers the address, for
+// anything not idle (core/logic/verifyFit.ts); an unsafe result is refused. The fuse maps and
+// the equations are read back from disk and checked the same way before they are reported.
+// Exit 0 when everything fits, 1 when an output cannot fit or the result is unsafe (nothing is
+// written) or the table has errors, 2 on usage.
 import { basename, extname, resolve } from 'node:path';
 import { analyse, errorCount } from '../../core/analysis';
 import { encodeMachine } from '../../core/encode/encoder';
