@@ -1,11 +1,16 @@
 // `phasewright fit` and safety: on every example the fit either refuses a table with errors or
 // reports every address checked and none unsafe; the same for a subset of outputs (the rest stay
-// in the ROM) and with --keep-fill; the report names the drivers left free.
-import { readdirSync } from 'node:fs';
+// in the ROM) and with --keep-fill; the report names the drivers left free, is laid out per
+// device, and the equations file it writes reads back.
+import { readFileSync, readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runCommand } from '../../server/src/cli/commands';
 import { memoryIo } from '../../server/src/cli/io';
+import { analyse } from '../../server/src/core/analysis';
+import { encodeMachine } from '../../server/src/core/encode/encoder';
+import { storeTruthTable } from '../../server/src/core/encode/storeTable';
+import { minimise, readEquations } from '../../server/src/core/logic';
 
 const root = join(__dirname, '../..');
 
@@ -45,7 +50,7 @@ describe('phasewright fit is safe on every example', () => {
   it('reports the demo: every one of the 8192 addresses checked, and the one free driver per bus', async () => {
     const { code, out } = await fit('examples/halyard-32.pwt');
     expect(code).toBe(0);
-    expect(out).toContain('6990 of 8192 addresses are never reached: there fields and one driver per bus (pc.oe on left, imm.oe on right, alu.oe on result) may take any value, every other strobe keeps the fill word');
+    expect(out).toContain('free drivers: pc.oe on left, imm.oe on right, alu.oe on result (one per bus at the 6990 of 8192 addresses no step reaches; fields are free there too, every other strobe keeps the fill word)');
     expect(out).toContain('safety: 8192 of 8192 addresses checked, 0 unsafe (equations, Verilog and every fuse map)');
     expect(out).toContain("use the programmer's verify");
   }, 60_000);
@@ -53,11 +58,44 @@ describe('phasewright fit is safe on every example', () => {
   it('is safe for a subset of outputs, and with --keep-fill', async () => {
     const subset = await fit('examples/halyard-32.pwt', '--outputs', 't.oe,mem.rd,done');
     expect(subset.code).toBe(0);
-    expect(subset.out).toContain('one driver per bus (mem.rd on result)');
+    expect(subset.out).toContain('free drivers: mem.rd on result (one per bus at the 6990 of 8192 addresses');
     expect(subset.out).toContain('safety: 8192 of 8192 addresses checked, 0 unsafe');
     const kept = await fit('examples/halyard-32.pwt', '--keep-fill');
     expect(kept.code).toBe(0);
-    expect(kept.out).toContain('the fill word is kept at every address no step reaches (--keep-fill)');
+    expect(kept.out).toContain('free drivers: none; the fill word is kept at every address no step reaches (--keep-fill)');
     expect(kept.out).toContain('safety: 8192 of 8192 addresses checked, 0 unsafe');
+  }, 60_000);
+
+  it('lays the report out per device: a table of outputs, then the safety line, the free drivers and the files', async () => {
+    const { code, out } = await fit('examples/halyard-32.pwt');
+    expect(code).toBe(0);
+    const lines = out.split('\n');
+    expect(lines[0]).toMatch(/^Halyard-32, store main: 28 outputs of 13 address inputs, 111 product terms \(minimised in \d+ ms\)$/);
+    expect(lines[1]).toBe('fitted into 3 GAL22V10 devices, combinational mode');
+    const at = (text: string) => lines.findIndex((l) => l === text || l.startsWith(text));
+    const order = ['device 1 of 3 (GAL22V10)', 'device 2 of 3', 'device 3 of 3', 'safety: ', 'free drivers: ', 'files in ', 'Caution: '].map(at);
+    expect(order.every((k) => k > 0)).toBe(true);
+    expect([...order].sort((a, b) => a - b)).toEqual(order);
+    const device1 = lines.slice(order[0] + 1, order[1]);
+    expect(device1[0]).toMatch(/^ {2}output +pin +terms +polarity$/);
+    // Each placed output is a row: name, pin, terms used of the cell's, polarity.
+    expect(device1).toContainEqual(expect.stringMatching(/^ {2}done +18 +14\/16 +high$/));
+    expect(device1).toContainEqual(expect.stringMatching(/^ {2}pc\.oe +15 +5\/10 +low$/));
+    expect(device1).toContain('  input pins: 1 step[0], 2 step[1], 3 step[2], 4 taken, 5 f7b5, 6 funct3[0], 7 funct3[1], 8 funct3[2], 9 opcode[0], 10 opcode[1], 11 opcode[2], 13 opcode[3], 14 opcode[4]');
+    const files = lines.slice(order[5] + 1, order[6]);
+    expect(files.map((l) => l.trim().split(/ +/)[0])).toEqual(['halyard-32.main.gal22v10-1.jed', 'halyard-32.main.gal22v10-2.jed', 'halyard-32.main.gal22v10-3.jed', 'halyard-32.main.eqn', 'halyard-32.main.v']);
+  }, 60_000);
+
+  it('writes equations in the expression language, which read back from the file', async () => {
+    const { code } = await fit('examples/halyard-32.pwt');
+    expect(code).toBe(0);
+    const written = readFileSync(join(root, 'tests/.tmp/cli-fit/examples_halyard-32_pwt/halyard-32.main.eqn'), 'utf8');
+    expect(written).toContain('\nkind main_logic "Halyard-32, store main: 28 fitted outputs"\n  input step 3 "address lines 0 to 2"\n');
+    expect(written).toMatch(/^ {2}drive done 1 = [^;!]+ "done"$/m);
+    expect(written).toMatch(/^ {2}drive pc_oe 1 = ~\(.+\) "pc\.oe"$/m);
+    const { machine } = analyse(readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8'));
+    const encoded = encodeMachine(machine);
+    const read = readEquations(written, minimise(storeTruthTable(machine, encoded, encoded.stores[0]).table, { polarity: 'best' }));
+    expect(read.ok && read.equations.length).toBe(28);
   }, 60_000);
 });

@@ -40,7 +40,7 @@ beforeAll(async () => {
 describe('the demo store in GAL22V10 devices', () => {
   it('fits, and the CLI wrote exactly the in-process fuse maps', () => {
     expect(fit.ok).toBe(true);
-    expect(cliOutput).toContain(`fits ${fit.devices.length} GAL22V10 devices`);
+    expect(cliOutput).toContain(`fitted into ${fit.devices.length} GAL22V10 devices`);
     for (const d of fit.devices) {
       const written = readFileSync(join(out, `halyard-32.main.gal22v10-${d.index + 1}.jed`), 'latin1');
       const expected = buildGalImage(table, d, fit.devices.length, { designName: `Halyard-32 main GAL22V10 ${d.index + 1}/${fit.devices.length}`, notes: [`phasewright 0.1.0`] }).jedec;

@@ -9,6 +9,7 @@ import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { readSource } from '../readSource';
 import { renderDiagnostic } from '../render';
+import { textTable } from '../textTable';
 
 const budgetCodes = ['strobe-overload', 'bus-overload', 'supply-budget', 'step-timing'];
 
@@ -47,18 +48,18 @@ export const budgetCommand = defineCommand({
     out.push('the manufacturers\' data sheets; supply and bench work follow local practice.');
     out.push('');
     out.push('Control lines (each strobe is one control-store output)');
-    out.push(table(['strobe', 'inputs', 'LED mA', 'load mA', 'driver', 'rating mA', 'margin mA'], b.strobes.map((r) => loadRow(r, r.name))));
+    out.push(textTable(['strobe', 'inputs', 'LED mA', 'load mA', 'driver', 'rating mA', 'margin mA'], b.strobes.map((r) => loadRow(r, r.name))));
     out.push('');
     out.push('Bus lines (load on each line, for each part that drives the bus)');
-    out.push(table(['bus', 'driver', 'inputs', 'LED mA', 'load mA', 'rating mA', 'margin mA'], b.buses.map((r) => [r.name, r.driver, String(r.inputs), ma(r.ledMa), ma(r.loadMa), ma(r.driveMa), margin(r)])));
+    out.push(textTable(['bus', 'driver', 'inputs', 'LED mA', 'load mA', 'rating mA', 'margin mA'], b.buses.map((r) => [r.name, r.driver, String(r.inputs), ma(r.ledMa), ma(r.loadMa), ma(r.driveMa), margin(r)])));
     out.push('');
     out.push('Indicator LEDs (current per LED = (supply - forward voltage) / resistor)');
-    out.push(table(['where', 'LEDs', 'mA each', 'mA all lit'], b.leds.map((g) => [g.where, String(g.count), g.perLedMa.toFixed(2), g.totalMa.toFixed(1)])));
+    out.push(textTable(['where', 'LEDs', 'mA each', 'mA all lit'], b.leds.map((g) => [g.where, String(g.count), g.perLedMa.toFixed(2), g.totalMa.toFixed(1)])));
     out.push(`  all LEDs lit: ${b.ledTotalMa.toFixed(1)} mA${b.supplyMa !== undefined ? ` of a ${b.supplyMa} mA budget (${((100 * b.ledTotalMa) / b.supplyMa).toFixed(0)}%)` : ' (no supply_ma budget declared)'}`);
     out.push('');
     out.push('Step timing (longest path from the control word changing to the closing edge)');
     const paths = [...b.paths].sort((x, y) => y.totalNs - x.totalNs);
-    out.push(table(['step', 'ns', 'path'], paths.map((p) => [`${p.owner} step ${p.step}${p.guard ? ` (${p.guard})` : ''}`, p.totalNs.toFixed(0), `${p.segments.map((s) => `${s.what} ${s.ns}`).join(' + ')} -> ${p.endpoint}`])));
+    out.push(textTable(['step', 'ns', 'path'], paths.map((p) => [`${p.owner} step ${p.step}${p.guard ? ` (${p.guard})` : ''}`, p.totalNs.toFixed(0), `${p.segments.map((s) => `${s.what} ${s.ns}`).join(' + ')} -> ${p.endpoint}`])));
     if (b.limiting && b.maxClockKhz !== undefined) {
       out.push('');
       out.push(`Fastest safe step clock: ${b.maxClockKhz.toFixed(0)} kHz (period ${b.limiting.totalNs.toFixed(0)} ns), limited by step ${b.limiting.step} of ${b.limiting.owner}${b.limiting.guard ? ` (${b.limiting.guard})` : ''} before ${b.limiting.endpoint}. Leave margin.`);
@@ -94,10 +95,3 @@ function loadRow(r: LineLoad, name: string): string[] {
   return [name, String(r.inputs), ma(r.ledMa), ma(r.loadMa), r.driver, ma(r.driveMa), margin(r)];
 }
 
-function table(headers: string[], rows: string[][]): string {
-  if (rows.length === 0) return '  (none)';
-  const widths = headers.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
-  const numeric = headers.map((_, i) => rows.every((r) => /^[-0-9.?]/.test(r[i]) && !/[a-z]{3}/i.test(r[i].replace(' OVER', ''))));
-  const fmt = (cells: string[]) => '  ' + cells.map((c, i) => (numeric[i] && i > 0 ? c.padStart(widths[i]) : c.padEnd(widths[i]))).join('  ').trimEnd();
-  return [fmt(headers), ...rows.map(fmt)].join('\n');
-}

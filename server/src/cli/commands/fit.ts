@@ -1,13 +1,14 @@
 // `phasewright fit FILE --device gal16v8|gal22v10 [--store NAME] [--outputs a,b] [--pins FILE]
 // [--out DIR] [--keep-fill] [--vectors N]`: minimises each control output of a store over its
 // address lines, fits the outputs into as many GAL devices as needed, and writes one JEDEC fuse
-// map per device plus the equations as text and as a Verilog module. Before anything is
-// written, the equations and every fuse map are evaluated at every address the inputs can form
-// and each word checked for bus contention and, where no step covers the address, for anything
-// not idle (core/logic/verifyFit.ts); an unsafe result is refused. Every fuse map is read back
-// and checked against the truth table and the same rule before it is reported. Exit 0 when
-// everything fits, 1 when an output cannot fit or the result is unsafe (nothing is written) or
-// the table has errors, 2 on usage.
+// map per device, the equations as a part kind in the expression language, and a Verilog
+// module. Before anything is written, the equations text is read back and must equal the covers
+// at every address, and its values and every fuse map are evaluated at every address the inputs
+// can form and each word checked for bus contention and, where no step covers the address, for
+// anything not idle (core/logic/verifyFit.ts); an unsafe result is refused. The fuse maps and
+// the equations are read back from disk and checked the same way before they are reported.
+// Exit 0 when everything fits, 1 when an output cannot fit or the result is unsafe (nothing is
+// written) or the table has errors, 2 on usage.
 import { basename, extname, resolve } from 'node:path';
 import { analyse, errorCount } from '../../core/analysis';
 import { encodeMachine } from '../../core/encode/encoder';
@@ -18,10 +19,11 @@ import {
   checkGalImage,
   describeHazards,
   equationsText,
+  equationsTextLevels,
+  LogicInputError,
   fitDevices,
   fuseMapsLevels,
   minimise,
-  minimisedLevels,
   verifyFitSafety,
   verilogModule,
   type DeviceName,
@@ -38,6 +40,7 @@ import { readInputFile } from '../inputFile';
 import { ManifestError } from '../output/manifest';
 import { writeOutputSet } from '../output/outputSet';
 import { OutputError } from '../output/safeWriter';
+import { textTable } from '../textTable';
 import { VERSION } from '../version';
 
 const deviceNames: Record<string, DeviceName> = { gal16v8: 'GAL16V8', gal22v10: 'GAL22V10' };
@@ -124,10 +127,11 @@ export const fitCommand = defineCommand({
     }
     const started = Date.now();
     const minimised = minimise(table, { polarity: 'best' });
+    const minimisedMs = Date.now() - started;
     const fit = fitDevices(minimised, { device, pins, mode: typeof parsed.options.get('mode') === 'string' ? (parsed.options.get('mode') as string) : undefined });
+    const title = `${machine.title || stem(file, store.name)}, store ${store.name}`;
     const lines: string[] = [];
-    lines.push(`store ${store.name}: ${table.nInputs} address inputs, ${table.outputs.length} outputs; ${unreachableText(unreachable, 2 ** table.nInputs, safety, parsed.options.has('keep-fill'))}`);
-    lines.push(`minimised in ${Date.now() - started} ms: ${minimised.outputs.reduce((n, o) => n + o.terms.length, 0)} product terms in all`);
+    lines.push(`${title}: ${table.outputs.length} outputs of ${table.nInputs} address inputs, ${minimised.outputs.reduce((n, o) => n + o.terms.length, 0)} product terms (minimised in ${minimisedMs} ms)`);
     if (!fit.ok) {
       lines.push(`does not fit ${device} devices:`);
       for (const p of fit.problems) {
@@ -138,14 +142,25 @@ export const fitCommand = defineCommand({
       io.err('phasewright fit: nothing was written\n');
       return 1;
     }
-    const stem = `${basename(file, extname(file)) || 'table'}.${store.name}`;
-    const images = fit.devices.map((d) => ({ device: d, image: buildGalImage(table, d, fit.devices.length, { designName: `${machine.title || stem} ${store.name} ${device} ${d.index + 1}/${fit.devices.length}`, maxVectors, notes: [`phasewright ${VERSION}`] }) }));
+    const fileStem = stem(file, store.name);
+    const images = fit.devices.map((d) => ({ device: d, image: buildGalImage(table, d, fit.devices.length, { designName: `${machine.title || fileStem} ${store.name} ${device} ${d.index + 1}/${fit.devices.length}`, maxVectors, notes: [`phasewright ${VERSION}`] }) }));
     for (const { device: d, image } of images) {
       const check = checkGalImage(table, d, image.jedec);
       if (!check.ok) throw new Error(`fuse map of device ${d.index + 1} failed its own check: ${check.message}`);
     }
-    // Safety at every address, of the equations (and so the Verilog) and of the fuse maps as written.
-    const equationsSafety = verifyFitSafety(machine, enc, safety, minimisedLevels(minimised, outputBits));
+    let equations: string;
+    try {
+      equations = equationsText(minimised, title, `${store.name.replace(/[^A-Za-z0-9_]/g, '_')}_logic`);
+    } catch (err) {
+      if (!(err instanceof LogicInputError)) throw err;
+      io.out(lines.join('\n') + '\n');
+      io.err(`phasewright fit: ${err.message}; nothing was written\n`);
+      return 1;
+    }
+    // Safety at every address, of the equations as text (read back, equal to the covers and so
+    // to the Verilog) and of the fuse maps as written.
+    const textLevels = equationsTextLevels(equations, minimised, outputBits);
+    const equationsSafety = textLevels.ok ? verifyFitSafety(machine, enc, safety, textLevels.levels) : textLevels.message;
     const mapsSafety = fuseMapSafety(machine, enc, safety, images.map(({ device: d, image }) => ({ fitted: d, jedec: image.jedec })), outputBits);
     const unsafe = [['the equations', equationsSafety], ['the fuse maps', mapsSafety]] as const;
     for (const [what, report] of unsafe) {
@@ -156,7 +171,7 @@ export const fitCommand = defineCommand({
         return 1;
       }
     }
-    lines.push(safetyLine(equationsSafety) + ' (equations, Verilog and every fuse map)');
+    const checked = equationsSafety as SafetyReport; // a string or an unsafe report returned above
     const outOption = parsed.options.get('out');
     const outDir = typeof outOption === 'string' ? outOption : 'out';
     try {
@@ -166,32 +181,45 @@ export const fitCommand = defineCommand({
         sourceFile: basename(file),
         version: VERSION,
         files: [
-          ...images.map(({ device: d, image }) => ({ name: `${stem}.${device.toLowerCase()}-${d.index + 1}.jed`, format: 'jedec', store: store.name, chip: d.index, bytes: Buffer.from(image.jedec, 'latin1') })),
-          { name: `${stem}.eqn`, format: 'equations', store: store.name, bytes: Buffer.from(equationsText(minimised, `${machine.title || stem}, store ${store.name}`), 'utf8') },
-          { name: `${stem}.v`, format: 'verilog', store: store.name, bytes: Buffer.from(verilogModule(minimised, `${stem.replace(/[^A-Za-z0-9_]/g, '_')}_logic`), 'utf8') },
+          ...images.map(({ device: d, image }) => ({ name: `${fileStem}.${device.toLowerCase()}-${d.index + 1}.jed`, format: 'jedec', store: store.name, chip: d.index, bytes: Buffer.from(image.jedec, 'latin1') })),
+          { name: `${fileStem}.eqn`, format: 'equations', store: store.name, bytes: Buffer.from(equations, 'utf8') },
+          { name: `${fileStem}.v`, format: 'verilog', store: store.name, bytes: Buffer.from(verilogModule(minimised, `${fileStem.replace(/[^A-Za-z0-9_]/g, '_')}_logic`), 'utf8') },
         ],
       });
-      // Read each fuse map back from disk and check it against the truth table once more, then all together at every address.
-      const readBack: { fitted: FittedDevice; jedec: string }[] = [];
+      // Read every file the checks depend on back from disk and check it once more: each fuse
+      // map against the truth table, then the fuse maps together and the equations at every address.
+      const readBack = (i: number, what: string): string => {
+        const f = report.files[i];
+        const read = readInputFile(f.absolutePath, { maxBytes: f.sizeBytes, what, give: 'a file' }, f.displayPath);
+        if (!read.ok) throw new OutputError(f.displayPath, `the written ${what} cannot be read back: ${read.reason}`);
+        return read.bytes.toString(what === 'equations' ? 'utf8' : 'latin1');
+      };
+      const mapsRead: { fitted: FittedDevice; jedec: string }[] = [];
       for (const [i, { device: d }] of images.entries()) {
-        const read = readInputFile(report.files[i].absolutePath, { maxBytes: report.files[i].sizeBytes, what: 'fuse maps', give: 'a file' }, report.files[i].displayPath);
-        if (!read.ok) throw new OutputError(report.files[i].displayPath, `the written fuse map cannot be read back: ${read.reason}`);
-        const check = checkGalImage(table, d, read.bytes.toString('latin1'));
+        const jedec = readBack(i, 'fuse maps');
+        const check = checkGalImage(table, d, jedec);
         if (!check.ok) throw new OutputError(report.files[i].displayPath, `the written fuse map does not match the table: ${check.message}`);
-        readBack.push({ fitted: d, jedec: read.bytes.toString('latin1') });
+        mapsRead.push({ fitted: d, jedec });
       }
-      const safe = fuseMapSafety(machine, enc, safety, readBack, outputBits);
+      const safe = fuseMapSafety(machine, enc, safety, mapsRead, outputBits);
       if (typeof safe === 'string' || safe.unsafe > 0) {
         throw new OutputError(report.files[0].displayPath, `the fuse maps read back are unsafe: ${typeof safe === 'string' ? safe : `${describeAddress(enc, safe.first!.address)}: ${describeHazards(safe.first!)}`}`);
       }
-      lines.push(`fits ${fit.devices.length} ${device} device${fit.devices.length > 1 ? 's' : ''} (${fit.devices[0].mode} mode):`);
-      for (const d of fit.devices) {
-        lines.push(`  device ${d.index + 1}: inputs ${d.inputs.map((i) => `${i.name}@${i.pin}`).join(' ')}`);
-        for (const o of d.outputs) lines.push(`    pin ${String(o.pin).padStart(2)}  ${o.name.padEnd(16)} ${String(o.terms.length).padStart(2)}/${o.capacity} terms${o.inverted ? '  (active-low output: the equation gives its complement)' : ''}`);
-        for (const c of d.cautions) lines.push(`    caution: ${c}`);
+      const eqnIndex = images.length;
+      const eqnRead = equationsTextLevels(readBack(eqnIndex, 'equations'), minimised, outputBits);
+      const eqnSafe = eqnRead.ok ? verifyFitSafety(machine, enc, safety, eqnRead.levels) : eqnRead.message;
+      if (typeof eqnSafe === 'string' || eqnSafe.unsafe > 0) {
+        throw new OutputError(report.files[eqnIndex].displayPath, `the equations read back are ${typeof eqnSafe === 'string' ? `wrong: ${eqnSafe}` : `unsafe: ${describeAddress(enc, eqnSafe.first!.address)}: ${describeHazards(eqnSafe.first!)}`}`);
       }
-      lines.push(`wrote to ${outDir}:`);
-      for (const f of report.files) lines.push(`  ${f.entry.name}  ${f.sizeBytes} bytes  sha256 ${f.sha256.slice(0, 16)}`);
+      lines.push(`fitted into ${fit.devices.length} ${device} device${fit.devices.length > 1 ? 's' : ''}, ${fit.devices[0].mode} mode`);
+      lines.push('polarity: high, or low where the output cell inverts the sum of products (written ~(...) in the equations)');
+      for (const d of fit.devices) lines.push('', ...deviceReport(d, fit.devices.length));
+      lines.push('');
+      lines.push(safetyLine(checked) + ' (equations, Verilog and every fuse map)');
+      lines.push(unreachableText(unreachable, 2 ** table.nInputs, safety, parsed.options.has('keep-fill')));
+      lines.push(`files in ${outDir}:`);
+      const nameWidth = Math.max(...report.files.map((f) => f.entry.name.length));
+      for (const f of report.files) lines.push(`  ${f.entry.name.padEnd(nameWidth)}  ${String(f.sizeBytes).padStart(7)} bytes  sha256 ${f.sha256.slice(0, 16)}`);
       lines.push('Caution: check the fuse maps against the device data sheets and your programmer before burning, use the programmer\'s verify, and test a programmed device with the vectors in the file before it drives a bus.');
       io.out(lines.join('\n') + '\n');
       return 0;
@@ -205,11 +233,29 @@ export const fitCommand = defineCommand({
   },
 });
 
-/** What the table does at the addresses no step reaches, in one clause. */
+/** The file names' stem: `halyard-32.main`. */
+function stem(file: string, storeName: string): string {
+  return `${basename(file, extname(file)) || 'table'}.${storeName}`;
+}
+
+/** One device: its outputs as a table (name, pin, terms used of the cell's, polarity), its input pins, spare pins and cautions. */
+function deviceReport(d: FittedDevice, count: number): string[] {
+  const lines = [`device ${d.index + 1} of ${count} (${d.device})`];
+  lines.push(textTable(['output', 'pin', 'terms', 'polarity'], d.outputs.map((o) => [o.name, String(o.pin), `${o.terms.length}/${o.capacity}`, o.inverted ? 'low' : 'high'])));
+  lines.push(`  input pins: ${d.inputs.map((i) => `${i.pin} ${i.name}`).join(', ')}`);
+  if (d.unusedPins.length) lines.push(`  spare output pins: ${d.unusedPins.join(', ')}`);
+  for (const c of d.cautions) lines.push(`  caution: ${c}`);
+  return lines;
+}
+
+/** What the fitted outputs may do at the addresses no step reaches: which drivers are free. */
 function unreachableText(unreachable: number, total: number, safety: StoreSafety, keepFill: boolean): string {
-  if (keepFill) return `the fill word is kept at every address no step reaches (--keep-fill)`;
+  if (keepFill) return 'free drivers: none; the fill word is kept at every address no step reaches (--keep-fill)';
   const free = [...safety.freeDriver].map(([bus, driver]) => `${driver} on ${bus}`);
-  return `${unreachable} of ${total} addresses are never reached: there fields${free.length ? ` and one driver per bus (${free.join(', ')})` : ''} may take any value, every other strobe keeps the fill word`;
+  const where = `at the ${unreachable} of ${total} addresses no step reaches`;
+  return free.length
+    ? `free drivers: ${free.join(', ')} (one per bus ${where}; fields are free there too, every other strobe keeps the fill word)`
+    : `free drivers: none (${where} fields are free, every strobe keeps the fill word)`;
 }
 
 /** "safety: 8192 of 8192 addresses checked, 0 unsafe". */

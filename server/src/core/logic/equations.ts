@@ -1,151 +1,154 @@
-// Minimised sums of products as readable text and as a synthesizable Verilog module. The text
-// notation is this project's own plain Boolean algebra, documented in EQUATION_NOTATION below,
-// and can be parsed back (for round-trip checks and for users who edit equations). It
-// deliberately imitates no programmable-logic compiler's language.
+// Minimised sums of products as text a table can hold, and as a synthesizable Verilog module.
+// The text is a part kind of the notation (docs/notation.md): the store's address inputs as
+// `input` lines and one one-bit `drive` line per output, whose value is an expression of
+// docs/expressions.md, built as a tree and printed by formatExpression (the one printer of that
+// syntax). So an equation can be pasted into a kind and simulated, and readEquations.ts reads
+// the file back with the notation's own parser and the expression checker.
+import { type Expr, formatExpression } from '../parts/expr';
+import { emptySpan } from '../text/span';
 import { LogicInputError } from './errors';
 import type { Minimised } from './minimise';
 import type { ProductTerm } from './truthTable';
 
-/** The text notation, as shipped in the header of every equations file. */
-export const EQUATION_NOTATION = [
-  'One equation per output, ended by ";": NAME = SUM;',
-  'SUM is products joined by "|" (or), a product is input names joined by "&" (and),',
-  '"!" before a name negates it; 0 and 1 are the constant sums.',
-  'NAME = !(SUM); means the output is the complement of SUM.',
-  'Lines starting with "#" are comments.',
-];
-
-export interface Equation {
+/** One input of the equations: a one-bit name, or a vector whose bits are address lines. */
+export interface EquationInput {
   readonly name: string;
-  readonly inverted: boolean;
-  readonly terms: ProductTerm[];
+  readonly width: number;
+  /** Written as bits (`funct3[1]`), even when only bit 0 is an address line. */
+  readonly vector: boolean;
+  /** The table input (address line) behind each bit, bit 0 first; -1 for a bit no line feeds. */
+  readonly lines: readonly number[];
 }
 
-function productText(term: ProductTerm, inputNames: readonly string[]): string {
-  if (term.care === 0) return '1';
-  const literals: string[] = [];
-  for (let inputIndex = 0; inputIndex < inputNames.length; inputIndex++) {
-    if (((term.care >>> inputIndex) & 1) === 0) continue;
-    literals.push((term.value >>> inputIndex) & 1 ? inputNames[inputIndex] : `!${inputNames[inputIndex]}`);
-  }
-  return literals.join(' & ');
+/** How the equations name the address inputs and the outputs. */
+export interface EquationNames {
+  readonly inputs: readonly EquationInput[];
+  /** Per table input: which equation input it is and its bit there. */
+  readonly bitOf: readonly { readonly input: number; readonly bit: number }[];
+  /** Per minimised output, in minimised order: the port name of its `drive` line. */
+  readonly ports: readonly string[];
 }
 
-/** One equation as text; long sums continue on lines indented under the first product. */
-export function equationText(name: string, terms: readonly ProductTerm[], inverted: boolean, inputNames: readonly string[]): string {
-  const products = terms.length === 0 ? ['0'] : terms.map((term) => productText(term, inputNames));
-  const head = inverted ? `${name} = !(` : `${name} = `;
-  const indent = ' '.repeat(head.length - 2);
-  const body = products.map((product, k) => (k === 0 ? product : `${indent}| ${product}`)).join('\n');
-  return `${head}${body}${inverted ? ')' : ''};`;
-}
+const INPUT_NAME = /^([A-Za-z_][A-Za-z0-9_]*(?:\.[A-Za-z_][A-Za-z0-9_]*)*)(?:\[([0-9]+)\])?$/;
+/** Names the expressions (`select`) or a kind (`in`, an edge port's bus value) keep for themselves. */
+const RESERVED = new Set(['select', 'in']);
 
-/** A whole equations file for minimised outputs. */
-export function equationsText(minimised: Minimised, title: string): string {
-  const lines = [
-    `# Phasewright logic equations: ${title.replace(/[\r\n]/g, ' ')}`,
-    ...EQUATION_NOTATION.map((line) => `# ${line}`),
-    `# Inputs, address bit 0 first: ${minimised.inputNames.join(' ')}`,
-    '',
-  ];
-  for (const output of minimised.outputs) {
-    lines.push(`# ${output.name}: ${output.terms.length} product term${output.terms.length === 1 ? '' : 's'}${output.inverted ? ', complement' : ''}, ${output.method}`);
-    lines.push(equationText(output.name, output.terms, output.inverted, minimised.inputNames));
-  }
-  return lines.join('\n') + '\n';
-}
-
-interface Token {
-  readonly text: string;
-  readonly line: number;
-}
-
-function tokenize(text: string): Token[] {
-  const tokens: Token[] = [];
-  text.split(/\r?\n/).forEach((lineText, lineIndex) => {
-    const code = lineText.trimStart().startsWith('#') ? '' : lineText;
-    const pattern = /\s*([A-Za-z_][A-Za-z0-9_.]*(?:\[[0-9]+\])?|[=!&|();]|[01]|\S)/y;
-    let match: RegExpExecArray | null;
-    while ((match = pattern.exec(code)) !== null) tokens.push({ text: match[1], line: lineIndex + 1 });
+/**
+ * The expression names of the inputs (`step[0]`, `step[1]`, `step[2]` are the bits of the 3-bit
+ * input `step`; `taken` stays a one-bit name) and one port name per output (`x.rs1.oe` becomes
+ * `x_rs1_oe`, `alu.fn[2]` becomes `alu_fn_2`: a kind's port is one plain name). Writer and
+ * reader both take their names from here. Throws LogicInputError for an input name the
+ * expressions cannot write.
+ */
+export function equationNames(minimised: Minimised): EquationNames {
+  const inputs: { name: string; width: number; vector: boolean; lines: number[] }[] = [];
+  const indexOf = new Map<string, number>();
+  const bitOf: { input: number; bit: number }[] = [];
+  minimised.inputNames.forEach((inputName, line) => {
+    const match = INPUT_NAME.exec(inputName);
+    if (!match || RESERVED.has(match[1])) {
+      throw new LogicInputError(`address input "${inputName}" cannot be named in an expression: use a name like "taken" or a bit like "funct3[1]"`);
+    }
+    const name = match[1];
+    const vector = match[2] !== undefined;
+    const bit = vector ? Number(match[2]) : 0;
+    let index = indexOf.get(name);
+    if (index === undefined) {
+      index = inputs.length;
+      indexOf.set(name, index);
+      inputs.push({ name, width: 0, vector, lines: [] });
+    }
+    const input = inputs[index];
+    if (input.vector !== vector || (input.lines[bit] ?? -1) >= 0) throw new LogicInputError(`address input "${inputName}" clashes with another input named "${name}"`);
+    if (bit >= 32) throw new LogicInputError(`address input "${inputName}": a bit number above 31 is not an address line`);
+    while (input.lines.length <= bit) input.lines.push(-1);
+    input.lines[bit] = line;
+    input.width = input.lines.length;
+    bitOf.push({ input: index, bit });
   });
-  return tokens;
+  const taken = new Set(inputs.map((i) => i.name));
+  const ports = minimised.outputs.map((output) => {
+    const plain = output.name.replace(/\[([0-9]+)\]/g, '_$1').replace(/[^A-Za-z0-9_]/g, '_');
+    const base = /^[A-Za-z_]/.test(plain) && !RESERVED.has(plain) ? plain : `out_${plain}`;
+    let port = base;
+    for (let k = 2; taken.has(port); k++) port = `${base}_${k}`;
+    taken.add(port);
+    return port;
+  });
+  return { inputs, bitOf, ports };
 }
 
-/** Parses equations written in the notation above. Throws LogicInputError with a line number on bad text. */
-export function parseEquations(text: string, inputNames: readonly string[]): Equation[] {
-  const inputIndex = new Map(inputNames.map((name, index) => [name, index]));
-  const tokens = tokenize(text);
-  let position = 0;
-  const peek = () => tokens[position];
-  const fail = (message: string): never => {
-    const token = tokens[Math.min(position, tokens.length - 1)];
-    throw new LogicInputError(`equations, line ${token ? token.line : 1}: ${message}`);
-  };
-  const expect = (text: string) => {
-    if (peek()?.text !== text) fail(`expected "${text}" but found ${peek() ? `"${peek().text}"` : 'the end of the text'}`);
-    position++;
-  };
-  const isName = (token: Token | undefined) => token !== undefined && /^[A-Za-z_]/.test(token.text);
+// Built trees are printed, never located in a text, so their spans are empty.
+const noSpan = { span: emptySpan };
 
-  const parseProduct = (): ProductTerm => {
-    let care = 0;
-    let value = 0;
-    for (;;) {
-      let negated = false;
-      if (peek()?.text === '!') {
-        negated = true;
-        position++;
-      }
-      const token = peek();
-      if (!isName(token)) fail(`expected an input name but found ${token ? `"${token.text}"` : 'the end of the text'}`);
-      const index = inputIndex.get(token.text);
-      if (index === undefined) fail(`"${token.text}" is not an input`);
-      const bit = 1 << index!;
-      if (care & bit && ((value & bit) !== 0) === negated) fail(`"${token.text}" appears both plain and negated in one product`);
-      care |= bit;
-      if (!negated) value |= bit;
-      position++;
-      if (peek()?.text !== '&') return { care: care >>> 0, value: value >>> 0 };
-      position++;
-    }
-  };
-  const parseSum = (): ProductTerm[] => {
-    if (peek()?.text === '0' || peek()?.text === '1') {
-      const constant = peek().text;
-      position++;
-      return constant === '1' ? [{ care: 0, value: 0 }] : [];
-    }
-    const terms = [parseProduct()];
-    while (peek()?.text === '|') {
-      position++;
-      terms.push(parseProduct());
-    }
-    return terms;
-  };
+/** One address line as the expressions read it: `taken`, or its bit of a vector (`funct3[1]`). */
+function lineExpr(names: EquationNames, line: number): Expr {
+  const { input, bit } = names.bitOf[line];
+  const operand: Expr = { kind: 'name', name: names.inputs[input].name, ...noSpan };
+  if (!names.inputs[input].vector) return operand;
+  return { kind: 'slice', operand, hi: bit, lo: bit, hiSpan: emptySpan, loSpan: emptySpan, ...noSpan };
+}
 
-  const equations: Equation[] = [];
-  const seen = new Set<string>();
-  while (position < tokens.length) {
-    const nameToken = peek();
-    if (!isName(nameToken)) fail(`expected an output name but found "${nameToken.text}"`);
-    if (seen.has(nameToken.text)) fail(`output "${nameToken.text}" has two equations`);
-    seen.add(nameToken.text);
-    position++;
-    expect('=');
-    let inverted = false;
-    let terms: ProductTerm[];
-    if (peek()?.text === '!' && tokens[position + 1]?.text === '(') {
-      inverted = true;
-      position += 2;
-      terms = parseSum();
-      expect(')');
-    } else {
-      terms = parseSum();
-    }
-    expect(';');
-    equations.push({ name: nameToken.text, inverted, terms });
+const binary = (op: '&' | '|', left: Expr, right: Expr): Expr => ({ kind: 'binary', op, left, right, opSpan: emptySpan, ...noSpan });
+const constant = (value: 0 | 1): Expr => ({ kind: 'number', value: BigInt(value), radix: 10, ...noSpan });
+
+/** A product term: its literals joined by `&`, a complemented line as `~line`; the empty product is 1. */
+function productExpr(term: ProductTerm, names: EquationNames): Expr {
+  const literals: Expr[] = [];
+  for (let line = 0; line < names.bitOf.length; line++) {
+    if (((term.care >>> line) & 1) === 0) continue;
+    const plain = lineExpr(names, line);
+    literals.push((term.value >>> line) & 1 ? plain : { kind: 'unary', op: '~', operand: plain, ...noSpan });
   }
-  return equations;
+  return literals.length ? literals.reduce((a, b) => binary('&', a, b)) : constant(1);
+}
+
+/** An output's value as an expression: the sum of its terms joined by `|`, complemented with `~(...)` when `inverted`. */
+export function coverExpr(terms: readonly ProductTerm[], inverted: boolean, names: EquationNames): Expr {
+  const sum = terms.length ? terms.map((t) => productExpr(t, names)).reduce((a, b) => binary('|', a, b)) : constant(0);
+  if (!inverted) return sum;
+  if (sum.kind === 'number') return constant(sum.value === 0n ? 1 : 0);
+  return { kind: 'unary', op: '~', operand: sum, ...noSpan };
+}
+
+/** Text inside a "..." description: the notation's strings hold no quote and no line break. */
+const describe = (text: string) => text.replace(/["\r\n]/g, ' ');
+
+/** The address lines behind an input, for its description: `address lines 5 to 7`, `address line 3`. */
+function linesText(input: EquationInput): string {
+  const { lines } = input;
+  if (lines.length === 1) return `address line ${lines[0]}`;
+  if (lines.length === 2 && lines[0] >= 0) return `address lines ${lines[0]} and ${lines[1]}`;
+  if (lines.every((l, k) => l === lines[0] + k)) return `address lines ${lines[0]} to ${lines[lines.length - 1]}`;
+  return `address lines ${lines.map((l) => (l < 0 ? 'none' : l)).join(', ')} (bit 0 first)`;
+}
+
+/**
+ * A whole equations file: a comment saying how to use it, then one kind named `kindName` with
+ * the inputs and one `drive NAME 1 = EXPR "signal"` line per output. Every line is one line of
+ * the notation (a kind line cannot continue), so any line can be copied into another kind.
+ */
+export function equationsText(minimised: Minimised, title: string, kindName: string): string {
+  const names = equationNames(minimised);
+  const vectors = names.inputs.filter((i) => i.vector);
+  const lines = [
+    `# ${describe(title)}: the fitted outputs as a part kind, written by Phasewright.`,
+    '# Each drive line is one output at its line level (an active-low strobe reads 0 where a step',
+    '# asserts it), as a sum of products in the expressions of docs/expressions.md: ~ complement,',
+    '# & and, | or. The inputs are the store\'s address lines' + (vectors.length ? ',' : '.'),
+    ...(vectors.length ? [`# ${vectors[0].name}[${vectors[0].width - 1}] being bit ${vectors[0].width - 1} of the ${vectors[0].width}-bit input ${vectors[0].name}.`] : []),
+    '# Paste the kind into a table, or copy a drive line into a kind of your own that declares the',
+    '# inputs the line reads, as wide as below.',
+    '',
+    `kind ${kindName} "${describe(title)}: ${minimised.outputs.length} fitted output${minimised.outputs.length === 1 ? '' : 's'}"`,
+    ...names.inputs.map((input) => `  input ${input.name} ${input.width} "${linesText(input)}"`),
+  ];
+  minimised.outputs.forEach((output, k) => {
+    const count = `${output.terms.length} product term${output.terms.length === 1 ? '' : 's'}`;
+    lines.push('', `  # ${output.name}: ${count}${output.inverted ? ', built as the complement' : ''} (${output.method})`);
+    lines.push(`  drive ${names.ports[k]} 1 = ${formatExpression(coverExpr(output.terms, output.inverted, names))} "${describe(output.name)}"`);
+  });
+  return lines.join('\n') + '\n';
 }
 
 const VERILOG_KEYWORDS = new Set(

@@ -46,7 +46,8 @@ export {
   transmissionChecksum,
   writeJedec,
 } from './jedec';
-export { EQUATION_NOTATION, type Equation, equationText, equationsText, parseEquations, verilogModule } from './equations';
+export { type EquationInput, type EquationNames, coverExpr, equationNames, equationsText, verilogModule } from './equations';
+export { type EquationsRead, type ReadEquation, equationsLevels, readEquations } from './readEquations';
 export { type BitRole, type StoreSafety, type WordBit, type WordHazards, storeSafety, wordHazards } from './safeCare';
 export {
   type FittedLevels,
@@ -54,6 +55,7 @@ export {
   type UnsafeAddress,
   coverLevels,
   describeHazards,
+  equationsTextLevels,
   fuseMapsLevels,
   minimisedLevels,
   verifyFitSafety,

@@ -14,6 +14,7 @@ import type { FittedDevice } from './fit';
 import { fuseMapLevels } from './galImage';
 import { readJedec } from './jedec';
 import type { Minimised } from './minimise';
+import { equationsLevels, readEquations } from './readEquations';
 
 /** One fitted output: its word bit and its line level at every address (bit a of word a >> 5). */
 export interface FittedLevels {
@@ -110,6 +111,34 @@ export function fuseMapsLevels(
     const read = readJedec(jedec);
     if (!read.ok) return { ok: false, message: `the fuse map of device ${fitted.index + 1} does not read back: ${read.message}` };
     for (const [outputIndex, bits] of fuseMapLevels(fitted, read.file.fuses, nInputs)) levels.push({ bit: outputBits[outputIndex], levels: bits });
+  }
+  return { ok: true, levels };
+}
+
+/**
+ * The levels of an equations file as written (equations.ts), read back and evaluated at every
+ * address. They must equal the minimised covers everywhere (the Verilog is printed from those),
+ * so the text, the Verilog and the covers are one function; a file that does not read, or
+ * disagrees anywhere, is an error naming the output and the address.
+ */
+export function equationsTextLevels(
+  text: string,
+  minimised: Minimised,
+  outputBits: readonly number[],
+): { ok: true; levels: FittedLevels[] } | { ok: false; message: string } {
+  const read = readEquations(text, minimised);
+  if (!read.ok) return read;
+  const fromText = equationsLevels(read, minimised.nInputs);
+  const levels: FittedLevels[] = [];
+  for (const [k, output] of minimised.outputs.entries()) {
+    const fromCover = coverLevels(minimised.nInputs, output.terms, output.inverted);
+    for (let address = 0; address < 2 ** minimised.nInputs; address++) {
+      const bit = 1 << (address & 31);
+      if ((fromText[k][address >>> 5] & bit) !== (fromCover[address >>> 5] & bit)) {
+        return { ok: false, message: `the equation of ${output.name} read back gives ${fromText[k][address >>> 5] & bit ? 1 : 0} at address ${address}, its cover ${fromCover[address >>> 5] & bit ? 1 : 0}` };
+      }
+    }
+    levels.push({ bit: outputBits[output.outputIndex], levels: fromText[k] });
   }
   return { ok: true, levels };
 }
