@@ -31,8 +31,8 @@ describe('phasewright check', () => {
   });
 
   it('says how many it shows of how many when the cap cuts a flooded file short', async () => {
-    // 1500 strobes nobody uses (a warning each) and 1500 that index the bus (an error each).
-    const flood = 'bus result 8\npart a register 8\n' + Array.from({ length: 3000 }, (_, i) => `strobe s${i} enable a -> result${i % 2 ? '[1]' : ''}\n`).join('');
+    // 1500 strobes nobody uses (a warning each) and 1500 that name a line the bus lacks (an error each).
+    const flood = 'bus result 8\npart a register 8\n' + Array.from({ length: 3000 }, (_, i) => `strobe s${i} enable a -> result${i % 2 ? '[99]' : ''}\n`).join('');
     writeFileSync(join(tmp, 'flood.pwt'), flood);
     const r = await run('check', 'tests/.tmp/cli-check/flood.pwt');
     expect(r.code).toBe(1);

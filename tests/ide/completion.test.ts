@@ -40,8 +40,8 @@ function labelsAt(marked: string): string[] {
 describe('completion contexts', () => {
   it('declaration keywords and missing RV32I classes at the start of a line', () => {
     const labels = labelsAt(base + '$0');
-    expect(labels.slice(0, 12)).toEqual(['machine', 'kind', 'bus', 'part', 'strobe', 'field', 'store', 'word', 'address', 'map', 'phase', 'class']);
-    expect(labels.slice(12)).toEqual(['class LUI', 'class AUIPC', 'class JAL', 'class JALR', 'class BRANCH', 'class LOAD', 'class STORE', 'class OP-IMM', 'class OP', 'class MISC-MEM', 'class SYSTEM']);
+    expect(labels.slice(0, 13)).toEqual(['machine', 'kind', 'bus', 'part', 'strobe', 'connect', 'field', 'store', 'word', 'address', 'map', 'phase', 'class']);
+    expect(labels.slice(13)).toEqual(['class LUI', 'class AUIPC', 'class JAL', 'class JALR', 'class BRANCH', 'class LOAD', 'class STORE', 'class OP-IMM', 'class OP', 'class MISC-MEM', 'class SYSTEM']);
     // A declared class is not offered again.
     expect(labelsAt(base + 'class OP opcode=0110011\n  0: done\n$0')).not.toContain('class OP');
   });

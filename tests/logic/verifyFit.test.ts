@@ -44,7 +44,7 @@ describe('the demo fit', () => {
     expect(report.contended).toBe(report.unsafe);
     // Address 0 is step 0 of opcode 0000011: the fetch step, where alu.oe drives result.
     expect(report.first?.address).toBe(0);
-    expect(report.first?.contention).toEqual([{ bus: 'result', strobes: ['t.oe', 'alu.oe'] }]);
+    expect(report.first?.contention).toEqual([{ bus: 'result', strobes: ['t.oe', 'alu.oe'], lines: { hi: 31, lo: 0 } }]);
   });
 
   it('fails when a write is asserted where no step covers, though it fights nobody', () => {

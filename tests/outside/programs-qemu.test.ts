@@ -45,7 +45,7 @@ describe.skipIf(!toolsPresent)('test programs: qemu-riscv32 and our interpreter 
   }, 180_000);
 
   it('all programs were built as RV32I ELF executables we can parse without warnings', () => {
-    expect(programs.map((p) => p.name)).toEqual(['selfcheck', 'syscalls', 'ebreak', 'crc_sieve', 'arith', 'sort', 'bench', 'bench_short']);
+    expect(programs.map((p) => p.name)).toEqual(['selfcheck', 'syscalls', 'ebreak', 'debugdemo', 'crc_sieve', 'arith', 'sort', 'bench', 'bench_short']);
     for (const program of programs) {
       const parsed = parseElf(new Uint8Array(readFileSync(program.elfPath)));
       expect(parsed.ok && parsed.image.warnings, program.name).toEqual([]);
@@ -70,7 +70,7 @@ describe.skipIf(!toolsPresent)('test programs: qemu-riscv32 and our interpreter 
     }
   });
 
-  it.each(['selfcheck', 'syscalls', 'ebreak', 'crc_sieve', 'arith', 'sort', 'bench', 'bench_short'])('%s: same stdout, stderr and ending', (name) => {
+  it.each(['selfcheck', 'syscalls', 'ebreak', 'debugdemo', 'crc_sieve', 'arith', 'sort', 'bench', 'bench_short'])('%s: same stdout, stderr and ending', (name) => {
     const qemu = qemuRuns.get(name)!;
     const ours = referenceRuns.get(name)!;
     expect(ours.stdout.toString('latin1')).toBe(qemu.stdout.toString('latin1'));

@@ -4,7 +4,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
-import { gantryWithHalves } from '../support/ownKinds';
+import { gantryWithConnection, gantryWithHalves } from '../support/ownKinds';
 
 const gantry = readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8');
 const lui = '  2: imm.fmt=u, imm.oe, bsel=imm, bmux.oe, alu.fn=passb, alu.oe, x.rd.ck, pc.inc, done';
@@ -56,6 +56,29 @@ describe('checks on parts of the table\'s own kinds', () => {
     it('drivers that share lines fight, and the message names the lines', () => {
       const found = codesOf(halves.replace(jal, '  2: p4lo.oe, alu.fn=passa, alu.oe, x.rd.ck')).filter((d) => d.code === 'bus-contention');
       expect(found.map((d) => d.message)).toEqual([expect.stringContaining('`p4lo.oe` and `alu.oe` both drive lines 15..0 of bus `result` in step 2 of class JAL')]);
+    });
+  });
+
+  describe('connections, which drive in every step', () => {
+    const connected = gantryWithConnection(gantry);
+
+    it('a bus only a connection drives checks clean', () => {
+      expect(connected).toContain('connect pc -> pcb');
+      expect(codesOf(connected)).toEqual([]);
+    });
+
+    it('an enable on a connected bus fights the connection wherever it is asserted', () => {
+      const broken = connected.replace('strobe imm.oe   enable imm -> immb', 'strobe imm.oe   enable imm -> immb\nstrobe imm.pc   enable imm -> pcb').replace('imm.oe 8', 'imm.oe 8  imm.pc 39').replace('word 32 as 4 x 8', 'word 40 as 5 x 8').replace(lui, '  2: imm.fmt=u, imm.pc, imm.oe, bsel=imm, bmux.oe, alu.fn=passb, alu.oe, x.rd.ck, pc.inc, done');
+      const found = codesOf(broken).filter((d) => d.code === 'bus-contention');
+      expect(found.map((d) => d.message)).toEqual([expect.stringContaining('`connect pc` (always on) and `imm.pc` both drive bus `pcb` in step 2 of class LUI')]);
+    });
+
+    it('two connections on one bus fight in every step, reported once where they are declared', () => {
+      const broken = connected.replace('connect pc -> pcb', 'connect pc -> pcb\nconnect mar -> pcb');
+      const found = codesOf(broken).filter((d) => d.code === 'bus-contention');
+      expect(found).toHaveLength(1);
+      expect(found[0].message).toContain('`connect pc` and `connect mar` both drive bus `pcb` in every step');
+      expect(found[0].line.startsWith('connect mar -> pcb')).toBe(true);
     });
   });
 });

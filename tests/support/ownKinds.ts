@@ -19,3 +19,16 @@ export function gantryWithHalves(text: string): string {
   if (replaced.includes('p4.oe') || !replaced.includes('p4hi.oe 24')) throw new Error('gantry-32 changed: update gantryWithHalves');
   return replaced;
 }
+
+/**
+ * gantry-32 with the program counter wired to its own bus for good: `connect pc -> pcb` instead
+ * of a strobe, so no step enables it (an always-on connection).
+ */
+export function gantryWithConnection(text: string): string {
+  const replaced = text
+    .replace('strobe pc.oe    enable pc -> pcb', 'connect pc -> pcb "The program counter always drives its own bus."')
+    .replace('  x.rs1.oe 0  x.rs2.oe 1  x.rd.ck 2  pc.oe 3', '  x.rs1.oe 0  x.rs2.oe 1  x.rd.ck 2')
+    .replace(/pc\.oe, /g, '');
+  if (/\bpc\.oe\b/.test(replaced)) throw new Error('gantry-32 changed: update gantryWithConnection');
+  return replaced;
+}

@@ -4,7 +4,7 @@
 // expanded and point at the `use` line as a related location.
 import type { Diagnostic, Fix, RelatedInfo } from '../text/diagnostic';
 import type { Span } from '../text/span';
-import { drivenBus } from '../model/busDrivers';
+import { drivenBus, driverNamed } from '../model/busDrivers';
 import type { Action, ClassDef, Machine, StepAlt, Strobe } from '../model/types';
 import { defaultSeverity } from './catalogue';
 
@@ -76,8 +76,7 @@ function walks(machine: Machine): Walks {
 }
 
 export function strobeOf(machine: Machine, action: Action): Strobe | undefined {
-  const signal = machine.signals.get(action.signal);
-  return signal?.type === 'strobe' ? signal : undefined;
+  return driverNamed(machine, action.signal);
 }
 
 /** The actions of an alternative that put a value on each bus (enables and memory reads). Do not modify the result: it is shared. */
@@ -87,7 +86,8 @@ export function driversByBus(machine: Machine, alt: StepAlt): Map<string, Action
   if (cached) return cached;
   const result = new Map<string, Action[]>();
   cache.set(alt, result);
-  for (const action of alt.actions) {
+  // Connections drive in every step: they stand here as actions at their declarations.
+  for (const action of [...alt.actions, ...machine.connections.map((c) => ({ signal: c.name, span: c.symbol.declSpan }))]) {
     const strobe = strobeOf(machine, action);
     const bus = strobe && drivenBus(strobe);
     if (bus === undefined) continue;

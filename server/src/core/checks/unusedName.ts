@@ -37,6 +37,10 @@ export const unusedName: Check = {
       if (part.kind === 'custom') for (const input of part.inputs.values()) if (input.from !== 'instruction') (input.from === 'bus' ? usedBuses : usedParts).add(input.name);
     }
     for (const flag of machine.flags.values()) usedParts.add(flag.part);
+    for (const c of machine.connections) {
+      if (c.part) usedParts.add(c.part);
+      if (c.bus) usedBuses.add(c.bus);
+    }
     const warn = (name: string, span: typeof machine.symbols[number]['span'], what: string, fixes?: Parameters<typeof ctx.report>[4]) =>
       ctx.report('unused-name', span, `${what} \`${name}\` is never used`, undefined, fixes);
 

@@ -152,6 +152,7 @@ export const keywordTexts: Record<string, string> = {
   bus: 'a shared bus: `bus NAME WIDTH [keeper]`',
   part: 'a part on the buses: `part NAME KIND ...`',
   strobe: 'a one-bit control output of the control store: `strobe NAME KIND ...`',
+  connect: 'a part\'s output that drives a bus in every step, with no strobe: `connect PART[.PORT] -> BUS[hi:lo]`; the contention check counts it in every step',
   field: 'a multi-bit control output holding one code per step: `field NAME WIDTH -> PART { name=code ... }`',
   store: 'starts a named control store; the `word` and `address` lines after it belong to it',
   word: 'the control word and its split over ROM chips; body lines place each strobe and field on its bits',

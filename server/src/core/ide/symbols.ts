@@ -25,7 +25,7 @@ const sectionOrder: { title: string; kinds: A.Decl['kind'][] }[] = [
   { title: 'kinds', kinds: ['kind'] },
   { title: 'buses', kinds: ['bus'] },
   { title: 'parts', kinds: ['part'] },
-  { title: 'strobes', kinds: ['strobe'] },
+  { title: 'strobes', kinds: ['strobe', 'connect'] },
   { title: 'fields', kinds: ['field'] },
   { title: 'stores', kinds: ['store', 'word', 'address'] },
   { title: 'maps', kinds: ['map'] },
@@ -99,6 +99,8 @@ function declSymbol(analysis: Analysis, decl: A.Decl): OutlineSymbol | undefined
       return named(decl.name, 'map', decl.output ? `-> ${decl.output.name.text}` : undefined);
     case 'phase':
       return named(decl.name, 'phase', decl.description?.value, bodyItems(analysis, decl.body));
+    case 'connect':
+      return { name: `connect ${decl.source?.name.text ?? ''}`.trim(), detail: decl.target ? `-> ${text(analysis, decl.target.span)}` : undefined, kind: 'strobe', span, selection: decl.source?.span ?? decl.keyword, children: [] };
     case 'kind':
       return named(
         decl.name,

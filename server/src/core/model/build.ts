@@ -51,6 +51,7 @@ export class BuildContext {
     parts: new Map(),
     flags: new Map(),
     signals: new Map(),
+    connections: [],
     stores: [],
     maps: new Map(),
     phases: new Map(),
@@ -191,6 +192,7 @@ export function buildModel(tree: A.FileNode): BuildResult {
   for (const decl of tree.decls) if (decl.kind === 'part') buildPart(ctx, decl);
   for (const decl of tree.decls) if (decl.kind === 'field') buildField(ctx, decl);
   for (const decl of tree.decls) if (decl.kind === 'strobe') buildStrobe(ctx, decl);
+  for (const decl of tree.decls) if (decl.kind === 'connect') buildConnection(ctx, decl);
   finishParts(ctx, tree);
   checkKindBehaviours(ctx);
   buildStores(ctx, tree);
@@ -796,6 +798,36 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
     });
   }
   ctx.machine.signals.set(name, strobe);
+}
+
+/**
+ * `connect PART[.PORT] -> BUS[hi:lo]`: the part drives the bus in every step, with no strobe
+ * (a pull-up buffer, a constant always on some lines). Read as an enable that every step asserts.
+ */
+function buildConnection(ctx: BuildContext, decl: A.ConnectDecl): void {
+  if (!decl.source || !decl.target) {
+    if (decl.source) ctx.report('wrong-wiring', decl.source.span, 'write which bus it drives, e.g. `connect four -> right`');
+    return;
+  }
+  const name = `connect ${decl.source.name.text}${decl.source.index ? `[${decl.source.index.text}]` : ''}`;
+  const symbol: M.SymbolInfo = { kind: 'strobe', name, key: name, span: decl.source.span, declSpan: decl.span };
+  const strobe: M.Strobe = { type: 'strobe', name, kind: 'enable', active: 'high', activeWritten: false, description: decl.description?.value, symbol, figures: new Map(), always: true };
+  if (!wirePart(ctx, strobe, decl.source, 'enable')) return;
+  const bus = busArg(ctx, decl.target.name, 'target', name);
+  if (!bus || !busLines(ctx, decl.target, strobe)) return;
+  strobe.bus = bus;
+  const part = ctx.machine.parts.get(strobe.part!);
+  const busInfo = ctx.machine.buses.get(bus)!;
+  const width = part?.kind === 'custom' ? (customPortFor(part, 'enable', strobe.kindPort) as { width?: number }).width : part?.width;
+  const lines = strobe.lines ? strobe.lines.hi - strobe.lines.lo + 1 : busInfo.width;
+  if (width !== undefined && part?.kind !== 'regfile' && width !== lines) {
+    ctx.diagnostics.push({ code: 'width-mismatch', severity: 'warning', span: decl.span, message: `\`${decl.source.name.text}\` is ${width} bits wide but it is connected to ${lines} lines of \`${bus}\`` });
+  }
+  if (ctx.machine.connections.some((c) => c.name === name && c.bus === bus)) {
+    ctx.report('duplicate-name', decl.source.span, `\`${decl.source.name.text}\` is already connected to \`${bus}\``);
+    return;
+  }
+  ctx.machine.connections.push(strobe);
 }
 
 /**

@@ -23,14 +23,29 @@ export function linesOf(machine: Machine, strobe: Strobe): { hi: number; lo: num
   return strobe.lines ?? { hi: (machine.buses.get(strobe.bus ?? '')?.width ?? 1) - 1, lo: 0 };
 }
 
+/** A strobe by name, or a connection (`connect PART`), which drives in every step. */
+export function driverNamed(machine: Machine, name: string): Strobe | undefined {
+  const signal = machine.signals.get(name);
+  if (signal) return signal.type === 'strobe' ? signal : undefined;
+  return machine.connections.find((c) => c.name === name);
+}
+
+/** The asserted strobes and every connection: what drives in a step. */
+export function withConnections(machine: Machine, asserted: Iterable<string>): string[] {
+  const names = [...asserted];
+  for (const c of machine.connections) if (!names.includes(c.name)) names.push(c.name);
+  return names;
+}
+
 /**
- * The buses on which two or more of the (distinct) asserted strobes drive a common line, in
- * order of their first driver. Drivers of different lines of one bus (byte lanes) do not fight.
+ * The buses on which two or more of the (distinct) asserted strobes, or the connections that
+ * drive in every step, drive a common line, in order of their first driver. Drivers of
+ * different lines of one bus (byte lanes) do not fight.
  */
 export function contendedBuses(machine: Machine, asserted: Iterable<string>): Contention[] {
   const byBus = new Map<string, Strobe[]>();
-  for (const name of asserted) {
-    const signal = machine.signals.get(name);
+  for (const name of withConnections(machine, asserted)) {
+    const signal = driverNamed(machine, name);
     const bus = signal?.type === 'strobe' ? drivenBus(signal) : undefined;
     if (bus === undefined || signal?.type !== 'strobe') continue;
     const list = byBus.get(bus);
@@ -62,8 +77,8 @@ export function contendedBuses(machine: Machine, asserted: Iterable<string>): Co
 /** The lines of a bus the asserted strobes drive together, as a mask (bit n = line n). */
 export function drivenLines(machine: Machine, asserted: Iterable<string>, bus: string): number {
   let mask = 0;
-  for (const name of asserted) {
-    const signal = machine.signals.get(name);
+  for (const name of withConnections(machine, asserted)) {
+    const signal = driverNamed(machine, name);
     if (signal?.type !== 'strobe' || drivenBus(signal) !== bus) continue;
     const { hi, lo } = linesOf(machine, signal);
     mask |= lineMask(hi, lo);

@@ -144,6 +144,8 @@ export interface Strobe {
   register?: number;
   /** For a part of a table's own kind: the drive or edge port the strobe uses (named or the default). */
   kindPort?: string;
+  /** A connection (`connect`): on in every step, held by no control bit. */
+  always?: boolean;
   /** The bus driven (enable, read) or loaded from (clock, write). */
   bus?: string;
   /** The lines of the bus it drives or loads (`result[7:0]`); undefined for the whole bus. */
@@ -301,6 +303,12 @@ export interface Machine {
   parts: Map<string, Part>;
   flags: Map<string, Flag>;
   signals: Map<string, Signal>;
+  /**
+   * Drivers that are on in every step, with no strobe (`connect`): enable-like strobes named
+   * `connect PART.PORT`, not in `signals` (no control bit holds them). The contention and
+   * latch rules count them in every step.
+   */
+  connections: Strobe[];
   stores: Store[];
   maps: Map<string, DecodeMap>;
   phases: Map<string, Phase>;

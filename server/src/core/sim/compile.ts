@@ -114,7 +114,8 @@ export function canCompile(plan: SimPlan): boolean {
   // Parts of the table's own kinds run on the interpreter (their ports are compiled on their own).
   // So do strobes that drive some lines of a bus.
   const partial = [...plan.machine.signals.values()].some((s) => s.type === 'strobe' && s.lines !== undefined);
-  return !partial && plan.custom.runtimes.length === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
+  // And connections (`connect`), which drive in every step.
+  return !partial && plan.machine.connections.length === 0 && plan.custom.runtimes.length === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
 }
 
 const ALU_EXPRESSIONS: ((a: string, b: string) => string)[] = [

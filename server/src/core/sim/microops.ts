@@ -15,7 +15,7 @@
 // hot loop only checks a flag.
 //
 // Deliberately not here: values (simulator.ts computes them) and reports (describe.ts).
-import { contendedBuses, lineMask } from '../model/busDrivers';
+import { contendedBuses, driverNamed, lineMask, withConnections } from '../model/busDrivers';
 import type { Field, Part, Strobe } from '../model/types';
 import { GrowableInt32 } from './growable';
 import { CONDITION_FROM_FUNCT3, SIZE_WORD, aluFunctionNumber, aluOperandsUsed, conditionNumber, immediateFormatNumber, memorySizeNumber } from './operations';
@@ -193,8 +193,9 @@ export class MicroOps {
     const drivers: DriverSpec[] = [];
     const edges: EdgeSpec[] = [];
     let header = 0;
-    for (const name of asserted) {
-      const strobe = machine.signals.get(name) as Strobe;
+    // Connections (`connect`) drive in every step, like an enable every word asserts.
+    for (const name of withConnections(machine, asserted)) {
+      const strobe = driverNamed(machine, name)!;
       if (strobe.kind === 'end') header |= HEADER_END;
       else if (strobe.kind === 'trap') header |= HEADER_TRAP;
       else if (strobe.kind === 'enable' || strobe.kind === 'read') {
@@ -212,7 +213,7 @@ export class MicroOps {
     // so a part that computes from that whole bus gets no defined value, and a load of it faults.
     const coverage = new Int32Array(nBuses);
     const strobeLines = (d: { strobe: string }) => {
-      const strobe = machine.signals.get(d.strobe) as Strobe;
+      const strobe = driverNamed(machine, d.strobe)!;
       return strobe.lines ? { mask: lineMask(strobe.lines.hi, strobe.lines.lo), lo: strobe.lines.lo } : { mask: 0, lo: 0 };
     };
     for (const d of drivers) {
@@ -275,7 +276,7 @@ export class MicroOps {
       words: [...words],
       asserted,
       fields,
-      drivers: ordered.map((d) => ({ strobe: d.strobe, bus: d.bus, part: (machine.signals.get(d.strobe) as Strobe).part ?? '', note: d.note })),
+      drivers: ordered.map((d) => ({ strobe: d.strobe, bus: d.bus, part: driverNamed(machine, d.strobe)!.part ?? '', note: d.note })),
       edges: edges.map((e) => ({ strobe: e.strobe, fault: e.fault })),
       contention,
       loop,

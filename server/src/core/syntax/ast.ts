@@ -320,8 +320,17 @@ export interface KindDecl extends DeclBase {
   items: KindItem[];
 }
 
+/** `connect PART[.PORT] -> BUS[hi:lo] ["description"]`: a driver that is on in every step, with no strobe. */
+export interface ConnectDecl extends DeclBase {
+  kind: 'connect';
+  source?: Ref;
+  arrow?: Span;
+  target?: Ref;
+}
+
 export type Decl =
   | KindDecl
+  | ConnectDecl
   | MachineDecl
   | BusDecl
   | PartDecl
@@ -346,6 +355,7 @@ export const declarationKeywords = [
   'bus',
   'part',
   'strobe',
+  'connect',
   'field',
   'store',
   'word',

@@ -214,6 +214,8 @@ class Parser {
         return this.parsePart();
       case 'strobe':
         return this.parseStrobe();
+      case 'connect':
+        return this.parseConnect();
       case 'field':
         return this.parseField();
       case 'store':
@@ -339,6 +341,24 @@ class Parser {
       ref.span = mkSpan(name.span.start, this.prevEnd);
     }
     return ref;
+  }
+
+  /** connect = "connect" ref "->" ref [string]: a part's output that drives a bus in every step. */
+  private parseConnect(): A.ConnectDecl {
+    const keyword = this.keywordSpan();
+    const decl: A.ConnectDecl = { kind: 'connect', keyword, span: keyword };
+    decl.source = this.parseRef('the part (or part.port) that is always connected, e.g. `connect four -> right`');
+    if (decl.source) {
+      const arrow = this.eat(T.Arrow);
+      if (!arrow) this.unexpected('`->` and the bus it drives');
+      else {
+        decl.arrow = mkSpan(arrow.start, arrow.end);
+        decl.target = this.parseRef('the bus it drives, e.g. `-> right` or `-> result[31:8]`');
+      }
+    }
+    decl.description = this.optionalString();
+    this.endLine('the connection');
+    return this.finish(decl, keyword.start);
   }
 
   /** strobe = "strobe" name kind [ref] ["->" ref] ["active" ("high"|"low")] {option} [accept] [string] */
