@@ -112,6 +112,37 @@ describe('double drive', () => {
     );
   });
 
+  // A part of the table's own kind with two registers: ports on different states may act at
+  // one edge (the simulator computes every port from the values before the edge); two on one
+  // state conflict, and a port that takes no bus is named by its port, not as a bus.
+  const twoStates = `
+    kind pair "two registers in one part"
+      state a 32 = 0
+      state b 32 = 0
+      drive out 32 = a
+      on la 32: a <= in
+      on lb 32: b <= in
+      on bump: a <= a + 1
+    part p pair
+    strobe p.la   clock result -> p.la
+    strobe p.lb   clock left -> p.lb
+    strobe p.bump clock p.bump
+    strobe p.oe   enable p -> result active low
+  `;
+  it('clock-conflict keeps apart the states of a part of the table\'s own kind', () => {
+    expectDiagnostics(
+      machine(`
+        ${twoStates}
+        class JALR opcode=1100111
+          use fetch
+          2: x.rs1.oe, four.oe, alu.fn=add, alu.oe, p.la, p.lb
+          3: p.oe, p.la, p.bump, pc.ck, done
+        #                ^^^^^^ clock-conflict: state \`a\` of \`p\` is loaded from \`result\` by \`p.la\` and set through its port \`bump\` by \`p.bump\`
+      `),
+      ['clock-conflict'],
+    );
+  });
+
   it('clock-conflict is silent for one load per part', () => {
     expectDiagnostics(machine(`
       class JALR opcode=1100111

@@ -24,7 +24,7 @@ import { gantryWithConnection, gantryWithHalves } from '../support/ownKinds';
 const toolsPresent = haveTools(['riscv64-unknown-elf-gcc'], 'gcc-riscv64-unknown-elf') && haveTools([QEMU], 'qemu-user');
 
 /** Every example that declares kinds of its own, and a variant with partial-width drives. */
-const EXAMPLES = ['gantry-32.pwt', 'gantry-32-halves.pwt', 'gantry-32-connected.pwt', 'trestle-32.pwt'];
+const EXAMPLES = ['gantry-32.pwt', 'gantry-32-halves.pwt', 'gantry-32-connected.pwt', 'trestle-32.pwt', 'capstan-32.pwt'];
 
 /** The text of an example, or of a variant written under tests/.tmp (its name ends in the variant). */
 function exampleText(example: string): string {

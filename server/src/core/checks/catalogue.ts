@@ -103,7 +103,7 @@ export const catalogue: CodeInfo[] = [
     code: 'clock-conflict',
     severity: 'error',
     title: 'a part is loaded twice in one step',
-    explanation: 'A register loaded from two buses in the same step, or a counter both loaded and counted, cannot do both at one clock edge: which wins depends on the chip. Keep one load per part per step.',
+    explanation: 'A register loaded from two buses in the same step, or a counter both loaded and counted, cannot do both at one clock edge: which wins depends on the chip. Keep one load per part per step. A part of the table\'s own kind may hold several registers (states): two of its closing-edge ports conflict only when they assign the same state.',
   },
   {
     code: 'x0-write',
