@@ -3,6 +3,7 @@
 // indicator and all lit at once) against the supply budget, and for every step the longest
 // path from the control word changing to the closing clock edge, which bounds the step clock.
 // These are estimates from entered figures; real boards need margin and measurement.
+import { customPortBusReads } from '../model/buildCustomPart';
 import type { Bus, Figures, Machine, Part, StepAlt, Strobe } from '../model/types';
 import type { Span } from '../text/span';
 
@@ -184,6 +185,13 @@ function busLoads(machine: Machine, bus: Bus, ledMa: number): LineLoad[] {
   for (const part of machine.parts.values()) {
     if ((part.kind === 'alu' || part.kind === 'compare') && (part.a === bus.name || part.b === bus.name)) readers.set(part.name, part);
     if (part.kind === 'memory' && part.addressFrom === 'bus' && part.address === bus.name) readers.set(part.name, part);
+    // A part of the table's own kind loads every bus an input of it is wired to.
+    if (part.kind === 'custom' && [...part.inputs.values()].some((i) => i.from === 'bus' && i.name === bus.name)) readers.set(part.name, part);
+  }
+  // A connection drives its bus like an enable that is always on.
+  for (const c of machine.connections) {
+    const part = c.bus === bus.name && c.part ? machine.parts.get(c.part) : undefined;
+    if (part && !drivers.has(part.name)) drivers.set(part.name, { part, strobe: c });
   }
   const rows: LineLoad[] = [];
   for (const { part: driver, strobe } of drivers.values()) {
@@ -306,7 +314,10 @@ function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, miss
   // The step's control word is complete when its slowest store's outputs are; each path starts
   // from the store holding its strobe, and a part with a control field from that field's store.
   const start = alt.actions.map((a) => access(a.signal)).reduce(later, access(undefined));
-  const control = (s: Strobe, part: Part) => later(access(s.name), part.controlField ? access(part.controlField) : access(s.name));
+  const control = (s: Strobe, part: Part) => {
+    if (part.kind === 'custom') return [...part.controlFields.values()].reduce((a, f) => later(a, access(f)), access(s.name));
+    return later(access(s.name), part.controlField ? access(part.controlField) : access(s.name));
+  };
   const busArrival = new Map<string, Arrival | undefined>();
   const arrivalOnBus = (busName: string, depth = 0): Arrival | undefined => {
     if (busArrival.has(busName)) return busArrival.get(busName);
@@ -322,6 +333,14 @@ function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, miss
         const inputs = [arrivalOnBus(part.a, depth + 1), arrivalOnBus(part.b, depth + 1), control(s, part)].filter((a): a is Arrival => !!a);
         const latest = inputs.reduce(later);
         const through = { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} ${part.kind === 'alu' ? 'ALU' : 'comparator'}`, ns: need(part, 'tpd_ns') }] };
+        if (through.ns > arrival.ns) arrival = through;
+      } else if (part.kind === 'custom' && depth < 4) {
+        // Through a part of the table's own kind: the latest of the buses its port reads (the
+        // arms its controls cannot pick are left out) and its control fields, then its tpd_ns.
+        const reads = customPortBusReads(part, s.kindPort ?? '', new Map());
+        const inputs = [...reads.map((b) => arrivalOnBus(b, depth + 1)), control(s, part)].filter((a): a is Arrival => !!a);
+        const latest = inputs.reduce(later);
+        const through = { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} (${part.kindName})`, ns: need(part, 'tpd_ns') }] };
         if (through.ns > arrival.ns) arrival = through;
       } else if (part.kind === 'immediate' || part.kind === 'memory') {
         const from = control(s, part);

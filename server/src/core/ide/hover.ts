@@ -236,8 +236,11 @@ function busHover(machine: Machine, bus: Bus): string {
   const strobes = [...machine.signals.values()].filter((s): s is Strobe => s.type === 'strobe' && s.bus === bus.name);
   const drivers = strobes.filter((s) => s.kind === 'enable' || s.kind === 'read');
   const loads = strobes.filter((s) => s.kind === 'clock' || s.kind === 'write');
-  const wired = (s: Strobe) => `\`${s.name}\` (${s.part}${s.port ? `.${s.port}` : ''})`;
+  const lineText = (s: Strobe) => (s.lines ? (s.lines.hi === s.lines.lo ? ` line ${s.lines.hi}` : ` lines ${s.lines.hi}..${s.lines.lo}`) : '');
+  const wired = (s: Strobe) => `\`${s.name}\` (${s.part}${s.port ? `.${s.port}` : s.kindPort ? `.${s.kindPort}` : ''}${s.lines ? `,${lineText(s)}` : ''})`;
   lines.push(`- **driven by** ${drivers.length ? drivers.map(wired).join(', ') : 'no strobe'}`);
+  const connections = machine.connections.filter((c) => c.bus === bus.name);
+  if (connections.length) lines.push(`- **always driven by** ${connections.map((c) => `\`${c.part}${c.kindPort ? `.${c.kindPort}` : ''}\`${lineText(c)}`).join(', ')} (\`connect\`: in every step)`);
   lines.push(`- **loaded by** ${loads.length ? loads.map(wired).join(', ') : 'no strobe'}`);
   const readers = [...machine.parts.values()].filter((p) => ((p.kind === 'alu' || p.kind === 'compare') && (p.a === bus.name || p.b === bus.name)) || (p.kind === 'memory' && p.addressFrom === 'bus' && p.address === bus.name));
   if (readers.length) lines.push(`- **read by** ${readers.map((p) => `\`${p.name}\` (${p.kind === 'memory' ? 'address' : p.kind === 'alu' || p.kind === 'compare' ? (p.a === bus.name ? 'operand a' : 'operand b') : ''})`).join(', ')}`);
@@ -252,7 +255,12 @@ function busHover(machine: Machine, bus: Bus): string {
     total++;
     if (active.length >= maxBusSteps) continue;
     const guard = guardText(w.alt);
-    active.push(`- ${describeWritten(w)}${guard ? ` (${guard})` : ''}: ${d.length ? `driven by ${d.map((n) => `\`${n}\``).join(', ')}` : 'not driven'}${l.length ? `; loaded by ${l.map((n) => `\`${n}\``).join(', ')}` : ''}`);
+    // Who drives which lines: a strobe on some lines says which.
+    const named = (n: string) => {
+      const strobe = machine.signals.get(n) as Strobe;
+      return `\`${n}\`${lineText(strobe)}`;
+    };
+    active.push(`- ${describeWritten(w)}${guard ? ` (${guard})` : ''}: ${d.length ? `driven by ${d.map(named).join(', ')}` : 'not driven'}${l.length ? `; loaded by ${l.map((n) => `\`${n}\``).join(', ')}` : ''}`);
   }
   const lineLoads = budgetOf(machine).buses.filter((r) => r.name === bus.name);
   for (const row of lineLoads) lines.push(`- **load per line** driven by \`${row.driver}\`: ${loadText(row)}`);
