@@ -15,6 +15,12 @@ function codesOf(text: string): { code: string; message: string; line: string }[
 }
 
 describe('checks on parts of the table\'s own kinds', () => {
+  it('the kind the README shows is the example\'s, as written', () => {
+    const readme = readFileSync(new URL('../../README.md', import.meta.url), 'utf8');
+    const shown = /```\n(kind opa_mux[\s\S]*?)```/.exec(readme)![1];
+    expect(gantry).toContain(shown);
+  });
+
   it('the example checks clean: each multiplexer reads only the bus its field picks', () => {
     expect(gantry).toContain(lui);
     expect(codesOf(gantry)).toEqual([]);
