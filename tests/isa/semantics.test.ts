@@ -27,8 +27,10 @@ import {
   SEMANTICS_INPUTS,
   effectOf,
   evaluateEffect,
+  parseSemanticsRow,
   semanticsProblems,
   type Effect,
+  type SemanticsRow,
 } from '../../server/src/core/isa/semantics';
 import { checkExpression, parseExpression, scopeOf } from '../../server/src/core/parts/expr';
 import { semanticsPage } from '../../scripts/semantics-page';
@@ -151,7 +153,7 @@ const hex = (v: number | bigint) => `0x${(BigInt(v) & 0xffffffffn).toString(16)}
  * Runs one case on the interpreter and on `effect`; returns what disagrees (empty when they
  * agree). `mnemonic` chooses the word; `effect` is what is checked (a test passes a broken one).
  */
-function disagreements(mnemonic: string, effect: Effect, c: Case): string[] {
+function disagreements(mnemonic: string, effect: Effect, c: Case, seen = new Set<string>()): string[] {
   const encoded = encodeInstruction(mnemonic, c.operands);
   if (!encoded.ok) throw new Error(encoded.error);
   const ir = encoded.word;
@@ -192,6 +194,7 @@ function disagreements(mnemonic: string, effect: Effect, c: Case): string[] {
   }
   say('misaligned', step.stop?.kind === 'misaligned-target', got.misaligned);
   say('retired', step.retired, !got.misaligned);
+  seen.add(got.misaligned ? 'misaligned' : 'retired');
   if (got.misaligned) {
     say('next pc', hex(step.nextPc), hex(c.pc));
     say('memory writes', step.memoryWrites.length, 0);
@@ -201,6 +204,7 @@ function disagreements(mnemonic: string, effect: Effect, c: Case): string[] {
   say('next pc', hex(step.nextPc), got.nextPc === undefined ? 'none' : hex(got.nextPc));
   const rd = rdField(ir);
   if (got.rd !== undefined) {
+    seen.add(rd === 0 ? 'x0' : 'rd');
     // Spec 2.1: x0 is hardwired to 0; the write is discarded.
     say(`rd (x${rd})`, hex(after[rd]!), rd === 0 ? hex(0) : hex(got.rd));
     unchangedExcept(rd);
@@ -228,13 +232,13 @@ function disagreements(mnemonic: string, effect: Effect, c: Case): string[] {
 }
 
 /** The property for one instruction with the given effect; fast-check's report, without throwing. */
-function check(mnemonic: string, effect: Effect, numRuns = RUNS_PER_INSTRUCTION) {
+function check(mnemonic: string, effect: Effect, seen?: Set<string>) {
   return fc.check(
     fc.property(caseFor(mnemonic), (c) => {
-      const problems = disagreements(mnemonic, effect, c);
+      const problems = disagreements(mnemonic, effect, c, seen);
       if (problems.length) throw new Error(`${mnemonic}: ${problems.join('; ')}`);
     }),
-    { seed: SEED, numRuns },
+    { seed: SEED, numRuns: RUNS_PER_INSTRUCTION },
   );
 }
 
@@ -253,8 +257,20 @@ describe('the RV32I semantics table', () => {
     }
   });
 
-  it('reports a row that does not check instead of returning a tree', () => {
+  it('reports a row it does not understand, with the field and the checker\'s code', () => {
     expect(() => effectOf('mul')).toThrow(/"mul": no row/);
+    const problems = (row: SemanticsRow) => parseSemanticsRow(row).problems.map((p) => `${p.field}: ${p.diagnostics.map((d) => d.code).join(',')}`);
+    const add: SemanticsRow = { mnemonic: 'add', section: '2.4', says: '', nextPc: 'pc + 4', rd: 'rs1v + rs2v' };
+    expect(problems(add)).toEqual([]);
+    expect(problems({ ...add, rd: 'rs1v + rs2v[4:0]' })).toEqual(['rd: expr-width']);
+    expect(problems({ ...add, rd: 'rs1v + imm' })).toEqual(['rd: expr-name']); // R-type: no immediate
+    expect(problems({ ...add, nextPc: 'target' })).toEqual(['nextPc: expr-name']); // add defines no target
+    expect(problems({ ...add, rd: 'rs1v +' })).toEqual(['rd: expr-syntax']);
+    expect(problems({ ...add, mnemonic: 'sb' })).toEqual(['rd: ']); // a store writes no register
+    expect(problems({ ...add, rd: undefined })).toEqual(['rd: ']); // add writes one
+    const taken = { mnemonic: 'beq', section: '2.5', says: '', taken: 'target == pc', target: 'pc + imm', nextPc: 'pc + 4' } as const;
+    expect(problems(taken)).toEqual([]); // taken may use target, defined before it
+    expect(problems({ ...taken, target: 'taken ? pc : pc' })).toEqual(['target: expr-name']); // but not the other way round
   });
 
   it('says of each load the size and signedness its rd expression has', () => {
@@ -277,8 +293,14 @@ function encodeWord(mnemonic: string, operands: EncodeOperands = { rd: 5, rs1: 6
 describe('the semantics agree with the reference interpreter on random states (RISC-V Unprivileged ISA 20191213, ch. 2)', () => {
   for (const spec of RV32I_INSTRUCTIONS) {
     it(spec.mnemonic, () => {
-      const result = check(spec.mnemonic, effectOf(spec.mnemonic));
+      const effect = effectOf(spec.mnemonic);
+      const seen = new Set<string>();
+      const result = check(spec.mnemonic, effect, seen);
       if (result.failed) throw new Error(`seed ${SEED}: ${String(result.errorInstance)}`);
+      // The cases reach every path: retiring and (for jumps and branches) misaligned, rd x0 and another.
+      if (!effect.special) expect(seen, 'retired').toContain('retired');
+      if (effect.misaligned) expect(seen, 'misaligned').toContain('misaligned');
+      if (effect.rd) expect([...seen].filter((t) => t === 'x0' || t === 'rd').sort()).toEqual(['rd', 'x0']);
     });
   }
 
