@@ -1,6 +1,6 @@
 // The RV32I layer in one import: instruction table and field decoders (rv32i), disassembler
 // (disasm), sparse memory (memory), system-call environment (environment), ELF and raw loaders
-// (elf) and the reference interpreter (interp). See each module's header for its API and limits.
+// (elf), the reference interpreter (interp) and the semantics table (semantics). See each module's header for its API and limits.
 // This barrel adds nothing of its own.
 export * from './rv32i';
 export * from './disasm';
@@ -17,3 +17,18 @@ export {
   type StepResult,
   type StopReason,
 } from './interp';
+export {
+  SEMANTICS,
+  SEMANTICS_INPUTS,
+  IMMEDIATES,
+  REGISTER_FIELDS,
+  describeEffect,
+  effectOf,
+  evaluateEffect,
+  parseSemanticsRow,
+  semanticsProblems,
+  type Effect,
+  type EffectInputs,
+  type EffectOutcome,
+  type SemanticsRow,
+} from './semantics';
