@@ -16,7 +16,7 @@ import { figuresOf } from '../../server/src/core/sim/summary';
 import { RV32I_INSTRUCTIONS } from '../../server/src/core/isa/rv32i';
 import { analyse } from '../../server/src/core/analysis';
 import { haveTools } from '../support/tools';
-import { QEMU, runQemu, type QemuRun } from '../isa/support/riscv-tools';
+import { QEMU, qemuStatus, runQemu, type QemuRun } from '../isa/support/riscv-tools';
 import { buildPrograms, type BuiltProgram } from '../programs/build.mjs';
 import { CLI, REPO, ensureCli, planOf } from '../sim/support';
 import { gantryWithConnection, gantryWithHalves } from '../support/ownKinds';
@@ -43,11 +43,6 @@ function examplePath(example: string): string {
 /** The long benchmark is left to the demo's test; the short one runs here. */
 const NAMES = ['selfcheck', 'syscalls', 'ebreak', 'crc_sieve', 'arith', 'sort', 'bench_short'];
 
-function qemuStatus(run: QemuRun): number | null {
-  if (run.signal === 'SIGTRAP') return 128 + 5;
-  if (run.signal === 'SIGILL') return 128 + 4;
-  return run.exitCode;
-}
 
 describe.skipIf(!toolsPresent).each(EXAMPLES)('test programs through %s (kinds of its own) against qemu-riscv32', (example) => {
   let programs: BuiltProgram[] = [];

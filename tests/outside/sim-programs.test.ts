@@ -15,7 +15,7 @@ import { loadProgram } from '../../server/src/core/sim/program';
 import { figuresOf } from '../../server/src/core/sim/summary';
 import { RV32I_INSTRUCTIONS } from '../../server/src/core/isa/rv32i';
 import { haveTools } from '../support/tools';
-import { QEMU, runQemu, type QemuRun } from '../isa/support/riscv-tools';
+import { QEMU, qemuStatus, runQemu, type QemuRun } from '../isa/support/riscv-tools';
 import { buildPrograms, type BuiltProgram } from '../programs/build.mjs';
 import { CLI, DEMO_TEXT, REPO, demoWith, ensureCli, planOf } from '../sim/support';
 
@@ -38,12 +38,6 @@ function runCli(args: string[]): CliRun {
   return { stdout: result.stdout, stderr: result.stderr.toString('latin1'), status: result.status };
 }
 
-/** qemu's ending as the exit status a shell shows: the code, or 128 + the signal number. */
-function qemuStatus(run: QemuRun): number | null {
-  if (run.signal === 'SIGTRAP') return 128 + 5;
-  if (run.signal === 'SIGILL') return 128 + 4;
-  return run.exitCode;
-}
 
 /** The mnemonic objdump shows at `address` (`-M no-aliases,numeric`, as in isa-gnu-as.test.ts). */
 function objdumpMnemonicAt(elfPath: string, address: number): string | undefined {

@@ -56,3 +56,10 @@ export function runReference(elfPath: string, maxInstructions = 200_000_000, pre
 }
 
 export { describeStop };
+
+/** qemu's ending as the exit status a shell shows: the code, or 128 + the signal number (SIGTRAP 5 at EBREAK, SIGILL 4). */
+export function qemuStatus(run: QemuRun): number | null {
+  if (run.signal === 'SIGTRAP') return 128 + 5;
+  if (run.signal === 'SIGILL') return 128 + 4;
+  return run.exitCode;
+}

@@ -16,7 +16,7 @@ import { type FigureHost, figureInfo, figureNamesFor, figureRangeProblem, figure
 import { acceptableCodes, codeInfo } from '../checks/catalogue';
 import { buildKind } from '../parts/kinds';
 import { checkBehaviour, defaultSetting } from '../parts/behaviour';
-import { buildCustomPart, customPortFor } from './buildCustomPart';
+import { buildCustomPart, customPortFor, partSetting } from './buildCustomPart';
 import { libraryKind, standardLibrary } from '../parts/library';
 
 export interface BuildResult {
@@ -568,16 +568,7 @@ function checkKindBehaviours(ctx: BuildContext): void {
     if (defaults) checkBehaviour(kind, defaults, (d) => report(d));
   }
   for (const part of ctx.machine.parts.values()) {
-    if (part.kind !== 'custom') continue;
-    const controls = new Map<string, { width: number; values: ReadonlyMap<string, number> }>();
-    for (const control of part.def.controls) {
-      const fieldName = part.controlFields.get(control.name);
-      const field = fieldName ? ctx.machine.signals.get(fieldName) : undefined;
-      // A field whose values were all refused has its own errors; check with the kind's numbering then.
-      if (field?.type === 'field' && field.values.size > 0) controls.set(control.name, { width: field.width, values: new Map([...field.values.values()].map((v) => [v.name, v.code])) });
-      else controls.set(control.name, { width: Math.max(1, Math.ceil(Math.log2(Math.max(2, control.values.length)))), values: new Map(control.values.map((v, i) => [v, i])) });
-    }
-    checkBehaviour(part.def, { settings: part.settings, controls }, (d) => report(d, part));
+    if (part.kind === 'custom') checkBehaviour(part.def, partSetting(ctx.machine, part), (d) => report(d, part));
   }
 }
 

@@ -8,7 +8,8 @@ import type * as A from '../syntax/ast';
 import { closest } from '../text/suggest';
 import { figureInfo, figureNamesFor } from '../budget/figures';
 import type { KindDef, Size } from '../parts/kinds';
-import { choiceCodes, liveNames, parsedExpr } from '../parts/behaviour';
+import { type PartSetting, choiceCodes, liveNames, parsedExpr } from '../parts/behaviour';
+import { bitsFor } from '../parts/expr';
 import type { BuildContext } from './build';
 import { parseNumber } from './numbers';
 import type * as M from './types';
@@ -173,4 +174,20 @@ export function customPortBusReads(part: M.CustomPart, port: string, controlCode
     }
   }
   return [...buses];
+}
+
+/**
+ * A part's settings and its controls' codes as the fields driving them number them; a control no
+ * field drives (or whose field's values were all refused, with their own errors) keeps the
+ * kind's own numbering. The checks and the simulator read the part through this one setting.
+ */
+export function partSetting(machine: M.Machine, part: M.CustomPart): PartSetting {
+  const controls = new Map<string, { width: number; values: ReadonlyMap<string, number> }>();
+  for (const control of part.def.controls) {
+    const fieldName = part.controlFields.get(control.name);
+    const field = fieldName ? machine.signals.get(fieldName) : undefined;
+    if (field?.type === 'field' && field.values.size > 0) controls.set(control.name, { width: field.width, values: new Map([...field.values.values()].map((v) => [v.name, v.code])) });
+    else controls.set(control.name, { width: bitsFor(control.values.length), values: new Map(control.values.map((v, i) => [v, i])) });
+  }
+  return { settings: part.settings, controls };
 }

@@ -9,9 +9,9 @@
 // then all of them are stored at once, then the flags are read from the new state.
 import type { CustomPart, Field, Machine, Strobe } from '../model/types';
 import type { Memory } from '../isa/memory';
-import { type PartSetting, compilePort, sizeOf } from '../parts/behaviour';
+import { compilePort, sizeOf } from '../parts/behaviour';
 import { edgeInputName } from '../parts/kinds';
-import { customPortBusReads } from '../model/buildCustomPart';
+import { customPortBusReads, partSetting } from '../model/buildCustomPart';
 
 /** What a compiled port reads from the running machine. */
 export interface CustomAccess {
@@ -78,7 +78,7 @@ export class CustomParts {
     // Reset values and flags, once every part has its slots (a flag reads only its own state).
     for (const rt of this.runtimes) {
       const def = rt.part.def;
-      const setting = this.settingOf(rt.part, new Map());
+      const setting = partSetting(this.machine, rt.part);
       for (const state of def.states) {
         if (state.count === 'memory') continue;
         const slot = rt.slots.get(state.name)!;
@@ -131,18 +131,6 @@ export class CustomParts {
       for (const drive of part.def.drives) if (sizeOf(drive.width, part.settings) > 32) out.push(`part \`${part.name}\`: port \`${drive.name}\` is wider than 32 bits, which the simulator does not hold yet`);
     }
     return out;
-  }
-
-  /** The part's settings and its controls' codes as the driving fields number them. */
-  private settingOf(part: CustomPart, fields: ReadonlyMap<string, number>): PartSetting {
-    const controls = new Map<string, { width: number; values: ReadonlyMap<string, number> }>();
-    for (const control of part.def.controls) {
-      const field = this.controlField(part, control.name);
-      if (field) controls.set(control.name, { width: field.width, values: new Map([...field.values.values()].map((v) => [v.name, v.code])) });
-      else controls.set(control.name, { width: Math.max(1, Math.ceil(Math.log2(Math.max(2, control.values.length)))), values: new Map(control.values.map((v, i) => [v, i])) });
-    }
-    void fields;
-    return { settings: part.settings, controls };
   }
 
   private controlField(part: CustomPart, control: string): Field | undefined {
@@ -208,7 +196,7 @@ export class CustomParts {
   driver(strobe: Strobe, fields: ReadonlyMap<string, number>): CustomOp {
     const rt = this.byName.get(strobe.part ?? '')!;
     const drive = rt.part.def.drives.find((d) => d.name === strobe.kindPort)!;
-    const port = compilePort(rt.part.def, this.settingOf(rt.part, fields), [{ text: drive.expr, width: sizeOf(drive.width, rt.part.settings) }], undefined, this.arrayAccess);
+    const port = compilePort(rt.part.def, partSetting(this.machine, rt.part), [{ text: drive.expr, width: sizeOf(drive.width, rt.part.settings) }], undefined, this.arrayAccess);
     const problem = this.unnamedControl(rt, port.inputs, fields);
     if (problem) return { problem };
     const getters = port.inputs.map((name) => this.getter(rt, name, fields, -1));
@@ -230,7 +218,7 @@ export class CustomParts {
     const edge = def.edges.find((e) => e.name === strobe.kindPort)!;
     const texts = edge.assigns.flatMap((a) => [{ text: a.expr, width: rt.widths.get(a.target)! }, ...(a.when ? [{ text: a.when, width: 1 }] : []), ...(a.index ? [{ text: a.index }] : [])]);
     const edgeWidth = edge.width ? sizeOf(edge.width, rt.part.settings) : undefined;
-    const port = compilePort(def, this.settingOf(rt.part, fields), texts, edgeWidth, this.arrayAccess);
+    const port = compilePort(def, partSetting(this.machine, rt.part), texts, edgeWidth, this.arrayAccess);
     const problem = this.unnamedControl(rt, port.inputs, fields);
     if (problem) return { problem };
     const getters = port.inputs.map((name) => this.getter(rt, name, fields, bus));
