@@ -258,12 +258,12 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
       const key = (c: { drivers: string[]; loaders: string[] }) => `${c.drivers.join('+')}>${c.loaders.join(' ')}`;
       for (const [a, b] of runs(row.cells, (p, q) => key(p) === key(q))) {
         const cell = row.cells[a];
-        const cls = cell.drivers.length > 1 ? 'seg bad' : cell.drivers.length === 1 ? 'seg bus' : 'seg idle';
+        const cls = cell.contention ? 'seg bad' : cell.drivers.length >= 1 ? 'seg bus' : 'seg idle';
         const cx = (colX(a) + colX(b) + colWidth) / 2;
         parts.push(segment(colX(a) + 2, colX(b) + colWidth - 2, top + 5, top + rowHeight.bus - 5, cls));
         const load = loadLabel(cell);
         const mainY = load ? top + rowHeight.bus / 2 - 1 : top + rowHeight.bus / 2 + 4;
-        parts.push(text(cx, mainY, busLabel(cell, row.keeper), { cls: cell.drivers.length > 1 ? 'bad' : cell.drivers.length ? 'fg' : 'muted', anchor: 'middle', weight: cell.drivers.length > 1 ? 'bold' : undefined }));
+        parts.push(text(cx, mainY, busLabel(cell, row.keeper), { cls: cell.contention ? 'bad' : cell.drivers.length ? 'fg' : 'muted', anchor: 'middle', weight: cell.contention ? 'bold' : undefined }));
         if (load) parts.push(text(cx, top + rowHeight.bus / 2 + 12, load, { cls: 'fg', px: size.small, anchor: 'middle' }));
       }
       out.push(`<g class="row" data-row="bus" data-name="${esc(row.name)}" data-drivers="${esc(row.cells.map((c) => c.drivers.join('+') || '-').join(' '))}">${parts.join('')}</g>`);

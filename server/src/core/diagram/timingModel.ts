@@ -9,6 +9,7 @@ import { PointDecoder, type PointDecode } from '../encode/decodePoint';
 import { addressOf, fillWordOf, wordForAlternative } from '../encode/encoder';
 import { universeOf, type PointInputs } from '../encode/universe';
 import { toBinary, toHex } from '../model/numbers';
+import { contendedBuses } from '../model/busDrivers';
 import type { ClassDef, InputVar, Level, Machine, StepAlt, Store, Strobe, StrobeKind } from '../model/types';
 import { RV32I_INSTRUCTIONS } from '../isa/rv32i';
 import { guardText } from '../ide/usage';
@@ -60,6 +61,8 @@ export interface FieldRow {
 export interface BusCell {
   drivers: string[];
   loaders: string[];
+  /** Drivers that share a line (the one rule of model/busDrivers.ts): byte lanes side by side do not fight. */
+  contention: boolean;
 }
 
 export interface BusRow {
@@ -228,10 +231,15 @@ export function timingModel(machine: Machine, cls: ClassDef, choice: GuardChoice
   for (const bus of machine.buses.values()) {
     const touching = [...machine.signals.values()].filter((s): s is Strobe => s.type === 'strobe' && s.bus === bus.name);
     if (!options.all && !touching.some((s) => usedSignals.has(s.name))) continue;
-    const cells = columns.map((_, i) => ({
-      drivers: touching.filter((s) => (s.kind === 'enable' || s.kind === 'read') && assertedIn(s.name, i)).map((s) => s.name),
-      loaders: touching.filter((s) => (s.kind === 'clock' || s.kind === 'write') && assertedIn(s.name, i)).map((s) => s.name),
-    }));
+    const connected = machine.connections.filter((c) => c.bus === bus.name).map((c) => c.name);
+    const cells = columns.map((_, i) => {
+      const drivers = [...connected, ...touching.filter((s) => (s.kind === 'enable' || s.kind === 'read') && assertedIn(s.name, i)).map((s) => s.name)];
+      return {
+        drivers,
+        loaders: touching.filter((s) => (s.kind === 'clock' || s.kind === 'write') && assertedIn(s.name, i)).map((s) => s.name),
+        contention: contendedBuses(machine, drivers).some((c) => c.bus === bus.name),
+      };
+    });
     buses.push({ name: bus.name, keeper: bus.keeper, cells });
   }
 
