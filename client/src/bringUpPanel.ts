@@ -100,7 +100,7 @@ export class BringUpPanel implements vscode.Disposable {
     const board = bringUpBoard(answer, { cycle: this.picked ?? answer.current, current: answer.current, theme: 'host' });
     const from = answer.rows[0]?.cycle ?? this.from;
     this.panel.title = board.cycle === undefined ? 'Bring-up' : `Bring-up: cycle ${board.cycle}`;
-    const status = board.cycle === undefined ? (answer.ending ?? 'no cycles in this range') : `cycles ${from}–${answer.rows[answer.rows.length - 1].cycle}; rows from a fresh run from reset (changes made in the session are not in them)`;
+    const status = board.cycle === undefined ? (answer.ending ?? 'no cycles in this range') : `cycles ${from}–${answer.rows[answer.rows.length - 1].cycle}, run afresh from reset (edits made in the session are not in them)`;
     this.post({ type: 'render', svg: board.svg, follow: this.follow, from, count: this.count, status });
   }
 
