@@ -13,7 +13,7 @@ const needs = [join(root, 'tests/e2e/node_modules/.bin/code-server'), join(root,
 const installed = needs.every((p) => existsSync(p));
 
 describe('the extension in VS Code (code-server + chromium)', () => {
-  it.skipIf(!installed && !underCi)('shows status, problems, hover, builds images, lists words, runs a program and draws the timing diagram', { timeout: 420_000 }, () => {
+  it.skipIf(!installed && !underCi)('shows status, problems, hover, builds images, lists words, runs a program, draws the timing diagram, debugs a program and shows the bring-up view', { timeout: 420_000 }, () => {
     if (!installed) throw new Error(`end-to-end tools missing under CI (${needs.filter((p) => !existsSync(p)).join(', ')}): run tests/e2e/install.sh`);
     let output = '';
     try {
@@ -31,6 +31,8 @@ describe('the extension in VS Code (code-server + chromium)', () => {
       'e2e: timing diagram draws BRANCH and follows the guard choice',
       'e2e: timing diagram follows the cursor to JALR',
       'e2e: saved the diagram as a standalone SVG',
+      'e2e: debugger stopped on class OP step 2; Variables shows x1 (ra) = 0x0001000c and x10 (a0) = 0x00000005',
+      'e2e: bring-up view shows cycles 0-12 at the stop: x10 = 5, result = 12, step 010; picking cycle 3 redraws it',
       'e2e: all checks passed',
     ]) {
       expect(output).toContain(line);

@@ -1,11 +1,13 @@
 // The VS Code side of Phasewright: starts the bundled language server (dist/server.js) over
-// Node IPC, and wires the editor-only parts: the status-bar item, the five commands (new
-// machine, build images, timing diagram, listing, run a program), the listing documents, the
-// `phasewright` task type and the `phasewright` debugger (debugAdapter.ts).
+// Node IPC, and wires the editor-only parts: the status-bar item, the six commands (new
+// machine, build images, timing diagram, listing, run a program, bring-up view), the listing
+// documents, the `phasewright` task type and the `phasewright` debugger (debugAdapter.ts) with
+// its bring-up view (bringUpPanel.ts).
 // Everything about the notation happens in the server; nothing here reads or runs workspace
 // code, so the extension is safe in untrusted workspaces (building asks for trust first).
 import * as vscode from 'vscode';
 import { LanguageClient, type LanguageClientOptions, type ServerOptions, TransportKind } from 'vscode-languageclient/node';
+import { BringUpPanel } from './bringUpPanel';
 import { buildImagesCommand } from './buildCommand';
 import { registerDebugger } from './debugAdapter';
 import { newMachineCommand } from './newMachine';
@@ -66,6 +68,8 @@ export async function activate(context: vscode.ExtensionContext): Promise<void> 
     }),
     vscode.tasks.registerTaskProvider(taskType, new PhasewrightTaskProvider(context.asAbsolutePath('dist/cli.js'))),
     { dispose: () => TimingPanel.current?.dispose() },
+    vscode.commands.registerCommand('phasewright.showBringUp', () => BringUpPanel.show()),
+    ...BringUpPanel.register(),
     ...registerDebugger(context),
   );
 

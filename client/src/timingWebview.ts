@@ -4,6 +4,8 @@
 // core. Colours come from the workbench theme through VS Code's CSS variables (the SVG is
 // drawn with the `host` palette), so light, dark and high-contrast themes all read.
 
+import { webviewHead } from './webviewPage';
+
 /** Messages the page sends to the extension. */
 export type FromPage =
   | { type: 'ready' }
@@ -28,28 +30,11 @@ export type ToPage =
   | { type: 'problem'; text: string };
 
 export function timingHtml(cspSource: string, nonce: string): string {
-  return `<!DOCTYPE html>
-<html lang="en">
-<head>
-<meta charset="UTF-8">
-<meta http-equiv="Content-Security-Policy" content="default-src 'none'; img-src ${cspSource} data:; style-src ${cspSource} 'unsafe-inline'; script-src 'nonce-${nonce}';">
-<meta name="viewport" content="width=device-width, initial-scale=1.0">
-<title>Timing diagram</title>
-<style>
-  body { padding: 0 12px 16px; color: var(--vscode-foreground); font-family: var(--vscode-font-family); font-size: var(--vscode-font-size); }
-  .bar { position: sticky; top: 0; z-index: 1; display: flex; flex-wrap: wrap; gap: 6px 14px; align-items: center; padding: 8px 0; background: var(--vscode-editor-background); border-bottom: 1px solid var(--vscode-editorWidget-border, transparent); }
-  .bar label { display: inline-flex; gap: 5px; align-items: center; }
-  .bar .name { font-family: var(--vscode-editor-font-family); }
+  return `${webviewHead(cspSource, nonce, 'Timing diagram', `  .bar .name { font-family: var(--vscode-editor-font-family); }
   select, input[type=text] { background: var(--vscode-dropdown-background); color: var(--vscode-dropdown-foreground); border: 1px solid var(--vscode-dropdown-border, transparent); padding: 2px 4px; font-family: var(--vscode-editor-font-family); }
-  button { background: var(--vscode-button-background); color: var(--vscode-button-foreground); border: none; padding: 4px 10px; cursor: pointer; }
-  button:hover { background: var(--vscode-button-hoverBackground); }
-  .muted { color: var(--vscode-descriptionForeground); }
-  .problem { color: var(--vscode-errorForeground); margin: 8px 0; }
   .warn { color: var(--vscode-editorWarning-foreground); }
   #picture { margin-top: 10px; overflow-x: auto; }
-  #picture svg { display: block; }
-</style>
-</head>
+  #picture svg { display: block; }`)}
 <body>
 <div class="bar" role="toolbar" aria-label="Timing diagram choices">
   <label>Class <select id="class" aria-label="Class"></select></label>

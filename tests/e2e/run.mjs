@@ -3,8 +3,10 @@
 // It opens the demo and a fault example and checks what a user sees: the status-bar item, the
 // New machine command writing a starter table, the Problems panel, a hover on a strobe, the
 // build command writing images into the configured folder, the listing document and the
-// timing-diagram webview with its rows. Screenshots go to
-// tests/e2e/artifacts/. Every wait is for an element or a file, never a fixed time.
+// timing-diagram webview with its rows, a debug session stopped on a table line with a register
+// in the Variables view, and the bring-up view beside it. Screenshots go to tests/e2e/artifacts/
+// (with E2E_DOCS_IMAGES=1 the debugger's two also to docs/images/ for the README). Every wait is
+// for an element or a file, never a fixed time.
 // Run: node tests/e2e/run.mjs   (after `npm run build`; tests/e2e/install.sh installs the tools)
 import { execFileSync, spawn } from 'node:child_process';
 import { cpSync, existsSync, mkdirSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
@@ -20,6 +22,7 @@ const artifacts = join(here, 'artifacts');
 const codeServer = join(here, 'node_modules/.bin/code-server');
 const workspace = join(scratch, 'workspace');
 const outputFolderSetting = 'rom-images';
+const docsImages = process.env.E2E_DOCS_IMAGES === '1' ? join(root, 'docs/images') : null;
 const timeoutMillis = 45_000;
 
 function log(message) {
@@ -62,6 +65,10 @@ function prepare() {
   cpSync(join(root, 'examples/halyard-32.pwt'), join(workspace, 'halyard-32.pwt'));
   cpSync(join(root, 'examples/faults/bus-contention.pwt'), join(workspace, 'bus-contention.pwt'));
   writeFileSync(join(workspace, '.vscode/settings.json'), JSON.stringify({ 'phasewright.outputFolder': outputFolderSetting }, null, 2));
+  // The debugger's launch configuration, as docs/debugging.md shows it (one configuration, so
+  // Start Debugging runs it without asking).
+  const launch = { type: 'phasewright', request: 'launch', name: 'Debug debugdemo on the demo', table: '${workspaceFolder}/halyard-32.pwt', program: '${workspaceFolder}/debugdemo.elf', lockStep: true, stopOnEntry: false };
+  writeFileSync(join(workspace, '.vscode/launch.json'), JSON.stringify({ version: '0.2.0', configurations: [launch] }, null, 2));
   const userDir = join(scratch, 'data/User');
   mkdirSync(userDir, { recursive: true });
   writeFileSync(
@@ -147,7 +154,12 @@ function stopCodeServer(server) {
   }
 }
 
-async function runCommand(page, title) {
+/**
+ * Runs a command from the palette. `opens`: the title of the quick input the command opens
+ * next (a file picker), which replaces the palette at once, so the palette's closing cannot be
+ * waited for: the new input's title is.
+ */
+async function runCommand(page, title, opens) {
   await page.keyboard.press('F1');
   const input = page.locator('.quick-input-widget input');
   await input.waitFor({ state: 'visible' });
@@ -155,7 +167,8 @@ async function runCommand(page, title) {
   // Click the matching row rather than pressing Enter: the list may still show older entries.
   const row = page.locator('.quick-input-widget .monaco-list-row', { hasText: title }).first();
   await row.click();
-  await page.locator('.quick-input-widget').waitFor({ state: 'hidden' });
+  if (opens) await page.locator('.quick-input-widget .quick-input-title', { hasText: opens }).waitFor({ state: 'visible' });
+  else await page.locator('.quick-input-widget').waitFor({ state: 'hidden' });
 }
 
 async function openFile(page, name) {
@@ -169,7 +182,9 @@ async function openFile(page, name) {
 }
 
 async function goToLine(page, line) {
-  await page.locator('.editor-instance .monaco-editor .view-lines').first().click();
+  // Focus the editor by its line-number margin: the middle of a wide text may lie under the
+  // editor group beside it, the margin never does.
+  await page.locator('.editor-instance .monaco-editor .margin-view-overlays').first().click();
   await page.keyboard.press('Control+G');
   const input = page.locator('.quick-input-widget input');
   await input.waitFor({ state: 'visible' });
@@ -186,6 +201,35 @@ function demoLine(prefix) {
   return index + 1;
 }
 
+/** A row of the Variables view, scrolled into the list (it renders only the rows in sight). */
+async function variableRow(page, name) {
+  const row = page.locator('.debug-variables .monaco-list-row', { hasText: name }).first();
+  const list = page.locator('.debug-variables .monaco-list').first();
+  await list.waitFor({ state: 'visible' });
+  return waitFor(`the variable ${name}`, async () => {
+    if (await row.count()) return row;
+    await list.hover();
+    await page.mouse.wheel(0, 120);
+    return null;
+  });
+}
+
+/** The frame (inside a webview) that holds `selector`. */
+async function webviewFrameWith(page, selector) {
+  return waitFor(`a webview with ${selector}`, async () => {
+    for (const f of page.frames()) {
+      if (await f.locator(selector).count().catch(() => 0)) return f;
+    }
+    return null;
+  });
+}
+
+/** Saves a picture into the artifacts (and docs/images/ when asked). */
+async function picture(page, name) {
+  await page.screenshot({ path: join(artifacts, name), animations: 'disabled' });
+  if (docsImages) cpSync(join(artifacts, name), join(docsImages, name));
+}
+
 async function main() {
   for (const need of [codeServer, '/usr/bin/chromium', join(root, 'dist/client.js'), join(root, 'dist/server.js')]) {
     if (!existsSync(need)) throw new Error(`missing ${need} (run tests/e2e/install.sh and npm run build)`);
@@ -193,8 +237,9 @@ async function main() {
   prepare();
   // A real RV32I program for the run command, built with Debian's cross compiler.
   const { buildPrograms } = await import(join(root, 'tests/programs/build.mjs'));
-  const [crc] = buildPrograms({ names: ['crc_sieve'] });
+  const [crc, debugdemo] = buildPrograms({ names: ['crc_sieve', 'debugdemo'] });
   cpSync(crc.elfPath, join(workspace, 'crc_sieve.elf'));
+  cpSync(debugdemo.elfPath, join(workspace, 'debugdemo.elf'));
   const vsix = packageVsix();
   installExtension(vsix);
   const port = await freePort();
@@ -300,14 +345,20 @@ async function main() {
 
     step = 'run program';
     await openFile(page, 'halyard-32.pwt');
-    await runCommand(page, 'Phasewright: Run program on this table');
+    await runCommand(page, 'Phasewright: Run program on this table', 'RV32I program to run through this table');
     // The open dialog is VS Code's own file picker, a quick input holding a path.
     const pathInput = page.locator('.quick-input-widget input');
     await pathInput.waitFor({ state: 'visible' });
     // Wait until the picker has put its starting folder in, or it would overwrite our path.
     await waitFor('the file picker to show its folder', async () => (await pathInput.inputValue()).endsWith('/'));
-    await pathInput.fill(join(workspace, 'crc_sieve.elf'));
-    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'crc_sieve.elf' }).first().waitFor({ state: 'visible' });
+    // The picker may still put its folder back in after that: fill until the path stays and the
+    // picker has focused the file's row (it has read the path).
+    const programPath = join(workspace, 'crc_sieve.elf');
+    const programRow = page.locator('.quick-input-widget .monaco-list-row.focused', { hasText: 'crc_sieve.elf' });
+    await waitFor('the picker to hold the program path', async () => {
+      if ((await pathInput.inputValue()) !== programPath) await pathInput.fill(programPath);
+      return (await pathInput.inputValue()) === programPath && (await programRow.count()) > 0;
+    });
     await page.locator('.quick-input-widget .monaco-button', { hasText: 'Run' }).click();
     await page.locator('.notifications-toasts', { hasText: 'Phasewright: program exited with code 0' }).waitFor({ state: 'visible', timeout: 120_000 });
     await page.locator('.output-view .view-line', { hasText: 'instructions retired: 600,427' }).first().waitFor({ state: 'visible' });
@@ -355,6 +406,59 @@ async function main() {
     if (!savedText.includes('data-theme="auto"') || !savedText.includes('>if taken=1<')) throw new Error('the saved SVG is not the standalone drawing of BRANCH taken=1');
     cpSync(saved, join(artifacts, 'halyard-32.BRANCH.svg'));
     log('saved the diagram as a standalone SVG');
+
+    // The debugger: a breakpoint on the demo's OP step 2 line, so the session stops before the
+    // first add of debugdemo (add x10,x10,x11 in add3, cycle 12: three cycles for each of the two
+    // addi, four for jal, then fetch). By the RV32I spec (chapter 2): ADDI x10,x0,5 gives x10 = 5
+    // (2.4) and JAL at 0x10008 writes pc + 4 = 0x1000c to x1 (2.5).
+    step = 'debugger';
+    // The table is still open in the first editor group (the diagram stands beside it).
+    await goToLine(page, demoLine('2: x.rs1.oe, x.rs2.oe, alu.fn=op_fn'));
+    await runCommand(page, 'Debug: Toggle Breakpoint');
+    await page.locator('.editor-instance .codicon-debug-breakpoint').first().waitFor({ state: 'visible' });
+    await runCommand(page, 'Debug: Start Debugging');
+    await page.locator('.debug-call-stack .monaco-list-row', { hasText: 'class OP step 2' }).first().waitFor({ state: 'visible', timeout: 90_000 });
+    await page.locator('.editor-instance .debug-top-stack-frame-line').first().waitFor({ state: 'visible' });
+    for (const [name, value] of [['x1 (ra)', '0x0001000c (65548)'], ['x10 (a0)', '0x00000005 (5)']]) {
+      const row = await variableRow(page, name);
+      // The value may come a moment after the name (the view asks the adapter for it).
+      const shown = await waitFor(`${name} = ${value}`, async () => {
+        const t = (await row.innerText()).replace(/\s+/g, ' ').trim();
+        return t.includes(`${name} = `) && t.length > name.length + 3 ? t : null;
+      });
+      expectEqual(shown, `${name} = ${value}`, `Variables row of ${name}`);
+    }
+    await runCommand(page, 'Notifications: Clear All Notifications');
+    log('debugger stopped on class OP step 2; Variables shows x1 (ra) = 0x0001000c and x10 (a0) = 0x00000005');
+    await picture(page, 'debug-stopped.png');
+
+    // The bring-up view beside it: the last cycles up to the current one (12), LEDs as the
+    // board shows them: x10 = 5, and the ALU's 5 + 7 = 12 on the result bus in this step.
+    step = 'bring-up view';
+    await runCommand(page, 'Phasewright: Show bring-up view');
+    const board = await webviewFrameWith(page, 'svg.pw-board[data-cycle="12"]');
+    const leds = (name) => board.locator(`svg.pw-board g.ind[data-name="${name}"] circle.led`).evaluateAll((cs) => cs.map((c) => (c.classList.contains('on') ? '1' : c.classList.contains('off') ? '0' : c.classList[1])).join(''));
+    expectEqual(await leds('x10'), (5).toString(2).padStart(32, '0'), 'x10 LEDs');
+    expectEqual(await leds('result'), (12).toString(2).padStart(32, '0'), 'result bus LEDs');
+    expectEqual(await leds('step'), '010', 'step counter LEDs');
+    const cells = await board.locator('svg.pw-board [data-pick]').evaluateAll((cs) => cs.map((c) => c.getAttribute('data-pick')).join(' '));
+    expectEqual(cells, '0 1 2 3 4 5 6 7 8 9 10 11 12', 'cycles in the strip');
+    // Picking a cycle in the strip redraws that cycle (fetch step 0 of the second addi).
+    await board.locator('svg.pw-board [data-pick="3"]').click();
+    await board.locator('svg.pw-board[data-cycle="3"]').waitFor({ state: 'visible' });
+    await board.locator('svg.pw-board [data-pick="12"]').click();
+    await board.locator('svg.pw-board[data-cycle="12"]').waitFor({ state: 'visible' });
+    log('bring-up view shows cycles 0-12 at the stop: x10 = 5, result = 12, step 010; picking cycle 3 redraws it');
+    // The board wants the height: the debug console gives way for the picture.
+    await runCommand(page, 'View: Toggle Panel Visibility');
+    await page.locator('.part.panel').waitFor({ state: 'hidden' });
+    await picture(page, 'bring-up.png');
+    await runCommand(page, 'Debug: Stop');
+    await page.locator('.debug-toolbar').waitFor({ state: 'hidden' });
+    await page.locator('.tab', { hasText: 'Bring-up' }).locator('.codicon-close').click();
+    // Back to BRANCH, which the diagram's picture below shows (the diagram followed the cursor to OP).
+    await goToLine(page, demoLine('3 if taken'));
+    await frame.locator('svg.pw-timing[data-class="BRANCH"]').waitFor({ state: 'visible' });
 
     // A picture of the diagram alone, for the documentation. Only a picture: if the layout
     // change does not happen (focus sometimes stays in the webview), the checks above stand.

@@ -21,7 +21,7 @@ describe('manifest', () => {
     expect(pkg.contributes.breakpoints).toEqual([{ language: 'phasewright' }]);
     expect(pkg.contributes.debuggers.map((d: { type: string }) => d.type)).toEqual(['phasewright']);
     expect(pkg.contributes.debuggers[0].configurationAttributes.launch.required).toEqual(['table', 'program']);
-    expect(pkg.contributes.commands.map((c: { command: string }) => c.command)).toEqual(['phasewright.newMachine', 'phasewright.buildImages', 'phasewright.showTimingDiagram', 'phasewright.showListing', 'phasewright.runProgram']);
+    expect(pkg.contributes.commands.map((c: { command: string }) => c.command)).toEqual(['phasewright.newMachine', 'phasewright.buildImages', 'phasewright.showTimingDiagram', 'phasewright.showListing', 'phasewright.runProgram', 'phasewright.showBringUp']);
     expect(pkg.main).toBe('./dist/client.js');
     expect(pkg.engines.vscode).toBe('^1.91.0');
     expect(pkg.devDependencies['@types/vscode']).toBe('1.91.0');

@@ -475,14 +475,19 @@ export class PhasewrightDebugSession extends DebugSession {
     this.sendEvent(new InvalidatedEvent(['variables']));
   }
 
-  /** `phasewright.bringUp` { from?, count? }: the indicator rows of a range of cycles (default: from the current one). */
+  /**
+   * `phasewright.bringUp` { from?, count? }: the indicator rows of a range of cycles, and the
+   * cycle the session stands at (`current`). Without `from` the range ends at the current cycle
+   * (the last `count` cycles up to it), which is what the bring-up view shows by default.
+   */
   protected customRequest(command: string, response: DebugProtocol.Response, args: Partial<BringUpRequest> | undefined): void {
     if (command !== 'phasewright.bringUp' || !this.launch || !this.machine) return this.sendErrorResponse(response, { id: 9, format: `unknown request ${command}` });
     const { prepared, args: launchArgs } = this.launch;
-    const from = Math.max(0, Math.floor(Number(args?.from ?? this.machine.sim.steps)));
-    const count = Math.min(256, Math.max(1, Math.floor(Number(args?.count ?? 16))));
-    const rows = bringUpRows(prepared.plan, prepared.program, { from, count, reference: launchArgs.lockStep !== false, lines: prepared.analysis.lines });
-    response.body = rows;
+    const current = this.machine.sim.steps;
+    const count = Math.min(256, Math.max(1, Math.floor(Number(args?.count ?? 16)) || 1));
+    const from = args?.from === undefined ? Math.max(0, current - count + 1) : Math.max(0, Math.floor(Number(args.from)) || 0);
+    const rows = bringUpRows(prepared.plan, prepared.program, { from, count: args?.from === undefined ? Math.min(count, current + 1) : count, reference: launchArgs.lockStep !== false, lines: prepared.analysis.lines });
+    response.body = { ...rows, current };
     this.sendResponse(response);
   }
 }

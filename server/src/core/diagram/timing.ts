@@ -7,6 +7,7 @@
 import type { ClassDef, Machine } from '../model/types';
 import { type GuardChoice, choiceText, emptyChoice } from './guardChoice';
 import { type DiagramTheme, paletteCss } from './palette';
+import { esc, font, num, size, text, textWidth } from './svgText';
 import { type TimingModel, type TimingOptions, actsAtClosingEdge, opcodeText, timingModel } from './timingModel';
 
 export interface TimingDiagram {
@@ -21,12 +22,6 @@ export interface RenderOptions {
 }
 
 const rootClass = 'pw-timing';
-const font = 'ui-monospace, "DejaVu Sans Mono", "Cascadia Mono", Menlo, Consolas, monospace';
-/** Font sizes in px and the advance width of one monospace character at each (0.6 em plus a margin). */
-const size = { title: 15, text: 12, small: 10.5 };
-const advance = (px: number) => px * 0.62;
-const textWidth = (text: string, px: number = size.text) => Math.ceil(text.length * advance(px));
-
 const pad = 16;
 const gutter = 14;
 const rowHeight = { strobe: 38, field: 32, bus: 42, word: 19, header: 50 };
@@ -35,35 +30,6 @@ const sectionGap = 12;
 /** Draws one class under one guard choice. */
 export function timingDiagram(machine: Machine, cls: ClassDef, choice: GuardChoice = emptyChoice(), options: TimingOptions & RenderOptions = {}): TimingDiagram {
   return renderTiming(timingModel(machine, cls, choice, options), options);
-}
-
-function esc(text: string): string {
-  return text.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
-}
-
-function num(value: number): string {
-  return String(Math.round(value * 10) / 10);
-}
-
-interface TextOptions {
-  cls?: string;
-  px?: number;
-  anchor?: 'start' | 'middle' | 'end';
-  weight?: 'bold';
-  attrs?: string;
-}
-
-function text(x: number, y: number, content: string, o: TextOptions = {}): string {
-  const attrs = [`x="${num(x)}"`, `y="${num(y)}"`];
-  if (o.cls) attrs.push(`class="${o.cls}"`);
-  // Inline style, because the stylesheet's font size would win over a presentation attribute.
-  const style: string[] = [];
-  if (o.px && o.px !== size.text) style.push(`font-size:${o.px}px`);
-  if (o.weight) style.push(`font-weight:${o.weight}`);
-  if (style.length) attrs.push(`style="${style.join(';')}"`);
-  if (o.anchor && o.anchor !== 'start') attrs.push(`text-anchor="${o.anchor}"`);
-  if (o.attrs) attrs.push(o.attrs);
-  return `<text ${attrs.join(' ')}>${esc(content)}</text>`;
 }
 
 /** A segment in the shape buses are drawn with in data sheets: a box with slanted ends. */
