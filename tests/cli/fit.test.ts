@@ -99,3 +99,30 @@ describe('phasewright fit is safe on every example', () => {
     expect(read.ok && read.equations.length).toBe(28);
   }, 60_000);
 });
+
+describe('phasewright fit on a large store: bounded, interruptible', () => {
+  it('refuses a time bound that is not a number of seconds', async () => {
+    const { code, err } = await fit('examples/halyard-32.pwt', '--time-per-output', 'soon');
+    expect(code).toBe(2);
+    expect(err).toContain('--time-per-output takes a number of seconds');
+  });
+
+  it('stops on Ctrl-C during minimisation of a 20-line store with nothing written and no lock left', async () => {
+    const { spawn } = await import('node:child_process');
+    const { existsSync, mkdirSync, writeFileSync, readdirSync: list } = await import('node:fs');
+    const { store24Table } = await import('../support/hostile');
+    const dir = join(root, 'tests/.tmp/cli-fit-interrupt');
+    mkdirSync(dir, { recursive: true });
+    const demo = readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8');
+    writeFileSync(join(dir, 's20.pwt'), store24Table(demo).replace('address 24', 'address 20').replace('ir[25:15] 13..23', 'ir[22:16] 13..19'));
+    const out = join(dir, `out-${process.pid}`);
+    const child = spawn(process.execPath, [join(root, 'dist/cli.js'), 'fit', join(dir, 's20.pwt'), '--device', 'gal22v10', '--out', out], { stdio: 'ignore' });
+    // Minimising the 20-line store takes tens of seconds; interrupt it well inside that.
+    await new Promise((r) => setTimeout(r, 3000));
+    child.kill('SIGINT');
+    const ended = await new Promise<{ code: number | null; signal: string | null }>((r) => child.on('exit', (code, signal) => r({ code, signal })));
+    expect(ended.signal ?? ended.code).toBe(ended.signal ? 'SIGINT' : 130);
+    // Files are written only after minimisation, all or nothing: there is nothing to clean up.
+    expect(existsSync(out) ? list(out) : []).toEqual([]);
+  }, 60_000);
+});

@@ -36,6 +36,7 @@ import type { Machine } from '../../core/model/types';
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { readJsonFile, readSource } from '../readSource';
+import { progressLine } from '../progress';
 import { readInputFile } from '../inputFile';
 import { ManifestError } from '../output/manifest';
 import { writeOutputSet } from '../output/outputSet';
@@ -44,6 +45,9 @@ import { textTable } from '../textTable';
 import { VERSION } from '../version';
 
 const deviceNames: Record<string, DeviceName> = { gal16v8: 'GAL16V8', gal22v10: 'GAL22V10' };
+
+/** The default time bound of minimisation per output, in seconds. */
+const DEFAULT_SECONDS_PER_OUTPUT = 10;
 
 export const fitCommand = defineCommand({
   name: 'fit',
@@ -58,6 +62,7 @@ export const fitCommand = defineCommand({
     { name: 'keep-fill', help: 'keep the whole fill word at addresses no step covers (by default fields and one driver per bus may take any value there)' },
     { name: 'vectors', value: 'N', help: 'at most N test vectors per fuse map (0 for none; default: every care address)' },
     { name: 'mode', value: 'MODE', help: 'the device mode: auto (default), simple or complex for the GAL16V8, combinational for the GAL22V10' },
+    { name: 'time-per-output', value: 'SECONDS', help: `how long minimisation may improve one output before it keeps the correct cover it has (default ${DEFAULT_SECONDS_PER_OUTPUT}; 0 for no bound)` },
   ],
   exitCodes: [
     [0, 'everything fits; fuse maps, equations and Verilog written'],
@@ -98,6 +103,12 @@ export const fitCommand = defineCommand({
       io.err(`phasewright fit: --vectors takes a whole number (0 for none)\n`);
       return 2;
     }
+    const timeOption = parsed.options.get('time-per-output');
+    const seconds = typeof timeOption === 'string' ? Number(timeOption) : DEFAULT_SECONDS_PER_OUTPUT;
+    if (!(Number.isFinite(seconds) && seconds >= 0)) {
+      io.err(`phasewright fit: --time-per-output takes a number of seconds (0 for no bound)\n`);
+      return 2;
+    }
     const analysis = analyse(source.text);
     const errors = errorCount(analysis.diagnostics);
     if (errors) {
@@ -125,13 +136,22 @@ export const fitCommand = defineCommand({
       io.err(`phasewright fit: no outputs selected${wanted ? ` (--outputs ${wanted.join(',')} matches no signal of store ${store.name})` : ''}\n`);
       return 2;
     }
+    // On a terminal, a progress line counts the outputs; Ctrl-C stops the process before
+    // anything is written (files are written only after minimisation, all or nothing).
+    const progress = progressLine(io, 'minimising');
     const started = Date.now();
-    const minimised = minimise(table, { polarity: 'best' });
+    const minimised = minimise(table, {
+      polarity: 'best',
+      timePerOutputMs: seconds > 0 ? seconds * 1000 : undefined,
+      onProgress: (done, total, name) => progress.update(done, total, name),
+    });
+    progress.finish();
     const minimisedMs = Date.now() - started;
     const fit = fitDevices(minimised, { device, pins, mode: typeof parsed.options.get('mode') === 'string' ? (parsed.options.get('mode') as string) : undefined });
     const title = `${machine.title || stem(file, store.name)}, store ${store.name}`;
     const lines: string[] = [];
     lines.push(`${title}: ${table.outputs.length} outputs of ${table.nInputs} address inputs, ${minimised.outputs.reduce((n, o) => n + o.terms.length, 0)} product terms (minimised in ${minimisedMs} ms)`);
+    for (const o of minimised.outputs) if (o.note) lines.push(`note: "${o.name}": ${o.note}`);
     if (!fit.ok) {
       lines.push(`does not fit ${device} devices:`);
       for (const p of fit.problems) {

@@ -609,6 +609,13 @@ export function makeSparse(cover: readonly Cube[], dc: readonly Cube[], space: C
 export interface EspressoOptions {
   /** When given, receives every prime produced on the way (for a later covering step). */
   readonly pool?: PrimePool;
+  /**
+   * Time bound: when `timeUp()` says so, the improvement passes stop and the cover reached so
+   * far is returned (it is a correct cover after the first EXPAND/IRREDUNDANT, only perhaps not
+   * the smallest). `stopped.early` is then set.
+   */
+  readonly timeUp?: () => boolean;
+  readonly stopped?: { early: boolean };
 }
 
 /**
@@ -625,6 +632,13 @@ export function espresso(problem: EspressoProblem, options: EspressoOptions = {}
   const dc = problem.dc.filter((c) => !isInputVoid(c, space) && (c.outs & space.outputMask) !== 0);
   const off = splitOutputs(problem.off ?? complement([...on, ...dc], space), space);
 
+  const timeUp = () => {
+    if (!options.timeUp?.()) return false;
+    if (options.stopped) options.stopped.early = true;
+    return true;
+  };
+  // The first EXPAND and IRREDUNDANT always run to the end: only then is the cover both correct
+  // and of a useful size. The time bound stops the improvement passes after them.
   let cover = expand(on, off, space, pool);
   cover = irredundant(cover, dc, space);
   const essentials = new Set(essentialIndexes(cover, dc, space));
@@ -637,7 +651,7 @@ export function espresso(problem: EspressoProblem, options: EspressoOptions = {}
     // REDUCE order before giving up.
     let order: ReduceOrder = 'largest-first';
     let idlePasses = 0;
-    while (idlePasses < 2) {
+    while (idlePasses < 2 && !timeUp()) {
       const before = coverCost(cover, space);
       const next = irredundant(expand(reduce(cover, dcWithEssentials, space, order), off, space, pool), dcWithEssentials, space);
       const after = coverCost(next, space);
@@ -645,6 +659,7 @@ export function espresso(problem: EspressoProblem, options: EspressoOptions = {}
       idlePasses = after < before ? 0 : idlePasses + 1;
       order = order === 'largest-first' ? 'weight' : 'largest-first';
     }
+    if (timeUp()) break;
     const gasp = lastGasp(cover, dcWithEssentials, off, space, pool);
     if (gasp && coverCost(gasp, space) < coverCost(cover, space)) {
       cover = gasp;

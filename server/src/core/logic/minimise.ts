@@ -22,6 +22,15 @@ export interface MinimiseOptions {
   readonly shareTerms?: boolean;
   /** Names of the outputs to minimise; all when absent. */
   readonly outputs?: readonly string[];
+  /**
+   * Time bound per output, in milliseconds: past it, improvement stops and the correct cover
+   * reached so far is kept, with a note (it may have more terms than needed). Default: none.
+   */
+  readonly timePerOutputMs?: number;
+  /** The clock the time bound reads (milliseconds); tests give their own. */
+  readonly clock?: () => number;
+  /** Called after each output: how many of how many are done, and the one just finished. */
+  readonly onProgress?: (done: number, total: number, name: string) => void;
 }
 
 export type MinimiseMethod = 'exact' | 'exact-on-support' | 'espresso' | 'espresso-shared';
@@ -35,6 +44,8 @@ export interface MinimisedOutput {
   readonly method: MinimiseMethod;
   /** True when the term count is proven minimal for the chosen polarity. */
   readonly provedMinimal: boolean;
+  /** Set when the time bound stopped the minimisation early: what was kept and why. */
+  readonly note?: string;
 }
 
 export interface Minimised {
@@ -246,11 +257,19 @@ const EXACT_ATTEMPT_PRIME_LIMIT = 1500;
  * primes dropped in earlier iterations can sometimes make a smaller cover. The smaller of the
  * two covers is kept.
  */
-function minimiseEspressoSingle(f: FunctionBits): SingleResult {
+/** The time bound of one output's minimisation: whether it is up, and whether it stopped anything. */
+interface TimeBound {
+  readonly timeUp: () => boolean;
+  readonly stopped: { early: boolean };
+}
+
+const unbounded: TimeBound = { timeUp: () => false, stopped: { early: false } };
+
+function minimiseEspressoSingle(f: FunctionBits, bound: TimeBound = unbounded): SingleResult {
   const space = makeSpace(f.nInputs, 1);
   const covers = coversOf([f], space);
   const pool = new PrimePool();
-  const cover = espresso({ space, ...covers }, { pool });
+  const cover = espresso({ space, ...covers }, { pool, timeUp: bound.timeUp, stopped: bound.stopped });
   const result: SingleResult = { terms: cover.map((c) => termFromCube(c, space)), method: 'espresso', provedMinimal: false };
   const pooled = coverFromPool(f, pool.primes().map((c) => termFromCube(c, space)));
   return pooled ? better(result, { terms: pooled, method: 'espresso', provedMinimal: false }) : result;
@@ -294,7 +313,7 @@ function exactResult(f: FunctionBits, nodeLimit: number, maxPrimes?: number): Si
  * cover found and Espresso when the covering search cannot prove a minimum), and Espresso
  * above, improved where possible by exact minimisation on the inputs the output really needs.
  */
-function minimiseSingle(f: FunctionBits, method: 'auto' | 'exact' | 'espresso'): SingleResult {
+function minimiseSingle(f: FunctionBits, method: 'auto' | 'exact' | 'espresso', bound: TimeBound = unbounded): SingleResult {
   if (method === 'exact') {
     if (f.nInputs > MAX_EXACT_INPUTS) {
       throw new LogicInputError(
@@ -303,12 +322,13 @@ function minimiseSingle(f: FunctionBits, method: 'auto' | 'exact' | 'espresso'):
     }
     return exactResult(f, 50000)!;
   }
-  if (method === 'espresso') return minimiseEspressoSingle(f);
+  if (method === 'espresso') return minimiseEspressoSingle(f, bound);
   if (f.nInputs <= MAX_EXACT_INPUTS) {
     const exact = exactResult(f, COVER_NODE_LIMIT)!;
-    return exact.provedMinimal ? exact : better(exact, minimiseEspressoSingle(f));
+    return exact.provedMinimal ? exact : better(exact, minimiseEspressoSingle(f, bound));
   }
-  let result = minimiseEspressoSingle(f);
+  let result = minimiseEspressoSingle(f, bound);
+  if (bound.timeUp()) return result;
   // Many control outputs depend on few address lines: minimise exactly on those alone when
   // they are few enough, and keep whichever cover is smaller.
   const { kept, reduced } = reduceSupport(f);
@@ -356,23 +376,32 @@ export function minimise(table: TruthTable, options: MinimiseOptions = {}): Mini
   const polarity = options.polarity ?? 'positive';
   const selected = selectOutputs(table, options.outputs);
 
-  const singles = selected.map((outputIndex) => {
+  const clock = options.clock ?? Date.now;
+  const singles = selected.map((outputIndex, k) => {
     const output = table.outputs[outputIndex];
     const f: FunctionBits = { on: output.on, dc: output.dc, nInputs: table.nInputs };
-    const positive = minimiseSingle(f, method);
-    if (polarity === 'positive') return { outputIndex, inverted: false, result: positive };
-    const negative = minimiseSingle(complementFunction(f), method);
-    const inverted = negative.terms.length < positive.terms.length;
-    return { outputIndex, inverted, result: inverted ? negative : positive };
+    // One bound for the whole output, both polarities: the complement is tried only with time left.
+    const deadline = options.timePerOutputMs === undefined ? Infinity : clock() + options.timePerOutputMs;
+    const bound: TimeBound = { timeUp: () => clock() >= deadline, stopped: { early: false } };
+    const positive = minimiseSingle(f, method, bound);
+    let chosen = { outputIndex, inverted: false, result: positive, stopped: bound.stopped.early };
+    if (polarity === 'best' && !bound.timeUp()) {
+      const negative = minimiseSingle(complementFunction(f), method, bound);
+      if (negative.terms.length < positive.terms.length) chosen = { outputIndex, inverted: true, result: negative, stopped: bound.stopped.early };
+    } else if (polarity === 'best') chosen.stopped = true;
+    options.onProgress?.(k + 1, selected.length, output.name);
+    return chosen;
   });
 
-  let outputs: MinimisedOutput[] = singles.map(({ outputIndex, inverted, result }) => ({
+  const seconds = (options.timePerOutputMs ?? 0) / 1000;
+  let outputs: MinimisedOutput[] = singles.map(({ outputIndex, inverted, result, stopped }) => ({
     name: table.outputs[outputIndex].name,
     outputIndex,
     inverted,
     terms: result.terms,
     method: result.method,
-    provedMinimal: result.provedMinimal,
+    provedMinimal: result.provedMinimal && !stopped,
+    ...(stopped ? { note: `minimisation stopped after ${seconds} s (the time bound per output): the cover kept is correct at every address, but may have more terms than needed` } : {}),
   }));
 
   if (options.shareTerms && outputs.length > 1) outputs = shareTerms(table, outputs);
