@@ -160,8 +160,9 @@ export function executeInstruction(T: Terms, plan: SimPlan, start: Start, previo
   let undefinedCount = 0;
   const fresh = (why: string) => T.variable(`undefined.${undefinedCount++}.${why}`, 32);
 
-  const finish = (s: State, ending: PathEnding) =>
+  const finish = (s: State, ending: PathEnding): void => {
     paths.push({ condition: s.condition, ending, pc: s.parts[plan.pcPart], ...(s.pcWriter && { pcWriter: s.pcWriter }), registerWrites: s.registerWrites, memoryWrites: s.memoryWrites, steps: s.steps });
+  };
 
   /** The words the lines can form at `step`, each with the condition to get there. */
   const choices = (s: State, step: number): { word: number; address: number; condition: Term[] }[] | string => {

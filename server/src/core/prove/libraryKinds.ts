@@ -92,7 +92,7 @@ export function immediateResult(T: Terms, fmt: string, ir: Term): Term {
 export function compareResult(T: Terms, condition: { funct3: true } | { test: string }, a: Term, b: Term, ir: Term): Term {
   const def = kind('compare');
   const latch = def.edges.find((e) => e.name === 'latch')!.assigns[0].expr;
-  const choices = 'funct3' in condition ? { cond: 'funct3' } : { cond: 'field', test: condition.test };
+  const choices: Record<string, string> = 'funct3' in condition ? { cond: 'funct3' } : { cond: 'field', test: condition.test };
   return run(T, def, latch, { terms: { a, b, ir }, choices }, 1);
 }
 
