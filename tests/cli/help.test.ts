@@ -25,7 +25,7 @@ describe('help', () => {
   it('lists every command in the overview, with `help` itself', async () => {
     const r = await run('help');
     expect(r.code).toBe(0);
-    expect(await listedCommands()).toEqual(['check', 'explain', 'build', 'diff', 'budget', 'fit', 'diagram', 'run', 'compile', 'lsp', 'debug', 'trace']);
+    expect(await listedCommands()).toEqual(['check', 'explain', 'build', 'diff', 'budget', 'fit', 'diagram', 'run', 'prove', 'compile', 'lsp', 'debug', 'trace']);
     expect(r.out).toContain('  phasewright help [COMMAND]\n');
   });
 

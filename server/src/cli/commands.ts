@@ -18,10 +18,11 @@ import { diagramCommand } from './commands/diagram';
 import { budgetCommand } from './commands/budget';
 import { fitCommand } from './commands/fit';
 import { compileCommand } from './commands/compile';
+import { proveCommand } from './commands/prove';
 
 export type { Command } from './help';
 
-export const commands: readonly Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand, fitCommand, diagramCommand, runProgramCommand, compileCommand, lspCommand, debugCommand, traceCommand];
+export const commands: readonly Command[] = [checkCommand, explainCommand, buildCommand, diffCommand, budgetCommand, fitCommand, diagramCommand, runProgramCommand, proveCommand, compileCommand, lspCommand, debugCommand, traceCommand];
 
 export function usage(): string {
   const lines = ['Phasewright: control tables for microcoded RV32I processors built from discrete logic.', '', 'Usage:'];

@@ -1,0 +1,74 @@
+// `phasewright prove FILE [--json] [--instruction NAME]`: proves that the table's encoded control
+// store implements each RV32I instruction for all operand values (server/src/core/prove), with
+// Debian's z3 deciding each obligation (../z3Solver.ts). One line per instruction (verdict,
+// time); a refutation is followed by its counterexample in full.
+import { resolve } from 'node:path';
+import { analyse } from '../../core/analysis';
+import { instructionByMnemonic } from '../../core/isa/rv32i';
+import { cannotProve, describeCounterexample, proveMachine } from '../../core/prove';
+import { SimPlan } from '../../core/sim/plan';
+import { parseArgs } from '../args';
+import { defineCommand } from '../help';
+import { readSource } from '../readSource';
+import { z3Solver } from '../z3Solver';
+
+export const proveCommand = defineCommand({
+  name: 'prove',
+  summary: 'prove the encoded control store implements RV32I for all operand values',
+  operands: 'FILE',
+  options: [
+    { name: 'json', help: 'print the verdicts as JSON data (per instruction: verdict, milliseconds, counterexample or reason)' },
+    { name: 'instruction', value: 'NAME', help: 'prove only this instruction (an RV32I mnemonic such as addi); may be given once' },
+  ],
+  exitCodes: [
+    [0, 'every instruction proved'],
+    [1, 'some instruction refuted (its counterexample is printed)'],
+    [2, 'usage error, a file that cannot be read, a table with errors, or a machine the prover cannot run'],
+    [3, 'nothing refuted, but some instruction could not be decided (the reason is printed)'],
+  ],
+  async run(args, io) {
+    const parsed = parseArgs(args, this.options);
+    if (parsed.errors.length || parsed.positionals.length !== 1) {
+      io.err(`phasewright prove: ${parsed.errors[0] ?? 'give one table file'}\nusage: phasewright ${this.usage}\n`);
+      return 2;
+    }
+    const file = parsed.positionals[0];
+    const name = parsed.options.get('instruction');
+    const only = typeof name === 'string' ? [name.toLowerCase()] : undefined;
+    if (only && !instructionByMnemonic(only[0])) {
+      io.err(`phasewright prove: \`${name}\` is not an RV32I instruction (give a mnemonic such as addi or beq)\n`);
+      return 2;
+    }
+    const source = readSource(resolve(io.cwd, file));
+    if (!source.ok) {
+      io.err(`phasewright prove: ${source.reason.replace(resolve(io.cwd, file), file)}\n`);
+      return 2;
+    }
+    const analysis = analyse(source.text);
+    if (analysis.counts.error > 0) {
+      io.err(`phasewright prove: ${file} has ${analysis.counts.error} error(s); run \`phasewright check ${file}\` and fix them first\n`);
+      return 2;
+    }
+    const built = SimPlan.build(analysis.machine);
+    const why = built.ok ? cannotProve(built.plan) : built.errors.join('; ');
+    if (!built.ok || why) {
+      io.err(`phasewright prove: ${file}: ${why}\n`);
+      return 2;
+    }
+    const results = await proveMachine(built.plan, z3Solver(), { only });
+    if (parsed.options.has('json')) {
+      io.out(JSON.stringify({ file, solver: 'z3', results }, null, 2) + '\n');
+    } else {
+      for (const r of results) {
+        const v = r.verdict;
+        const detail = v.kind === 'proved' ? (v.obligations ? `${v.obligations} obligation${v.obligations > 1 ? 's' : ''}` : 'traps to the environment on every path') : v.kind === 'unknown' ? v.reason : v.description;
+        io.out(`${r.mnemonic.padEnd(6)} ${v.kind.padEnd(8)} ${String(r.milliseconds).padStart(6)} ms  ${detail}\n`);
+        if (v.kind === 'refuted') io.out(describeCounterexample(v.counterexample).join('\n') + '\n');
+      }
+      const count = (k: string) => results.filter((r) => r.verdict.kind === k).length;
+      io.out(`${file}: ${count('proved')} proved, ${count('refuted')} refuted, ${count('unknown')} unknown of ${results.length}\n`);
+    }
+    if (results.some((r) => r.verdict.kind === 'refuted')) return 1;
+    return results.some((r) => r.verdict.kind === 'unknown') ? 3 : 0;
+  },
+});
