@@ -157,6 +157,7 @@ export class CustomParts {
 
   /** The machine a compiled port runs on right now (element reads go through it). */
   current: CustomAccess | undefined;
+  private refreshed: PartRuntime[] | undefined;
 
   /** Whether a strobe acts on a part run here through a port of its definition (else the built-in path runs it). */
   runs(strobe: Strobe): boolean {
@@ -338,7 +339,9 @@ export class CustomParts {
 
   /** Part values and flags from the current state (after reset and after every commit). */
   refresh(m: CustomAccess, flags: Uint8Array): void {
-    for (const rt of this.runtimes) {
+    // Only parts with a mirrored state or flags have anything to refresh (this runs every step).
+    this.refreshed ??= this.runtimes.filter((rt) => rt.mirror >= 0 || rt.flags);
+    for (const rt of this.refreshed) {
       if (rt.mirror >= 0) m.partValue[rt.partNumber] = m.customState[rt.mirror];
       if (rt.flags) {
         const values = rt.flags.run(m);

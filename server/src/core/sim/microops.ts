@@ -46,7 +46,8 @@ export const E_COMPARE = 5; // bus slot = flag, A = condition (or CONDITION_FROM
 export const E_COUNT = 6; // A = part, B = increment, C = mask
 export const E_CLOCK = 7; // bus = data, A = part, B = mask, C = 1 for the instruction register
 // A part run from its kind's definition (a table's own kind; with the plan option
-// `fromDefinitions` every library part too): A = its edge port (plan.custom.edges). It computes from the
+// `fromDefinitions` every library part too): A = its edge port (plan.custom.edges), C = 1 for the
+// instruction register. It computes from the
 // values before the edge, so it runs right after the faults; what it computed is stored once
 // every other action has run (HEADER_CUSTOM).
 export const E_CUSTOM = 8;
@@ -353,7 +354,8 @@ export class MicroOps {
     if (plan.custom.runs(strobe)) {
       const op = plan.custom.edge(strobe, fields, bus);
       if ('problem' in op) return fault(`${op.problem}, while \`${strobe.name}\` acts at the closing edge`);
-      return { ...base, op: E_CUSTOM, a: op.index, reads: op.reads };
+      // C = 1 when the port loads the instruction register (the simulator notes the first fetch).
+      return { ...base, op: E_CUSTOM, a: op.index, c: plan.partIndex.get(part.name) === plan.irPart ? 1 : 0, reads: op.reads };
     }
     if (strobe.kind === 'write') {
       if (part.kind !== 'memory') return fault(`\`${strobe.name}\` writes to \`${part.name}\`, which is not a memory`);

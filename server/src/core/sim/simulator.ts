@@ -540,6 +540,7 @@ export class BusSimulator implements MachineAccess {
           case 8: // E_CUSTOM: computes from the values before the edge; stored below
             this.custom.ir = ir;
             plan.custom.edges[code[p + 2]](this.custom, this.customStage);
+            if (code[p + 4] !== 0) this.instructionLoaded = true;
             break;
         }
       }
