@@ -10,6 +10,7 @@ import { SparseMemory } from '../../server/src/core/isa/memory';
 import { encodeInstruction, type EncodeOperands } from '../../server/src/core/isa/rv32i';
 import { ProgramRun, type ProgramRunOptions, type RunEnding } from '../../server/src/core/sim/lockstep';
 import { SimPlan } from '../../server/src/core/sim/plan';
+import type { BusSimulator } from '../../server/src/core/sim/simulator';
 import type { LoadedProgram } from '../../server/src/core/sim/program';
 
 export const REPO = join(__dirname, '..', '..');
@@ -99,4 +100,41 @@ export function ensureCli(): void {
   const newest = Math.max(...sources.map((f) => statSync(f).mtimeMs));
   if (existsSync(CLI) && statSync(CLI).mtimeMs >= newest) return;
   execFileSync(process.execPath, [join(REPO, 'scripts', 'build.mjs')], { cwd: REPO, stdio: 'pipe' });
+}
+
+/** The state both machines must agree on after a step (a bus's value counts only while it is defined). */
+export function stateOf(sim: BusSimulator): string {
+  const buses = [...sim.busValue].map((v, b) => (sim.isBusDefined(b) ? (v >>> 0).toString(16) : '-'));
+  return [`step ${sim.step} of ${sim.steps}, retired ${sim.instructionsRetired}`, `x ${[...sim.regs].map((v) => (v >>> 0).toString(16)).join(' ')}`, `parts ${[...sim.partValue].map((v) => (v >>> 0).toString(16)).join(' ')}`, `flags ${[...sim.flags].join('')}`, `buses ${buses.join(' ')}`, `writes ${JSON.stringify(sim.writes(true))}`, `stop ${JSON.stringify(sim.stopReason)}`].join('\n');
+}
+
+/** Whether two machines hold the same state after a step (typed arrays compared in place: this runs every step). */
+export function sameState(a: BusSimulator, b: BusSimulator): boolean {
+  if (a.step !== b.step || a.steps !== b.steps || a.instructionsRetired !== b.instructionsRetired || a.definedMask !== b.definedMask || a.writeCount !== b.writeCount || a.lastWriteCount !== b.lastWriteCount) return false;
+  for (let i = 0; i < a.regs.length; i++) if (a.regs[i] !== b.regs[i]) return false;
+  for (let i = 0; i < a.partValue.length; i++) if (a.partValue[i] !== b.partValue[i]) return false;
+  for (let i = 0; i < a.flags.length; i++) if (a.flags[i] !== b.flags[i]) return false;
+  for (let i = 0; i < a.busValue.length; i++) if (a.isBusDefined(i) && a.busValue[i] !== b.busValue[i]) return false;
+  for (let i = 0; i < Math.min(Math.max(a.writeCount, a.lastWriteCount), a.writeAddress.length); i++) if (a.writeAddress[i] !== b.writeAddress[i] || a.writeSize[i] !== b.writeSize[i] || a.writeValue[i] !== b.writeValue[i]) return false;
+  return true;
+}
+
+/**
+ * Runs two machines one step at a time until both stop (or `maxSteps`), expecting the same
+ * state after every step; returns the steps run. The readable comparison, and its report, is
+ * made only where the quick one finds a difference.
+ */
+export function runSideBySide(one: BusSimulator, two: BusSimulator, maxSteps: number): number {
+  expect(stateOf(two)).toBe(stateOf(one));
+  let steps = 0;
+  while (steps < maxSteps) {
+    const x = one.run(1);
+    const y = two.run(1);
+    steps++;
+    if (!sameState(one, two) || x.kind !== y.kind) expect({ step: steps, outcome: y, state: stateOf(two) }).toEqual({ step: steps, outcome: x, state: stateOf(one) });
+    if (x.kind === 'stopped') break;
+  }
+  expect(stateOf(two)).toBe(stateOf(one));
+  expect(two.environment.stdoutText()).toBe(one.environment.stdoutText());
+  return steps;
 }

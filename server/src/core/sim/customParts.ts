@@ -4,19 +4,28 @@
 // checkpoint copies it with the rest of the machine); a part's first state is mirrored into its
 // part value so traces, and parts that read it as an input, see what it holds.
 //
+// With the plan option `fromDefinitions`, the standard library's parts run here too, read as
+// parts of their kinds' definitions (model/libraryParts.ts). Their state lives where the
+// built-in path keeps it, so the environment, lock-step comparison, traces and the debugger read
+// it unchanged: a register's, counter's or instruction register's `q` is its part value, a
+// register file's `r` the simulator's register file, a memory's `x memory` the program memory.
+//
 // Timing (docs/notation.md, "Timing model"): a drive port is combinational for the whole step;
 // at the closing edge every edge port of every part computes from the values before the edge,
 // then all of them are stored at once, then the flags are read from the new state.
 import type { CustomPart, Field, Machine, Strobe } from '../model/types';
 import type { Memory } from '../isa/memory';
-import { compilePort, sizeOf } from '../parts/behaviour';
+import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr } from '../parts/behaviour';
 import { edgeInputName } from '../parts/kinds';
 import { customPortBusReads, partSetting } from '../model/buildCustomPart';
+import { asDefinedPart, definedPortOf } from '../model/libraryParts';
 
 /** What a compiled port reads from the running machine. */
 export interface CustomAccess {
   busValue: Int32Array;
   partValue: Int32Array;
+  /** The register files, 32 entries each (a library register file's `r`). */
+  regs: Int32Array;
   ir: number;
   customState: Int32Array;
   /** The program memory (a kind's `x memory` state reads its bytes). */
@@ -27,14 +36,28 @@ export interface CustomAccess {
 
 type Getter = (m: CustomAccess) => number;
 
+/** Where a state is stored (staged edge values name it by this number). */
+const IN_STATE = 0; // customState, from `base`
+const IN_PART = 1; // partValue[base]: a library register's, counter's or instruction register's `q`
+const IN_REGS = 2; // regs, from `base` (register file f at f * 32): a library register file's `r`
+const IN_MEMORY = 3; // the program memory, by byte address
+interface Storage {
+  in: number;
+  base: number;
+}
+
 interface PartRuntime {
   part: CustomPart;
   partNumber: number;
-  /** Slot of each scalar state, by name (an array's first element). */
-  slots: Map<string, number>;
+  /** Where each state is stored. */
+  storage: Map<string, Storage>;
   widths: Map<string, number>;
   /** Register arrays: element count; the program memory: `memory`. */
   arrays: Map<string, number | 'memory'>;
+  /** A table's own part mirrors its first state into its part value (a library part keeps its value where it lives). */
+  mirror: number;
+  /** Reads an element of one of this part's arrays from where it is stored. */
+  element: (array: string, index: number) => number;
   /** Computes every flag from the state; indices into the simulator's flags. */
   flags?: { run: (m: CustomAccess) => number[]; flagNumbers: number[] };
 }
@@ -42,14 +65,23 @@ interface PartRuntime {
 /** Why a port cannot run in this micro-op (a control code that names no value), or the port. */
 export type CustomOp = { index: number; reads: number[] } | { problem: string };
 
+export interface CustomPartsOptions {
+  /** Run the standard library's parts from their definitions too (model/libraryParts.ts). */
+  fromDefinitions?: boolean;
+}
+
 export class CustomParts {
   readonly runtimes: PartRuntime[] = [];
   private readonly byName = new Map<string, PartRuntime>();
   /** Number of scalar state slots of all parts. */
   stateCount = 0;
   readonly resetValues: number[] = [];
+  /** Reset values of states stored in part values (part number, value), set by the simulator at reset. */
+  readonly partResets: { part: number; value: number }[] = [];
+  /** Library parts left on the built-in path, and why (with `fromDefinitions`). */
+  readonly builtIn: { part: string; why: string }[] = [];
   readonly drivers: Getter[] = [];
-  /** Edge ports: each pushes (slot, value) pairs into `stage`. */
+  /** Edge ports: each pushes (storage, index, value) triples into `stage`. */
   readonly edges: ((m: CustomAccess, stage: number[]) => void)[] = [];
 
   constructor(
@@ -57,21 +89,37 @@ export class CustomParts {
     private readonly busIndex: ReadonlyMap<string, number>,
     private readonly partIndex: ReadonlyMap<string, number>,
     flagIndex: ReadonlyMap<string, number>,
+    regfileIndex: ReadonlyMap<string, number> = new Map(),
+    options: CustomPartsOptions = {},
   ) {
-    for (const part of machine.parts.values()) {
-      if (part.kind !== 'custom') continue;
-      const rt: PartRuntime = { part, partNumber: partIndex.get(part.name)!, slots: new Map(), widths: new Map(), arrays: new Map() };
+    for (const original of machine.parts.values()) {
+      if (original.kind !== 'custom' && !options.fromDefinitions) continue;
+      const defined = asDefinedPart(machine, original);
+      if ('problem' in defined) {
+        this.builtIn.push({ part: original.name, why: defined.problem });
+        continue;
+      }
+      const part = defined;
+      const partNumber = partIndex.get(part.name)!;
+      const rt: PartRuntime = { part, partNumber, storage: new Map(), widths: new Map(), arrays: new Map(), mirror: original.kind === 'custom' ? -1 : -2, element: () => 0 };
       for (const state of part.def.states) {
         rt.widths.set(state.name, sizeOf(state.width, part.settings));
         if (state.count === 'memory') {
           rt.arrays.set(state.name, 'memory');
+          rt.storage.set(state.name, { in: IN_MEMORY, base: 0 });
           continue;
         }
         const count = state.count ? sizeOf(state.count, part.settings) : 1;
         if (state.count) rt.arrays.set(state.name, count);
-        rt.slots.set(state.name, this.stateCount);
-        this.stateCount += count;
+        if (original.kind === 'regfile' && state.count) rt.storage.set(state.name, { in: IN_REGS, base: regfileIndex.get(part.name)! * 32 });
+        else if ((original.kind === 'register' || original.kind === 'counter' || original.kind === 'instruction') && !state.count) rt.storage.set(state.name, { in: IN_PART, base: partNumber });
+        else {
+          if (rt.mirror === -1) rt.mirror = this.stateCount;
+          rt.storage.set(state.name, { in: IN_STATE, base: this.stateCount });
+          this.stateCount += count;
+        }
       }
+      rt.element = elementReader(this, rt);
       this.runtimes.push(rt);
       this.byName.set(part.name, rt);
     }
@@ -80,8 +128,8 @@ export class CustomParts {
       const def = rt.part.def;
       const setting = partSetting(this.machine, rt.part);
       for (const state of def.states) {
-        if (state.count === 'memory') continue;
-        const slot = rt.slots.get(state.name)!;
+        const storage = rt.storage.get(state.name)!;
+        if (storage.in === IN_MEMORY || storage.in === IN_REGS) continue; // the program and the register file's reset (sp) are the simulator's
         const count = rt.arrays.get(state.name) ?? 1;
         let value = 0;
         if (state.reset) {
@@ -89,7 +137,8 @@ export class CustomParts {
           // Number settings are already their values; a reset reads nothing that changes.
           value = Number(port.run(port.inputs.map(() => 0))[0]) | 0;
         }
-        for (let k = 0; k < (count as number); k++) this.resetValues[slot + k] = value;
+        if (storage.in === IN_PART) this.partResets.push({ part: storage.base, value });
+        else for (let k = 0; k < (count as number); k++) this.resetValues[storage.base + k] = value;
       }
       if (def.flags.length) {
         const port = compilePort(def, setting, def.flags.map((f) => ({ text: f.expr, width: 1 })));
@@ -107,18 +156,14 @@ export class CustomParts {
   }
 
   /** The machine a compiled port runs on right now (element reads go through it). */
-  private current: CustomAccess | undefined;
-  private currentPart: PartRuntime | undefined;
+  current: CustomAccess | undefined;
+  private refreshed: PartRuntime[] | undefined;
 
-  /** Element reads of register arrays and of the program memory, for the part that runs now. */
-  private readonly arrayAccess = {
-    element: (array: string, index: number): number => {
-      const m = this.current!;
-      const rt = this.currentPart!;
-      if (rt.arrays.get(array) === 'memory') return m.memory.load8(index >>> 0);
-      return m.customState[rt.slots.get(array)! + index] >>> 0;
-    },
-  };
+  /** Whether a strobe acts on a part run here through a port of its definition (else the built-in path runs it). */
+  runs(strobe: Strobe): boolean {
+    const rt = this.byName.get(strobe.part ?? '');
+    return rt !== undefined && definedPortOf(rt.part, strobe) !== undefined;
+  }
 
   /** Problems that stop the simulator from running these parts at all (widths it does not hold). */
   static problems(machine: Machine): string[] {
@@ -143,8 +188,9 @@ export class CustomParts {
   private getter(rt: PartRuntime, name: string, fields: ReadonlyMap<string, number>, edgeBus: number): Getter {
     const part = rt.part;
     if (name === edgeInputName && edgeBus >= 0) return (m) => m.busValue[edgeBus] >>> 0;
-    const slot = rt.slots.get(name);
-    if (slot !== undefined) return (m) => m.customState[slot] >>> 0;
+    const storage = rt.storage.get(name);
+    if (storage?.in === IN_STATE) return (m) => m.customState[storage.base] >>> 0;
+    if (storage?.in === IN_PART) return (m) => m.partValue[storage.base] >>> 0;
     const input = part.inputs.get(name);
     if (input?.from === 'bus') {
       const bus = this.busIndex.get(input.name)!;
@@ -168,21 +214,36 @@ export class CustomParts {
     throw new Error(`custom part ${part.name}: no value for \`${name}\``);
   }
 
-  /** Buses a port reads with this micro-op's control codes (they must be defined, and settle first). */
-  private busReads(rt: PartRuntime, port: string, fields: ReadonlyMap<string, number>): number[] {
+  /** Codes of the part's controls in this micro-op (a control no field drives is absent). */
+  private controlCodes(rt: PartRuntime, fields: ReadonlyMap<string, number>): Map<string, number> {
     const codes = new Map<string, number>();
     for (const control of rt.part.def.controls) {
       const field = this.controlField(rt.part, control.name);
       if (field) codes.set(control.name, fields.get(field.name) ?? field.idle);
     }
-    return customPortBusReads(rt.part, port, codes).map((b) => this.busIndex.get(b)!);
+    return codes;
   }
 
-  /** A control this port reads whose field holds a code that names none of its values. */
-  private unnamedControl(rt: PartRuntime, names: string[], fields: ReadonlyMap<string, number>): string | undefined {
+  /** Buses a port reads with this micro-op's control codes (they must be defined, and settle first). */
+  private busReads(rt: PartRuntime, port: string, fields: ReadonlyMap<string, number>): number[] {
+    return customPortBusReads(rt.part, port, this.controlCodes(rt, fields)).map((b) => this.busIndex.get(b)!);
+  }
+
+  /**
+   * A control this port really reads (its choice settings known: a comparator whose condition
+   * comes from funct3 does not read its `test` control) whose field holds a code that names
+   * none of its values, or that no field drives.
+   */
+  private unnamedControl(rt: PartRuntime, texts: CompileText[], names: string[], fields: ReadonlyMap<string, number>): string | undefined {
+    const choices = choiceCodes(rt.part.def, rt.part.settings);
+    const live = new Set<string>();
+    for (const t of texts) {
+      const expr = parsedExpr(rt.part.def, t.text).expr;
+      if (expr) for (const n of liveNames(expr, choices, (name) => valuesOfChoice(rt.part, name))) live.add(n);
+    }
     for (const name of names) {
       const control = rt.part.def.controls.find((c) => c.name === name);
-      if (!control) continue;
+      if (!control || !live.has(name)) continue;
       const field = this.controlField(rt.part, name);
       if (!field) return `control \`${name}\` of \`${rt.part.name}\` is driven by no field`;
       const code = fields.get(field.name) ?? field.idle;
@@ -195,9 +256,10 @@ export class CustomParts {
   /** The driver of an enable or read strobe on a drive port, for one micro-op's field codes. */
   driver(strobe: Strobe, fields: ReadonlyMap<string, number>): CustomOp {
     const rt = this.byName.get(strobe.part ?? '')!;
-    const drive = rt.part.def.drives.find((d) => d.name === strobe.kindPort)!;
-    const port = compilePort(rt.part.def, partSetting(this.machine, rt.part), [{ text: drive.expr, width: sizeOf(drive.width, rt.part.settings) }], undefined, this.arrayAccess);
-    const problem = this.unnamedControl(rt, port.inputs, fields);
+    const drive = rt.part.def.drives.find((d) => d.name === definedPortOf(rt.part, strobe))!;
+    const texts = [{ text: drive.expr, width: sizeOf(drive.width, rt.part.settings) }];
+    const port = compilePort(rt.part.def, partSetting(this.machine, rt.part), texts, undefined, { element: rt.element });
+    const problem = this.unnamedControl(rt, texts, port.inputs, fields);
     if (problem) return { problem };
     const getters = port.inputs.map((name) => this.getter(rt, name, fields, -1));
     const values = new Array<number>(getters.length);
@@ -205,7 +267,6 @@ export class CustomParts {
     this.drivers.push((m) => {
       for (let i = 0; i < getters.length; i++) values[i] = getters[i](m);
       this.current = m;
-      this.currentPart = rt;
       return Number(run(values)[0]) | 0;
     });
     return { index: this.drivers.length - 1, reads: this.busReads(rt, drive.name, fields) };
@@ -215,38 +276,36 @@ export class CustomParts {
   edge(strobe: Strobe, fields: ReadonlyMap<string, number>, bus: number): CustomOp {
     const rt = this.byName.get(strobe.part ?? '')!;
     const def = rt.part.def;
-    const edge = def.edges.find((e) => e.name === strobe.kindPort)!;
+    const edge = def.edges.find((e) => e.name === definedPortOf(rt.part, strobe))!;
     const texts = edge.assigns.flatMap((a) => [{ text: a.expr, width: rt.widths.get(a.target)! }, ...(a.when ? [{ text: a.when, width: 1 }] : []), ...(a.index ? [{ text: a.index }] : [])]);
     const edgeWidth = edge.width ? sizeOf(edge.width, rt.part.settings) : undefined;
-    const port = compilePort(def, partSetting(this.machine, rt.part), texts, edgeWidth, this.arrayAccess);
-    const problem = this.unnamedControl(rt, port.inputs, fields);
+    const port = compilePort(def, partSetting(this.machine, rt.part), texts, edgeWidth, { element: rt.element });
+    const problem = this.unnamedControl(rt, texts, port.inputs, fields);
     if (problem) return { problem };
     const getters = port.inputs.map((name) => this.getter(rt, name, fields, bus));
     const values = new Array<number>(getters.length);
-    // For each assignment: its slot and where its value and condition stand in the results.
-    // For each assignment: its slot (-1: the program memory), where its value, condition and
-    // index stand in the results, and an array's element count.
-    const plan: { slot: number; value: number; when: number; index: number; count: number }[] = [];
+    // For each assignment: where its target is stored, where its value, condition and index
+    // stand in the results, and an array's element count.
+    const plan: { storage: Storage; value: number; when: number; index: number; count: number }[] = [];
     let k = 0;
     for (const a of edge.assigns) {
       const array = rt.arrays.get(a.target);
       const value = k++;
       const when = a.when ? k++ : -1;
       const index = a.index ? k++ : -1;
-      plan.push({ slot: array === 'memory' ? -1 : rt.slots.get(a.target)!, value, when, index, count: typeof array === 'number' ? array : 1 });
+      plan.push({ storage: rt.storage.get(a.target)!, value, when, index, count: typeof array === 'number' ? array : 1 });
     }
     const run = port.run;
     this.edges.push((m, stage) => {
       for (let i = 0; i < getters.length; i++) values[i] = getters[i](m);
       this.current = m;
-      this.currentPart = rt;
       const out = run(values);
       for (const a of plan) {
         if (a.when >= 0 && Number(out[a.when]) === 0) continue;
         const index = a.index < 0 ? 0 : Number(out[a.index]);
-        // A write to the memory is staged as (-1 - address); an index past an array's end writes nothing.
-        if (a.slot < 0) stage.push(-1 - (index >>> 0), Number(out[a.value]) & 0xff);
-        else if (index < a.count) stage.push(a.slot + index, Number(out[a.value]) | 0);
+        // A write to the memory is staged by its byte address; an index past an array's end writes nothing.
+        if (a.storage.in === IN_MEMORY) stage.push(IN_MEMORY, index >>> 0, Number(out[a.value]) & 0xff);
+        else if (index < a.count) stage.push(a.storage.in, a.storage.base + index, Number(out[a.value]) | 0);
       }
     });
     const reads = this.busReads(rt, edge.name, fields);
@@ -256,9 +315,22 @@ export class CustomParts {
   /** Stores what the edge ports computed, mirrors first states into part values and reads the flags. */
   commit(m: CustomAccess, stage: number[], flags: Uint8Array): void {
     let bytes: { address: number; value: number }[] | undefined;
-    for (let i = 0; i < stage.length; i += 2) {
-      if (stage[i] >= 0) m.customState[stage[i]] = stage[i + 1];
-      else (bytes ??= []).push({ address: (-1 - stage[i]) >>> 0, value: stage[i + 1] });
+    for (let i = 0; i < stage.length; i += 3) {
+      const at = stage[i + 1];
+      const value = stage[i + 2];
+      switch (stage[i]) {
+        case IN_STATE:
+          m.customState[at] = value;
+          break;
+        case IN_PART:
+          m.partValue[at] = value;
+          break;
+        case IN_REGS:
+          m.regs[at] = value;
+          break;
+        default:
+          (bytes ??= []).push({ address: at >>> 0, value });
+      }
     }
     stage.length = 0;
     if (bytes) storeBytes(m, bytes);
@@ -267,9 +339,10 @@ export class CustomParts {
 
   /** Part values and flags from the current state (after reset and after every commit). */
   refresh(m: CustomAccess, flags: Uint8Array): void {
-    for (const rt of this.runtimes) {
-      const first = rt.slots.values().next();
-      if (!first.done) m.partValue[rt.partNumber] = m.customState[first.value];
+    // Only parts with a mirrored state or flags have anything to refresh (this runs every step).
+    this.refreshed ??= this.runtimes.filter((rt) => rt.mirror >= 0 || rt.flags);
+    for (const rt of this.refreshed) {
+      if (rt.mirror >= 0) m.partValue[rt.partNumber] = m.customState[rt.mirror];
       if (rt.flags) {
         const values = rt.flags.run(m);
         rt.flags.flagNumbers.forEach((f, i) => {
@@ -278,6 +351,25 @@ export class CustomParts {
       }
     }
   }
+}
+
+type CompileText = Parameters<typeof compilePort>[2][number];
+
+/** A choice setting's choices by code (the names a `select` on it is keyed by). */
+function valuesOfChoice(part: CustomPart, name: string): ReadonlyMap<string, number> | undefined {
+  const setting = part.def.settings.find((s) => s.name === name);
+  return setting?.type === 'choice' ? new Map(setting.choices.map((c, i) => [c, i])) : undefined;
+}
+
+/** Element reads of one part's register arrays and memory, from where each is stored, on the machine running now. */
+function elementReader(parts: CustomParts, rt: PartRuntime): (array: string, index: number) => number {
+  return (array, index) => {
+    const m = parts.current!;
+    const storage = rt.storage.get(array)!;
+    if (storage.in === IN_MEMORY) return m.memory.load8(index >>> 0);
+    if (storage.in === IN_REGS) return m.regs[storage.base + index] >>> 0;
+    return m.customState[storage.base + index] >>> 0;
+  };
 }
 
 /**

@@ -34,7 +34,7 @@ export const D_ALU = 6; // A = function, B = bus a, C = bus b
 export const D_MEM_PART = 7; // A = size, B = address part
 export const D_MEM_BUS = 8; // A = size, B = address bus
 export const D_CONSTANT = 9; // A = value
-export const D_CUSTOM = 10; // A = driver of a part of the table's own kind (plan.custom.drivers), B = mask of the buses it reads
+export const D_CUSTOM = 10; // A = driver of a part run from its kind's definition (plan.custom.drivers), B = mask of the buses it reads
 
 // Closing-edge operations, in the order they are applied.
 export const E_FAULT = 0; // stop before any update; the message is in MicroOpInfo.edges
@@ -45,7 +45,9 @@ export const E_REG_FIXED = 4; // bus = data, A = register file, B = register num
 export const E_COMPARE = 5; // bus slot = flag, A = condition (or CONDITION_FROM_FUNCT3), B = bus a, C = bus b
 export const E_COUNT = 6; // A = part, B = increment, C = mask
 export const E_CLOCK = 7; // bus = data, A = part, B = mask, C = 1 for the instruction register
-// A part of the table's own kind: A = its edge port (plan.custom.edges). It computes from the
+// A part run from its kind's definition (a table's own kind; with the plan option
+// `fromDefinitions` every library part too): A = its edge port (plan.custom.edges), C = 1 for the
+// instruction register. It computes from the
 // values before the edge, so it runs right after the faults; what it computed is stored once
 // every other action has run (HEADER_CUSTOM).
 export const E_CUSTOM = 8;
@@ -292,12 +294,12 @@ export class MicroOps {
     if (bus === undefined || !part) return undefined;
     const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: [] as number[] };
     const undefinedDriver = (note: string): DriverSpec => ({ ...base, op: D_UNDEFINED, note });
+    if (plan.custom.runs(strobe)) {
+      const op = plan.custom.driver(strobe, fields);
+      if ('problem' in op) return undefinedDriver(op.problem);
+      return { ...base, op: D_CUSTOM, a: op.index, b: op.reads.reduce((m, b) => m | (1 << b), 0), reads: op.reads };
+    }
     switch (part.kind) {
-      case 'custom': {
-        const op = plan.custom.driver(strobe, fields);
-        if ('problem' in op) return undefinedDriver(op.problem);
-        return { ...base, op: D_CUSTOM, a: op.index, b: op.reads.reduce((m, b) => m | (1 << b), 0), reads: op.reads };
-      }
       case 'regfile': {
         const file = plan.regfileIndex.get(part.name)!;
         if (strobe.register !== undefined) return { ...base, op: D_REG_FIXED, a: file, b: strobe.register };
@@ -349,10 +351,11 @@ export class MicroOps {
     const bus = strobe.bus === undefined ? -1 : (plan.busIndex.get(strobe.bus) ?? -1);
     const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: bus >= 0 ? [bus] : [] };
     const fault = (message: string): EdgeSpec => ({ ...base, op: E_FAULT, fault: message, reads: [] });
-    if (part.kind === 'custom') {
+    if (plan.custom.runs(strobe)) {
       const op = plan.custom.edge(strobe, fields, bus);
       if ('problem' in op) return fault(`${op.problem}, while \`${strobe.name}\` acts at the closing edge`);
-      return { ...base, op: E_CUSTOM, a: op.index, reads: op.reads };
+      // C = 1 when the port loads the instruction register (the simulator notes the first fetch).
+      return { ...base, op: E_CUSTOM, a: op.index, c: plan.partIndex.get(part.name) === plan.irPart ? 1 : 0, reads: op.reads };
     }
     if (strobe.kind === 'write') {
       if (part.kind !== 'memory') return fault(`\`${strobe.name}\` writes to \`${part.name}\`, which is not a memory`);

@@ -15,6 +15,16 @@ import type { ClassDef, Machine, Part, RegfilePart, StepAlt, Store } from '../mo
 import { MAX_BUSES, MicroOps } from './microops';
 import { CustomParts } from './customParts';
 
+/** How the plan runs the machine's parts. */
+export interface PlanOptions {
+  /**
+   * Run the standard library's parts from their kinds' definitions (sim/customParts.ts through
+   * model/libraryParts.ts) instead of the built-in operations; off by default. Fixed-register
+   * strobes (`x[n]`) and a memory port without a size field stay on the built-in path.
+   */
+  fromDefinitions?: boolean;
+}
+
 /** One distinct control word of a store, read back from its bits. */
 export interface StoreWord {
   /** The first address holding this word. */
@@ -85,6 +95,7 @@ export class SimPlan {
     stores: StorePlan[],
     pcPart: number,
     irPart: number,
+    readonly options: PlanOptions = {},
   ) {
     this.busNames = [...machine.buses.keys()];
     this.busNames.forEach((name, i) => this.busIndex.set(name, i));
@@ -108,12 +119,12 @@ export class SimPlan {
     machine.classes.forEach((cls, i) => {
       if (cls.opcode !== undefined && this.classOfOpcode[cls.opcode] === -1) this.classOfOpcode[cls.opcode] = i;
     });
-    this.custom = new CustomParts(machine, this.busIndex, this.partIndex, this.flagIndex);
+    this.custom = new CustomParts(machine, this.busIndex, this.partIndex, this.flagIndex, this.regfileIndex, options);
     this.microOps = new MicroOps(this);
   }
 
   /** Builds the plan, or says in plain words why this machine cannot be simulated. */
-  static build(machine: Machine): PlanResult {
+  static build(machine: Machine, options: PlanOptions = {}): PlanResult {
     const errors: string[] = [];
     const parts = [...machine.parts.values()];
     const pc = findProgramCounter(parts);
@@ -144,7 +155,7 @@ export class SimPlan {
     const flagNumbers = new Map([...machine.flags.keys()].map((f, i) => [f, i]));
     const stores: StorePlan[] = [];
     for (const enc of order) stores.push(planStore(machine, enc, stores, flagNumbers));
-    const plan = new SimPlan(machine, encoded, stores, partNumbers.get((pc as Part).name)!, partNumbers.get(ir!.name)!);
+    const plan = new SimPlan(machine, encoded, stores, partNumbers.get((pc as Part).name)!, partNumbers.get(ir!.name)!, options);
     return { ok: true, plan };
   }
 

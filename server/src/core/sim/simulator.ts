@@ -205,7 +205,9 @@ export class BusSimulator implements MachineAccess {
     plan.parts.forEach((part, i) => {
       if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') this.partValue[i] = part.reset & plan.partMask[i];
     });
-    this.custom = { busValue: this.busValue, partValue: this.partValue, ir: 0, customState: this.customState, memory, store: (size, address, value) => this.storeMemory(size, address, value) };
+    // Parts run from their definitions: states kept in part values take their definitions' resets.
+    for (const { part, value } of plan.custom.partResets) this.partValue[part] = value & plan.partMask[part];
+    this.custom = { busValue: this.busValue, partValue: this.partValue, regs: this.regs, ir: 0, customState: this.customState, memory, store: (size, address, value) => this.storeMemory(size, address, value) };
     plan.custom.refresh(this.custom, this.flags);
     this.partValue[plan.pcPart] = entry & plan.partMask[plan.pcPart];
     this.instructionPc = this.partValue[plan.pcPart] >>> 0;
@@ -538,6 +540,7 @@ export class BusSimulator implements MachineAccess {
           case 8: // E_CUSTOM: computes from the values before the edge; stored below
             this.custom.ir = ir;
             plan.custom.edges[code[p + 2]](this.custom, this.customStage);
+            if (code[p + 4] !== 0) this.instructionLoaded = true;
             break;
         }
       }

@@ -36,7 +36,7 @@ kind counter "counter: a register that can also count up by its increment"
   state q width = reset
   drive out width = q
   on load width: q <= select bit0 { kept: in, zero: in & ~1 }
-  on count: q <= q + inc
+  on count: q <= select bit0 { kept: q + inc, zero: (q + inc) & ~1 }
 
 kind regfile "register file: 32 registers selected by the instruction's rs1, rs2 and rd fields"
   setting width number = 32 "bits per register"
