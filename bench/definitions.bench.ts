@@ -7,7 +7,6 @@
 // interpreter). Target (issue 14): the demo described with library parts runs at >= 0.8 x
 // today's instructions per second. Every engine must print the same output and retire the same
 // instructions in the same steps. It reports; it does not fail on a missed target.
-import { execFileSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { cpus, loadavg } from 'node:os';
 import { join } from 'node:path';
@@ -15,7 +14,7 @@ import { analyse } from '../server/src/core/analysis';
 import { ProgramRun } from '../server/src/core/sim/lockstep';
 import { SimPlan, type PlanOptions } from '../server/src/core/sim/plan';
 import { loadProgram } from '../server/src/core/sim/program';
-import { withProgress } from './stats';
+import { builtProgram, millions, withProgress } from './stats';
 
 const root = process.cwd();
 
@@ -27,18 +26,9 @@ interface Measured {
   output: string;
 }
 
-function millions(n: number): string {
-  return `${(n / 1e6).toFixed(2)} M`;
-}
 
 function main(): void {
-  let elfPath: string;
-  try {
-    elfPath = execFileSync(process.execPath, [join(root, 'tests/programs/build.mjs'), 'bench'], { encoding: 'utf8' }).trim().split('\n').pop()!;
-  } catch (err) {
-    console.log(`definitions: cannot build tests/programs/bench.c (is gcc-riscv64-unknown-elf installed?): ${(err as Error).message}`);
-    process.exit(1);
-  }
+  const elfPath = builtProgram('definitions', 'bench');
   const elf = new Uint8Array(readFileSync(elfPath));
   const machine = analyse(readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8')).machine;
   const planOf = (options: PlanOptions) => {

@@ -6,7 +6,7 @@
 // at least 5 million instructions per second through the microcoded model without lock-step, and
 // at least 0.25 of the reference interpreter's rate. Every engine must print the same output.
 // It reports; it does not fail on a missed target (a busy machine would make that noise).
-import { execFileSync, spawnSync } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { cpus, loadavg } from 'node:os';
 import { join } from 'node:path';
@@ -15,7 +15,7 @@ import { createReferenceMachine } from '../server/src/core/isa/interp';
 import { ProgramRun } from '../server/src/core/sim/lockstep';
 import { SimPlan } from '../server/src/core/sim/plan';
 import { loadProgram } from '../server/src/core/sim/program';
-import { withProgress } from './stats';
+import { builtProgram, millions, withProgress } from './stats';
 
 const root = process.cwd();
 const QEMU_CPU = 'rv32,m=false,a=false,f=false,d=false,c=false';
@@ -43,18 +43,9 @@ function cpuNow(): number {
   return (usage.user + usage.system) / 1000;
 }
 
-function millions(n: number): string {
-  return `${(n / 1e6).toFixed(2)} M`;
-}
 
 function main(): void {
-  let elfPath: string;
-  try {
-    elfPath = execFileSync(process.execPath, [join(root, 'tests/programs/build.mjs'), 'bench'], { encoding: 'utf8' }).trim().split('\n').pop()!;
-  } catch (err) {
-    console.log(`sim: cannot build tests/programs/bench.c (is gcc-riscv64-unknown-elf installed?): ${(err as Error).message}`);
-    process.exit(1);
-  }
+  const elfPath = builtProgram('sim', 'bench');
   const elf = new Uint8Array(readFileSync(elfPath));
   const built = SimPlan.build(analyse(readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8')).machine);
   if (!built.ok) throw new Error(built.errors.join('\n'));

@@ -1,6 +1,8 @@
 // Small helpers shared by the benchmarks: timing, medians and percentiles, aligned printing, and
 // a progress line on stderr while a measurement runs (drawn only when stderr is a terminal, by
 // the CLI's own progressLine, and cleared when the measurement ends, before anything is printed).
+import { execFileSync } from 'node:child_process';
+import { join } from 'node:path';
 import { type Io, nodeIo } from '../server/src/cli/io';
 import { type Progress, progressLine } from '../server/src/cli/progress';
 
@@ -62,4 +64,23 @@ export function withProgress<T>(label: string, work: (update: (done: number, tot
 
 export function row(label: string, value: string, target = ''): void {
   console.log(`  ${label.padEnd(46)} ${value.padStart(14)}${target ? `   (target ${target})` : ''}`);
+}
+
+/** A count in millions, for instructions per second. */
+export function millions(n: number): string {
+  return `${(n / 1e6).toFixed(2)} M`;
+}
+
+/**
+ * The path of tests/programs/NAME built as an RV32I ELF (tests/programs/build.mjs, which needs the
+ * cross compiler); exits with one line saying so when it cannot be built.
+ */
+export function builtProgram(bench: string, name: string): string {
+  const root = process.cwd(); // the benchmarks run from the repository's top (npm run bench)
+  try {
+    return execFileSync(process.execPath, [join(root, 'tests/programs/build.mjs'), name], { encoding: 'utf8' }).trim().split('\n').pop()!;
+  } catch (err) {
+    console.log(`${bench}: cannot build tests/programs/${name}.c (is gcc-riscv64-unknown-elf installed?): ${(err as Error).message}`);
+    process.exit(1);
+  }
 }
