@@ -5,6 +5,7 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { gantryWithConnection, gantryWithHalves } from '../support/ownKinds';
+import { hover } from '../../server/src/core/ide/hover';
 
 const gantry = readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8');
 const lui = '  2: imm.fmt=u, imm.oe, bsel=imm, bmux.oe, alu.fn=passb, alu.oe, x.rd.ck, pc.inc, done';
@@ -86,5 +87,19 @@ describe('checks on parts of the table\'s own kinds', () => {
       expect(found[0].message).toContain('`connect pc` and `connect mar` both drive bus `pcb` in every step');
       expect(found[0].line.startsWith('connect mar -> pcb')).toBe(true);
     });
+  });
+
+  it('hover on a part of the table\'s own kind names its kind, settings, inputs and the lines its strobes drive', () => {
+    const halves = gantryWithHalves(gantry);
+    const a = analyse(halves);
+    const at = (needle: string, delta = 0) => hover(a, halves.indexOf(needle) + delta)!.markdown;
+    const part = at('part p4hi', 6);
+    expect(part).toContain('- **kind** `half4` (of this table) — one half of pc + 4');
+    expect(part).toContain('- **settings** half high');
+    expect(part).toContain('- **inputs** x from `pc`');
+    expect(part).toContain('`p4hi.oe` enable p4hi.part → `result[31:16]`');
+    const strobe = at('strobe p4hi.oe', 8);
+    expect(strobe).toContain('- **part** `p4hi`, port `part` — kind `half4` of this table: one half of pc + 4');
+    expect(strobe).toContain('- **bus** `result` — lines 31..16 of 32 (the others are left to other drivers)');
   });
 });

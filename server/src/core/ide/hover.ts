@@ -145,10 +145,13 @@ function strobeHover(machine: Machine, strobe: Strobe): string {
     lines.push(`- **part** none — an \`${strobe.kind}\` strobe acts on the sequencer, not on a part`);
     lines.push('- **bus** none');
   } else {
-    const port = strobe.port ? `, port \`${strobe.port}\`` : '';
-    lines.push(part ? `- **part** \`${part.name}\`${port} — ${partKindText(part.kind)}` : '- **part** not wired (see the wiring error)');
+    const portName = strobe.port ?? (part?.kind === 'custom' ? strobe.kindPort : undefined);
+    const port = portName ? `, port \`${portName}\`` : '';
+    const kindText = part?.kind === 'custom' ? `kind \`${part.kindName}\` of this table${part.def.description ? `: ${part.def.description}` : ''}` : part ? partKindText(part.kind) : '';
+    lines.push(part ? `- **part** \`${part.name}\`${port} — ${kindText}` : '- **part** not wired (see the wiring error)');
     const bus = strobe.bus ? machine.buses.get(strobe.bus) : undefined;
-    if (bus) lines.push(`- **bus** \`${bus.name}\` — ${bus.width} lines, ${bus.keeper ? 'with keepers (holds its last value when undriven)' : 'no keepers (floats when undriven)'}`);
+    const lineText = strobe.lines ? (strobe.lines.hi === strobe.lines.lo ? `line ${strobe.lines.hi} of ${bus?.width} (the others are left to other drivers)` : `lines ${strobe.lines.hi}..${strobe.lines.lo} of ${bus?.width} (the others are left to other drivers)`) : `${bus?.width} lines`;
+    if (bus) lines.push(`- **bus** \`${bus.name}\` — ${lineText}, ${bus.keeper ? 'with keepers (holds its last value when undriven)' : 'no keepers (floats when undriven)'}`);
     else lines.push(`- **bus** none — a \`${strobe.kind}\` strobe ${strobe.kind === 'count' ? 'acts on its counter only' : 'acts on its part only'}`);
   }
   lines.push(`- **level** ${activeLevelText(strobe)}`);
@@ -271,13 +274,23 @@ function busHover(machine: Machine, bus: Bus): string {
 
 function partHover(machine: Machine, part: Part): string {
   const lines = [header('part', part.name, part.description), ''];
-  lines.push(`- **kind** \`${part.kind}\` — ${partKindText(part.kind)}`);
-  lines.push(`- **settings** ${partSettings(part).join('; ')}`);
+  if (part.kind === 'custom') {
+    // A kind of the table's own: its name and description, and the settings its part line gave.
+    lines.push(`- **kind** \`${part.kindName}\` (of this table)${part.def.description ? ` — ${part.def.description}` : ''}`);
+    const settings = [...part.settings].map(([k, v]) => `${k} ${v}`);
+    const inputs = [...part.inputs].map(([k, v]) => `${k} from ${v.from === 'instruction' ? 'the instruction register' : `\`${v.name}\``}`);
+    if (settings.length) lines.push(`- **settings** ${settings.join('; ')}`);
+    if (inputs.length) lines.push(`- **inputs** ${inputs.join('; ')}`);
+  } else {
+    lines.push(`- **kind** \`${part.kind}\` — ${partKindText(part.kind)}`);
+    lines.push(`- **settings** ${partSettings(part).join('; ')}`);
+  }
   lines.push(`- **ports** ${partPorts(part).join('; ')}`);
   const strobes = [...machine.signals.values()].filter((s): s is Strobe => s.type === 'strobe' && s.part === part.name);
+  const busLines = (s: Strobe) => (s.lines ? `[${s.lines.hi}:${s.lines.lo}]` : '');
   const wiring = (s: Strobe) => {
-    const port = s.port ? `.${s.port}` : '';
-    if (s.kind === 'enable' || s.kind === 'read') return `\`${s.name}\` ${s.kind} ${part.name}${port} → \`${s.bus}\``;
+    const port = s.port ? `.${s.port}` : s.kindPort && part.kind === 'custom' ? `.${s.kindPort}` : '';
+    if (s.kind === 'enable' || s.kind === 'read') return `\`${s.name}\` ${s.kind} ${part.name}${port} → \`${s.bus}${busLines(s)}\``;
     if (s.kind === 'clock' || s.kind === 'write') return s.bus ? `\`${s.name}\` ${s.kind} \`${s.bus}\` → ${part.name}${port}` : `\`${s.name}\` ${s.kind}`;
     return `\`${s.name}\` ${s.kind}`;
   };
