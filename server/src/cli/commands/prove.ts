@@ -2,15 +2,22 @@
 // store implements each RV32I instruction for all operand values (server/src/core/prove), with
 // Debian's z3 deciding each obligation (../z3Solver.ts). One line per instruction (verdict,
 // time); a refutation is followed by its counterexample in full.
-import { resolve } from 'node:path';
+import { basename, resolve } from 'node:path';
 import { analyse } from '../../core/analysis';
-import { instructionByMnemonic } from '../../core/isa/rv32i';
-import { cannotProve, describeCounterexample, proveMachine } from '../../core/prove';
+import { RV32I_INSTRUCTIONS, instructionByMnemonic } from '../../core/isa/rv32i';
+import { cannotProve, describeCounterexample, obligationsOf, proveMachine } from '../../core/prove';
 import { SimPlan } from '../../core/sim/plan';
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { readSource } from '../readSource';
+import { ManifestError } from '../output/manifest';
+import { writeOutputSet } from '../output/outputSet';
+import { OutputError } from '../output/safeWriter';
+import { VERSION } from '../version';
 import { z3Solver } from '../z3Solver';
+
+/** What a proof covers and what it does not (issue: scope stated in the docs, the hover and here). */
+const PROOF_SCOPE = 'the table over the datapath as described, for RV32I in user mode (pc aligned, no misaligned-address exceptions); not the wiring, the timing or electrical faults of the board';
 
 export const proveCommand = defineCommand({
   name: 'prove',
@@ -19,11 +26,12 @@ export const proveCommand = defineCommand({
   options: [
     { name: 'json', help: 'print the verdicts as JSON data (per instruction: verdict, milliseconds, counterexample or reason)' },
     { name: 'instruction', value: 'NAME', help: 'prove only this instruction (an RV32I mnemonic such as addi); may be given once' },
+    { name: 'smt', value: 'DIR', help: 'also write every obligation as an SMT-LIB 2 (QF_BV) script into DIR, for any solver to decide again' },
   ],
   exitCodes: [
     [0, 'every instruction proved'],
     [1, 'some instruction refuted (its counterexample is printed)'],
-    [2, 'usage error, a file that cannot be read, a table with errors, or a machine the prover cannot run'],
+    [2, 'usage error, a file that cannot be read, a table with errors, a machine the prover cannot run, or scripts that could not be written'],
     [3, 'nothing refuted, but some instruction could not be decided (the reason is printed)'],
   ],
   async run(args, io) {
@@ -55,9 +63,28 @@ export const proveCommand = defineCommand({
       io.err(`phasewright prove: ${file}: ${why}\n`);
       return 2;
     }
+    const smtOption = parsed.options.get('smt');
+    if (typeof smtOption === 'string') {
+      // Every obligation as the solver sees it, written all or nothing and read back (outputSet).
+      const files: { name: string; format: string; bytes: Buffer }[] = [];
+      for (const spec of RV32I_INSTRUCTIONS) {
+        if (only && !only.includes(spec.mnemonic)) continue;
+        obligationsOf(built.plan, spec).obligations.forEach((o, i) => files.push({ name: `${spec.mnemonic}-${i + 1}.smt2`, format: 'smt-lib', bytes: Buffer.from(o.script, 'utf8') }));
+      }
+      try {
+        const report = writeOutputSet({ folder: resolve(io.cwd, smtOption), command: 'prove', sourceFile: basename(file), version: VERSION, files });
+        io.err(`wrote ${report.files.length} SMT-LIB 2 script(s) into ${smtOption}\n`);
+      } catch (err) {
+        if (err instanceof OutputError || err instanceof ManifestError) {
+          io.err(`phasewright prove: ${err.message}\n`);
+          return 2;
+        }
+        throw err;
+      }
+    }
     const results = await proveMachine(built.plan, z3Solver(), { only });
     if (parsed.options.has('json')) {
-      io.out(JSON.stringify({ file, solver: 'z3', results }, null, 2) + '\n');
+      io.out(JSON.stringify({ file, solver: 'z3', scope: PROOF_SCOPE, results }, null, 2) + '\n');
     } else {
       for (const r of results) {
         const v = r.verdict;
@@ -67,6 +94,7 @@ export const proveCommand = defineCommand({
       }
       const count = (k: string) => results.filter((r) => r.verdict.kind === k).length;
       io.out(`${file}: ${count('proved')} proved, ${count('refuted')} refuted, ${count('unknown')} unknown of ${results.length}\n`);
+      io.out(`scope: ${PROOF_SCOPE}\n`);
     }
     if (results.some((r) => r.verdict.kind === 'refuted')) return 1;
     return results.some((r) => r.verdict.kind === 'unknown') ? 3 : 0;
