@@ -12,14 +12,14 @@ import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { ProgramRun } from '../../server/src/core/sim/lockstep';
 import { loadProgram } from '../../server/src/core/sim/program';
-import { figuresOf } from '../../server/src/core/sim/summary';
 import { RV32I_INSTRUCTIONS } from '../../server/src/core/isa/rv32i';
 import { analyse } from '../../server/src/core/analysis';
 import { haveTools } from '../support/tools';
-import { QEMU, qemuStatus, runQemu, type QemuRun } from '../isa/support/riscv-tools';
+import { QEMU, runQemu, type QemuRun } from '../isa/support/riscv-tools';
 import { buildPrograms, type BuiltProgram } from '../programs/build.mjs';
 import { CLI, REPO, ensureCli, planOf } from '../sim/support';
 import { gantryWithConnection, gantryWithHalves } from '../support/ownKinds';
+import { expectSameAsQemu, retiredMnemonics } from '../support/programRuns';
 
 const toolsPresent = haveTools(['riscv64-unknown-elf-gcc'], 'gcc-riscv64-unknown-elf') && haveTools([QEMU], 'qemu-user');
 
@@ -71,25 +71,13 @@ describe.skipIf(!toolsPresent).each(EXAMPLES)('test programs through %s (kinds o
   it.each(NAMES)('%s: same stdout and exit code, program stderr first, no divergence', (name) => {
     const q = qemu.get(name)!;
     const o = ours.get(name)!;
-    expect(o.stdout.toString('latin1')).toBe(q.stdout.toString('latin1'));
-    expect(o.status).toBe(qemuStatus(q));
-    expect(o.stderr.startsWith(q.stderr.toString('latin1'))).toBe(true);
-    expect(o.stderr).not.toContain('DIVERGENCE');
-    expect(o.stderr).not.toContain('MACHINE FAULT');
+    expectSameAsQemu(o, q);
     expect(q.stdout.length).toBeGreaterThan(0);
   });
 
   it('together the programs make all 40 RV32I instructions go through its microcode', () => {
     const plan = planOf(text);
-    const total = new Map<string, number>();
-    for (const program of programs) {
-      const loaded = loadProgram(new Uint8Array(readFileSync(program.elfPath)));
-      if (!loaded.ok) throw new Error(loaded.error);
-      const run = new ProgramRun(plan, loaded.program);
-      while (!run.advance(10_000_000));
-      expect(['exit', 'ebreak']).toContain(run.ending?.kind);
-      for (const [mnemonic, count] of figuresOf(run.sim).mnemonics) total.set(mnemonic, (total.get(mnemonic) ?? 0) + count);
-    }
+    const total = retiredMnemonics(plan, programs.map((p) => p.elfPath));
     expect(RV32I_INSTRUCTIONS.map((s) => s.mnemonic).filter((m) => !(total.get(m)! > 0))).toEqual([]);
   }, 300_000);
 

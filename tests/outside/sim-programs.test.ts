@@ -12,12 +12,12 @@ import { readFileSync } from 'node:fs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { ProgramRun } from '../../server/src/core/sim/lockstep';
 import { loadProgram } from '../../server/src/core/sim/program';
-import { figuresOf } from '../../server/src/core/sim/summary';
 import { RV32I_INSTRUCTIONS } from '../../server/src/core/isa/rv32i';
 import { haveTools } from '../support/tools';
-import { QEMU, qemuStatus, runQemu, type QemuRun } from '../isa/support/riscv-tools';
+import { QEMU, runQemu, type QemuRun } from '../isa/support/riscv-tools';
 import { buildPrograms, type BuiltProgram } from '../programs/build.mjs';
 import { CLI, DEMO_TEXT, REPO, demoWith, ensureCli, planOf } from '../sim/support';
+import { type CliRun, expectSameAsQemu, retiredMnemonics } from '../support/programRuns';
 
 const toolsPresent =
   haveTools(['riscv64-unknown-elf-gcc'], 'gcc-riscv64-unknown-elf') &&
@@ -26,11 +26,6 @@ const toolsPresent =
 
 const NAMES = ['selfcheck', 'syscalls', 'ebreak', 'crc_sieve', 'arith', 'sort', 'bench', 'bench_short'];
 
-interface CliRun {
-  stdout: Buffer;
-  stderr: string;
-  status: number | null;
-}
 
 function runCli(args: string[]): CliRun {
   const result = spawnSync(process.execPath, [CLI, 'run', ...args], { cwd: REPO, timeout: 300_000, maxBuffer: 64 * 1024 * 1024 });
@@ -63,11 +58,7 @@ describe.skipIf(!toolsPresent)('test programs through the demo table: the built 
   it.each(NAMES)('%s: same stdout and exit code, program stderr first, no divergence', (name) => {
     const q = qemu.get(name)!;
     const o = ours.get(name)!;
-    expect(o.stdout.toString('latin1')).toBe(q.stdout.toString('latin1'));
-    expect(o.status).toBe(qemuStatus(q));
-    expect(o.stderr.startsWith(q.stderr.toString('latin1'))).toBe(true);
-    expect(o.stderr).not.toContain('DIVERGENCE');
-    expect(o.stderr).not.toContain('MACHINE FAULT');
+    expectSameAsQemu(o, q);
     expect(o.stderr).toMatch(/instructions retired: [\d,]+ {3}steps: [\d,]+ {3}CPI \(steps per instruction\): \d\.\d{3}/);
     expect(q.stdout.length).toBeGreaterThan(0);
   });
@@ -83,15 +74,7 @@ describe.skipIf(!toolsPresent)('test programs through the demo table: the built 
 
   it('together the programs make all 40 RV32I instructions go through the microcode', () => {
     const plan = planOf(DEMO_TEXT);
-    const total = new Map<string, number>();
-    for (const program of programs.filter((p) => p.name !== 'bench')) {
-      const loaded = loadProgram(new Uint8Array(readFileSync(program.elfPath)));
-      if (!loaded.ok) throw new Error(loaded.error);
-      const run = new ProgramRun(plan, loaded.program);
-      while (!run.advance(10_000_000));
-      expect(['exit', 'ebreak']).toContain(run.ending?.kind);
-      for (const [mnemonic, count] of figuresOf(run.sim).mnemonics) total.set(mnemonic, (total.get(mnemonic) ?? 0) + count);
-    }
+    const total = retiredMnemonics(plan, programs.filter((p) => p.name !== 'bench').map((p) => p.elfPath));
     const missing = RV32I_INSTRUCTIONS.map((s) => s.mnemonic).filter((m) => !(total.get(m)! > 0));
     expect(missing).toEqual([]);
     expect(total.get('(not RV32I)')).toBeUndefined();

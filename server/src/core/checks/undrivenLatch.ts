@@ -109,11 +109,9 @@ function customReadsIn(machine: Machine, alt: StepAlt, part: CustomPart, port: s
   for (const [control, fieldName] of part.controlFields) {
     const action = alt.actions.find((a) => a.signal === fieldName && a.value?.kind === 'map');
     if (!action || action.value!.kind !== 'map') continue;
-    const field = machine.signals.get(fieldName);
     for (const row of machine.maps.get(action.value!.map)?.rows ?? []) {
       for (const bus of customPortBusReads(part, port, new Map([...known, [control, row.code]]))) reads.add(bus);
     }
-    void field;
   }
   return [...reads];
 }

@@ -29,7 +29,7 @@ export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDe
     ctx.report('wrong-wiring', span, message);
     ok = false;
   };
-  const setSetting = (setting: KindDef['settings'][number], value: A.Name | A.Literal, span: A.Name['span']) => {
+  const setSetting = (setting: KindDef['settings'][number], value: A.Name | A.Literal) => {
     if (setting.type === 'number') {
       const n = parseNumber(value.text);
       if (n === undefined) return wrong(value.span, `\`${setting.name}=\` takes a number; \`${value.text}\` is not one`);
@@ -38,7 +38,6 @@ export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDe
       if (!setting.choices.includes(value.text)) return wrong(value.span, `\`${setting.name}=\` takes ${setting.choices.map((c) => `\`${c}\``).join(', ')}; not \`${value.text}\``);
       settings.set(setting.name, value.text);
     }
-    void span;
   };
   const wireInput = (input: KindDef['inputs'][number], source: A.Name) => {
     const symbol = ctx.lookup('structure', source.text);
@@ -54,7 +53,7 @@ export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDe
       const width = def.settings.find((s) => s.name === 'width' && s.type === 'number');
       if (!width) wrong(arg.span, `kind \`${def.name}\` has no \`width\` setting, so a bare number means nothing here; remove \`${arg.value.text}\``);
       else if (settings.has('width')) wrong(arg.span, `the width is already given; remove \`${arg.value.text}\``);
-      else setSetting(width, arg.value, arg.span);
+      else setSetting(width, arg.value);
     } else if (arg.kind === 'word') {
       const after = afterWords.get(arg.name.text);
       if (after && args[i + 1]?.kind === 'word') {
@@ -68,7 +67,7 @@ export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDe
       const key = arg.option.key.text;
       const setting = def.settings.find((s) => s.name === key);
       const keyed = def.inputs.find((p) => p.name === key && p.wiring === 'keyed');
-      if (setting && arg.option.value) setSetting(setting, arg.option.value, arg.span);
+      if (setting && arg.option.value) setSetting(setting, arg.option.value);
       else if (keyed && arg.option.value && 'text' in arg.option.value && /^[A-Za-z_]/.test(arg.option.value.text)) wireInput(keyed, arg.option.value as A.Name);
       else if (figureInfo(key)?.hosts.includes('part')) figureOptions.push(arg.option);
       else {
