@@ -9,7 +9,7 @@
 // in each part whose settings differ, so a width that only breaks for one part is still found.
 import type { ExprText } from '../syntax/ast';
 import type { Diagnostic } from '../text/diagnostic';
-import { type Expr, type NameInfo, type RunOptions, bitsFor, checkElementIndex, checkExpression, children, compileExpressions, namesUsed, parseExpression, scopeOf } from './expr';
+import { type Expr, type InlineBinding, type NameInfo, type RunOptions, bitsFor, checkElementIndex, checkExpression, children, compileExpressions, expressionSource, namesUsed, parseExpression, scopeOf } from './expr';
 import { type KindDef, type Size, edgeInputName } from './kinds';
 
 /** A part's settings and the codes of the fields driving its controls. */
@@ -184,6 +184,20 @@ export function compilePort(
   const inputs = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))].filter((name) => scope.get(name)?.elements === undefined);
   const run = compileExpressions(exprs, inputs, (name) => scope.get(name)!.width, { ...arrays, values: (name) => scope.get(name)?.values, elements: (name) => scope.get(name)?.elements });
   return { inputs, run };
+}
+
+/**
+ * The same port as compilePort, as JavaScript source for inlining into the simulator's compiled
+ * steps (expr/compile.ts, expressionSource): `bind` says where each name's value is and which
+ * names (controls in this step, choice settings) are fixed. Also returns the names the
+ * expressions read (arrays included), as compilePort's `inputs` but with arrays.
+ */
+export function portSource(def: KindDef, setting: PartSetting, texts: { text: ExprText; width?: number }[], edgeWidth: number | undefined, bind: InlineBinding): { temps: string[]; codes: string[]; reads: string[] } {
+  const numbers = numberSettings(setting);
+  const scope = scopeEntries(def, setting, edgeWidth);
+  const exprs = texts.map((t) => ({ expr: substitute(parsedExpr(def, t.text).expr!, numbers), width: t.width }));
+  const reads = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))];
+  return { ...expressionSource(exprs, (name) => scope.get(name), bind), reads };
 }
 
 /**

@@ -22,6 +22,7 @@
 import {
   D_ALU,
   D_CONSTANT,
+  D_CUSTOM,
   D_IMMEDIATE,
   D_MEM_BUS,
   D_MEM_PART,
@@ -34,6 +35,7 @@ import {
   E_CLOCK,
   E_COMPARE,
   E_COUNT,
+  E_CUSTOM,
   E_MEM_WRITE_BUS,
   E_MEM_WRITE_PART,
   E_REG_FIXED,
@@ -47,6 +49,7 @@ import {
 } from './microops';
 import { CONDITION_FROM_FUNCT3, SIZE_WORD, compareHolds, conditionOfFunct3 } from './operations';
 import type { SimPlan } from './plan';
+import { ByteStage, type InlineSite } from './customParts';
 
 /** What the compiled stepping loop returns: why it stopped. */
 export const FAST_BUDGET = 0; // the step budget is used up, or what is left of it is shorter than the next chain
@@ -70,6 +73,7 @@ export interface FastState {
   readonly busValue: Int32Array;
   readonly partValue: Int32Array;
   readonly regs: Int32Array;
+  readonly customState: Int32Array;
   readonly flags: Uint8Array;
   readonly memory: { load8(a: number): number; load16(a: number): number; load32(a: number): number; wordsOfPage(a: number): Int32Array | undefined };
   readonly logAddress: Int32Array;
@@ -111,11 +115,10 @@ const MAX_CHAIN_STEPS = 16;
 
 /** Whether the fast path can run this machine at all. */
 export function canCompile(plan: SimPlan): boolean {
-  // Parts of the table's own kinds run on the interpreter (their ports are compiled on their own).
-  // So do strobes that drive some lines of a bus.
+  // Strobes that drive some lines of a bus run on the interpreter.
   const partial = [...plan.machine.signals.values()].some((s) => s.type === 'strobe' && s.lines !== undefined);
   // And connections (`connect`), which drive in every step.
-  return !partial && plan.machine.connections.length === 0 && plan.custom.runtimes.length === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
+  return !partial && plan.machine.connections.length === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
 }
 
 const ALU_EXPRESSIONS: ((a: string, b: string) => string)[] = [
@@ -170,11 +173,23 @@ function wordReader(index: number): string[] {
   ];
 }
 
+/** The buses whose bits are set in `mask`. */
+function busesOf(mask: number, nBuses: number): number[] {
+  const out: number[] = [];
+  for (let bus = 0; bus < nBuses; bus++) if (mask & (1 << bus)) out.push(bus);
+  return out;
+}
+
 /** The names the generated code can reach, and their values for a simulator. */
 function environmentOf(plan: SimPlan, state: FastState, io: Int32Array): [string[], unknown[]] {
   const classSlots = Int16Array.from(plan.classOfOpcode, (c) => (c < 0 ? plan.machine.classes.length : c));
-  const names = ['state', 'io', 'busValue', 'partValue', 'regs', 'flags', 'memory', 'logAddress', 'classOfOpcode', 'classInstructions', 'classSteps', 'retiredByKey', 'compareHolds', 'conditionOfFunct3'];
-  const values = [state, io, state.busValue, state.partValue, state.regs, state.flags, state.memory, state.logAddress, classSlots, state.classInstructions, state.classSteps, state.retiredByKey, compareHolds, conditionOfFunct3];
+  // Bytes the parts run from their definitions write, grouped into the writes the board makes.
+  const bytes = new ByteStage();
+  const stageByte = (address: number, value: number) => bytes.stage(address, value);
+  const storeMemory = (size: number, address: number, value: number) => state.storeMemory(size, address, value);
+  const flushBytes = () => bytes.flush(storeMemory);
+  const names = ['state', 'io', 'busValue', 'partValue', 'regs', 'customState', 'flags', 'memory', 'logAddress', 'classOfOpcode', 'classInstructions', 'classSteps', 'retiredByKey', 'compareHolds', 'conditionOfFunct3', 'stageByte', 'flushBytes'];
+  const values = [state, io, state.busValue, state.partValue, state.regs, state.customState, state.flags, state.memory, state.logAddress, classSlots, state.classInstructions, state.classSteps, state.retiredByKey, compareHolds, conditionOfFunct3, stageByte, flushBytes];
   return [names, values];
 }
 
@@ -262,7 +277,7 @@ function chainSource(plan: SimPlan, address: number, firstStep: number): { key: 
   let count = 0;
   for (;;) {
     const word = store.wordOfAddress[sp + store.stepPart[step]];
-    const body = wordBody(plan, code, mo.byKey![word], leave(CHAIN_SLOW, step, count), wordLoad);
+    const body = wordBody(plan, code, mo.byKey![word], leave(CHAIN_SLOW, step, count), wordLoad, `s${count}_`);
     if (body.result === WORD_SLOW) {
       // The interpreter runs this word; the loop comes back here for it.
       lines.push(`  ${leave(count === 0 ? CHAIN_SLOW : CHAIN_DONE, step, count)}`);
@@ -312,7 +327,7 @@ function chainSource(plan: SimPlan, address: number, firstStep: number): { key: 
  * must leave the statements). `result` says what the word does to the step (WORD_END,
  * WORD_INPUTS bits), or WORD_SLOW when the interpreter must always run it (traps, faults).
  */
-function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: string, wordLoad?: (address: string) => string): { lines: string[]; result: number } {
+function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: string, wordLoad?: (address: string) => string, prefix = 'w_'): { lines: string[]; result: number } {
   const load = (size: number, address: string) => (size === SIZE_WORD && wordLoad ? wordLoad(`${address} >>> 0`) : LOAD_EXPRESSIONS[size](address));
   const irPart = plan.irPart;
   const out: string[] = [];
@@ -332,6 +347,9 @@ function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: strin
   // Buses driven in this step live in locals b<N>; the others are read from busValue.
   const local = new Set<number>();
   const busRead = (bus: number) => (local.has(bus) ? `b${bus}` : `busValue[${bus}]`);
+  // Ports of parts run from their definitions are inlined (sim/customParts.ts), each with its own prefix.
+  let sites = 0;
+  const site = (): InlineSite => ({ prefix: `${prefix}p${sites++}_`, bus: busRead, loadWord: (address) => (wordLoad ? wordLoad(address) : `memory.load32(${address})`) });
   /** Definedness of a value computed from `inputs`: a known boolean, or a run-time expression (bit 0). */
   const definednessOf = (inputs: number[]): boolean | string => {
     if (inputs.some((bus) => known.get(bus) === false)) return false;
@@ -373,6 +391,13 @@ function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: strin
       case D_CONSTANT:
         value = String(a | 0);
         break;
+      case D_CUSTOM: {
+        const src = plan.custom.driverSource(a, site());
+        statements.push(...src.lines);
+        value = src.value;
+        definedness = definednessOf(busesOf(b, nBuses));
+        break;
+      }
       default:
         value = '0';
         definedness = false;
@@ -401,6 +426,10 @@ function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: strin
   if (openNeed) out.push(`if ((defined & ${openNeed}) !== ${openNeed}) { defined = defined0; ${slowExit} }`);
   const nEdges = code[p++];
   let inputsChanged = false;
+  // Edge ports of parts run from their definitions compute first (from the values before the
+  // edge, as every action here reads them) and store after every other action, as the interpreter's commit.
+  const customStores: string[] = [];
+  let writesMemory = false;
   for (let k = 0; k < nEdges; k++, p += EDGE_WORDS) {
     const [op, bus, a, b, c] = [code[p], code[p + 1], code[p + 2], code[p + 3], code[p + 4]];
     switch (op) {
@@ -434,7 +463,22 @@ function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: strin
           out.push('state.instructionLoaded = true;');
         }
         break;
+      case E_CUSTOM: {
+        const src = plan.custom.edgeSource(a, site());
+        // Names carry the site's prefix, so the compute and store statements share the word's block.
+        out.push(...src.compute);
+        customStores.push(...src.store);
+        writesMemory ||= src.writesMemory;
+        if (src.changesInputs) inputsChanged = true;
+        if (c !== 0) {
+          inputsChanged = true;
+          customStores.push('state.instructionLoaded = true;');
+        }
+        break;
+      }
     }
   }
+  out.push(...customStores);
+  if (writesMemory) out.push('flushBytes();');
   return { lines: out, result: (header & HEADER_END ? WORD_END : 0) | (inputsChanged ? WORD_INPUTS : 0) };
 }

@@ -15,7 +15,8 @@
 // then all of them are stored at once, then the flags are read from the new state.
 import type { CustomPart, Field, Machine, Strobe } from '../model/types';
 import type { Memory } from '../isa/memory';
-import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr } from '../parts/behaviour';
+import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource } from '../parts/behaviour';
+import type { InlineBinding } from '../parts/expr';
 import { edgeInputName } from '../parts/kinds';
 import { customPortBusReads, partSetting } from '../model/buildCustomPart';
 import { asDefinedPart, definedPortOf } from '../model/libraryParts';
@@ -65,6 +66,37 @@ interface PartRuntime {
 /** Why a port cannot run in this micro-op (a control code that names no value), or the port. */
 export type CustomOp = { index: number; reads: number[] } | { problem: string };
 
+/**
+ * What the simulator's compiled steps (sim/compile.ts) give a port inlined into their code: the
+ * code of a bus's value in this step (an int32), a word read of the program memory, and a prefix
+ * keeping the port's locals apart from the others in the same function.
+ */
+export interface InlineSite {
+  prefix: string;
+  bus(index: number): string;
+  loadWord(address: string): string;
+}
+
+/** An edge port inlined: statements computing from the values before the edge, then statements storing them. */
+export interface InlineEdge {
+  compute: string[];
+  store: string[];
+  /** The port changes what the address reads (a flag), so the compiled chain must stop after it. */
+  changesInputs: boolean;
+  /** Its stores stage bytes of the program memory (`stageByte`): the caller runs `flushBytes()` once every port has stored. */
+  writesMemory: boolean;
+}
+
+/** A port as the compiled steps inline it: the part, its texts and the codes of its controls in this micro-op. */
+interface PortSpec {
+  rt: PartRuntime;
+  texts: CompileText[];
+  edgeWidth?: number;
+  fields: ReadonlyMap<string, number>;
+  /** The bus an edge port loads (-1: none). */
+  bus: number;
+}
+
 export interface CustomPartsOptions {
   /** Run the standard library's parts from their definitions too (model/libraryParts.ts). */
   fromDefinitions?: boolean;
@@ -81,6 +113,9 @@ export class CustomParts {
   /** Library parts left on the built-in path, and why (with `fromDefinitions`). */
   readonly builtIn: { part: string; why: string }[] = [];
   readonly drivers: Getter[] = [];
+  /** Beside `drivers` and `edges`, what inlining each needs (sim/compile.ts). */
+  private readonly driverSpecs: PortSpec[] = [];
+  private readonly edgeSpecs: (PortSpec & { assigns: { storage: Storage; value: number; when: number; index: number; count: number }[] })[] = [];
   /** Edge ports: each pushes (storage, index, value) triples into `stage`. */
   readonly edges: ((m: CustomAccess, stage: number[]) => void)[] = [];
 
@@ -154,6 +189,8 @@ export class CustomParts {
       }
     }
   }
+
+  private readonly bytes = new ByteStage();
 
   /** The machine a compiled port runs on right now (element reads go through it). */
   current: CustomAccess | undefined;
@@ -269,6 +306,7 @@ export class CustomParts {
       this.current = m;
       return Number(run(values)[0]) | 0;
     });
+    this.driverSpecs.push({ rt, texts, fields, bus: -1 });
     return { index: this.drivers.length - 1, reads: this.busReads(rt, drive.name, fields) };
   }
 
@@ -308,13 +346,111 @@ export class CustomParts {
         else if (index < a.count) stage.push(a.storage.in, a.storage.base + index, Number(out[a.value]) | 0);
       }
     });
+    this.edgeSpecs.push({ rt, texts, edgeWidth, fields, bus, assigns: plan });
     const reads = this.busReads(rt, edge.name, fields);
     return { index: this.edges.length - 1, reads: bus >= 0 && port.inputs.includes(edgeInputName) ? [bus, ...reads] : reads };
   }
 
+  /** How the expressions of one port reach their names when inlined at `site`. */
+  private binding(spec: PortSpec, site: InlineSite): InlineBinding {
+    const { rt, fields, bus } = spec;
+    const part = rt.part;
+    const masked = (code: string, width: number) => (width >= 32 ? `(${code} >>> 0)` : `(${code} & ${2 ** width - 1})`);
+    const scopeWidth = (name: string) => {
+      const input = part.def.inputs.find((i) => i.name === name);
+      if (input) return sizeOf(input.width, part.settings);
+      if (name === edgeInputName) return spec.edgeWidth ?? 32;
+      return rt.widths.get(name) ?? 32;
+    };
+    const controls = this.controlCodes(rt, fields);
+    const choices = choiceCodes(part.def, part.settings);
+    return {
+      prefix: site.prefix,
+      known: (name) => {
+        if (part.def.controls.some((c) => c.name === name)) return controls.get(name) ?? 0;
+        return choices.get(name);
+      },
+      name: (name) => {
+        const w = scopeWidth(name);
+        if (name === edgeInputName && bus >= 0) return masked(site.bus(bus), w);
+        const storage = rt.storage.get(name);
+        if (storage?.in === IN_STATE) return masked(`customState[${storage.base}]`, w);
+        if (storage?.in === IN_PART) return masked(`partValue[${storage.base}]`, w);
+        const input = part.inputs.get(name);
+        if (input?.from === 'bus') return masked(site.bus(this.busIndex.get(input.name)!), w);
+        if (input?.from === 'part') return masked(`partValue[${this.partIndex.get(input.name)!}]`, w);
+        if (input?.from === 'instruction') return masked('ir', w);
+        throw new Error(`custom part ${part.name}: no value for \`${name}\``);
+      },
+      element: (array, index, width) => {
+        const storage = rt.storage.get(array)!;
+        if (storage.in === IN_MEMORY) return `memory.load8((${index}) >>> 0)`;
+        const store = storage.in === IN_REGS ? 'regs' : 'customState';
+        return masked(`${store}[${storage.base} + ${index}]`, width);
+      },
+      memoryRun: (array, address, count) => {
+        if (rt.storage.get(array)?.in !== IN_MEMORY) return undefined;
+        return count === 4 ? `(${site.loadWord(`(${address}) >>> 0`)} >>> 0)` : `memory.load16((${address}) >>> 0)`;
+      },
+    };
+  }
+
+  /** The code of driver `index` inlined at `site`: statements to run first, then an int32 value. */
+  driverSource(index: number, site: InlineSite): { lines: string[]; value: string } {
+    const spec = this.driverSpecs[index];
+    const src = portSource(spec.rt.part.def, partSetting(this.machine, spec.rt.part), spec.texts, undefined, this.binding(spec, site));
+    return { lines: src.temps.length ? [`let ${src.temps.join(', ')};`] : [], value: `((${src.codes[0]}) | 0)` };
+  }
+
+  /**
+   * Edge port `index` inlined at `site`: what it computes from the values before the edge, and
+   * how it stores them (run after every other closing-edge action, as commit() does), followed
+   * by the mirror of the part's first state and its flags.
+   */
+  edgeSource(index: number, site: InlineSite): InlineEdge {
+    const spec = this.edgeSpecs[index];
+    const { rt } = spec;
+    const src = portSource(rt.part.def, partSetting(this.machine, rt.part), spec.texts, spec.edgeWidth, this.binding(spec, site));
+    const p = site.prefix;
+    const compute: string[] = src.temps.length ? [`let ${src.temps.join(', ')};`] : [];
+    const store: string[] = [];
+    let bytes = 0;
+    spec.assigns.forEach((a, k) => {
+      const when = a.when >= 0 ? src.codes[a.when] : '1';
+      if (when === '0') return;
+      compute.push(`const ${p}v${k} = ${src.codes[a.value]};`);
+      if (when !== '1') compute.push(`const ${p}w${k} = ${when};`);
+      if (a.index >= 0) compute.push(`const ${p}i${k} = ${src.codes[a.index]};`);
+      const at = a.index >= 0 ? `${p}i${k}` : '0';
+      let write: string;
+      if (a.storage.in === IN_MEMORY) {
+        write = `stageByte(${at} >>> 0, ${p}v${k} & 0xff);`;
+        bytes++;
+      } else {
+        const target = a.storage.in === IN_STATE ? 'customState' : a.storage.in === IN_PART ? 'partValue' : 'regs';
+        // An index past an array's end writes nothing.
+        write = a.index >= 0 ? `if (${at} < ${a.count}) ${target}[${a.storage.base} + ${at}] = ${p}v${k} | 0;` : `${target}[${a.storage.base}] = ${p}v${k} | 0;`;
+      }
+      store.push(when === '1' ? write : `if (${p}w${k} !== 0) { ${write} }`);
+    });
+    if (rt.mirror >= 0) store.push(`partValue[${rt.partNumber}] = customState[${rt.mirror}];`);
+    let changesInputs = false;
+    if (rt.flags) {
+      const def = rt.part.def;
+      const flagSpec: PortSpec = { rt, texts: def.flags.map((f) => ({ text: f.expr, width: 1 })), fields: new Map(), bus: -1 };
+      const flagSrc = portSource(def, partSetting(this.machine, rt.part), flagSpec.texts, undefined, this.binding(flagSpec, { ...site, prefix: `${p}f` }));
+      if (flagSrc.temps.length) store.push(`let ${flagSrc.temps.join(', ')};`);
+      rt.flags.flagNumbers.forEach((f, i) => {
+        if (f >= 0) store.push(`flags[${f}] = (${flagSrc.codes[i]}) & 1;`);
+      });
+      changesInputs = true;
+    }
+    return { compute, store, changesInputs, writesMemory: bytes > 0 };
+  }
+
   /** Stores what the edge ports computed, mirrors first states into part values and reads the flags. */
   commit(m: CustomAccess, stage: number[], flags: Uint8Array): void {
-    let bytes: { address: number; value: number }[] | undefined;
+    const bytes = this.bytes;
     for (let i = 0; i < stage.length; i += 3) {
       const at = stage[i + 1];
       const value = stage[i + 2];
@@ -329,11 +465,11 @@ export class CustomParts {
           m.regs[at] = value;
           break;
         default:
-          (bytes ??= []).push({ address: at >>> 0, value });
+          bytes.stage(at, value);
       }
     }
     stage.length = 0;
-    if (bytes) storeBytes(m, bytes);
+    bytes.flush(m.store);
     this.refresh(m, flags);
   }
 
@@ -377,16 +513,38 @@ function elementReader(parts: CustomParts, rt: PartRuntime): (array: string, ind
  * ascending addresses (a halfword or word lane set, low byte first, little-endian as RV32I
  * memory is, RISC-V Unprivileged ISA 20191213, section 2.6) is one write of that size, the
  * rest single bytes. The lock-step comparison then sees the sizes the reference reports.
+ * Allocation-free: the compiled steps stage every store instruction's bytes here.
  */
-function storeBytes(m: CustomAccess, bytes: { address: number; value: number }[]): void {
-  bytes.sort((a, b) => a.address - b.address);
-  for (let i = 0; i < bytes.length; ) {
-    let run = 1;
-    while (i + run < bytes.length && run < 4 && bytes[i + run].address === bytes[i].address + run) run++;
-    const size = run >= 4 ? 4 : run >= 2 ? 2 : 1;
-    let value = 0;
-    for (let k = size - 1; k >= 0; k--) value = (value << 8) | bytes[i + k].value;
-    m.store(size === 4 ? 2 : size === 2 ? 1 : 0, bytes[i].address, value | 0);
-    i += size;
+export class ByteStage {
+  private readonly addresses: number[] = [];
+  private readonly values: number[] = [];
+  private n = 0;
+
+  stage(address: number, value: number): void {
+    // Insertion in address order (an edge writes a handful of bytes).
+    let k = this.n++;
+    address >>>= 0;
+    while (k > 0 && this.addresses[k - 1] > address) {
+      this.addresses[k] = this.addresses[k - 1];
+      this.values[k] = this.values[k - 1];
+      k--;
+    }
+    this.addresses[k] = address;
+    this.values[k] = value;
+  }
+
+  /** Stores the staged bytes (size code: 0 byte, 1 half, 2 word) and empties the stage. */
+  flush(store: (size: number, address: number, value: number) => void): void {
+    const { addresses, values, n } = this;
+    for (let i = 0; i < n; ) {
+      let run = 1;
+      while (i + run < n && run < 4 && addresses[i + run] === addresses[i] + run) run++;
+      const size = run >= 4 ? 4 : run >= 2 ? 2 : 1;
+      let value = 0;
+      for (let k = size - 1; k >= 0; k--) value = (value << 8) | values[i + k];
+      store(size === 4 ? 2 : size === 2 ? 1 : 0, addresses[i], value | 0);
+      i += size;
+    }
+    this.n = 0;
   }
 }

@@ -7,6 +7,7 @@
 import type { Expr, IndexExpr, SelectExpr } from './ast';
 import { resolveForRun, type NameInfo, type Resolution } from './check';
 import { needsElementReader, type RunOptions } from './evaluate';
+import { formatExpression } from './format';
 
 export type CompiledExpressions = (inputs: ArrayLike<number | bigint>) => (number | bigint)[];
 
@@ -25,6 +26,25 @@ function signed32(code: string, width: number): string {
 
 const toBig = (code: string, width: number) => (isWide(width) ? code : `BigInt(${code})`);
 
+/** Two index expressions that read the same place (same text, so same names and widths in one scope). */
+const sameExpr = (a: Expr, b: Expr) => formatExpression(a) === formatExpression(b);
+
+/**
+ * How expressions inlined into a caller's generated code (expressionSource) reach their names:
+ * the caller's code for each scalar name (unsigned, within its width), element reads, names whose
+ * code is fixed while compiling (a control's code in this step, a choice setting; a `select` on
+ * one keeps only its arm), and a prefix keeping temporaries apart from the caller's locals.
+ */
+export interface InlineBinding {
+  prefix: string;
+  name(name: string): string;
+  known(name: string): number | undefined;
+  /** Code reading element `index` (code of a number) of an array, unsigned within `width`. */
+  element(array: string, index: string, width: number): string;
+  /** Code reading `count` bytes of the byte memory little-endian at `address` (code), unsigned; undefined: byte by byte. */
+  memoryRun?(array: string, address: string, count: 2 | 4): string | undefined;
+}
+
 class Generator {
   readonly temps: string[] = [];
   readonly selects: SelectExpr[] = [];
@@ -37,6 +57,8 @@ class Generator {
     private readonly slot: (name: string) => string,
     private readonly reportUncovered: boolean,
     private readonly reportOutOfRange: boolean,
+    /** Inlining into a caller's code (expressionSource): how elements are read, fixed names, temporaries' prefix. */
+    private readonly inline?: InlineBinding,
   ) {}
 
   private reader(array: string, width: number): string {
@@ -46,7 +68,7 @@ class Generator {
   }
 
   private temp(wide: boolean): string {
-    const name = `t${this.temps.length}`;
+    const name = `${this.inline?.prefix ?? ''}t${this.temps.length}`;
     this.temps.push(`${name} = ${wide ? '0n' : '0'}`);
     return name;
   }
@@ -59,12 +81,16 @@ class Generator {
     const w = this.width(e);
     const wide = isWide(w);
     switch (e.kind) {
-      case 'name':
+      case 'name': {
+        const known = this.inline?.known(e.name);
+        if (known !== undefined) return wide ? `${known}n` : `${known}`;
         return this.slot(e.name);
+      }
       case 'number':
         return wide ? `${e.value}n` : `${e.value}`;
       case 'slice': {
         const read = this.r.reads.get(e);
+        if (read && this.inline) return this.inline.element(read.array, `${e.lo}`, w);
         if (read) return `${this.reader(read.array, w)}(${e.lo})`;
         const ow = this.width(e.operand);
         const o = this.gen(e.operand);
@@ -75,6 +101,8 @@ class Generator {
       case 'index':
         return this.element(e, w);
       case 'concat': {
+        const run = this.inline && !wide ? this.memoryRun(e) : undefined;
+        if (run) return run;
         let shift = w;
         const parts = e.items.map((item) => {
           const iw = this.width(item);
@@ -121,6 +149,13 @@ class Generator {
       case 'cond':
         return `(${this.gen(e.cond)} ? ${this.gen(e.then)} : ${this.gen(e.otherwise)})`;
       case 'select': {
+        // A selector fixed while compiling (a control's code in this step) leaves only its arm.
+        const fixed = e.selector.kind === 'name' ? this.inline?.known(e.selector.name) : undefined;
+        if (fixed !== undefined) {
+          const arm = e.arms.find((a) => this.r.codes.get(a) === BigInt(fixed));
+          if (arm) return this.gen(arm.value);
+          if (e.otherwise) return this.gen(e.otherwise);
+        }
         const sw = this.width(e.selector);
         const s = this.temp(isWide(sw));
         const lit = (code: bigint) => (isWide(sw) ? `${code}n` : `${code}`);
@@ -140,10 +175,15 @@ class Generator {
   private element(e: IndexExpr, w: number): string {
     const read = this.r.reads.get(e)!;
     const index = this.gen(e.index);
-    const rd = this.reader(read.array, w);
+    const inline = this.inline;
+    const rd = inline ? '' : this.reader(read.array, w);
+    const readAt = (at: string) => (inline ? inline.element(read.array, at, w) : `${rd}(${at})`);
     // A memory index is 32 bits, so a number.
-    if (read.elements === 'memory') return `${rd}(${index})`;
-    const wideIndex = isWide(this.width(e.index));
+    if (read.elements === 'memory') return readAt(index);
+    const indexWidth = this.width(e.index);
+    const wideIndex = isWide(indexWidth);
+    // An index too narrow to pass the last element needs no bounds test (a register file's 5-bit selects).
+    if (inline && !wideIndex && 2 ** indexWidth <= read.elements) return readAt(index);
     const t = this.temp(wideIndex);
     const zero = isWide(w) ? '0n' : '0';
     let past = zero;
@@ -151,7 +191,33 @@ class Generator {
       this.outOfRange.push(e);
       past = `(outOfRange(${this.outOfRange.length - 1}, ${t}), ${zero})`;
     }
-    return `(${t} = ${index}, ${t} < ${read.elements}${wideIndex ? 'n' : ''} ? ${rd}(${wideIndex ? `Number(${t})` : t}) : ${past})`;
+    return `(${t} = ${index}, ${t} < ${read.elements}${wideIndex ? 'n' : ''} ? ${readAt(wideIndex ? `Number(${t})` : t)} : ${past})`;
+  }
+
+  /**
+   * `{m[x + 3], m[x + 2], m[x + 1], m[x]}` (or the two-byte form) on the byte memory: a
+   * little-endian word or halfword read at x, which the caller may read in one access. Any
+   * other concatenation is left to the general code.
+   */
+  private memoryRun(e: Extract<Expr, { kind: 'concat' }>): string | undefined {
+    const n = e.items.length;
+    if ((n !== 2 && n !== 4) || !this.inline?.memoryRun) return undefined;
+    let array: string | undefined;
+    let base: Expr | undefined;
+    for (let k = 0; k < n; k++) {
+      const item = e.items[k];
+      if (item.kind !== 'index') return undefined;
+      const read = this.r.reads.get(item);
+      if (!read || read.elements !== 'memory' || (array !== undefined && read.array !== array)) return undefined;
+      array = read.array;
+      const offset = n - 1 - k;
+      const at = item.index;
+      const x = offset === 0 ? at : at.kind === 'binary' && at.op === '+' && at.right.kind === 'number' && at.right.value === BigInt(offset) ? at.left : undefined;
+      if (!x || (base !== undefined && !sameExpr(x, base))) return undefined;
+      base = x;
+    }
+    // The widths of every index are 32 (a memory index), so x + k wraps as the bytes' addresses do.
+    return this.inline.memoryRun(array!, this.gen(base!), n);
   }
 
   private binary(e: Extract<Expr, { kind: 'binary' }>, w: number): string {
@@ -290,4 +356,22 @@ export function compileExpressions(
   const reads = gen.outOfRange;
   const outOfRange = (index: number, at: number | bigint) => options.onOutOfRange!(reads[index], BigInt(at));
   return new Function('uncovered', 'outOfRange', 'readers', body)(uncovered, outOfRange, readers) as CompiledExpressions;
+}
+
+/**
+ * The JavaScript source of `list`'s expressions for inlining into the caller's own generated code
+ * (the simulator's compiled steps): one code string per expression, evaluating to its value
+ * (a number up to 32 bits, unsigned; BigInt wider), and the temporaries the caller must declare
+ * (`let`) before them. `scope` gives each name's width, values and elements as for checking.
+ * Same meaning as compileExpressions (the property tests hold both to evaluate.ts); no
+ * uncovered-select or out-of-range callbacks (an uncovered select gives 0, an element past a
+ * register array's end reads 0). Throws when an expression does not check.
+ */
+export function expressionSource(list: { expr: Expr; width?: number }[], scope: (name: string) => NameInfo | undefined, bind: InlineBinding): { temps: string[]; codes: string[] } {
+  const gen = new Generator((name) => bind.name(name), false, false, bind);
+  const codes = list.map((entry) => {
+    gen.r = resolveForRun(entry.expr, scope, entry.width);
+    return gen.gen(entry.expr);
+  });
+  return { temps: gen.temps, codes };
 }

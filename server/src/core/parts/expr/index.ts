@@ -8,5 +8,5 @@ export { children, namesUsed } from './ast';
 export { parseExpression } from './parser';
 export { ADDRESS_WIDTH, checkElementIndex, checkExpression, bitsFor, MAX_WIDTH, resolveExpression, scopeOf, type ElementRead, type NameInfo, type Resolution, type Scope } from './check';
 export { evaluate, selectCovers, type EvaluateOptions, type RunOptions } from './evaluate';
-export { compileExpressions, type CompiledExpressions } from './compile';
+export { compileExpressions, expressionSource, type CompiledExpressions, type InlineBinding } from './compile';
 export { formatExpression } from './format';
