@@ -183,7 +183,7 @@ describe('bus faults found while running', () => {
     const { ending } = runToEnd(plan, programOf([ins('lui', { rd: 5, imm: 0x12345000 }), ...exitWords()]));
     if (ending?.kind !== 'fault' || ending.report.fault?.kind !== 'undefined-value') throw new Error(`expected an undefined-value fault, got ${JSON.stringify(ending)}`);
     expect(ending.report.fault.why).toBe(
-      '`alu.oe` drives `result` from the ALU, whose input `right` is undefined: nothing drives `right` in this step, and its keepers hold no value: nothing has driven it since reset',
+      '`alu.oe` drives `result` from `alu`, whose input `right` is undefined: nothing drives `right` in this step, and its keepers hold no value: nothing has driven it since reset',
     );
   });
 

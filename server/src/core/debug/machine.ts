@@ -424,7 +424,7 @@ export class DebugMachine {
 
   /** Sets register x`index` of the first register file (and the reference's, so lock-step agrees). */
   setRegister(index: number, value: number): string | null {
-    if (index === 0 && this.plan.regfiles[0]?.x0 !== 'stored') return 'x0 is hardwired to zero on this machine';
+    if (index === 0 && !this.plan.x0Stored) return 'x0 is hardwired to zero on this machine';
     this.sim.regs[index] = value | 0;
     if (this.run.reference) this.run.reference.x[index] = value | 0;
     this.edited();

@@ -71,7 +71,7 @@ export class MachineViews {
   registers(): ViewNode[] {
     const sim = this.dm.sim;
     const nodes: ViewNode[] = [{ name: 'pc', value: hex(sim.pc), address: sim.pc }];
-    for (let r = 0; r < 32; r++) nodes.push({ name: `x${r} (${ABI_REGISTER_NAMES[r]})`, value: numberText(sim.regs[r]), edit: r === 0 && this.dm.plan.regfiles[0]?.x0 !== 'stored' ? undefined : { kind: 'register', index: r } });
+    for (let r = 0; r < 32; r++) nodes.push({ name: `x${r} (${ABI_REGISTER_NAMES[r]})`, value: numberText(sim.regs[r]), edit: r === 0 && !this.dm.plan.x0Stored ? undefined : { kind: 'register', index: r } });
     return nodes;
   }
 

@@ -906,8 +906,9 @@ function wirePart(ctx: BuildContext, strobe: M.Strobe, ref: A.Ref, role: M.Strob
   const part = ctx.machine.parts.get(partName);
   if (!part) return false;
   if (ref.index) {
-    if (part.kind !== 'regfile') {
-      ctx.report('wrong-wiring', ref.span, `only a register file has numbered registers; \`${partName}\` is a ${part.kind}`);
+    const numbered = part.kind === 'custom' && [...part.def.drives, ...part.def.edges].some((p) => p.param !== undefined);
+    if (part.kind !== 'regfile' && !numbered) {
+      ctx.report('wrong-wiring', ref.span, `only a part whose kind has numbered ports (a register file's \`x[5]\`) takes a number; \`${partName}\` is ${partPhrase(part)}`);
       return false;
     }
     const register = ctx.number(ref.index, 'a register number', 0, 31);
@@ -922,7 +923,7 @@ function wirePart(ctx: BuildContext, strobe: M.Strobe, ref: A.Ref, role: M.Strob
     return false;
   };
   if (part.kind === 'custom') {
-    const found = customPortFor(part, role, port);
+    const found = strobe.register !== undefined ? customPortFor(part, role, undefined, true) : customPortFor(part, role, port);
     if ('problem' in found) return fail(found.problem);
     strobe.kindPort = found.port;
     return true;

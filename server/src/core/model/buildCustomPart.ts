@@ -128,9 +128,17 @@ export function sizeIn(part: M.CustomPart, size: Size): number {
  * `clock` without a bus, edge ports that take none. `port` is the written `.port`, if any.
  * Returns the port's name, or the reason it does not fit.
  */
-export function customPortFor(part: M.CustomPart, role: M.StrobeKind | 'clock-flag', port: string | undefined): { port: string; width?: number } | { problem: string } {
+export function customPortFor(part: M.CustomPart, role: M.StrobeKind | 'clock-flag', port: string | undefined, numbered = false): { port: string; width?: number } | { problem: string } {
   const def = part.def;
   const list = (names: string[]) => (names.length ? names.map((n) => `\`${part.name}.${n}\``).join(', ') : 'none');
+  // `PART[n]` names the kind's numbered port (`drive at[n] ...`); a numbered port needs its number.
+  if (numbered) {
+    const found = role === 'enable' || role === 'read' ? def.drives.find((d) => d.param !== undefined) : def.edges.find((e) => e.param !== undefined && (e.width !== undefined) === (role === 'clock' || role === 'write'));
+    if (!found) return { problem: `kind \`${def.name}\` has no numbered ${role === 'enable' || role === 'read' ? 'drive' : 'closing-edge'} port, so \`${part.name}[n]\` names nothing; its ports are ${list([...def.drives, ...def.edges].map((p) => p.name))}` };
+    return { port: found.name, width: 'expr' in found ? sizeIn(part, found.width) : found.width ? sizeIn(part, found.width) : undefined };
+  }
+  const numberedPort = [...def.drives, ...def.edges].find((p) => p.name === port && p.param !== undefined);
+  if (numberedPort) return { problem: `\`${part.name}.${port}\` is a numbered port: write \`${part.name}[N]\` with the number` };
   if (role === 'enable' || role === 'read') {
     const drive = port ? def.drives.find((d) => d.name === port) : def.drives[0];
     if (!drive) return { problem: port ? `kind \`${def.name}\` has no drive port \`${port}\`; its drive ports are ${list(def.drives.map((d) => d.name))}` : `kind \`${def.name}\` has no drive port, so \`${part.name}\` cannot put anything on a bus` };
@@ -185,7 +193,14 @@ export function partSetting(machine: M.Machine, part: M.CustomPart): PartSetting
   for (const control of part.def.controls) {
     const fieldName = part.controlFields.get(control.name);
     const field = fieldName ? machine.signals.get(fieldName) : undefined;
-    if (field?.type === 'field' && field.values.size > 0) controls.set(control.name, { width: field.width, values: new Map([...field.values.values()].map((v) => [v.name, v.code])) });
+    if (field?.type === 'field' && field.values.size > 0) {
+      // A field may name only some of the control's values (an ALU field with add and passa):
+      // the others get codes past the field's, which it never gives, so their arms check but never run.
+      const values = new Map([...field.values.values()].map((v) => [v.name, v.code]));
+      let next = 2 ** field.width;
+      for (const v of control.values) if (!values.has(v)) values.set(v, next++);
+      controls.set(control.name, { width: bitsFor(next), values });
+    }
     else controls.set(control.name, { width: bitsFor(control.values.length), values: new Map(control.values.map((v, i) => [v, i])) });
   }
   return { settings: part.settings, controls };

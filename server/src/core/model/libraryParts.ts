@@ -55,7 +55,7 @@ export function asDefinedPart(machine: Machine, part: Part): CustomPart | { prob
       flagNames.set('taken', part.flag);
       break;
     case 'memory':
-      if (!part.controlField) return { problem: `the memory port \`${part.name}\` has no size field; run it on the built-in path` };
+      // Without a size field its control holds its default (`word`).
       inputs.set('addr', { from: part.addressFrom, name: part.address });
       break;
     case 'constant':
@@ -83,8 +83,9 @@ export function asDefinedPart(machine: Machine, part: Part): CustomPart | { prob
  */
 export function definedPortOf(part: CustomPart, strobe: Strobe): string | undefined {
   if (strobe.kindPort !== undefined) return strobe.kindPort;
+  // A library register file's `x[n]` (the model's built-in shape keeps the number, not the port).
   if (strobe.kind === 'end' || strobe.kind === 'trap') return undefined;
   const role = strobe.kind === 'clock' && strobe.bus === undefined ? 'clock-flag' : strobe.kind;
-  const found = customPortFor(part, role, strobe.port);
+  const found = customPortFor(part, role, strobe.register !== undefined ? undefined : strobe.port, strobe.register !== undefined);
   return 'port' in found ? found.port : undefined;
 }

@@ -107,16 +107,24 @@ function placedExpressions(def: KindDef, setting: PartSetting, report: (d: Diagn
   const bits = (size: Size) => ({ width: sizeOf(size, setting.settings) });
   const base = scopeEntries(def, setting);
   for (const state of def.states) if (state.reset) place(state.reset, bits(state.width), base);
-  for (const drive of def.drives) place(drive.expr, bits(drive.width), base);
+  // A numbered port's number is checked as register 0 (a decimal takes its context's width).
+  const withParam = (param: string | undefined, run: () => void) => {
+    if (param) numbers.set(param, 0);
+    run();
+    if (param) numbers.delete(param);
+  };
+  for (const drive of def.drives) withParam(drive.param, () => place(drive.expr, bits(drive.width), base));
   for (const flag of def.flags) place(flag.expr, { width: 1 }, base);
   for (const edge of def.edges) {
     const scope = scopeEntries(def, setting, edge.width ? sizeOf(edge.width, setting.settings) : undefined);
-    for (const assign of edge.assigns) {
-      const state = def.states.find((s) => s.name === assign.target)!;
-      place(assign.expr, bits(state.width), scope);
-      if (assign.when) place(assign.when, { width: 1 }, scope);
-      if (assign.index) place(assign.index, { array: state.name }, scope);
-    }
+    withParam(edge.param, () => {
+      for (const assign of edge.assigns) {
+        const state = def.states.find((s) => s.name === assign.target)!;
+        place(assign.expr, bits(state.width), scope);
+        if (assign.when) place(assign.when, { width: 1 }, scope);
+        if (assign.index) place(assign.index, { array: state.name }, scope);
+      }
+    });
   }
   return placed;
 }
@@ -158,6 +166,12 @@ export function checkBehaviour(def: KindDef, setting: PartSetting, report: (d: D
   }
 }
 
+/** The number a strobe gives a numbered port (`x[5]` on `drive at[n] ...`): the port's parameter name and the number. */
+export interface PortNumber {
+  name: string;
+  value: number;
+}
+
 /** A compiled port of one part: values in the part's input order, results in the port's order. */
 export interface CompiledPort {
   /** The names the function reads, in the order its input array holds them. */
@@ -177,8 +191,10 @@ export function compilePort(
   texts: { text: ExprText; width?: number }[],
   edgeWidth?: number,
   arrays: Pick<RunOptions, 'element' | 'onOutOfRange'> = {},
+  param?: PortNumber,
 ): CompiledPort {
   const numbers = numberSettings(setting);
+  if (param) numbers.set(param.name, param.value);
   const scope = scopeEntries(def, setting, edgeWidth);
   const exprs = texts.map((t, k) => ({ name: `r${k}`, expr: substitute(parsedExpr(def, t.text).expr!, numbers), width: t.width }));
   const inputs = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))].filter((name) => scope.get(name)?.elements === undefined);
@@ -192,8 +208,9 @@ export function compilePort(
  * names (controls in this step, choice settings) are fixed. Also returns the names the
  * expressions read (arrays included), as compilePort's `inputs` but with arrays.
  */
-export function portSource(def: KindDef, setting: PartSetting, texts: { text: ExprText; width?: number }[], edgeWidth: number | undefined, bind: InlineBinding): { temps: string[]; codes: string[]; reads: string[] } {
+export function portSource(def: KindDef, setting: PartSetting, texts: { text: ExprText; width?: number }[], edgeWidth: number | undefined, bind: InlineBinding, param?: PortNumber): { temps: string[]; codes: string[]; reads: string[] } {
   const numbers = numberSettings(setting);
+  if (param) numbers.set(param.name, param.value);
   const scope = scopeEntries(def, setting, edgeWidth);
   const exprs = texts.map((t) => ({ expr: substitute(parsedExpr(def, t.text).expr!, numbers), width: t.width }));
   const reads = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))];

@@ -41,6 +41,18 @@ export interface KindInput {
 export interface KindControl {
   name: string;
   values: string[];
+  /** The value it holds when no field drives it (`= word`); without one, a field must drive it where it is read. */
+  default?: string;
+  span: Span;
+}
+
+/** RV32I architectural roles a kind's state may hold (`holds ROLE STATE`): what the simulator loads and compares. */
+export const HOLDS_ROLES = ['registers', 'instruction', 'pc'] as const;
+export type HoldsRole = (typeof HOLDS_ROLES)[number];
+
+export interface KindHolds {
+  role: HoldsRole;
+  state: string;
   span: Span;
 }
 
@@ -55,6 +67,8 @@ export interface KindState {
 
 export interface KindDrive {
   name: string;
+  /** A numbered port (`drive at[n] ...`): the name its expressions read the strobe's number by. */
+  param?: string;
   width: Size;
   expr: A.ExprText;
   description?: string;
@@ -78,6 +92,8 @@ export interface KindAssign {
 
 export interface KindEdge {
   name: string;
+  /** A numbered port (`on at[n] ...`): the name its expressions read the strobe's number by. */
+  param?: string;
   /** Width of the bus value (`in`) the strobe brings; none for a count or a latch. */
   width?: Size;
   assigns: KindAssign[];
@@ -97,6 +113,8 @@ export interface KindDef {
   drives: KindDrive[];
   flags: KindFlag[];
   edges: KindEdge[];
+  /** Architectural roles of its state (`holds registers r`). */
+  holds: KindHolds[];
   /**
    * Names of input and state lines left out for a problem already reported: an expression
    * reading one is not checked, so that one mistake is not reported again as an unknown name.
@@ -125,6 +143,7 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
     drives: [],
     flags: [],
     edges: [],
+    holds: [],
     leftOut: new Set(),
     span: decl.name.span,
     declSpan: decl.span,
@@ -168,6 +187,19 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
     return { kind: 'setting', name: ref.text, span: ref.span };
   };
 
+  /** A numbered port's parameter: its own name, one numbered port of each sort per kind (a strobe's `PART[n]` must name one). */
+  const portParam = (param: A.Name | undefined, already: boolean, sort: string): string | undefined => {
+    if (!param) return undefined;
+    if (already) {
+      error(param.span, `kind \`${def.name}\` already has a numbered ${sort} port; a strobe's \`PART[n]\` could not tell them apart`);
+      return undefined;
+    }
+    if (seen.has(param.text)) {
+      error(param.span, `\`${param.text}\` is already a name in kind \`${def.name}\`; name the port's number differently`);
+      return undefined;
+    }
+    return param.text;
+  };
   for (const item of decl.items) {
     switch (item.item) {
       case 'setting': {
@@ -204,7 +236,38 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
         const dup = item.values.find((v, i) => values.indexOf(v.text) !== i);
         if (dup) error(dup.span, `\`${dup.text}\` is listed twice in control \`${item.name.text}\``, 'duplicate-name');
         if (values.length === 0) error(item.name.span, `control \`${item.name.text}\` lists no values; write the operations a field may choose, e.g. \`control fn: add sub\``);
-        def.controls.push({ name: item.name.text, values: [...new Set(values)], span: item.name.span });
+        let dflt: string | undefined;
+        if (item.default && !values.includes(item.default.text)) error(item.default.span, `\`${item.default.text}\` is not one of the values of control \`${item.name.text}\` (${values.join(', ')})`);
+        else dflt = item.default?.text;
+        def.controls.push({ name: item.name.text, values: [...new Set(values)], default: dflt, span: item.name.span });
+        break;
+      }
+      case 'holds': {
+        if (!item.name || !item.state) break;
+        const role = item.name.text as HoldsRole;
+        if (!HOLDS_ROLES.includes(role)) {
+          error(item.name.span, `\`${item.name.text}\` is not a role a state can hold; write one of ${HOLDS_ROLES.map((r) => `\`${r}\``).join(', ')}`);
+          break;
+        }
+        if (def.holds.some((h) => h.role === role)) {
+          error(item.name.span, `kind \`${def.name}\` already says which state holds the ${role}`, 'duplicate-name');
+          break;
+        }
+        const state = def.states.find((s) => s.name === item.state!.text);
+        if (!state) {
+          error(item.state.span, `\`${item.state.text}\` is not state of kind \`${def.name}\` declared above (\`state NAME WIDTH\`)`);
+          break;
+        }
+        const array = role === 'registers';
+        if (array !== (state.count !== undefined && state.count !== 'memory')) {
+          error(item.state.span, array ? `the registers x0..x31 are an array of 32: declare \`state ${state.name} 32 x 32\`` : `the ${role} is one register, not an array: \`${state.name}\` must be declared without \`x COUNT\``);
+          break;
+        }
+        if (array && state.count !== undefined && state.count !== 'memory' && state.count.kind === 'number' && state.count.value !== 32) {
+          error(item.state.span, `the registers x0..x31 are 32; \`${state.name}\` holds ${state.count.value}`);
+          break;
+        }
+        def.holds.push({ role, state: state.name, span: item.name.span });
         break;
       }
       case 'state': {
@@ -225,7 +288,8 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
         if (!claim(item.name, 'drive port')) break;
         const width = size(item.width, 'a port width');
         if (!width || !item.expr) break;
-        def.drives.push({ name: item.name.text, width, expr: item.expr, description: item.description?.value, span: item.name.span });
+        const param = portParam(item.param, def.drives.some((d) => d.param !== undefined), 'drive');
+        def.drives.push({ name: item.name.text, param, width, expr: item.expr, description: item.description?.value, span: item.name.span });
         break;
       }
       case 'flag': {
@@ -255,7 +319,8 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
           if (!a.expr) continue;
           assigns.push({ target: a.target.text, targetSpan: a.target.span, index: a.index, expr: a.expr, when: a.when, span: a.span });
         }
-        def.edges.push({ name: item.name.text, width, assigns, description: item.description?.value, span: item.name.span });
+        const param = portParam(item.param, def.edges.some((e) => e.param !== undefined), 'edge');
+        def.edges.push({ name: item.name.text, param, width, assigns, description: item.description?.value, span: item.name.span });
         break;
       }
     }

@@ -19,35 +19,7 @@
 //
 // Deliberately not here: machines with several stores or very many distinct words (they run on
 // the interpreter), traces and bus recording (interpreter only), any report.
-import {
-  D_ALU,
-  D_CONSTANT,
-  D_CUSTOM,
-  D_IMMEDIATE,
-  D_MEM_BUS,
-  D_MEM_PART,
-  D_PART,
-  D_REG_FIXED,
-  D_REG_RS1,
-  D_REG_RS2,
-  DRIVER_WORDS,
-  EDGE_WORDS,
-  E_CLOCK,
-  E_COMPARE,
-  E_COUNT,
-  E_CUSTOM,
-  E_MEM_WRITE_BUS,
-  E_MEM_WRITE_PART,
-  E_REG_FIXED,
-  E_REG_RD,
-  HEADER_END,
-  HEADER_STOP,
-  HEADER_TRAP,
-  U_DRIVERS,
-  U_FLOAT_MASK,
-  U_NEED_MASK,
-} from './microops';
-import { CONDITION_FROM_FUNCT3, SIZE_WORD, compareHolds, conditionOfFunct3 } from './operations';
+import { D_CUSTOM, DRIVER_WORDS, EDGE_WORDS, E_CUSTOM, HEADER_END, HEADER_STOP, HEADER_TRAP, U_DRIVERS, U_FLOAT_MASK, U_NEED_MASK } from './microops';
 import type { SimPlan } from './plan';
 import { ByteStage, type InlineSite } from './customParts';
 
@@ -121,39 +93,6 @@ export function canCompile(plan: SimPlan): boolean {
   return !partial && plan.machine.connections.length === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
 }
 
-const ALU_EXPRESSIONS: ((a: string, b: string) => string)[] = [
-  (a, b) => `((${a} + ${b}) | 0)`,
-  (a, b) => `((${a} - ${b}) | 0)`,
-  (a, b) => `(${a} << (${b} & 31))`,
-  (a, b) => `(${a} < ${b} ? 1 : 0)`,
-  (a, b) => `((${a} >>> 0) < (${b} >>> 0) ? 1 : 0)`,
-  (a, b) => `(${a} ^ ${b})`,
-  (a, b) => `((${a} >>> (${b} & 31)) | 0)`,
-  (a, b) => `(${a} >> (${b} & 31))`,
-  (a, b) => `(${a} | ${b})`,
-  (a, b) => `(${a} & ${b})`,
-  (a) => a,
-  (_a, b) => b,
-];
-
-// Immediate formats i s b u j (RISC-V Unprivileged ISA 2.3), as in isa/rv32i.ts.
-const IMMEDIATE_EXPRESSIONS: ((w: string) => string)[] = [
-  (w) => `(${w} >> 20)`,
-  (w) => `(((${w} >> 25) << 5) | ((${w} >>> 7) & 0x1f))`,
-  (w) => `(((${w} >> 31) << 12) | (((${w} >>> 7) & 1) << 11) | (((${w} >>> 25) & 0x3f) << 5) | (((${w} >>> 8) & 0xf) << 1))`,
-  (w) => `(${w} & -4096)`,
-  (w) => `(((${w} >> 31) << 20) | (${w} & 0x000ff000) | (((${w} >>> 20) & 1) << 11) | (((${w} >>> 21) & 0x3ff) << 1))`,
-];
-
-// Memory sizes byte half word ubyte uhalf: loads sign- or zero-extend.
-const LOAD_EXPRESSIONS: ((address: string) => string)[] = [
-  (x) => `((memory.load8(${x} >>> 0) << 24) >> 24)`,
-  (x) => `((memory.load16(${x} >>> 0) << 16) >> 16)`,
-  (x) => `memory.load32(${x} >>> 0)`, // replaced by a cached reader where the caller provides one
-  (x) => `memory.load8(${x} >>> 0)`,
-  (x) => `memory.load16(${x} >>> 0)`,
-];
-
 // Word reads (every instruction fetch among them) go through the live word view of the page the
 // same read found last time (one cache per place in the code, so a fetch and a data read do not
 // evict each other), as the reference interpreter's fetch does; stores land in the same array, so
@@ -188,8 +127,8 @@ function environmentOf(plan: SimPlan, state: FastState, io: Int32Array): [string
   const stageByte = (address: number, value: number) => bytes.stage(address, value);
   const storeMemory = (size: number, address: number, value: number) => state.storeMemory(size, address, value);
   const flushBytes = () => bytes.flush(storeMemory);
-  const names = ['state', 'io', 'busValue', 'partValue', 'regs', 'customState', 'flags', 'memory', 'logAddress', 'classOfOpcode', 'classInstructions', 'classSteps', 'retiredByKey', 'compareHolds', 'conditionOfFunct3', 'stageByte', 'flushBytes'];
-  const values = [state, io, state.busValue, state.partValue, state.regs, state.customState, state.flags, state.memory, state.logAddress, classSlots, state.classInstructions, state.classSteps, state.retiredByKey, compareHolds, conditionOfFunct3, stageByte, flushBytes];
+  const names = ['state', 'io', 'busValue', 'partValue', 'regs', 'customState', 'flags', 'memory', 'logAddress', 'classOfOpcode', 'classInstructions', 'classSteps', 'retiredByKey', 'stageByte', 'flushBytes'];
+  const values = [state, io, state.busValue, state.partValue, state.regs, state.customState, state.flags, state.memory, state.logAddress, classSlots, state.classInstructions, state.classSteps, state.retiredByKey, stageByte, flushBytes];
   return [names, values];
 }
 
@@ -328,8 +267,6 @@ function chainSource(plan: SimPlan, address: number, firstStep: number): { key: 
  * WORD_INPUTS bits), or WORD_SLOW when the interpreter must always run it (traps, faults).
  */
 function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: string, wordLoad?: (address: string) => string, prefix = 'w_'): { lines: string[]; result: number } {
-  const load = (size: number, address: string) => (size === SIZE_WORD && wordLoad ? wordLoad(`${address} >>> 0`) : LOAD_EXPRESSIONS[size](address));
-  const irPart = plan.irPart;
   const out: string[] = [];
   const header = code[base];
   if (header & (HEADER_STOP | HEADER_TRAP)) return { lines: [], result: WORD_SLOW };
@@ -358,49 +295,17 @@ function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: strin
   };
   let p = base + U_DRIVERS + 1;
   for (let k = 0; k < nDrivers; k++, p += DRIVER_WORDS) {
-    const [op, bus, a, b, c] = [code[p], code[p + 1], code[p + 2], code[p + 3], code[p + 4]];
+    const [op, bus, a, b] = [code[p], code[p + 1], code[p + 2], code[p + 3]];
     let value: string;
     let definedness: boolean | string = true;
-    switch (op) {
-      case D_REG_RS1:
-        value = `regs[${a * 32} + ((ir >>> 15) & 31)]`;
-        break;
-      case D_REG_RS2:
-        value = `regs[${a * 32} + ((ir >>> 20) & 31)]`;
-        break;
-      case D_REG_FIXED:
-        value = `regs[${a * 32 + b}]`;
-        break;
-      case D_PART:
-        value = a === irPart ? 'ir' : `partValue[${a}]`;
-        break;
-      case D_IMMEDIATE:
-        value = IMMEDIATE_EXPRESSIONS[a](b === irPart ? 'ir' : `partValue[${b}]`);
-        break;
-      case D_ALU:
-        value = ALU_EXPRESSIONS[a](busRead(b), busRead(c));
-        definedness = definednessOf(a === 10 ? [b] : a === 11 ? [c] : [b, c]);
-        break;
-      case D_MEM_PART:
-        value = load(a, `partValue[${b}]`);
-        break;
-      case D_MEM_BUS:
-        value = load(a, busRead(b));
-        definedness = definednessOf([b]);
-        break;
-      case D_CONSTANT:
-        value = String(a | 0);
-        break;
-      case D_CUSTOM: {
-        const src = plan.custom.driverSource(a, site());
-        statements.push(...src.lines);
-        value = src.value;
-        definedness = definednessOf(busesOf(b, nBuses));
-        break;
-      }
-      default:
-        value = '0';
-        definedness = false;
+    if (op === D_CUSTOM) {
+      const src = plan.custom.driverSource(a, site());
+      statements.push(...src.lines);
+      value = src.value;
+      definedness = definednessOf(busesOf(b, nBuses));
+    } else {
+      value = '0'; // D_UNDEFINED
+      definedness = false;
     }
     const mask = plan.busMask[bus];
     const masked = mask === -1 ? value : `(${value} & ${mask})`;
@@ -431,51 +336,18 @@ function wordBody(plan: SimPlan, code: Int32Array, base: number, slowExit: strin
   const customStores: string[] = [];
   let writesMemory = false;
   for (let k = 0; k < nEdges; k++, p += EDGE_WORDS) {
-    const [op, bus, a, b, c] = [code[p], code[p + 1], code[p + 2], code[p + 3], code[p + 4]];
-    switch (op) {
-      case E_MEM_WRITE_PART:
-        out.push(`state.storeMemory(${a}, partValue[${b}], ${busRead(bus)});`);
-        break;
-      case E_MEM_WRITE_BUS:
-        out.push(`state.storeMemory(${a}, ${busRead(b)}, ${busRead(bus)});`);
-        break;
-      case E_REG_RD:
-        // A write to x0 that the register file ignores goes to the spare entry after the files:
-        // the same store either way, so V8 never meets a store it has not seen (rd = 0 is common).
-        out.push(b !== 0 ? `regs[${a * 32} + ((ir >>> 7) & 31)] = ${busRead(bus)};` : `regs[(ir & 0xf80) !== 0 ? ${a * 32} + ((ir >>> 7) & 31) : regs.length - 1] = ${busRead(bus)};`);
-        break;
-      case E_REG_FIXED:
-        if (c !== 0) out.push(`regs[${a * 32 + b}] = ${busRead(bus)};`);
-        break;
-      case E_COMPARE: {
-        const cond = a === CONDITION_FROM_FUNCT3 ? 'conditionOfFunct3(ir >>> 12)' : String(a);
-        out.push(`flags[${bus}] = compareHolds(${cond}, ${busRead(b)}, ${busRead(c)});`);
-        inputsChanged = true;
-        break;
-      }
-      case E_COUNT:
-        out.push(`partValue[${a}] = (partValue[${a}] + ${b}) & ${c};`);
-        break;
-      case E_CLOCK:
-        out.push(b === -1 ? `partValue[${a}] = ${busRead(bus)};` : `partValue[${a}] = ${busRead(bus)} & ${b};`);
-        if (c !== 0) {
-          inputsChanged = true;
-          out.push('state.instructionLoaded = true;');
-        }
-        break;
-      case E_CUSTOM: {
-        const src = plan.custom.edgeSource(a, site());
-        // Names carry the site's prefix, so the compute and store statements share the word's block.
-        out.push(...src.compute);
-        customStores.push(...src.store);
-        writesMemory ||= src.writesMemory;
-        if (src.changesInputs) inputsChanged = true;
-        if (c !== 0) {
-          inputsChanged = true;
-          customStores.push('state.instructionLoaded = true;');
-        }
-        break;
-      }
+    const [op, a, c] = [code[p], code[p + 2], code[p + 4]];
+    // A fault entry (sorted first): the interpreter runs the word and reports it.
+    if (op !== E_CUSTOM) return { lines: [], result: WORD_SLOW };
+    const src = plan.custom.edgeSource(a, site());
+    // Names carry the site's prefix, so the compute and store statements share the word's block.
+    out.push(...src.compute);
+    customStores.push(...src.store);
+    writesMemory ||= src.writesMemory;
+    if (src.changesInputs) inputsChanged = true;
+    if (c !== 0) {
+      inputsChanged = true;
+      customStores.push('state.instructionLoaded = true;');
     }
   }
   out.push(...customStores);

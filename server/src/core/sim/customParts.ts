@@ -1,21 +1,22 @@
-// Parts of a table's own kinds in the simulator: their behaviour is their kind's expressions,
-// compiled to JavaScript per part and per control code (parts/behaviour.ts), so the simulator
-// runs exactly what the definition says. One slot per scalar state in one Int32Array (the
-// checkpoint copies it with the rest of the machine); a part's first state is mirrored into its
-// part value so traces, and parts that read it as an input, see what it holds.
+// Every part in the simulator runs from its kind's definition: a table's own kinds and the
+// standard library's alike (a library part is read as a part of its kind through
+// model/libraryParts.ts). Their behaviour is their kind's expressions, compiled to JavaScript per
+// part and per control code (parts/behaviour.ts): closures for the interpreter, inlined source
+// for the compiled steps (sim/compile.ts), so the simulator runs exactly what the definition says.
 //
-// With the plan option `fromDefinitions`, the standard library's parts run here too, read as
-// parts of their kinds' definitions (model/libraryParts.ts). Their state lives where the
-// built-in path keeps it, so the environment, lock-step comparison, traces and the debugger read
-// it unchanged: a register's, counter's or instruction register's `q` is its part value, a
-// register file's `r` the simulator's register file, a memory's `x memory` the program memory.
+// Where each state lives follows the kind's `holds` lines and nothing else: the RV32I registers
+// (`holds registers r`) are the simulator's register file, which the environment, the lock-step
+// comparison and the debugger read; the program memory (`x memory`) is the program's memory; the
+// part's value (the state holding the pc or the instruction, else its first single register)
+// is its slot in the part values, which traces show and parts wired to it read; every other
+// state has a slot in one Int32Array (the checkpoint copies it with the rest of the machine).
 //
 // Timing (docs/notation.md, "Timing model"): a drive port is combinational for the whole step;
 // at the closing edge every edge port of every part computes from the values before the edge,
 // then all of them are stored at once, then the flags are read from the new state.
 import type { CustomPart, Field, Machine, Strobe } from '../model/types';
 import type { Memory } from '../isa/memory';
-import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource } from '../parts/behaviour';
+import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource, type PortNumber } from '../parts/behaviour';
 import type { InlineBinding } from '../parts/expr';
 import { edgeInputName } from '../parts/kinds';
 import { customPortBusReads, partSetting } from '../model/buildCustomPart';
@@ -55,8 +56,6 @@ interface PartRuntime {
   widths: Map<string, number>;
   /** Register arrays: element count; the program memory: `memory`. */
   arrays: Map<string, number | 'memory'>;
-  /** A table's own part mirrors its first state into its part value (a library part keeps its value where it lives). */
-  mirror: number;
   /** Reads an element of one of this part's arrays from where it is stored. */
   element: (array: string, index: number) => number;
   /** Computes every flag from the state; indices into the simulator's flags. */
@@ -95,12 +94,10 @@ interface PortSpec {
   fields: ReadonlyMap<string, number>;
   /** The bus an edge port loads (-1: none). */
   bus: number;
+  /** A numbered port's number (`x[5]`). */
+  param?: PortNumber;
 }
 
-export interface CustomPartsOptions {
-  /** Run the standard library's parts from their definitions too (model/libraryParts.ts). */
-  fromDefinitions?: boolean;
-}
 
 export class CustomParts {
   readonly runtimes: PartRuntime[] = [];
@@ -110,8 +107,8 @@ export class CustomParts {
   readonly resetValues: number[] = [];
   /** Reset values of states stored in part values (part number, value), set by the simulator at reset. */
   readonly partResets: { part: number; value: number }[] = [];
-  /** Library parts left on the built-in path, and why (with `fromDefinitions`). */
-  readonly builtIn: { part: string; why: string }[] = [];
+  /** Parts that cannot run from their definitions, and why (the plan refuses the machine). */
+  readonly unrunnable: string[] = [];
   readonly drivers: Getter[] = [];
   /** Beside `drivers` and `edges`, what inlining each needs (sim/compile.ts). */
   private readonly driverSpecs: PortSpec[] = [];
@@ -125,18 +122,21 @@ export class CustomParts {
     private readonly partIndex: ReadonlyMap<string, number>,
     flagIndex: ReadonlyMap<string, number>,
     regfileIndex: ReadonlyMap<string, number> = new Map(),
-    options: CustomPartsOptions = {},
   ) {
     for (const original of machine.parts.values()) {
-      if (original.kind !== 'custom' && !options.fromDefinitions) continue;
       const defined = asDefinedPart(machine, original);
       if ('problem' in defined) {
-        this.builtIn.push({ part: original.name, why: defined.problem });
+        this.unrunnable.push(`part \`${original.name}\`: ${defined.problem}`);
         continue;
       }
       const part = defined;
       const partNumber = partIndex.get(part.name)!;
-      const rt: PartRuntime = { part, partNumber, storage: new Map(), widths: new Map(), arrays: new Map(), mirror: original.kind === 'custom' ? -1 : -2, element: () => 0 };
+      const rt: PartRuntime = { part, partNumber, storage: new Map(), widths: new Map(), arrays: new Map(), element: () => 0 };
+      const roles = new Map(part.def.holds.map((h) => [h.state, h.role]));
+      // The part's value (what traces show, what a part wired to it reads, the program counter and
+      // instruction register the simulator reads): the state holding the pc or the instruction,
+      // else the first single register.
+      const valueState = part.def.holds.find((h) => h.role !== 'registers')?.state ?? part.def.states.find((st) => !st.count)?.name;
       for (const state of part.def.states) {
         rt.widths.set(state.name, sizeOf(state.width, part.settings));
         if (state.count === 'memory') {
@@ -146,10 +146,9 @@ export class CustomParts {
         }
         const count = state.count ? sizeOf(state.count, part.settings) : 1;
         if (state.count) rt.arrays.set(state.name, count);
-        if (original.kind === 'regfile' && state.count) rt.storage.set(state.name, { in: IN_REGS, base: regfileIndex.get(part.name)! * 32 });
-        else if ((original.kind === 'register' || original.kind === 'counter' || original.kind === 'instruction') && !state.count) rt.storage.set(state.name, { in: IN_PART, base: partNumber });
+        if (roles.get(state.name) === 'registers') rt.storage.set(state.name, { in: IN_REGS, base: regfileIndex.get(part.name)! * 32 });
+        else if (state.name === valueState) rt.storage.set(state.name, { in: IN_PART, base: partNumber });
         else {
-          if (rt.mirror === -1) rt.mirror = this.stateCount;
           rt.storage.set(state.name, { in: IN_STATE, base: this.stateCount });
           this.stateCount += count;
         }
@@ -202,11 +201,37 @@ export class CustomParts {
     return rt !== undefined && definedPortOf(rt.part, strobe) !== undefined;
   }
 
+  /**
+   * Whether an instruction can write register 0 of the part's RV32I registers (`holds
+   * registers`): one of its closing-edge ports (not a numbered one, which the table names
+   * itself) writes element 0 when every input, the instruction among them, is 0, so rd = 0.
+   * False for x0 hardwired to zero or guarded by its clock; true for a stored x0.
+   */
+  writesRegisterZero(partName: string): boolean {
+    const rt = this.byName.get(partName);
+    const registers = rt?.part.def.holds.find((h) => h.role === 'registers')?.state;
+    if (!rt || !registers) return false;
+    const setting = partSetting(this.machine, rt.part);
+    for (const edge of rt.part.def.edges) {
+      if (edge.param !== undefined) continue;
+      for (const a of edge.assigns) {
+        if (a.target !== registers || !a.index) continue;
+        const texts = [{ text: a.index }, ...(a.when ? [{ text: a.when, width: 1 }] : [])];
+        const port = compilePort(rt.part.def, setting, texts, edge.width ? sizeOf(edge.width, rt.part.settings) : undefined, { element: () => 0 });
+        const choices = choiceCodes(rt.part.def, rt.part.settings);
+        const [index, when] = port.run(port.inputs.map((name) => choices.get(name) ?? 0));
+        if (Number(index) === 0 && (when === undefined || Number(when) !== 0)) return true;
+      }
+    }
+    return false;
+  }
+
   /** Problems that stop the simulator from running these parts at all (widths it does not hold). */
   static problems(machine: Machine): string[] {
     const out: string[] = [];
-    for (const part of machine.parts.values()) {
-      if (part.kind !== 'custom') continue;
+    for (const original of machine.parts.values()) {
+      const part = asDefinedPart(machine, original);
+      if ('problem' in part) continue; // reported when the parts are built
       for (const state of part.def.states) {
         if (sizeOf(state.width, part.settings) > 32) out.push(`part \`${part.name}\`: state \`${state.name}\` is wider than 32 bits, which the simulator does not hold yet`);
       }
@@ -214,6 +239,7 @@ export class CustomParts {
     }
     return out;
   }
+
 
   private controlField(part: CustomPart, control: string): Field | undefined {
     const name = part.controlFields.get(control);
@@ -238,9 +264,10 @@ export class CustomParts {
       return (m) => m.partValue[p] >>> 0;
     }
     if (input?.from === 'instruction') return (m) => m.ir >>> 0;
-    if (part.def.controls.some((c) => c.name === name)) {
+    const control = part.def.controls.find((c) => c.name === name);
+    if (control) {
       const field = this.controlField(part, name);
-      const code = field ? (fields.get(field.name) ?? field.idle) : 0;
+      const code = field ? (fields.get(field.name) ?? field.idle) : Math.max(0, control.values.indexOf(control.default ?? ''));
       return () => code;
     }
     const setting = part.def.settings.find((s) => s.name === name);
@@ -257,6 +284,8 @@ export class CustomParts {
     for (const control of rt.part.def.controls) {
       const field = this.controlField(rt.part, control.name);
       if (field) codes.set(control.name, fields.get(field.name) ?? field.idle);
+      // No field: the control holds its default (partSetting numbers its values in order).
+      else if (control.default !== undefined) codes.set(control.name, control.values.indexOf(control.default));
     }
     return codes;
   }
@@ -282,6 +311,7 @@ export class CustomParts {
       const control = rt.part.def.controls.find((c) => c.name === name);
       if (!control || !live.has(name)) continue;
       const field = this.controlField(rt.part, name);
+      if (!field && control.default !== undefined) continue;
       if (!field) return `control \`${name}\` of \`${rt.part.name}\` is driven by no field`;
       const code = fields.get(field.name) ?? field.idle;
       const value = [...field.values.values()].find((v) => v.code === code);
@@ -295,7 +325,8 @@ export class CustomParts {
     const rt = this.byName.get(strobe.part ?? '')!;
     const drive = rt.part.def.drives.find((d) => d.name === definedPortOf(rt.part, strobe))!;
     const texts = [{ text: drive.expr, width: sizeOf(drive.width, rt.part.settings) }];
-    const port = compilePort(rt.part.def, partSetting(this.machine, rt.part), texts, undefined, { element: rt.element });
+    const param = portNumber(drive.param, strobe);
+    const port = compilePort(rt.part.def, partSetting(this.machine, rt.part), texts, undefined, { element: rt.element }, param);
     const problem = this.unnamedControl(rt, texts, port.inputs, fields);
     if (problem) return { problem };
     const getters = port.inputs.map((name) => this.getter(rt, name, fields, -1));
@@ -306,7 +337,7 @@ export class CustomParts {
       this.current = m;
       return Number(run(values)[0]) | 0;
     });
-    this.driverSpecs.push({ rt, texts, fields, bus: -1 });
+    this.driverSpecs.push({ rt, texts, fields, bus: -1, param });
     return { index: this.drivers.length - 1, reads: this.busReads(rt, drive.name, fields) };
   }
 
@@ -317,7 +348,8 @@ export class CustomParts {
     const edge = def.edges.find((e) => e.name === definedPortOf(rt.part, strobe))!;
     const texts = edge.assigns.flatMap((a) => [{ text: a.expr, width: rt.widths.get(a.target)! }, ...(a.when ? [{ text: a.when, width: 1 }] : []), ...(a.index ? [{ text: a.index }] : [])]);
     const edgeWidth = edge.width ? sizeOf(edge.width, rt.part.settings) : undefined;
-    const port = compilePort(def, partSetting(this.machine, rt.part), texts, edgeWidth, { element: rt.element });
+    const param = portNumber(edge.param, strobe);
+    const port = compilePort(def, partSetting(this.machine, rt.part), texts, edgeWidth, { element: rt.element }, param);
     const problem = this.unnamedControl(rt, texts, port.inputs, fields);
     if (problem) return { problem };
     const getters = port.inputs.map((name) => this.getter(rt, name, fields, bus));
@@ -346,7 +378,7 @@ export class CustomParts {
         else if (index < a.count) stage.push(a.storage.in, a.storage.base + index, Number(out[a.value]) | 0);
       }
     });
-    this.edgeSpecs.push({ rt, texts, edgeWidth, fields, bus, assigns: plan });
+    this.edgeSpecs.push({ rt, texts, edgeWidth, fields, bus, param, assigns: plan });
     const reads = this.busReads(rt, edge.name, fields);
     return { index: this.edges.length - 1, reads: bus >= 0 && port.inputs.includes(edgeInputName) ? [bus, ...reads] : reads };
   }
@@ -398,19 +430,19 @@ export class CustomParts {
   /** The code of driver `index` inlined at `site`: statements to run first, then an int32 value. */
   driverSource(index: number, site: InlineSite): { lines: string[]; value: string } {
     const spec = this.driverSpecs[index];
-    const src = portSource(spec.rt.part.def, partSetting(this.machine, spec.rt.part), spec.texts, undefined, this.binding(spec, site));
+    const src = portSource(spec.rt.part.def, partSetting(this.machine, spec.rt.part), spec.texts, undefined, this.binding(spec, site), spec.param);
     return { lines: src.temps.length ? [`let ${src.temps.join(', ')};`] : [], value: `((${src.codes[0]}) | 0)` };
   }
 
   /**
    * Edge port `index` inlined at `site`: what it computes from the values before the edge, and
    * how it stores them (run after every other closing-edge action, as commit() does), followed
-   * by the mirror of the part's first state and its flags.
+   * by its flags.
    */
   edgeSource(index: number, site: InlineSite): InlineEdge {
     const spec = this.edgeSpecs[index];
     const { rt } = spec;
-    const src = portSource(rt.part.def, partSetting(this.machine, rt.part), spec.texts, spec.edgeWidth, this.binding(spec, site));
+    const src = portSource(rt.part.def, partSetting(this.machine, rt.part), spec.texts, spec.edgeWidth, this.binding(spec, site), spec.param);
     const p = site.prefix;
     const compute: string[] = src.temps.length ? [`let ${src.temps.join(', ')};`] : [];
     const store: string[] = [];
@@ -433,7 +465,6 @@ export class CustomParts {
       }
       store.push(when === '1' ? write : `if (${p}w${k} !== 0) { ${write} }`);
     });
-    if (rt.mirror >= 0) store.push(`partValue[${rt.partNumber}] = customState[${rt.mirror}];`);
     let changesInputs = false;
     if (rt.flags) {
       const def = rt.part.def;
@@ -448,7 +479,7 @@ export class CustomParts {
     return { compute, store, changesInputs, writesMemory: bytes > 0 };
   }
 
-  /** Stores what the edge ports computed, mirrors first states into part values and reads the flags. */
+  /** Stores what the edge ports computed and reads the flags. */
   commit(m: CustomAccess, stage: number[], flags: Uint8Array): void {
     const bytes = this.bytes;
     for (let i = 0; i < stage.length; i += 3) {
@@ -475,10 +506,9 @@ export class CustomParts {
 
   /** Part values and flags from the current state (after reset and after every commit). */
   refresh(m: CustomAccess, flags: Uint8Array): void {
-    // Only parts with a mirrored state or flags have anything to refresh (this runs every step).
-    this.refreshed ??= this.runtimes.filter((rt) => rt.mirror >= 0 || rt.flags);
+    // Only parts with flags have anything to refresh (this runs every step).
+    this.refreshed ??= this.runtimes.filter((rt) => rt.flags);
     for (const rt of this.refreshed) {
-      if (rt.mirror >= 0) m.partValue[rt.partNumber] = m.customState[rt.mirror];
       if (rt.flags) {
         const values = rt.flags.run(m);
         rt.flags.flagNumbers.forEach((f, i) => {
@@ -490,6 +520,11 @@ export class CustomParts {
 }
 
 type CompileText = Parameters<typeof compilePort>[2][number];
+
+/** The number a strobe gives a numbered port (`x[5]` on `drive at[n] ...`). */
+function portNumber(param: string | undefined, strobe: Strobe): PortNumber | undefined {
+  return param !== undefined && strobe.register !== undefined ? { name: param, value: strobe.register } : undefined;
+}
 
 /** A choice setting's choices by code (the names a `select` on it is keyed by). */
 function valuesOfChoice(part: CustomPart, name: string): ReadonlyMap<string, number> | undefined {

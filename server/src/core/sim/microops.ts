@@ -16,43 +16,22 @@
 //
 // Deliberately not here: values (simulator.ts computes them) and reports (describe.ts).
 import { contendedBuses, driverNamed, lineMask, withConnections } from '../model/busDrivers';
-import type { Field, Part, Strobe } from '../model/types';
+import type { Strobe } from '../model/types';
 import { GrowableInt32 } from './growable';
-import { CONDITION_FROM_FUNCT3, SIZE_WORD, aluFunctionNumber, aluOperandsUsed, conditionNumber, immediateFormatNumber, memorySizeNumber } from './operations';
 import type { SimPlan } from './plan';
 
 // Driver operations. Operands a, b, c as listed. The hot loop in simulator.ts switches on the
 // literal numbers (module constants are not folded into switch cases in bundled code): keep
-// both in step.
+// both in step. Every part runs from its kind's definition (sim/customParts.ts).
 export const D_UNDEFINED = 0; // drives a value nobody can know (an unnamed control code); reason in notes
-export const D_REG_RS1 = 1; // A = register file
-export const D_REG_RS2 = 2; // A = register file
-export const D_REG_FIXED = 3; // A = register file, B = register number
-export const D_PART = 4; // A = part (register, counter, instruction register)
-export const D_IMMEDIATE = 5; // A = format, B = source part (the instruction register)
-export const D_ALU = 6; // A = function, B = bus a, C = bus b
-export const D_MEM_PART = 7; // A = size, B = address part
-export const D_MEM_BUS = 8; // A = size, B = address bus
-export const D_CONSTANT = 9; // A = value
-export const D_CUSTOM = 10; // A = driver of a part run from its kind's definition (plan.custom.drivers), B = mask of the buses it reads
+export const D_CUSTOM = 1; // A = driver of a drive port (plan.custom.drivers), B = mask of the buses it reads
 
 // Closing-edge operations, in the order they are applied.
 export const E_FAULT = 0; // stop before any update; the message is in MicroOpInfo.edges
-export const E_MEM_WRITE_PART = 1; // bus = data, A = size, B = address part
-export const E_MEM_WRITE_BUS = 2; // bus = data, A = size, B = address bus
-export const E_REG_RD = 3; // bus = data, A = register file, B = 1 when x0 is writable through rd
-export const E_REG_FIXED = 4; // bus = data, A = register file, B = register number, C = 1 when writable
-export const E_COMPARE = 5; // bus slot = flag, A = condition (or CONDITION_FROM_FUNCT3), B = bus a, C = bus b
-export const E_COUNT = 6; // A = part, B = increment, C = mask
-export const E_CLOCK = 7; // bus = data, A = part, B = mask, C = 1 for the instruction register
-// A part run from its kind's definition (a table's own kind; with the plan option
-// `fromDefinitions` every library part too): A = its edge port (plan.custom.edges), C = 1 for the
-// instruction register. It computes from the
-// values before the edge, so it runs right after the faults; what it computed is stored once
-// every other action has run (HEADER_CUSTOM).
-export const E_CUSTOM = 8;
-/** Sort key of an edge action: the order in which they run. */
-const edgeOrder = (op: number) => (op === E_CUSTOM ? 0.5 : op);
+// An edge port (plan.custom.edges): A = its index, C = 1 for the instruction register. Every port
+// computes from the values before the edge; what they computed is stored once all have run
+// (HEADER_CUSTOM).
+export const E_CUSTOM = 1;
 
 /** Layout of a compiled micro-op in `MicroOps.code`, from its base offset. */
 export const U_HEADER = 0; // bit 0: stops the machine (contention or loop), bit 1: end, bit 2: trap
@@ -83,8 +62,8 @@ export interface MicroOpInfo {
   fields: Map<string, number>;
   /** Drivers in settle order (as in `code`): strobe, bus, part, and why the value is unknown for an unnamed code. */
   drivers: { strobe: string; bus: number; part: string; note?: string }[];
-  /** Edge actions in the order applied (as in `code`): strobe, and the message of a fault entry. */
-  edges: { strobe: string; fault?: string }[];
+  /** Edge actions in the order applied (as in `code`): strobe, the message of a fault entry, the buses it loads from. */
+  edges: { strobe: string; fault?: string; reads: number[] }[];
   contention: { bus: number; strobes: string[] }[];
   /** A combinational loop through buses, described; empty when there is none. */
   loop: string;
@@ -167,21 +146,6 @@ export class MicroOps {
     return this.fieldNames.get(field)?.get(code);
   }
 
-  /** The code a field holds in this micro-op (its idle code when no store holds it). */
-  private fieldCode(fields: Map<string, number>, fieldName: string): number {
-    const code = fields.get(fieldName);
-    if (code !== undefined) return code;
-    const field = this.plan.machine.signals.get(fieldName) as Field | undefined;
-    return field?.idle ?? 0;
-  }
-
-  /** The value name of a part's control field in this micro-op, or undefined when the part has no field. */
-  private controlValue(part: Part, fields: Map<string, number>): { name?: string; code: number; field: string } | undefined {
-    if (!part.controlField) return undefined;
-    const code = this.fieldCode(fields, part.controlField);
-    return { name: this.valueName(part.controlField, code), code, field: part.controlField };
-  }
-
   private compile(words: number[]): number {
     const plan = this.plan;
     const machine = plan.machine;
@@ -247,7 +211,8 @@ export class MicroOps {
     for (let bus = 0; bus < nBuses; bus++) if (!driven[bus] && !plan.busKeeper[bus]) floatMask |= 1 << bus;
     let needMask = 0;
     for (const e of edges) for (const bus of e.reads) needMask |= 1 << bus;
-    edges.sort((x, y) => edgeOrder(x.op) - edgeOrder(y.op));
+    // Faults first: a step that faults changes nothing.
+    edges.sort((x, y) => x.op - y.op);
     if (edges.some((e) => e.op === E_CUSTOM)) header |= HEADER_CUSTOM;
     const index = this.count++;
     const code = this.code;
@@ -279,7 +244,7 @@ export class MicroOps {
       asserted,
       fields,
       drivers: ordered.map((d) => ({ strobe: d.strobe, bus: d.bus, part: driverNamed(machine, d.strobe)!.part ?? '', note: d.note })),
-      edges: edges.map((e) => ({ strobe: e.strobe, fault: e.fault })),
+      edges: edges.map((e) => ({ strobe: e.strobe, fault: e.fault, reads: e.reads })),
       contention,
       loop,
       driven,
@@ -294,54 +259,10 @@ export class MicroOps {
     if (bus === undefined || !part) return undefined;
     const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: [] as number[] };
     const undefinedDriver = (note: string): DriverSpec => ({ ...base, op: D_UNDEFINED, note });
-    if (plan.custom.runs(strobe)) {
-      const op = plan.custom.driver(strobe, fields);
-      if ('problem' in op) return undefinedDriver(op.problem);
-      return { ...base, op: D_CUSTOM, a: op.index, b: op.reads.reduce((m, b) => m | (1 << b), 0), reads: op.reads };
-    }
-    switch (part.kind) {
-      case 'regfile': {
-        const file = plan.regfileIndex.get(part.name)!;
-        if (strobe.register !== undefined) return { ...base, op: D_REG_FIXED, a: file, b: strobe.register };
-        return { ...base, op: strobe.port === 'rs2' ? D_REG_RS2 : D_REG_RS1, a: file };
-      }
-      case 'register':
-      case 'counter':
-      case 'instruction':
-        return { ...base, op: D_PART, a: plan.partIndex.get(part.name)! };
-      case 'constant':
-        return { ...base, op: D_CONSTANT, a: part.value & plan.partMask[plan.partIndex.get(part.name)!] };
-      case 'immediate': {
-        const control = this.controlValue(part, fields);
-        if (!control) return undefinedDriver(`the immediate generator \`${part.name}\` has no field selecting its format`);
-        const format = control.name === undefined ? -1 : immediateFormatNumber(control.name);
-        if (format < 0) return undefinedDriver(`\`${control.field}\` holds code ${control.code}, which names no immediate format`);
-        return { ...base, op: D_IMMEDIATE, a: format, b: plan.partIndex.get(part.source) ?? plan.irPart };
-      }
-      case 'alu': {
-        const control = this.controlValue(part, fields);
-        if (!control) return undefinedDriver(`the ALU \`${part.name}\` has no field selecting its function`);
-        const fn = control.name === undefined ? -1 : aluFunctionNumber(control.name);
-        if (fn < 0) return undefinedDriver(`\`${control.field}\` holds code ${control.code}, which names no ALU function`);
-        const a = plan.busIndex.get(part.a)!;
-        const b = plan.busIndex.get(part.b)!;
-        const used = aluOperandsUsed(fn);
-        const reads = [...(used & 1 ? [a] : []), ...(used & 2 ? [b] : [])];
-        return { ...base, op: D_ALU, a: fn, b: a, c: b, reads };
-      }
-      case 'memory': {
-        const control = this.controlValue(part, fields);
-        const size = control ? (control.name === undefined ? -1 : memorySizeNumber(control.name)) : SIZE_WORD;
-        if (size < 0) return undefinedDriver(`\`${control!.field}\` holds code ${control!.code}, which names no memory size`);
-        if (part.addressFrom === 'bus') {
-          const addressBus = plan.busIndex.get(part.address)!;
-          return { ...base, op: D_MEM_BUS, a: size, b: addressBus, reads: [addressBus] };
-        }
-        return { ...base, op: D_MEM_PART, a: size, b: plan.partIndex.get(part.address)! };
-      }
-      default:
-        return undefinedDriver(`a ${part.kind} part cannot drive a bus`);
-    }
+    if (!plan.custom.runs(strobe)) return undefinedDriver(`\`${part.name}\` has no drive port for \`${strobe.name}\``);
+    const op = plan.custom.driver(strobe, fields);
+    if ('problem' in op) return undefinedDriver(op.problem);
+    return { ...base, op: D_CUSTOM, a: op.index, b: op.reads.reduce((m, b) => m | (1 << b), 0), reads: op.reads };
   }
 
   private edgeOf(strobe: Strobe, fields: Map<string, number>): EdgeSpec | undefined {
@@ -351,54 +272,11 @@ export class MicroOps {
     const bus = strobe.bus === undefined ? -1 : (plan.busIndex.get(strobe.bus) ?? -1);
     const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: bus >= 0 ? [bus] : [] };
     const fault = (message: string): EdgeSpec => ({ ...base, op: E_FAULT, fault: message, reads: [] });
-    if (plan.custom.runs(strobe)) {
-      const op = plan.custom.edge(strobe, fields, bus);
-      if ('problem' in op) return fault(`${op.problem}, while \`${strobe.name}\` acts at the closing edge`);
-      // C = 1 when the port loads the instruction register (the simulator notes the first fetch).
-      return { ...base, op: E_CUSTOM, a: op.index, c: plan.partIndex.get(part.name) === plan.irPart ? 1 : 0, reads: op.reads };
-    }
-    if (strobe.kind === 'write') {
-      if (part.kind !== 'memory') return fault(`\`${strobe.name}\` writes to \`${part.name}\`, which is not a memory`);
-      const control = this.controlValue(part, fields);
-      const size = control ? (control.name === undefined ? -1 : memorySizeNumber(control.name)) : SIZE_WORD;
-      if (size < 0) return fault(`\`${control!.field}\` holds code ${control!.code}, which names no memory size, while \`${strobe.name}\` writes memory`);
-      if (part.addressFrom === 'bus') {
-        const addressBus = plan.busIndex.get(part.address)!;
-        return { ...base, op: E_MEM_WRITE_BUS, a: size, b: addressBus, reads: [bus, addressBus] };
-      }
-      return { ...base, op: E_MEM_WRITE_PART, a: size, b: plan.partIndex.get(part.address)! };
-    }
-    if (strobe.kind === 'count') {
-      if (part.kind !== 'counter') return fault(`\`${strobe.name}\` counts \`${part.name}\`, which is not a counter`);
-      const p = plan.partIndex.get(part.name)!;
-      return { ...base, op: E_COUNT, a: p, b: part.increment, c: plan.partMask[p] & (part.bit0Zero ? ~1 : -1), reads: [] };
-    }
-    // clock
-    if (part.kind === 'regfile') {
-      const file = plan.regfileIndex.get(part.name)!;
-      if (strobe.register !== undefined) {
-        const writable = strobe.register !== 0 || part.x0 !== 'hardwired' ? 1 : 0;
-        return { ...base, op: E_REG_FIXED, a: file, b: strobe.register, c: writable };
-      }
-      return { ...base, op: E_REG_RD, a: file, b: part.x0 === 'stored' ? 1 : 0 };
-    }
-    if (part.kind === 'compare') {
-      let cond = CONDITION_FROM_FUNCT3;
-      if (part.condition !== 'funct3') {
-        const control = this.controlValue(part, fields);
-        cond = control?.name === undefined ? -1 : conditionNumber(control.name);
-        if (cond < 0) return fault(control ? `\`${control.field}\` holds code ${control.code}, which names no comparator condition, while \`${strobe.name}\` latches the flag` : `the comparator \`${part.name}\` has no condition`);
-      }
-      const a = plan.busIndex.get(part.a)!;
-      const b = plan.busIndex.get(part.b)!;
-      return { ...base, op: E_COMPARE, bus: plan.flagIndex.get(part.flag) ?? 0, a: cond, b: a, c: b, reads: [a, b] };
-    }
-    if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') {
-      const p = plan.partIndex.get(part.name)!;
-      const mask = plan.partMask[p] & (part.kind === 'counter' && part.bit0Zero ? ~1 : -1);
-      return { ...base, op: E_CLOCK, a: p, b: mask, c: p === plan.irPart ? 1 : 0 };
-    }
-    return fault(`\`${strobe.name}\` clocks \`${part.name}\`, a ${part.kind} part that cannot load`);
+    if (!plan.custom.runs(strobe)) return fault(`\`${strobe.name}\` acts on \`${part.name}\`, whose kind has no closing-edge port for it`);
+    const op = plan.custom.edge(strobe, fields, bus);
+    if ('problem' in op) return fault(`${op.problem}, while \`${strobe.name}\` acts at the closing edge`);
+    // C = 1 when the port loads the instruction register (the simulator notes the first fetch).
+    return { ...base, op: E_CUSTOM, a: op.index, c: plan.partIndex.get(part.name) === plan.irPart ? 1 : 0, reads: op.reads };
   }
 }
 

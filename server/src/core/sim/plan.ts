@@ -5,25 +5,23 @@
 // The micro-ops the hot loop runs are compiled from these words (microops.ts); nothing here
 // reads the steps of the source table, so a wrong encoding shows up in simulation.
 //
-// The program-counter rule: the counter part named `pc`; otherwise the only counter part;
-// otherwise a register part named `pc`. A machine where none of these applies is refused.
+// Which part plays which RV32I role follows the parts' kind definitions (their `holds` lines,
+// parts/kinds.ts), never a kind's name: the register files hold `registers`, the instruction
+// register is the model's (a part whose kind holds the `instruction`), the memory is a part
+// whose kind has the program memory (`x memory`). The program-counter rule: the part named `pc`
+// whose kind holds the `pc`; otherwise the only part whose kind holds it; otherwise a part named
+// `pc` with a single 32-bit register (a plain register). A machine where none applies is refused.
 //
 // Deliberately not here: machine state or running (simulator.ts), reports (describe.ts).
 import { decodeWord, encodeMachine, type EncodedMachine, type EncodedStore } from '../encode/encoder';
 import { pointInputs } from '../encode/universe';
-import type { ClassDef, Machine, Part, RegfilePart, StepAlt, Store } from '../model/types';
+import type { ClassDef, Machine, Part, StepAlt, Store } from '../model/types';
+import type { HoldsRole } from '../parts/kinds';
+import { sizeOf } from '../parts/behaviour';
+import { asDefinedPart } from '../model/libraryParts';
 import { MAX_BUSES, MicroOps } from './microops';
 import { CustomParts } from './customParts';
 
-/** How the plan runs the machine's parts. */
-export interface PlanOptions {
-  /**
-   * Run the standard library's parts from their kinds' definitions (sim/customParts.ts through
-   * model/libraryParts.ts) instead of the built-in operations; off by default. Fixed-register
-   * strobes (`x[n]`) and a memory port without a size field stay on the built-in path.
-   */
-  fromDefinitions?: boolean;
-}
 
 /** One distinct control word of a store, read back from its bits. */
 export interface StoreWord {
@@ -72,8 +70,11 @@ export class SimPlan {
   readonly parts: Part[];
   readonly partIndex = new Map<string, number>();
   readonly partMask: Int32Array;
-  readonly regfiles: RegfilePart[];
+  /** Parts holding the RV32I registers (`holds registers`), each with 32 entries of the simulator's register file. */
+  readonly regfiles: Part[];
   readonly regfileIndex = new Map<string, number>();
+  /** Whether an instruction can write x0 of the first register file (a stored x0), so the environment and the debugger may too. */
+  readonly x0Stored: boolean;
   readonly flagNames: string[];
   readonly flagIndex = new Map<string, number>();
   /** Part numbers of the program counter and the instruction register. */
@@ -95,7 +96,6 @@ export class SimPlan {
     stores: StorePlan[],
     pcPart: number,
     irPart: number,
-    readonly options: PlanOptions = {},
   ) {
     this.busNames = [...machine.buses.keys()];
     this.busNames.forEach((name, i) => this.busIndex.set(name, i));
@@ -106,7 +106,7 @@ export class SimPlan {
     this.parts = [...machine.parts.values()];
     this.parts.forEach((p, i) => this.partIndex.set(p.name, i));
     this.partMask = Int32Array.from(this.parts, (p) => maskOf(p.width));
-    this.regfiles = this.parts.filter((p): p is RegfilePart => p.kind === 'regfile');
+    this.regfiles = this.parts.filter((p) => holds(machine, p, 'registers'));
     this.regfiles.forEach((p, i) => this.regfileIndex.set(p.name, i));
     this.flagNames = [...machine.flags.keys()];
     this.flagNames.forEach((f, i) => this.flagIndex.set(f, i));
@@ -119,22 +119,25 @@ export class SimPlan {
     machine.classes.forEach((cls, i) => {
       if (cls.opcode !== undefined && this.classOfOpcode[cls.opcode] === -1) this.classOfOpcode[cls.opcode] = i;
     });
-    this.custom = new CustomParts(machine, this.busIndex, this.partIndex, this.flagIndex, this.regfileIndex, options);
+    this.custom = new CustomParts(machine, this.busIndex, this.partIndex, this.flagIndex, this.regfileIndex);
+    this.x0Stored = this.regfiles.length > 0 && this.custom.writesRegisterZero(this.regfiles[0].name);
     this.microOps = new MicroOps(this);
   }
 
   /** Builds the plan, or says in plain words why this machine cannot be simulated. */
-  static build(machine: Machine, options: PlanOptions = {}): PlanResult {
+  static build(machine: Machine): PlanResult {
     const errors: string[] = [];
     const parts = [...machine.parts.values()];
-    const pc = findProgramCounter(parts);
+    const pc = findProgramCounter(machine, parts);
     if (typeof pc === 'string') errors.push(pc);
-    const ir = machine.instructionRegister ? machine.parts.get(machine.instructionRegister) : parts.find((p) => p.kind === 'instruction');
+    const ir = machine.instructionRegister ? machine.parts.get(machine.instructionRegister) : parts.find((p) => holds(machine, p, 'instruction'));
     if (!ir) errors.push('the machine has no instruction register (`part ir instruction 32`), so it cannot hold an instruction');
-    // A memory: the standard library's memory port, or a part of the table's own kind that holds the program memory (`x memory`).
-    const holdsMemory = (p: Part) => p.kind === 'memory' || (p.kind === 'custom' && p.def.states.some((s) => s.count === 'memory'));
+    const holdsMemory = (p: Part) => {
+      const defined = asDefinedPart(machine, p);
+      return !('problem' in defined) && defined.def.states.some((s) => s.count === 'memory');
+    };
     if (!parts.some(holdsMemory)) errors.push('the machine has no memory part, so it cannot fetch instructions');
-    if (!parts.some((p) => p.kind === 'regfile')) errors.push('the machine has no register file (`part x regfile 32`), so it cannot hold x1..x31');
+    if (!parts.some((p) => holds(machine, p, 'registers'))) errors.push('the machine has no register file (`part x regfile 32`), so it cannot hold x1..x31');
     if (machine.buses.size > MAX_BUSES) errors.push(`the machine has ${machine.buses.size} buses; the simulator handles up to ${MAX_BUSES}`);
     if (!machine.stepBits) errors.push('no control-store address carries the step counter (`step 0..N` in an `address` layout)');
     errors.push(...CustomParts.problems(machine));
@@ -155,7 +158,8 @@ export class SimPlan {
     const flagNumbers = new Map([...machine.flags.keys()].map((f, i) => [f, i]));
     const stores: StorePlan[] = [];
     for (const enc of order) stores.push(planStore(machine, enc, stores, flagNumbers));
-    const plan = new SimPlan(machine, encoded, stores, partNumbers.get((pc as Part).name)!, partNumbers.get(ir!.name)!, options);
+    const plan = new SimPlan(machine, encoded, stores, partNumbers.get((pc as Part).name)!, partNumbers.get(ir!.name)!);
+    if (plan.custom.unrunnable.length) return { ok: false, errors: plan.custom.unrunnable };
     return { ok: true, plan };
   }
 
@@ -178,14 +182,25 @@ export class SimPlan {
   }
 }
 
-function findProgramCounter(parts: Part[]): Part | string {
-  const named = parts.find((p) => p.name === 'pc' && p.kind === 'counter');
+/** Whether the part's kind says a state of it holds `role` (`holds registers r`). */
+function holds(machine: Machine, part: Part, role: HoldsRole): boolean {
+  const defined = asDefinedPart(machine, part);
+  return !('problem' in defined) && defined.def.holds.some((h) => h.role === role);
+}
+
+function findProgramCounter(machine: Machine, parts: Part[]): Part | string {
+  const candidates = parts.filter((p) => holds(machine, p, 'pc'));
+  const named = candidates.find((p) => p.name === 'pc');
   if (named) return named;
-  const counters = parts.filter((p) => p.kind === 'counter');
-  if (counters.length === 1) return counters[0];
-  const register = parts.find((p) => p.name === 'pc' && p.kind === 'register');
+  if (candidates.length === 1) return candidates[0];
+  const register = parts.find((p) => {
+    if (p.name !== 'pc') return false;
+    const defined = asDefinedPart(machine, p);
+    const first = 'problem' in defined ? undefined : defined.def.states.find((s) => !s.count);
+    return first !== undefined && sizeOf(first.width, (defined as { settings: Map<string, number | string> }).settings) === 32;
+  });
   if (register) return register;
-  if (counters.length > 1) return `the machine has ${counters.length} counters (${counters.map((c) => c.name).join(', ')}); name the program counter \`pc\` so the simulator knows where programs start`;
+  if (candidates.length > 1) return `the machine has ${candidates.length} program counters (${candidates.map((c) => c.name).join(', ')}); name the program counter \`pc\` so the simulator knows where programs start`;
   return 'the machine has no program counter: declare a counter (`part pc counter 32 inc=4 bit0=zero`)';
 }
 

@@ -31,29 +31,11 @@
 // VCD output (vcd.ts), loading programs (program.ts).
 import { DEFAULT_STACK_POINTER } from '../isa/elf';
 import { LinuxUserEnvironment, type MachineAccess } from '../isa/environment';
-import type { Memory, SparseMemory } from '../isa/memory';
-import {
-  D_ALU,
-  D_CONSTANT,
-  D_IMMEDIATE,
-  D_MEM_BUS,
-  D_MEM_PART,
-  D_PART,
-  D_REG_FIXED,
-  D_REG_RS1,
-  D_REG_RS2,
-  DRIVER_WORDS,
-  EDGE_WORDS,
-  E_COMPARE,
-  E_FAULT,
-  E_MEM_WRITE_BUS,
-  U_DRIVERS,
-  U_INDEX,
-  type MicroOpInfo,
-} from './microops';
+import type { SparseMemory } from '../isa/memory';
+import { D_CUSTOM, DRIVER_WORDS, EDGE_WORDS, E_FAULT, U_DRIVERS, U_INDEX, type MicroOpInfo } from './microops';
 import type { CustomAccess } from './customParts';
 import { FAST_BUDGET, FAST_RETIRED, FAST_SLOW_STEP, FAST_WRAP, canCompile, compileStepper, type FastStepper } from './compile';
-import { aluCompute, compareHolds, conditionOfFunct3, immediateOf, sizeBytes } from './operations';
+import { sizeBytes } from './operations';
 import type { SimPlan } from './plan';
 
 /** Something the table makes the hardware do that cannot work, found while running. */
@@ -226,7 +208,7 @@ export class BusSimulator implements MachineAccess {
     return this.regs[index & 31];
   }
   writeRegister(index: number, value: number): void {
-    if (index !== 0 || this.plan.regfiles[0]?.x0 === 'stored') this.regs[index & 31] = value;
+    if (index !== 0 || this.plan.x0Stored) this.regs[index & 31] = value;
   }
 
   get pc(): number {
@@ -351,11 +333,9 @@ export class BusSimulator implements MachineAccess {
     if (this.stopReason) return { kind: 'stopped', stop: this.stopReason, retired: false };
     const plan = this.plan;
     const mo = plan.microOps;
-    const memory: Memory = this.memory;
     const busValue = this.busValue;
     const busMask = plan.busMask;
     const partValue = this.partValue;
-    const regs = this.regs;
     const flags = this.flags;
     const irPart = plan.irPart;
     const pcPart = plan.pcPart;
@@ -411,52 +391,13 @@ export class BusSimulator implements MachineAccess {
         let value = 0;
         let ok = 1;
         // Operation numbers as in microops.ts (D_*).
-        switch (code[p]) {
-          case 1: // D_REG_RS1
-            value = regs[(code[p + 2] << 5) | ((ir >>> 15) & 31)];
-            break;
-          case 2: // D_REG_RS2
-            value = regs[(code[p + 2] << 5) | ((ir >>> 20) & 31)];
-            break;
-          case 3: // D_REG_FIXED
-            value = regs[(code[p + 2] << 5) | code[p + 3]];
-            break;
-          case 4: // D_PART
-            value = partValue[code[p + 2]];
-            break;
-          case 5: // D_IMMEDIATE
-            value = immediateOf(code[p + 2], partValue[code[p + 3]]);
-            break;
-          case 6: {
-            // D_ALU: an operand the function ignores may be undefined.
-            const fn = code[p + 2];
-            const a = code[p + 3];
-            const b = code[p + 4];
-            value = aluCompute(fn, busValue[a], busValue[b]);
-            ok = (fn === 10 ? defined >>> a : fn === 11 ? defined >>> b : (defined >>> a) & (defined >>> b)) & 1;
-            break;
-          }
-          case 7: // D_MEM_PART
-            value = readMemory(memory, code[p + 2], partValue[code[p + 3]]);
-            break;
-          case 8: // D_MEM_BUS
-            value = readMemory(memory, code[p + 2], busValue[code[p + 3]]);
-            ok = (defined >>> code[p + 3]) & 1;
-            break;
-          case 9: // D_CONSTANT
-            value = code[p + 2];
-            break;
-          case 10: {
-            // D_CUSTOM: a drive port of a part of the table's own kind; every bus it reads must be defined.
-            const custom = this.custom;
-            custom.ir = ir;
-            value = plan.custom.drivers[code[p + 2]](custom);
-            ok = (defined & code[p + 3]) === code[p + 3] ? 1 : 0;
-            break;
-          }
-          default: // D_UNDEFINED
-            ok = 0;
-        }
+        if (code[p] === 1) {
+          // D_CUSTOM: a drive port of a part, from its kind's definition; every bus it reads must be defined.
+          const custom = this.custom;
+          custom.ir = ir;
+          value = plan.custom.drivers[code[p + 2]](custom);
+          ok = (defined & code[p + 3]) === code[p + 3] ? 1 : 0;
+        } else ok = 0; // D_UNDEFINED
         const driven = lines[p];
         if (driven === 0) {
           busValue[bus] = value & busMask[bus];
@@ -500,49 +441,10 @@ export class BusSimulator implements MachineAccess {
       const edgesEnd = p + nEdges * 5;
       let inputsChanged = false;
       for (; p < edgesEnd; p += 5) {
-        // Operation numbers as in microops.ts (E_*).
-        switch (code[p]) {
-          case 1: // E_MEM_WRITE_PART
-            this.storeMemory(code[p + 2], partValue[code[p + 3]], busValue[code[p + 1]]);
-            break;
-          case 2: // E_MEM_WRITE_BUS
-            this.storeMemory(code[p + 2], busValue[code[p + 3]], busValue[code[p + 1]]);
-            break;
-          case 3: {
-            // E_REG_RD: rd from the instruction register as it was before this edge.
-            const rd = (ir >>> 7) & 31;
-            if (rd !== 0 || code[p + 3] !== 0) regs[(code[p + 2] << 5) | rd] = busValue[code[p + 1]];
-            break;
-          }
-          case 4: // E_REG_FIXED
-            if (code[p + 4] !== 0) regs[(code[p + 2] << 5) | code[p + 3]] = busValue[code[p + 1]];
-            break;
-          case 5: {
-            // E_COMPARE: the condition from funct3 (6) or from the field.
-            const cond = code[p + 2] === 6 ? conditionOfFunct3(ir >>> 12) : code[p + 2];
-            flags[code[p + 1]] = compareHolds(cond, busValue[code[p + 3]], busValue[code[p + 4]]);
-            inputsChanged = true;
-            break;
-          }
-          case 6: {
-            // E_COUNT
-            const part = code[p + 2];
-            partValue[part] = (partValue[part] + code[p + 3]) & code[p + 4];
-            break;
-          }
-          case 7: // E_CLOCK
-            partValue[code[p + 2]] = busValue[code[p + 1]] & code[p + 3];
-            if (code[p + 4] !== 0) {
-              inputsChanged = true;
-              this.instructionLoaded = true;
-            }
-            break;
-          case 8: // E_CUSTOM: computes from the values before the edge; stored below
-            this.custom.ir = ir;
-            plan.custom.edges[code[p + 2]](this.custom, this.customStage);
-            if (code[p + 4] !== 0) this.instructionLoaded = true;
-            break;
-        }
+        // E_CUSTOM (the only action past the faults): computes from the values before the edge; stored below.
+        this.custom.ir = ir;
+        plan.custom.edges[code[p + 2]](this.custom, this.customStage);
+        if (code[p + 4] !== 0) this.instructionLoaded = true;
       }
       if ((header & 8) !== 0) {
         // HEADER_CUSTOM: store what the edge ports computed; their flags may feed the address.
@@ -835,42 +737,13 @@ export class BusSimulator implements MachineAccess {
   driverValue(base: number, k: number): { value: number; defined: boolean } {
     const code = this.plan.microOps.code.data;
     const p = base + U_DRIVERS + 1 + k * DRIVER_WORDS;
-    const [op, bus, a, b, c] = [code[p], code[p + 1], code[p + 2], code[p + 3], code[p + 4]];
-    const ir = this.partValue[this.plan.irPart];
+    const [op, bus, a, b] = [code[p], code[p + 1], code[p + 2], code[p + 3]];
     let value = 0;
-    let defined = true;
-    switch (op) {
-      case D_REG_RS1:
-        value = this.regs[(a << 5) | ((ir >>> 15) & 31)];
-        break;
-      case D_REG_RS2:
-        value = this.regs[(a << 5) | ((ir >>> 20) & 31)];
-        break;
-      case D_REG_FIXED:
-        value = this.regs[(a << 5) | b];
-        break;
-      case D_PART:
-        value = this.partValue[a];
-        break;
-      case D_IMMEDIATE:
-        value = immediateOf(a, this.partValue[b]);
-        break;
-      case D_ALU:
-        value = aluCompute(a, this.busValue[b], this.busValue[c]);
-        defined = a === 10 ? this.isBusDefined(b) : a === 11 ? this.isBusDefined(c) : this.isBusDefined(b) && this.isBusDefined(c);
-        break;
-      case D_MEM_PART:
-        value = readMemory(this.memory, a, this.partValue[b]);
-        break;
-      case D_MEM_BUS:
-        value = readMemory(this.memory, a, this.busValue[b]);
-        defined = this.isBusDefined(b);
-        break;
-      case D_CONSTANT:
-        value = a;
-        break;
-      default:
-        defined = false;
+    let defined = false;
+    if (op === D_CUSTOM) {
+      this.custom.ir = this.partValue[this.plan.irPart];
+      value = this.plan.custom.drivers[a](this.custom);
+      defined = (this.definedMask & b) === b;
     }
     return { value: value & this.plan.busMask[bus], defined };
   }
@@ -913,8 +786,7 @@ export class BusSimulator implements MachineAccess {
       const op = code[p];
       const strobe = info.edges[k].strobe;
       if (op === E_FAULT) return { ...stopBase, fault: { kind: 'control-code', strobe, message: info.edges[k].fault ?? 'the word asks for an operation the part cannot do' } };
-      const reads = op === E_COMPARE ? [code[p + 3], code[p + 4]] : op === E_MEM_WRITE_BUS ? [code[p + 1], code[p + 3]] : code[p + 1] >= 0 && op !== 6 ? [code[p + 1]] : [];
-      const bad = reads.find((bus) => !this.isBusDefined(bus));
+      const bad = info.edges[k].reads.find((bus) => !this.isBusDefined(bus));
       if (bad !== undefined) return { ...stopBase, fault: { kind: 'undefined-value', strobe, bus: plan.busNames[bad], why: this.whyUndefined(base, bad) } };
     }
     return { ...stopBase, fault: { kind: 'control-code', strobe: '', message: 'the closing edge could not be applied' } };
@@ -936,13 +808,10 @@ export class BusSimulator implements MachineAccess {
     const p = base + U_DRIVERS + 1 + k * DRIVER_WORDS;
     const op = code[p];
     if (depth > 4) return `\`${driver.strobe}\` drives \`${name}\` from undefined inputs`;
-    if (op === D_ALU) {
-      const input = !this.isBusDefined(code[p + 3]) ? code[p + 3] : code[p + 4];
-      return `\`${driver.strobe}\` drives \`${name}\` from the ALU, whose input \`${plan.busNames[input]}\` is undefined: ${this.whyUndefined(base, input, depth + 1)}`;
-    }
-    if (op === D_MEM_BUS) {
-      const input = code[p + 3];
-      return `\`${driver.strobe}\` drives \`${name}\` from memory addressed by \`${plan.busNames[input]}\`, which is undefined: ${this.whyUndefined(base, input, depth + 1)}`;
+    if (op === D_CUSTOM) {
+      const reads = code[p + 3];
+      const input = plan.busNames.findIndex((_, b) => (reads & (1 << b)) !== 0 && !this.isBusDefined(b));
+      if (input >= 0) return `\`${driver.strobe}\` drives \`${name}\` from \`${driver.part}\`, whose input \`${plan.busNames[input]}\` is undefined: ${this.whyUndefined(base, input, depth + 1)}`;
     }
     return `\`${driver.strobe}\` drives \`${name}\` with an undefined value`;
   }
@@ -954,22 +823,6 @@ function copyInto<T extends Int32Array | Uint8Array>(target: T, source: T): void
 
 /** The outcome of a retirement: one shared object, since lock-step sees one per instruction. */
 const RETIRED: RunOutcome = Object.freeze({ kind: 'retired' });
-
-function readMemory(memory: Memory, size: number, address: number): number {
-  const at = address >>> 0;
-  switch (size) {
-    case 0:
-      return (memory.load8(at) << 24) >> 24;
-    case 1:
-      return (memory.load16(at) << 16) >> 16;
-    case 2:
-      return memory.load32(at);
-    case 3:
-      return memory.load8(at);
-    default:
-      return memory.load16(at);
-  }
-}
 
 /** The retirement-count key of a word: opcode, funct3, funct7 and bit 20 (which tells ebreak from ecall). */
 export function mnemonicKey(word: number): number {

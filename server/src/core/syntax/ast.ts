@@ -271,6 +271,14 @@ export interface KindInputLine extends KindLineBase {
 export interface KindControlLine extends KindLineBase {
   item: 'control';
   values: Name[];
+  /** `= VALUE`: what the control holds when no field drives it. */
+  default?: Name;
+}
+
+/** `holds ROLE STATE`: the state holds an RV32I architectural role (registers, instruction, pc). */
+export interface KindHoldsLine extends KindLineBase {
+  item: 'holds';
+  state?: Name;
 }
 
 /** `state NAME WIDTH [x COUNT] [= RESET]`. */
@@ -284,6 +292,8 @@ export interface KindStateLine extends KindLineBase {
 /** `drive NAME WIDTH = EXPR`: a port an enable or read strobe puts on a bus. */
 export interface KindDriveLine extends KindLineBase {
   item: 'drive';
+  /** `NAME[P]`: a numbered port; P stands for the number a strobe writes (`x[5]`). */
+  param?: Name;
   width?: SizeRef;
   expr?: ExprText;
 }
@@ -306,12 +316,14 @@ export interface KindAssign {
 /** `on NAME [WIDTH]: TARGET <= EXPR, ...`: what a clock, count or write strobe does at the closing edge. */
 export interface KindEdgeLine extends KindLineBase {
   item: 'on';
+  /** `NAME[P]`: a numbered port; P stands for the number a strobe writes (`x[5]`). */
+  param?: Name;
   /** Width of the bus value the strobe brings (`in`); none for a count or a latch. */
   width?: SizeRef;
   assigns: KindAssign[];
 }
 
-export type KindItem = KindSettingLine | KindInputLine | KindControlLine | KindStateLine | KindDriveLine | KindFlagLine | KindEdgeLine;
+export type KindItem = KindSettingLine | KindInputLine | KindControlLine | KindHoldsLine | KindStateLine | KindDriveLine | KindFlagLine | KindEdgeLine;
 
 /** `kind NAME "description"` and its indented lines: a part kind defined in the notation. */
 export interface KindDecl extends DeclBase {

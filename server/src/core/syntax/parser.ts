@@ -23,7 +23,7 @@ export interface ParseResult {
 
 const keywordSet = new Set<string>(declarationKeywords);
 /** Words that begin the lines of a `kind` declaration. */
-const kindLineWords = new Set(['setting', 'input', 'control', 'state', 'drive', 'flag', 'on']);
+const kindLineWords = new Set(['setting', 'input', 'control', 'state', 'drive', 'flag', 'on', 'holds']);
 
 /** Parses a whole file. Never throws. */
 export function parse(text: string): ParseResult {
@@ -717,10 +717,16 @@ class Parser {
         else if (this.atWord('keyed')) line.keyed = this.keywordSpan();
         return done(line);
       }
+      case 'holds': {
+        const line: A.KindHoldsLine = { item: 'holds', keyword, name, span: keyword };
+        if (name) line.state = this.expectName('the state that holds it, e.g. `holds registers r`');
+        return done(line);
+      }
       case 'control': {
         const line: A.KindControlLine = { item: 'control', keyword, name, values: [], span: keyword };
         if (name && !this.eat(T.Colon)) this.unexpected('`:` and the value names, e.g. `control fn: add sub`');
         while (this.at(T.Ident)) line.values.push(this.name(this.next()));
+        if (this.eat(T.Equals)) line.default = this.expectName('the value the control holds when no field drives it, e.g. `= word`');
         return done(line);
       }
       case 'state': {
@@ -735,6 +741,7 @@ class Parser {
       }
       case 'drive': {
         const line: A.KindDriveLine = { item: 'drive', keyword, name, span: keyword };
+        if (name) line.param = this.portParameter();
         if (name) line.width = this.parseSize('the width this port drives');
         if (line.width && !this.eat(T.Equals)) this.unexpected('`=` and the value the port drives');
         else if (line.width) line.expr = this.restOfLineExpr('the value the port drives');
@@ -748,6 +755,7 @@ class Parser {
       }
       case 'on': {
         const line: A.KindEdgeLine = { item: 'on', keyword, name, assigns: [], span: keyword };
+        if (name) line.param = this.portParameter();
         if (name && !this.at(T.Colon)) line.width = this.parseSize('the width of the bus value or `:`');
         if (name && !this.eat(T.Colon)) {
           this.unexpected('`:` and what happens at the closing edge, e.g. `on load 32: q <= in`');
@@ -761,6 +769,14 @@ class Parser {
         return done(line);
       }
     }
+  }
+
+  /** `[n]` after a port's name: the port is numbered, and strobes name it `PART[3]`. */
+  private portParameter(): A.Name | undefined {
+    if (!this.eat(T.LBracket)) return undefined;
+    const param = this.expectName('the name of the port\'s number, e.g. `drive at[n] 32 = r[n]`');
+    if (!this.eat(T.RBracket)) this.unexpected("']'");
+    return param;
   }
 
   private parseSize(what: string): A.SizeRef | undefined {

@@ -25,6 +25,7 @@ kind instruction "instruction register: its bits feed the address lines, registe
   setting width number = 32 "bits"
   setting reset number = 0 "value after reset"
   state q width = reset
+  holds instruction q
   drive out width = q
   on load width: q <= in
 
@@ -34,6 +35,7 @@ kind counter "counter: a register that can also count up by its increment"
   setting bit0 choice kept zero = kept "zero: bit 0 is always stored as 0 (RV32I jump targets need it)"
   setting reset number = 0 "value after reset"
   state q width = reset
+  holds pc q
   drive out width = q
   on load width: q <= select bit0 { kept: in, zero: in & ~1 }
   on count: q <= select bit0 { kept: q + inc, zero: (q + inc) & ~1 }
@@ -43,9 +45,12 @@ kind regfile "register file: 32 registers selected by the instruction's rs1, rs2
   setting x0 choice hardwired stored guarded = hardwired "hardwired: x0 reads 0 and ignores writes; stored: a real register; guarded: stored, its clock blocked when rd = 0"
   input ir 32 instruction "the instruction register: rs1 = bits 19..15, rs2 = 24..20, rd = 11..7"
   state r width x 32 = 0
+  holds registers r
   drive rs1 width = r[ir[19:15]]
   drive rs2 width = r[ir[24:20]]
   on rd width: r[ir[11:7]] <= in when select x0 { stored: 0b1, else: ir[11:7] != 0 }
+  drive xout[n] width = r[n] "a fixed register, written x[5]"
+  on xin[n] width: r[n] <= in when select x0 { hardwired: n != 0b00000, else: 0b1 } "a fixed register, written x[5]"
 
 kind immediate "immediate generator: sign-extended I, S, B, U and J immediate of the instruction"
   input ir 32 after from "the instruction register it rearranges (spec 2.3, figure 2.4)"
@@ -73,7 +78,7 @@ kind compare "comparator: tests its two operand buses and latches a flag"
 kind memory "memory port: reads and writes bytes, halfwords and words (little-endian, spec 2.6)"
   setting width number = 32 "bits"
   input addr 32 keyed "the byte address: a register part or a bus"
-  control size: byte half word ubyte uhalf
+  control size: byte half word ubyte uhalf = word
   state m 8 x memory
   drive data width = select size { byte: sext(m[addr], 32), half: sext({m[addr + 1], m[addr]}, 32), word: {m[addr + 3], m[addr + 2], m[addr + 1], m[addr]}, ubyte: zext(m[addr], 32), uhalf: zext({m[addr + 1], m[addr]}, 32) }
   on write width: m[addr] <= in[7:0], m[addr + 1] <= in[15:8] when select size { half: 0b1, word: 0b1, uhalf: 0b1, else: 0b0 }, m[addr + 2] <= in[23:16] when select size { word: 0b1, else: 0b0 }, m[addr + 3] <= in[31:24] when select size { word: 0b1, else: 0b0 }
