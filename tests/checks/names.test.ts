@@ -224,12 +224,17 @@ describe('bus indexes', () => {
         #                             ^^^^ wrong-wiring: \`result[99]\` names a line bus \`result\` does not have (its lines are 7..0)
         strobe c.oe enable b -> result[2:5]
         #                             ^^^^^ bad-number: write the high line first
-        strobe b.ck clock result[7:4] -> b
-        #                       ^^^^^ wrong-wiring: loading some lines of a bus is not supported yet
+        strobe b.ck clock result[7:4] -> b accept width-mismatch
+        strobe d.ck clock result[9:8] -> b
+        #                       ^^^^^ wrong-wiring: \`result[9:8]\` names a line bus \`result\` does not have (its lines are 7..0)
+        strobe e.ck clock result[0:3] -> b
+        #                       ^^^^^ bad-number: write the high line first
       `),
       ['wrong-wiring', 'bad-number'],
     );
     expect(a.machine.signals.get('a.oe')).toMatchObject({ bus: 'result', lines: { hi: 1, lo: 1 } });
+    // A clock strobe loads lines 7..4 of the bus (docs/notation.md, "Bus lines and connections").
+    expect(a.machine.signals.get('b.ck')).toMatchObject({ kind: 'clock', bus: 'result', lines: { hi: 7, lo: 4 }, part: 'b' });
   });
 });
 

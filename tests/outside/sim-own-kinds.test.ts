@@ -18,23 +18,25 @@ import { haveTools } from '../support/tools';
 import { QEMU, runQemu, type QemuRun } from '../isa/support/riscv-tools';
 import { buildPrograms, type BuiltProgram } from '../programs/build.mjs';
 import { CLI, REPO, ensureCli, planOf } from '../sim/support';
-import { gantryWithConnection, gantryWithHalves } from '../support/ownKinds';
+import { gantryWithByteLanes, gantryWithConnection, gantryWithHalves } from '../support/ownKinds';
 import { expectSameAsQemu, retiredMnemonics } from '../support/programRuns';
 
 const toolsPresent = haveTools(['riscv64-unknown-elf-gcc'], 'gcc-riscv64-unknown-elf') && haveTools([QEMU], 'qemu-user');
 
-/** Every example that declares kinds of its own, and a variant with partial-width drives. */
-const EXAMPLES = ['gantry-32.pwt', 'gantry-32-halves.pwt', 'gantry-32-connected.pwt', 'trestle-32.pwt', 'capstan-32.pwt'];
+/** Every example that declares kinds of its own, and variants with partial-width drives and loads. */
+const EXAMPLES = ['gantry-32.pwt', 'gantry-32-halves.pwt', 'gantry-32-connected.pwt', 'gantry-32-lanes.pwt', 'trestle-32.pwt', 'capstan-32.pwt'];
 
 /** The text of an example, or of a variant written under tests/.tmp (its name ends in the variant). */
 function exampleText(example: string): string {
   if (example === 'gantry-32-halves.pwt') return gantryWithHalves(readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8'));
   if (example === 'gantry-32-connected.pwt') return gantryWithConnection(readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8'));
+  // Byte-lane loads of JALR's holding register, fed by the two half adders (loads and drives of some lines together).
+  if (example === 'gantry-32-lanes.pwt') return gantryWithByteLanes(gantryWithHalves(readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8')));
   return readFileSync(new URL(`../../examples/${example}`, import.meta.url), 'utf8');
 }
 
 function examplePath(example: string): string {
-  if (!example.endsWith('-halves.pwt') && !example.endsWith('-connected.pwt')) return `examples/${example}`;
+  if (!example.endsWith('-halves.pwt') && !example.endsWith('-connected.pwt') && !example.endsWith('-lanes.pwt')) return `examples/${example}`;
   mkdirSync(join(REPO, 'tests/.tmp/own-kinds'), { recursive: true });
   const path = `tests/.tmp/own-kinds/${example}`;
   writeFileSync(join(REPO, path), exampleText(example));

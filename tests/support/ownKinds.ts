@@ -32,3 +32,31 @@ export function gantryWithConnection(text: string): string {
   if (/\bpc\.oe\b/.test(replaced)) throw new Error('gantry-32 changed: update gantryWithConnection');
   return replaced;
 }
+
+/**
+ * gantry-32 with the jump holding register `t` loaded a byte lane at a time: four clock strobes
+ * each load one byte of the result bus (`clock result[15:8] -> t.lane1`), so JALR assembles its
+ * target from four byte loads in one step (partial-width loads). Also applies to
+ * gantryWithHalves's text (the result bus then has drivers of its two halves as well).
+ */
+export function gantryWithByteLanes(text: string): string {
+  const replaced = text
+    .replace(
+      'kind hold ',
+      'kind lanes "holding register loaded a byte at a time; bit 0 always stored as 0"\n' +
+        '  state b0 8 = 0\n  state b1 8 = 0\n  state b2 8 = 0\n  state b3 8 = 0\n' +
+        '  drive out 32 = {b3, b2, b1, b0}\n' +
+        '  on lane0 8: b0 <= in & 0xfe\n  on lane1 8: b1 <= in\n  on lane2 8: b2 <= in\n  on lane3 8: b3 <= in\n\nkind hold ',
+    )
+    .replace('part t    hold "Jump target of JALR, bit 0 cleared."', 'part t    lanes "Jump target of JALR, bit 0 cleared, loaded a byte at a time."')
+    .replace(
+      'strobe t.ck     clock result -> t',
+      'strobe t.ck0    clock result[7:0] -> t.lane0\nstrobe t.ck1    clock result[15:8] -> t.lane1\nstrobe t.ck2    clock result[23:16] -> t.lane2\nstrobe t.ck3    clock result[31:24] -> t.lane3',
+    )
+    .replace('  t.ck 20  ', '  t.ck0 20  ')
+    .replace(/(\n  imm\.fmt \d+\.\.\d+  mem\.size \d+\.\.\d+  asel \d+  bsel \d+)\n/, '$1\n  t.ck1 36  t.ck2 37  t.ck3 38\n')
+    .replace(/word (32 as 4|40 as 5) x 8 chip=28C64/, 'word 40 as 5 x 8 chip=28C64')
+    .replace('alu.fn=add, alu.oe, t.ck\n', 'alu.fn=add, alu.oe, t.ck0, t.ck1, t.ck2, t.ck3\n');
+  if (/\bt\.ck\b/.test(replaced) || !replaced.includes('t.ck3 38')) throw new Error('gantry-32 changed: update gantryWithByteLanes');
+  return replaced;
+}

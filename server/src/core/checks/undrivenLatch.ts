@@ -1,10 +1,12 @@
 // undriven-latch / stale-latch: a part loads (clock, memory write, comparator clock) from a bus
 // that nothing drives in that step, directly or through the ALU whose operand bus is undriven.
+// Line by line: a load of some lines (`clock result[7:0] -> acc`) needs just those driven, by
+// any mix of enables and connections, and only their drivers' own inputs are followed.
 // Without keepers the bus floats and the part stores noise (error); with keepers it stores the
 // last value some earlier step drove, which is rarely what was meant (warning).
 import type { Action, AluPart, CustomPart, Machine, StepAlt } from '../model/types';
 import { customPortBusReads } from '../model/buildCustomPart';
-import { drivenLines, lineMask } from '../model/busDrivers';
+import { drivenLines, lineMask, lineRanges, linesOf } from '../model/busDrivers';
 import { type Check, type CheckContext, driversByBus, strobeOf, writtenAlternatives } from './context';
 
 export const undrivenLatch: Check = {
@@ -59,18 +61,24 @@ interface Undriven {
 function undrivenReason(machine: Machine, alt: StepAlt, drivers: Map<string, Action[]>, bus: string, seen = new Set<string>(), needed?: { hi: number; lo: number }): Undriven | undefined {
   const busInfo = machine.buses.get(bus);
   const driving = drivers.get(bus);
-  if (!driving || driving.length === 0) return { bus, keeper: !!busInfo?.keeper };
+  // A load of some lines (`clock result[7:0] -> acc`) names them even when nothing drives the bus.
+  if (!driving || driving.length === 0) return { bus, keeper: !!busInfo?.keeper, lines: needed ? lineRanges(lineMask(needed.hi, needed.lo)) : undefined };
   // Drivers of some lines only (byte lanes): every line the reader takes must be driven.
   // (Buses wider than 32 lines are only ever driven whole: the model refuses ranges on them.)
   const want = needed ?? { hi: Math.min(busInfo?.width ?? 1, 32) - 1, lo: 0 };
-  const missing = lineMask(want.hi, want.lo) & ~drivenLines(machine, driving.map((a) => a.signal), bus);
+  const wanted = lineMask(want.hi, want.lo);
+  const missing = wanted & ~drivenLines(machine, driving.map((a) => a.signal), bus);
   if (missing !== 0) return { bus, keeper: !!busInfo?.keeper, lines: lineRanges(missing) };
   // A driver that computes from other buses (the ALU, a part of the table's own kind) needs
   // them driven too, through any number of such parts (a loop is the settle check's business).
-  if (seen.has(bus)) return undefined;
-  seen.add(bus);
+  // Only the drivers of the lines the reader takes matter: another byte lane may float.
+  const key = needed ? `${bus}[${want.hi}:${want.lo}]` : bus;
+  if (seen.has(key)) return undefined;
+  seen.add(key);
   for (const action of driving) {
     const strobe = strobeOf(machine, action);
+    const lines = strobe && linesOf(machine, strobe);
+    if (lines && (lineMask(lines.hi, lines.lo) & wanted) === 0) continue;
     const part = strobe?.part ? machine.parts.get(strobe.part) : undefined;
     let reads: string[] = [];
     let output = '';
@@ -151,17 +159,4 @@ function report(ctx: CheckContext, alt: StepAlt, owner: string, action: Action, 
       `${subject}, but ${nobody} in ${where} and it has no keepers: the lines float and noise is stored; enable a driver on \`${problem.bus}\` in this step`,
     );
   }
-}
-
-/** Lines of a mask as ranges, highest first: `31..24, 7..0`. */
-function lineRanges(mask: number): string {
-  const out: string[] = [];
-  for (let hi = 31; hi >= 0; hi--) {
-    if (((mask >>> hi) & 1) === 0) continue;
-    let lo = hi;
-    while (lo > 0 && ((mask >>> (lo - 1)) & 1) === 1) lo--;
-    out.push(hi === lo ? `${hi}` : `${hi}..${lo}`);
-    hi = lo;
-  }
-  return out.join(', ');
 }

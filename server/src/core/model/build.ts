@@ -756,13 +756,8 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
         return;
       }
       const bus = busArg(ctx, decl.source.name, 'source', name);
-      if (!bus) return;
-      if (decl.source.index && !decl.source.indexLo && ctx.machine.buses.get(bus)?.width === 1) {
-        // `bus[0]` of a one-line bus is the whole bus.
-      } else if (decl.source.index) {
-        ctx.report('wrong-wiring', { start: decl.source.name.span.end, end: decl.source.span.end }, `a ${kind} strobe loads the whole bus; loading some lines of a bus is not supported yet (drive them onto a narrower bus, or give the part a kind that picks the lines it keeps)`);
-        return;
-      }
+      // `clock result[7:0] -> acc`: the part loads lines 7..0 of the bus as its value (its width must match).
+      if (!bus || !busLines(ctx, decl.source, strobe)) return;
       strobe.bus = bus;
       if (!wirePart(ctx, strobe, decl.target, kind)) return;
     }
@@ -777,7 +772,10 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
   const part = strobe.part ? ctx.machine.parts.get(strobe.part) : undefined;
   const partWidth = part?.kind === 'custom' ? (customPortFor(part, kind, strobe.kindPort) as { width?: number }).width ?? part.width : part?.width;
   const lineCount = strobe.lines ? strobe.lines.hi - strobe.lines.lo + 1 : bus?.width;
-  if (bus && part && partWidth !== undefined && part.kind !== 'regfile' && part.kind !== 'memory' && lineCount !== partWidth && !accepted.has('width-mismatch')) {
+  // A register file or memory takes any bus whole (the memory's size field picks the bytes); a
+  // load of some lines into a register file is held to the register width like any other part.
+  const exempt = part?.kind === 'memory' || (part?.kind === 'regfile' && !(strobe.lines && form === 'bus-to-part'));
+  if (bus && part && partWidth !== undefined && !exempt && lineCount !== partWidth && !accepted.has('width-mismatch')) {
     // The fix accepts the change on this line: before the description, or at the line's end.
     const at = decl.description?.span.start ?? decl.span.end;
     ctx.diagnostics.push({

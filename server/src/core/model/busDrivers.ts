@@ -90,3 +90,16 @@ export function drivenLines(machine: Machine, asserted: Iterable<string>, bus: s
 export function lineMask(hi: number, lo: number): number {
   return hi - lo + 1 >= 32 ? -1 << lo : (((1 << (hi - lo + 1)) - 1) << lo) | 0;
 }
+
+/** Lines of a mask as ranges, highest first: `31..24, 7..0`. */
+export function lineRanges(mask: number): string {
+  const out: string[] = [];
+  for (let hi = 31; hi >= 0; hi--) {
+    if (((mask >>> hi) & 1) === 0) continue;
+    let lo = hi;
+    while (lo > 0 && ((mask >>> (lo - 1)) & 1) === 1) lo--;
+    out.push(hi === lo ? `${hi}` : `${hi}..${lo}`);
+    hi = lo;
+  }
+  return out.join(', ');
+}

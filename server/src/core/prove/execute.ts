@@ -270,6 +270,7 @@ export function executeInstruction(T: Terms, plan: SimPlan, start: Start, previo
     for (let e = 0; e < nEdges; e++, p += EDGE_WORDS) {
       const [op, bus, a, b, c] = [code[p], code[p + 1], code[p + 2], code[p + 3], code[p + 4]];
       const strobe = info.edges[e].strobe;
+      if (lines[p] !== 0) return finish(s, { kind: 'given-up', why: `step ${step}: \`${strobe}\` loads some lines of a bus; the prover handles whole-bus loads so far` });
       switch (op) {
         case 1: // E_MEM_WRITE_PART
         case 2: { // E_MEM_WRITE_BUS

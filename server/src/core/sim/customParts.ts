@@ -21,6 +21,7 @@ import type { InlineBinding } from '../parts/expr';
 import { edgeInputName } from '../parts/kinds';
 import { customPortBusReads, partSetting } from '../model/buildCustomPart';
 import { asDefinedPart, definedPortOf } from '../model/libraryParts';
+import { lineMask } from '../model/busDrivers';
 
 /** What a compiled port reads from the running machine. */
 export interface CustomAccess {
@@ -62,8 +63,12 @@ interface PartRuntime {
   flags?: { run: (m: CustomAccess) => number[]; flagNumbers: number[] };
 }
 
-/** Why a port cannot run in this micro-op (a control code that names no value), or the port. */
-export type CustomOp = { index: number; reads: number[] } | { problem: string };
+/**
+ * Why a port cannot run in this micro-op (a control code that names no value), or the port:
+ * the buses it reads (for an edge port that takes its strobe's bus as `in`, that bus first, and
+ * `loadsIn` set).
+ */
+export type CustomOp = { index: number; reads: number[]; loadsIn?: boolean } | { problem: string };
 
 /**
  * What the simulator's compiled steps (sim/compile.ts) give a port inlined into their code: the
@@ -247,10 +252,18 @@ export class CustomParts {
     return field?.type === 'field' ? field : undefined;
   }
 
-  /** How one name an expression reads gets its value now; `edgeBus` is the bus an edge port loads. */
-  private getter(rt: PartRuntime, name: string, fields: ReadonlyMap<string, number>, edgeBus: number): Getter {
+  /**
+   * How one name an expression reads gets its value now; `edgeBus` is the bus an edge port loads,
+   * `edgeLines` the lines of it the strobe names (`result[15:8]`: `in` is lines 15..8, shifted down).
+   */
+  private getter(rt: PartRuntime, name: string, fields: ReadonlyMap<string, number>, edgeBus: number, edgeLines?: { hi: number; lo: number }): Getter {
     const part = rt.part;
-    if (name === edgeInputName && edgeBus >= 0) return (m) => m.busValue[edgeBus] >>> 0;
+    if (name === edgeInputName && edgeBus >= 0) {
+      if (!edgeLines) return (m) => m.busValue[edgeBus] >>> 0;
+      const mask = lineMask(edgeLines.hi, edgeLines.lo);
+      const lo = edgeLines.lo;
+      return (m) => (m.busValue[edgeBus] & mask) >>> lo;
+    }
     const storage = rt.storage.get(name);
     if (storage?.in === IN_STATE) return (m) => m.customState[storage.base] >>> 0;
     if (storage?.in === IN_PART) return (m) => m.partValue[storage.base] >>> 0;
@@ -352,7 +365,7 @@ export class CustomParts {
     const port = compilePort(def, partSetting(this.machine, rt.part), texts, edgeWidth, { element: rt.element }, param);
     const problem = this.unnamedControl(rt, texts, port.inputs, fields);
     if (problem) return { problem };
-    const getters = port.inputs.map((name) => this.getter(rt, name, fields, bus));
+    const getters = port.inputs.map((name) => this.getter(rt, name, fields, bus, strobe.lines));
     const values = new Array<number>(getters.length);
     // For each assignment: where its target is stored, where its value, condition and index
     // stand in the results, and an array's element count.
@@ -380,7 +393,8 @@ export class CustomParts {
     });
     this.edgeSpecs.push({ rt, texts, edgeWidth, fields, bus, param, assigns: plan });
     const reads = this.busReads(rt, edge.name, fields);
-    return { index: this.edges.length - 1, reads: bus >= 0 && port.inputs.includes(edgeInputName) ? [bus, ...reads] : reads };
+    const loadsIn = bus >= 0 && port.inputs.includes(edgeInputName);
+    return { index: this.edges.length - 1, reads: loadsIn ? [bus, ...reads] : reads, loadsIn };
   }
 
   /** How the expressions of one port reach their names when inlined at `site`. */

@@ -15,7 +15,7 @@
 // hot loop only checks a flag.
 //
 // Deliberately not here: values (simulator.ts computes them) and reports (describe.ts).
-import { contendedBuses, driverNamed, lineMask, withConnections } from '../model/busDrivers';
+import { contendedBuses, driverNamed, lineMask, lineRanges, withConnections } from '../model/busDrivers';
 import type { Strobe } from '../model/types';
 import { GrowableInt32 } from './growable';
 import type { SimPlan } from './plan';
@@ -48,6 +48,12 @@ export const HEADER_END = 2;
 export const HEADER_TRAP = 4;
 /** Edge ports of parts of the table's own kinds ran: store what they computed. */
 export const HEADER_CUSTOM = 8;
+/**
+ * An edge action loads some lines of its bus (`clock result[7:0] -> acc`): beside `code`, at the
+ * action's offset, `lines` holds their mask and lowest line, and those lines (not the whole bus,
+ * which is left out of U_NEED_MASK for it) must hold defined values.
+ */
+export const HEADER_PARTIAL_LOAD = 16;
 
 /** Most buses a machine may have: definedness is one bit per bus in a 32-bit word. */
 export const MAX_BUSES = 31;
@@ -91,6 +97,11 @@ interface EdgeSpec {
   strobe: string;
   /** Buses this action loads from (they must be defined). */
   reads: number[];
+  /**
+   * The lines of its strobe's bus it loads as its data (a register's load, a memory write's
+   * data, an edge port's `in`) when the strobe names some (`result[7:0]`): mask and lowest line.
+   */
+  load?: { mask: number; lo: number };
   fault?: string;
 }
 
@@ -100,8 +111,10 @@ export class MicroOps {
   readonly code = new GrowableInt32(1024);
   /**
    * Beside `code`, at the offset of each driver: the mask of the bus lines it drives (0: the
-   * whole bus), the lowest of them, and 1 when its value's definedness joins that of another
-   * driver of the same bus in this step (byte lanes) instead of setting it.
+   * whole bus), the lowest of them, and 1 when its value's definedness joins that of the bus's
+   * other lines (another driver of the same bus in this step, or the keepers) instead of
+   * setting it. At the offset of each edge action: the mask of the lines it loads (0: the whole
+   * bus) and the lowest of them.
    */
   readonly lines = new GrowableInt32(1024);
   readonly info: MicroOpInfo[] = [];
@@ -196,6 +209,14 @@ export class MicroOps {
       }
     }
     for (const e of edges) {
+      // A load of some lines: without keepers every line it takes must be driven in this step
+      // (the others may float); with keepers an undriven line holds what it held, defined or not.
+      if (e.load && e.op !== E_FAULT && !plan.busKeeper[e.bus] && (coverage[e.bus] & e.load.mask) !== e.load.mask) {
+        e.op = E_FAULT;
+        e.fault = `\`${e.strobe}\` loads lines ${lineRanges(e.load.mask & ~coverage[e.bus])} of bus \`${plan.busNames[e.bus]}\`, which nobody drives in this step, and the bus has no keepers`;
+        e.reads = [];
+        continue;
+      }
       const floating = e.reads.find(incomplete);
       if (floating !== undefined && e.op !== E_FAULT) {
         e.op = E_FAULT;
@@ -214,6 +235,7 @@ export class MicroOps {
     // Faults first: a step that faults changes nothing.
     edges.sort((x, y) => x.op - y.op);
     if (edges.some((e) => e.op === E_CUSTOM)) header |= HEADER_CUSTOM;
+    if (edges.some((e) => e.load && e.op !== E_FAULT)) header |= HEADER_PARTIAL_LOAD;
     const index = this.count++;
     const code = this.code;
     const base = code.length;
@@ -237,7 +259,16 @@ export class MicroOps {
       if (partial) joined.add(d.bus);
     }
     code.push(edges.length);
-    for (const e of edges) for (const v of [e.op, e.bus, e.a, e.b, e.c]) code.push(v);
+    for (const e of edges) {
+      const at = code.length;
+      for (const v of [e.op, e.bus, e.a, e.b, e.c]) code.push(v);
+      while (this.lines.length < code.length) this.lines.push(0);
+      if (e.load && e.op !== E_FAULT) {
+        this.lines.data[at] = e.load.mask;
+        this.lines.data[at + 1] = e.load.lo;
+      }
+    }
+    while (this.lines.length < code.length) this.lines.push(0);
     this.info.push({
       base,
       words: [...words],
@@ -270,13 +301,17 @@ export class MicroOps {
     const part = plan.machine.parts.get(strobe.part ?? '');
     if (!part) return undefined;
     const bus = strobe.bus === undefined ? -1 : (plan.busIndex.get(strobe.bus) ?? -1);
-    const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: bus >= 0 ? [bus] : [] };
+    // A load of some lines reads just those (checked apart); the whole bus is not needed for it.
+    const load = bus >= 0 && strobe.lines ? { mask: lineMask(strobe.lines.hi, strobe.lines.lo), lo: strobe.lines.lo } : undefined;
+    const base = { bus, a: 0, b: 0, c: 0, strobe: strobe.name, reads: bus >= 0 && !load ? [bus] : [], load };
     const fault = (message: string): EdgeSpec => ({ ...base, op: E_FAULT, fault: message, reads: [] });
     if (!plan.custom.runs(strobe)) return fault(`\`${strobe.name}\` acts on \`${part.name}\`, whose kind has no closing-edge port for it`);
     const op = plan.custom.edge(strobe, fields, bus);
     if ('problem' in op) return fault(`${op.problem}, while \`${strobe.name}\` acts at the closing edge`);
     // C = 1 when the port loads the instruction register (the simulator notes the first fetch).
-    return { ...base, op: E_CUSTOM, a: op.index, c: plan.partIndex.get(part.name) === plan.irPart ? 1 : 0, reads: op.reads };
+    const loadsBus = bus >= 0 && op.loadsIn === true;
+    const reads = load && loadsBus ? op.reads.slice(1) : op.reads;
+    return { ...base, op: E_CUSTOM, a: op.index, c: plan.partIndex.get(part.name) === plan.irPart ? 1 : 0, reads, load: loadsBus ? load : undefined };
   }
 }
 

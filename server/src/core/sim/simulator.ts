@@ -30,9 +30,10 @@
 // Deliberately not here: comparing with the reference (lockstep.ts), text reports (describe.ts),
 // VCD output (vcd.ts), loading programs (program.ts).
 import { DEFAULT_STACK_POINTER } from '../isa/elf';
+import { lineRanges } from '../model/busDrivers';
 import { LinuxUserEnvironment, type MachineAccess } from '../isa/environment';
 import type { SparseMemory } from '../isa/memory';
-import { D_CUSTOM, DRIVER_WORDS, EDGE_WORDS, E_FAULT, U_DRIVERS, U_INDEX, type MicroOpInfo } from './microops';
+import { D_CUSTOM, DRIVER_WORDS, EDGE_WORDS, E_FAULT, HEADER_PARTIAL_LOAD, U_DRIVERS, U_INDEX, type MicroOpInfo } from './microops';
 import type { CustomAccess } from './customParts';
 import { FAST_BUDGET, FAST_RETIRED, FAST_SLOW_STEP, FAST_WRAP, canCompile, compileStepper, type FastStepper } from './compile';
 import { sizeBytes } from './operations';
@@ -79,6 +80,8 @@ export interface SimState {
   customState: Int32Array;
   flags: Uint8Array;
   busValue: Int32Array;
+  /** BusSimulator.definedLines. */
+  definedLines: Int32Array;
   writes: Int32Array;
   /** The step log of the current instruction (addresses and micro-ops), so reports after a restore name the right steps. */
   log: Int32Array;
@@ -97,6 +100,13 @@ export class BusSimulator implements MachineAccess {
   readonly busValue: Int32Array;
   /** Bit b set when bus b holds a defined value. */
   definedMask = 0;
+  /**
+   * Line by line, for drivers and loads of some lines of a bus (byte lanes): when bus b's bit in
+   * `definedMask` is clear, the lines of it that hold defined values (a set bit means every line
+   * does). Exact for every line a driver of some lines drove and for a bus with keepers; a load
+   * of some lines of a bus without keepers is only run where all its lines are driven (microops.ts).
+   */
+  readonly definedLines: Int32Array;
   readonly partValue: Int32Array;
   /** Register files, 32 entries each: register r of file f at f * 32 + r (and one spare entry at the end). */
   readonly regs: Int32Array;
@@ -145,7 +155,7 @@ export class BusSimulator implements MachineAccess {
   /** Lock-step support: keep the state at each instruction's start so the instruction can be replayed with its bus values recorded. */
   checkpointing = false;
   private checkpointValid = false;
-  private readonly saved: { regs: Int32Array; partValue: Int32Array; flags: Uint8Array; busValue: Int32Array; customState: Int32Array; definedMask: number; instructionPc: number; instructionLoaded: boolean };
+  private readonly saved: { regs: Int32Array; partValue: Int32Array; flags: Uint8Array; busValue: Int32Array; customState: Int32Array; definedMask: number; definedLines: Int32Array; instructionPc: number; instructionLoaded: boolean };
   /** State of the parts of the table's own kinds (plan.custom's slots), what their ports read, and their staged edge values. */
   readonly customState: Int32Array;
   private readonly custom: CustomAccess;
@@ -167,6 +177,7 @@ export class BusSimulator implements MachineAccess {
   ) {
     const nBuses = plan.busNames.length;
     this.busValue = new Int32Array(nBuses);
+    this.definedLines = new Int32Array(nBuses);
     this.partValue = new Int32Array(plan.parts.length);
     // One spare entry after the register files takes the writes to x0 they ignore (compiled code).
     this.regs = new Int32Array(32 * Math.max(1, plan.regfiles.length) + 1);
@@ -195,7 +206,7 @@ export class BusSimulator implements MachineAccess {
     this.instructionPc = this.partValue[plan.pcPart] >>> 0;
     for (let f = 0; f < plan.regfiles.length; f++) this.regs[f * 32 + 2] = options.stackPointer ?? DEFAULT_STACK_POINTER;
     this.refreshStaticParts();
-    this.saved = { regs: this.regs.slice(), partValue: this.partValue.slice(), flags: this.flags.slice(), busValue: this.busValue.slice(), customState: this.customState.slice(), definedMask: 0, instructionPc: 0, instructionLoaded: false };
+    this.saved = { regs: this.regs.slice(), partValue: this.partValue.slice(), flags: this.flags.slice(), busValue: this.busValue.slice(), customState: this.customState.slice(), definedMask: 0, definedLines: this.definedLines.slice(), instructionPc: 0, instructionLoaded: false };
   }
 
   /** The environment serving this machine's system calls (its captured stdout and stderr). */
@@ -356,6 +367,7 @@ export class BusSimulator implements MachineAccess {
     let code = mo.code.data;
     let lines = mo.lines.data;
     let defined = this.definedMask;
+    const definedLines = this.definedLines;
     let step = this.step;
     let ir = partValue[irPart];
     let static0 = this.staticParts[0];
@@ -401,12 +413,20 @@ export class BusSimulator implements MachineAccess {
         const driven = lines[p];
         if (driven === 0) {
           busValue[bus] = value & busMask[bus];
-          defined = ok !== 0 ? defined | (1 << bus) : defined & ~(1 << bus);
+          if (ok !== 0) defined |= 1 << bus;
+          else {
+            defined &= ~(1 << bus);
+            definedLines[bus] = 0;
+          }
         } else {
-          // Some lines of the bus (a byte lane): the others keep what they hold.
+          // Some lines of the bus (a byte lane): the others keep what they hold. Its lines are
+          // defined as this driver's value is; the others as they were (kept, or driven by
+          // another driver in this step), or not at all for the first driver of a floating bus.
           busValue[bus] = (busValue[bus] & ~driven) | ((value << lines[p + 1]) & driven);
-          if (lines[p + 2] === 0) defined = ok !== 0 ? defined | (1 << bus) : defined & ~(1 << bus);
-          else if (ok === 0) defined &= ~(1 << bus);
+          const before = lines[p + 2] === 0 ? 0 : ((defined >>> bus) & 1) !== 0 ? busMask[bus] : definedLines[bus];
+          const now = ok !== 0 ? before | driven : before & ~driven;
+          definedLines[bus] = now;
+          defined = (now & busMask[bus]) === busMask[bus] ? defined | (1 << bus) : defined & ~(1 << bus);
         }
       }
       if (recordBuses) {
@@ -432,7 +452,7 @@ export class BusSimulator implements MachineAccess {
       // 4. Closing edge. Every value loaded must be defined, and a fault entry (sorted first)
       // stops the step: both are checked before anything changes.
       const nEdges = code[p++];
-      if ((code[base + 3] & ~defined) !== 0 || (nEdges !== 0 && code[p] === 0)) {
+      if ((code[base + 3] & ~defined) !== 0 || (nEdges !== 0 && code[p] === 0) || ((header & HEADER_PARTIAL_LOAD) !== 0 && this.undefinedLoad(p, nEdges, defined) >= 0)) {
         this.step = step;
         this.steps += stepsRun;
         this.definedMask = defined;
@@ -530,12 +550,13 @@ export class BusSimulator implements MachineAccess {
    * the debugger's history. `into` is reused when given, so a ring of states allocates once.
    */
   captureState(into?: SimState): SimState {
-    const state = into ?? { regs: new Int32Array(this.regs.length), partValue: new Int32Array(this.partValue.length), customState: new Int32Array(this.customState.length), flags: new Uint8Array(this.flags.length), busValue: new Int32Array(this.busValue.length), writes: new Int32Array(3 * MAX_RECORDED_WRITES), log: new Int32Array(this.logAddress.length + this.logUop.length), numbers: new Float64Array(STATE_NUMBERS), stopReason: null, pendingExit: null };
+    const state = into ?? { regs: new Int32Array(this.regs.length), partValue: new Int32Array(this.partValue.length), customState: new Int32Array(this.customState.length), flags: new Uint8Array(this.flags.length), busValue: new Int32Array(this.busValue.length), definedLines: new Int32Array(this.busValue.length), writes: new Int32Array(3 * MAX_RECORDED_WRITES), log: new Int32Array(this.logAddress.length + this.logUop.length), numbers: new Float64Array(STATE_NUMBERS), stopReason: null, pendingExit: null };
     copyInto(state.regs, this.regs);
     copyInto(state.partValue, this.partValue);
     copyInto(state.customState, this.customState);
     copyInto(state.flags, this.flags);
     copyInto(state.busValue, this.busValue);
+    copyInto(state.definedLines, this.definedLines);
     state.writes.set(this.writeAddress, 0);
     state.writes.set(this.writeSize, MAX_RECORDED_WRITES);
     state.writes.set(this.writeValue, 2 * MAX_RECORDED_WRITES);
@@ -565,6 +586,7 @@ export class BusSimulator implements MachineAccess {
     this.customState.set(state.customState);
     this.flags.set(state.flags);
     this.busValue.set(state.busValue);
+    this.definedLines.set(state.definedLines);
     this.writeAddress.set(state.writes.subarray(0, MAX_RECORDED_WRITES));
     this.writeSize.set(state.writes.subarray(MAX_RECORDED_WRITES, 2 * MAX_RECORDED_WRITES));
     this.writeValue.set(state.writes.subarray(2 * MAX_RECORDED_WRITES));
@@ -613,9 +635,7 @@ export class BusSimulator implements MachineAccess {
     for (let bus = 0; bus < plan.busNames.length; bus++) if (!info.driven[bus] && !plan.busKeeper[bus]) this.definedMask &= ~(1 << bus);
     for (let k = 0; k < info.drivers.length; k++) {
       const { value, defined } = this.driverValue(base, k);
-      const bus = info.drivers[k].bus;
-      this.busValue[bus] = value;
-      this.definedMask = defined ? this.definedMask | (1 << bus) : this.definedMask & ~(1 << bus);
+      this.putOnBus(base, k, value, defined);
     }
     return uop;
   }
@@ -630,6 +650,7 @@ export class BusSimulator implements MachineAccess {
     copyInto(saved.busValue, this.busValue);
     copyInto(saved.customState, this.customState);
     saved.definedMask = this.definedMask;
+    copyInto(saved.definedLines, this.definedLines);
     saved.instructionPc = this.instructionPc;
     saved.instructionLoaded = this.instructionLoaded;
     this.undoCount = 0;
@@ -662,6 +683,7 @@ export class BusSimulator implements MachineAccess {
     this.busValue.set(saved.busValue);
     this.customState.set(saved.customState);
     this.definedMask = saved.definedMask;
+    this.definedLines.set(saved.definedLines);
     this.instructionPc = saved.instructionPc;
     this.instructionLoaded = saved.instructionLoaded;
     this.step = 0;
@@ -748,6 +770,47 @@ export class BusSimulator implements MachineAccess {
     return { value: value & this.plan.busMask[bus], defined };
   }
 
+  /**
+   * Puts the k-th driver's value on its bus as the stepping loop does: the whole bus, or the
+   * lines it drives (the others keep theirs), with their definedness (see `definedLines`).
+   */
+  private putOnBus(base: number, k: number, value: number, defined: boolean): void {
+    const mo = this.plan.microOps;
+    const p = base + U_DRIVERS + 1 + k * DRIVER_WORDS;
+    const bus = mo.code.data[p + 1];
+    const driven = mo.lines.data[p];
+    const all = this.plan.busMask[bus];
+    if (driven === 0) {
+      this.busValue[bus] = value;
+      if (!defined) this.definedLines[bus] = 0;
+      this.definedMask = defined ? this.definedMask | (1 << bus) : this.definedMask & ~(1 << bus);
+      return;
+    }
+    this.busValue[bus] = (this.busValue[bus] & ~driven) | ((value << mo.lines.data[p + 1]) & driven);
+    const before = mo.lines.data[p + 2] === 0 ? 0 : this.isBusDefined(bus) ? all : this.definedLines[bus];
+    const now = defined ? before | driven : before & ~driven;
+    this.definedLines[bus] = now;
+    this.definedMask = (now & all) === all ? this.definedMask | (1 << bus) : this.definedMask & ~(1 << bus);
+  }
+
+  /**
+   * The first of the `count` edge actions from `p` that loads some lines of a bus not all of
+   * which hold defined values (-1 when none does), with `defined` as the bus definedness.
+   */
+  private undefinedLoad(p: number, count: number, defined: number): number {
+    const code = this.plan.microOps.code.data;
+    const lines = this.plan.microOps.lines.data;
+    for (let k = 0; k < count; k++) {
+      const q = p + k * EDGE_WORDS;
+      const mask = lines[q];
+      if (mask === 0 || code[q] === E_FAULT) continue;
+      const bus = code[q + 1];
+      const have = ((defined >>> bus) & 1) !== 0 ? -1 : this.definedLines[bus];
+      if ((have & mask) !== mask) return k;
+    }
+    return -1;
+  }
+
   private infoAt(base: number): MicroOpInfo {
     return this.plan.microOps.info[this.plan.microOps.code.data[base + U_INDEX]];
   }
@@ -759,10 +822,9 @@ export class BusSimulator implements MachineAccess {
     if (info.contention.length === 0) return { ...stopBase, fault: { kind: 'combinational-loop', message: info.loop } };
     // Settle the buses as far as they settle, then ask each fighting driver what it drives.
     for (let bus = 0; bus < plan.busNames.length; bus++) if (!info.driven[bus] && !plan.busKeeper[bus]) this.definedMask &= ~(1 << bus);
-    info.drivers.forEach((d, k) => {
+    info.drivers.forEach((_, k) => {
       const { value, defined } = this.driverValue(base, k);
-      this.busValue[d.bus] = value;
-      this.definedMask = defined ? this.definedMask | (1 << d.bus) : this.definedMask & ~(1 << d.bus);
+      this.putOnBus(base, k, value, defined);
     });
     const buses = info.contention.map(({ bus, strobes }) => ({
       bus: plan.busNames[bus],
@@ -786,26 +848,42 @@ export class BusSimulator implements MachineAccess {
       const op = code[p];
       const strobe = info.edges[k].strobe;
       if (op === E_FAULT) return { ...stopBase, fault: { kind: 'control-code', strobe, message: info.edges[k].fault ?? 'the word asks for an operation the part cannot do' } };
+      const loadMask = plan.microOps.lines.data[p];
+      if (loadMask !== 0 && this.undefinedLoad(p, 1, this.definedMask) === 0) {
+        // A load of some lines (`result[15:8]`): name them, and why the first of them is undefined.
+        const bus = code[p + 1];
+        const missing = loadMask & ~(this.isBusDefined(bus) ? -1 : this.definedLines[bus]);
+        const low = plan.microOps.lines.data[p + 1];
+        const width = 32 - Math.clz32(loadMask >>> low);
+        return { ...stopBase, fault: { kind: 'undefined-value', strobe, bus: `${plan.busNames[bus]}[${width === 1 ? low : `${low + width - 1}:${low}`}]`, why: this.whyUndefined(base, bus, 0, missing) } };
+      }
       const bad = info.edges[k].reads.find((bus) => !this.isBusDefined(bus));
       if (bad !== undefined) return { ...stopBase, fault: { kind: 'undefined-value', strobe, bus: plan.busNames[bad], why: this.whyUndefined(base, bad) } };
     }
     return { ...stopBase, fault: { kind: 'control-code', strobe: '', message: 'the closing edge could not be applied' } };
   }
 
-  /** Why bus `bus` holds no defined value in the micro-op at `base`, in words. */
-  whyUndefined(base: number, bus: number, depth = 0): string {
+  /**
+   * Why bus `bus` (with `lines`, those of its lines) holds no defined value in the micro-op at
+   * `base`, in words.
+   */
+  whyUndefined(base: number, bus: number, depth = 0, lines = 0): string {
     const plan = this.plan;
     const code = plan.microOps.code.data;
     const info = this.infoAt(base);
     const name = plan.busNames[bus];
-    const k = info.drivers.findIndex((d) => d.bus === bus);
+    const driverAt = (k: number) => base + U_DRIVERS + 1 + k * DRIVER_WORDS;
+    // For some lines: the driver of the highest of them, else none drives them in this step.
+    const top = lines === 0 ? 0 : 1 << (31 - Math.clz32(lines));
+    const k = info.drivers.findIndex((d, j) => d.bus === bus && (top === 0 || plan.microOps.lines.data[driverAt(j)] === 0 || (plan.microOps.lines.data[driverAt(j)] & top) !== 0));
     if (k < 0) {
-      if (!plan.busKeeper[bus]) return `nothing drives \`${name}\` in this step and it has no keepers, so its lines float`;
-      return `nothing drives \`${name}\` in this step, and its keepers hold no value: nothing has driven it since reset`;
+      const what = lines === 0 ? `\`${name}\`` : `lines ${lineRanges(lines)} of \`${name}\``;
+      if (!plan.busKeeper[bus]) return `nothing drives ${what} in this step and it has no keepers, so its lines float`;
+      return lines === 0 ? `nothing drives ${what} in this step, and its keepers hold no value: nothing has driven it since reset` : `nothing drives ${what} in this step, and its keepers hold no value for them: nothing has driven them since reset`;
     }
     const driver = info.drivers[k];
     if (driver.note) return `\`${driver.strobe}\` drives \`${name}\`, but ${driver.note}`;
-    const p = base + U_DRIVERS + 1 + k * DRIVER_WORDS;
+    const p = driverAt(k);
     const op = code[p];
     if (depth > 4) return `\`${driver.strobe}\` drives \`${name}\` from undefined inputs`;
     if (op === D_CUSTOM) {
