@@ -4,8 +4,10 @@
 // comparator's operand buses, the memory's address part or bus, the instruction register of the
 // immediate generator, register file and comparator) and the field driving its control. This is
 // the one place that translates the built-in shapes; the simulator runs library parts from their
-// definitions through it (`SimPlan.build(machine, { fromDefinitions: true })`), and the model
-// can later build library parts this way directly and drop the shapes of model/types.ts.
+// definitions through it (`SimPlan.build(machine, { fromDefinitions: true })`), every other
+// layer reads a part through `definitionOf` (model/partFacts.ts derives what each needs), and
+// the model can later build library parts this way directly and drop the shapes of
+// model/types.ts. `strobeWiring` says how the builder reads the built-in shapes' strobe lines.
 import { libraryKind } from '../parts/library';
 import { customPortFor } from './buildCustomPart';
 import type { CustomPart, InputSource, Machine, Part, Strobe } from './types';
@@ -19,6 +21,30 @@ const controlOf: Partial<Record<Part['kind'], string>> = { immediate: 'fmt', alu
  * its control, which no field drives).
  */
 export function asDefinedPart(machine: Machine, part: Part): CustomPart | { problem: string } {
+  if (part.kind === 'memory' && !part.controlField) return { problem: `the memory port \`${part.name}\` has no size field; run it on the built-in path` };
+  return translate(machine, part);
+}
+
+const definitions = new WeakMap<Part, CustomPart>();
+
+/**
+ * The part as a part of its kind's definition, for every reader that only describes, measures
+ * or checks it (hover, completion, budget, checks, debugger): unlike `asDefinedPart` a memory
+ * port without a size field is read too (its `size` control then has no field). Cached per part
+ * object; a model is not changed once built.
+ */
+export function definitionOf(machine: Machine, part: Part): CustomPart {
+  if (part.kind === 'custom') return part;
+  let defined = definitions.get(part);
+  if (!defined) {
+    const translated = translate(machine, part);
+    if ('problem' in translated) throw new Error(translated.problem);
+    definitions.set(part, (defined = translated));
+  }
+  return defined;
+}
+
+function translate(machine: Machine, part: Part): CustomPart | { problem: string } {
   if (part.kind === 'custom') return part;
   const def = libraryKind(part.kind);
   if (!def) return { problem: `the standard library has no kind \`${part.kind}\`` };
@@ -55,7 +81,6 @@ export function asDefinedPart(machine: Machine, part: Part): CustomPart | { prob
       flagNames.set('taken', part.flag);
       break;
     case 'memory':
-      if (!part.controlField) return { problem: `the memory port \`${part.name}\` has no size field; run it on the built-in path` };
       inputs.set('addr', { from: part.addressFrom, name: part.address });
       break;
     case 'constant':
@@ -87,4 +112,17 @@ export function definedPortOf(part: CustomPart, strobe: Strobe): string | undefi
   const role = strobe.kind === 'clock' && strobe.bus === undefined ? 'clock-flag' : strobe.kind;
   const found = customPortFor(part, role, strobe.port);
   return 'port' in found ? found.port : undefined;
+}
+
+/**
+ * How strobe lines name this part's ports, as the model builder reads them: a register file of
+ * the library is always wired by port (`x.rs1`, `x.rd`) and also by register number (`x[5]`,
+ * a fixed register the definition does not describe); the other library parts have no port
+ * names on strobe lines (`enable pc`); a part of a table's own kind takes `part.port` or, for
+ * the first port that fits, just `part`.
+ */
+export function strobeWiring(part: Part): { ports: 'always' | 'never' | 'optional'; numbered: boolean } {
+  if (part.kind === 'custom') return { ports: 'optional', numbered: false };
+  if (part.kind === 'regfile') return { ports: 'always', numbered: true };
+  return { ports: 'never', numbered: false };
 }
