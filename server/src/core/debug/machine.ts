@@ -17,6 +17,7 @@
 // case costs one check per instruction.
 //
 // Deliberately not here: the protocol (server/src/debug/), what the views show (views.ts).
+import { elementZeroWritable } from '../model/partFacts';
 import { symbolAt, type ElfSymbol } from '../isa/elf';
 import { disassemble } from '../isa/disasm';
 import type { ClassDef, StepAlt } from '../model/types';
@@ -424,7 +425,8 @@ export class DebugMachine {
 
   /** Sets register x`index` of the first register file (and the reference's, so lock-step agrees). */
   setRegister(index: number, value: number): string | null {
-    if (index === 0 && this.plan.regfiles[0]?.x0 !== 'stored') return 'x0 is hardwired to zero on this machine';
+    const file = this.plan.regfiles[0];
+    if (index === 0 && !(file && elementZeroWritable(this.plan.machine, file))) return 'x0 is hardwired to zero on this machine';
     this.sim.regs[index] = value | 0;
     if (this.run.reference) this.run.reference.x[index] = value | 0;
     this.edited();

@@ -13,6 +13,7 @@ import { ABI_REGISTER_NAMES, disassemble, disassembleParts } from '../isa/disasm
 import { immediateOf } from '../isa/rv32i';
 import { describeAddress } from '../encode/listing';
 import { chipImagesOf } from '../encode/plan';
+import { elementZeroWritable, heldValue } from '../model/partFacts';
 import type { DebugMachine } from './machine';
 
 export type Edit = { kind: 'register'; index: number } | { kind: 'memory'; address: number } | { kind: 'memory-address' };
@@ -71,7 +72,10 @@ export class MachineViews {
   registers(): ViewNode[] {
     const sim = this.dm.sim;
     const nodes: ViewNode[] = [{ name: 'pc', value: hex(sim.pc), address: sim.pc }];
-    for (let r = 0; r < 32; r++) nodes.push({ name: `x${r} (${ABI_REGISTER_NAMES[r]})`, value: numberText(sim.regs[r]), edit: r === 0 && this.dm.plan.regfiles[0]?.x0 !== 'stored' ? undefined : { kind: 'register', index: r } });
+    // x0 can be set only where the register file's definition lets a write reach element 0.
+    const file = this.dm.plan.regfiles[0];
+    const x0Editable = !!file && elementZeroWritable(this.dm.plan.machine, file);
+    for (let r = 0; r < 32; r++) nodes.push({ name: `x${r} (${ABI_REGISTER_NAMES[r]})`, value: numberText(sim.regs[r]), edit: r === 0 && !x0Editable ? undefined : { kind: 'register', index: r } });
     return nodes;
   }
 
@@ -166,7 +170,8 @@ export class MachineViews {
     const plan = this.dm.plan;
     const nodes: ViewNode[] = [];
     plan.parts.forEach((part, i) => {
-      if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') nodes.push({ name: part.name, value: numberText(sim.partValue[i]) });
+      // A part holding one register a bus can read: the simulator keeps it as the part's value.
+      if (heldValue(plan.machine, part)) nodes.push({ name: part.name, value: numberText(sim.partValue[i]) });
     });
     plan.regfiles.forEach((file, f) => {
       if (f === 0) return; // the first register file is the Registers scope
