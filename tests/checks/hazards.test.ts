@@ -240,7 +240,7 @@ describe('x0-stored-write decides from the guards', () => {
     const d = a.diagnostics.filter((x) => x.code === 'x0-stored-write');
     expect(d).toHaveLength(1);
     expect(d[0].related?.map((r) => a.text.slice(r.span.start, r.span.end))).toEqual(['x.rd.ck']);
-    expect(d[0].message).toContain('1 step(s) write rd with nothing to stop rd = x0');
+    expect(d[0].message).toContain('1 step(s) write rd through `x.rd` with nothing to stop rd (`ir[11:7]`) = x0');
   });
 });
 

@@ -75,7 +75,8 @@ describe('completion contexts', () => {
     expect(labelsAt(base + 'part c $0')).toEqual(['regfile', 'register', 'counter', 'instruction', 'immediate', 'alu', 'compare', 'memory', 'constant']);
     expect(labelsAt(base + 'part pc counter 32 $0')).toEqual(['inc=', 'bit0=', 'reset=']);
     expect(labelsAt(base + 'part y regfile 32 x0=$0')).toEqual(['hardwired', 'stored', 'guarded']);
-    expect(labelsAt(base + 'part m memory 8 addr=$0')).toEqual(['a', 'b', 'left', 'result']);
+    // Parts holding a value (registers, the instruction register among them), then buses.
+    expect(labelsAt(base + 'part m memory 8 addr=$0')).toEqual(['a', 'b', 'ir', 'left', 'result']);
   });
 
   it('strobe kinds, then parts or ports, then buses after the arrow', () => {

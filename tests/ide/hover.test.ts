@@ -120,12 +120,13 @@ describe('exact hover texts', () => {
         '**strobe `x.rs1.oe`** — Card selected by rs1 drives the left bus.',
         '',
         '- **kind** `enable` — output enable: the part drives the bus for the whole step',
-        "- **part** `x`, port `rs1` — register file: 32 registers selected by the instruction's rs1, rs2 and rd fields",
+        "- **part** `x`, port `rs1`, kind `regfile` — register file: 32 registers selected by the instruction's rs1, rs2 and rd fields",
         '- **bus** `left` — 32 lines, with keepers (holds its last value when undriven)',
         '- **level** active low: the ROM bit is 0 when asserted and 1 when idle (typical for /OE and /WE inputs)',
         '- **bit** 0 of the word of store `main` → **chip 0, D0** (28C64, 8192 × 8)',
         '- **used** asserted in 6 steps of 6 classes: JALR, BRANCH, LOAD, STORE, OP-IMM, OP',
-        "- **effect** the register the instruction's rs1 field selects drives bus `left` for the whole step",
+        // From the library definition's port `rs1` (parts/library/standard.ts).
+        "- **effect** `x.rs1` (the register the instruction's rs1 field (bits 19..15) selects) drives bus `left` for the whole step; reading ir from the instruction register",
         '- **load** reaches 124 inputs: 0.12 mA; the outputs of store main are rated 0.4 mA, margin 0.28 mA — an estimate from the figures in the table',
       ].join('\n'),
     );
@@ -133,7 +134,7 @@ describe('exact hover texts', () => {
 
   it('a field value in a step: code in decimal and binary', () => {
     // `alu.fn=sub` does not occur in the demo's steps; `add` does (AUIPC step 2).
-    expect(hoverAt('alu.fn=add', 7)).toBe(['**value `add`** of field `alu.fn` — code **0** = 0b0000 (4 bits)', '', '`alu`: a + b (32-bit, wrapping)'].join('\n'));
+    expect(hoverAt('alu.fn=add', 7)).toBe(['**value `add`** of field `alu.fn` — code **0** = 0b0000 (4 bits)', '', '`alu`: `y` = `a + b`'].join('\n'));
     expect(hoverAt('sra=13', 1)).toContain('**value `sra`** of field `alu.fn` — code **13** = 0b1101 (4 bits)');
   });
 
@@ -142,7 +143,7 @@ describe('exact hover texts', () => {
       [
         '**field `mem.size`** — Memory access size; the codes follow funct3.',
         '',
-        '- **width** 3 bits, controls part `mem` — memory port: reads and writes bytes, halfwords and words',
+        '- **width** 3 bits, controls part `mem`, kind `memory` — memory port: reads and writes bytes, halfwords and words (little-endian, spec 2.6)',
         '- **bits** 24..26 of the word of store `main` → **chip 3, D0..D2** (28C64, 8192 × 8)',
         '- **idle** `byte` (code 0): the value where no step sets the field',
         '- **used** set in 13 steps of 11 classes (11 through phases): LUI, AUIPC, JAL, JALR, BRANCH, LOAD, STORE, OP-IMM, OP, MISC-MEM, SYSTEM',
@@ -150,11 +151,13 @@ describe('exact hover texts', () => {
         '',
         '| value | code | binary | meaning |',
         '|---|---|---|---|',
-        '| `byte` | 0 | 000 | one byte, sign-extended on read (lb, sb) |',
-        '| `half` | 1 | 001 | a halfword (2 bytes), sign-extended on read (lh, sh) |',
-        '| `word` | 2 | 010 | a word (4 bytes) (lw, sw) |',
-        '| `ubyte` | 4 | 100 | one byte, zero-extended on read (lbu) |',
-        '| `uhalf` | 5 | 101 | a halfword, zero-extended on read (lhu) |',
+        // Each value's meaning is the arm of the memory port's `data` it selects: little-endian
+        // bytes, sign- or zero-extended (RISC-V Unprivileged ISA 20191213, 2.6: lb/lh/lw/lbu/lhu).
+        '| `byte` | 0 | 000 | `data` = `sext(m[addr], 32)` |',
+        '| `half` | 1 | 001 | `data` = `sext({m[addr + 1], m[addr]}, 32)` |',
+        '| `word` | 2 | 010 | `data` = `{m[addr + 3], m[addr + 2], m[addr + 1], m[addr]}` |',
+        '| `ubyte` | 4 | 100 | `data` = `zext(m[addr], 32)` |',
+        '| `uhalf` | 5 | 101 | `data` = `zext({m[addr + 1], m[addr]}, 32)` |',
       ].join('\n'),
     );
   });
@@ -217,7 +220,7 @@ describe('exact hover texts', () => {
     expect(text).toContain('- **keeper** yes: when nothing drives the bus its lines keep the last driven value');
     expect(text).toContain('- **driven by** `x.rs1.oe` (x.rs1), `pc.oe` (pc)');
     expect(text).toContain('- **loaded by** no strobe');
-    expect(text).toContain('- **read by** `alu` (operand a), `cmp` (operand a)');
+    expect(text).toContain('- **read by** `alu` (input `a`), `cmp` (input `a`)');
     expect(text).toContain('- step 0 of phase fetch: driven by `pc.oe`');
     expect(text).toContain('- step 2 of class BRANCH: driven by `x.rs1.oe`');
     const noKeeper = hoverAt('bus result', 4)!;
@@ -231,8 +234,9 @@ describe('exact hover texts', () => {
         '**part `pc`** — Program counter; bit 0 is always stored as 0.',
         '',
         '- **kind** `counter` — counter: a register that can also count up by its increment',
-        '- **settings** width 32; inc=4; bit0=zero (bit 0 always stored as 0); reset=0',
-        "- **ports** output: drives a bus through an enable strobe; input: loads a bus at a clock strobe's edge",
+        '- **settings** width=32; inc=4 (what a count strobe adds); bit0=zero (zero: bit 0 is always stored as 0 (RV32I jump targets need it)); reset=0 (value after reset)',
+        // The ports of the library's counter with this part's bit0=zero: its select picks `in & ~1`.
+        "- **ports** `out`: output, drives a bus through an enable strobe: the value it holds (`q`); `load`: input, loads a bus at a clock strobe's closing edge: loads the bus (`q <= in & ~1`); `count`: acts at a count strobe's closing edge: adds its increment (`q <= q + inc & ~1`, inc=4)",
         '- **strobes** `pc.oe` enable pc → `left`; `pc.ck` clock `result` → pc; `pc.inc` count',
       ].join('\n'),
     );
@@ -246,8 +250,9 @@ describe('exact hover texts', () => {
     expect(kind).toContain('```phasewright\nkind regfile ');
     expect(hoverAt('funct3 5..7', 1)).toBe('**address input `funct3`** — instruction bits 14..12: selects the operation, branch condition or access size');
     expect(hoverAt('keeper', 1)).toContain('**`keeper`** — bus-hold keepers');
-    expect(hoverAt('enable x.rs1', 10)).toBe("**port `rs1` of `x`** — output, the register the instruction's rs1 field (bits 19..15) selects");
-    expect(hoverAt('taken cond', 1)).toContain('**flag `taken`** — one bit latched by comparator `cmp`');
+    // x0=hardwired: the library's rs1 reads 0 for register 0 (RISC-V Unprivileged ISA 20191213, 2.1).
+    expect(hoverAt('enable x.rs1', 10)).toBe("**port `rs1` of `x`** — output, drives a bus through an enable strobe: the register the instruction's rs1 field (bits 19..15) selects (`ir[19:15] == 0 ? 0 : r[ir[19:15]]`)");
+    expect(hoverAt('taken cond', 1)).toContain('**flag `taken`** — one bit of part `cmp`, kind `compare` — comparator: tests its two operand buses and latches a flag: `taken = f`, latched by `cmp.latch` at the closing edge (reading a from `left`, b from `right`, ir from the instruction register)');
   });
 
   it('says nothing over a comment or blank space', () => {

@@ -104,7 +104,7 @@ describe('rename', () => {
     expect(rename(demo, at('strobe t.oe', 7), 'class')).toEqual({ error: '`class` is a word of the notation; choose another name' });
     expect(rename(demo, at('part t ', 5), 't.x')).toMatchObject({ error: expect.stringContaining('a part name cannot contain a dot') });
     expect(rename(demo, at('-> taken', 3), 'funct3')).toMatchObject({ error: expect.stringContaining('names an address input') });
-    expect(rename(demo, at('add=0'), 'plus')).toMatchObject({ error: expect.stringContaining('`plus` means nothing to the alu part `alu`') });
+    expect(rename(demo, at('add=0'), 'plus')).toMatchObject({ error: expect.stringContaining('`plus` means nothing to control `fn` of `alu` (kind `alu`)') });
   });
 
   it('prepares a rename on a name and refuses elsewhere', () => {

@@ -69,7 +69,8 @@ describe('hover', () => {
   });
 
   it('gives the code of a field value in decimal and binary', async () => {
-    expect((await hoverAt('imm.fmt=u', 8))!.value).toBe('**value `u`** of field `imm.fmt` — code **3** = 0b011 (3 bits)\n\n`imm`: U format: bits 31..12 in the upper 20 bits, low 12 bits zero (LUI, AUIPC)');
+    // The U immediate: instruction bits 31..12 above 12 zero bits (RISC-V Unprivileged ISA 20191213, 2.3, figure 2.4).
+    expect((await hoverAt('imm.fmt=u', 8))!.value).toBe('**value `u`** of field `imm.fmt` — code **3** = 0b011 (3 bits)\n\n`imm`: `imm` = `{ir[31:12], 0x000}`');
   });
 
   it('shows the word of a step per chip', async () => {
@@ -108,7 +109,7 @@ describe('hover', () => {
       '- **keeper** yes: when nothing drives the bus its lines keep the last driven value (a load then stores a stale value: a warning)',
       '- **driven by** `x.rs2.oe` (x.rs2), `imm.oe` (imm), `four.oe` (four)',
       '- **loaded by** `mem.wr` (mem)',
-      '- **read by** `alu` (operand b), `cmp` (operand b)',
+      '- **read by** `alu` (input `b`), `cmp` (input `b`)',
       '- **load per line** driven by `x`: reaches 28 inputs and an LED (0.97 mA): 1.50 mA; `x` is rated 6 mA, margin 4.50 mA — an estimate from the figures in the table',
       '- **load per line** driven by `imm`: reaches 148 inputs and an LED (0.97 mA): 1.62 mA; `imm` is rated 6 mA, margin 4.38 mA — an estimate from the figures in the table',
       '- **load per line** driven by `four`: reaches 148 inputs and an LED (0.97 mA): 1.62 mA; `four` is rated 6 mA, margin 4.38 mA — an estimate from the figures in the table',
@@ -122,9 +123,9 @@ describe('hover', () => {
       [
         '**part `mem`** — Memory port, addressed by the memory address register.',
         '',
-        '- **kind** `memory` — memory port: reads and writes bytes, halfwords and words',
-        '- **settings** width 32; address from register `mar`; controlled by field `mem.size`',
-        "- **ports** data out: drives a bus through a read strobe; data in: stores a bus at a write strobe's closing edge",
+        '- **kind** `memory` — memory port: reads and writes bytes, halfwords and words (little-endian, spec 2.6)',
+        '- **settings** width=32; addr from part `mar` (the byte address: a register part or a bus); `size` from field `mem.size`',
+        "- **ports** `data`: output, drives a bus through a read strobe: the data at the address, of the size the field selects; `write`: input, stores a bus at a write strobe's closing edge: stores the bus at the address, as many bytes as the size",
         '- **strobes** `mem.rd` read mem → `result`; `mem.wr` write `right` → mem',
       ].join('\n'),
     );

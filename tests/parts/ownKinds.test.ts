@@ -95,11 +95,12 @@ describe('checks on parts of the table\'s own kinds', () => {
     const at = (needle: string, delta = 0) => hover(a, halves.indexOf(needle) + delta)!.markdown;
     const part = at('part p4hi', 6);
     expect(part).toContain('- **kind** `half4` (of this table) — one half of pc + 4');
-    expect(part).toContain('- **settings** half high');
-    expect(part).toContain('- **inputs** x from `pc`');
+    expect(part).toContain('- **settings** half=high; x from part `pc`');
+    // What the port computes with this part's setting: the select on `half` takes its `high` arm.
+    expect(part).toContain('- **ports** `part`: output, drives a bus through an enable strobe (`(x + 4)[31:16]`)');
     expect(part).toContain('`p4hi.oe` enable p4hi.part → `result[31:16]`');
     const strobe = at('strobe p4hi.oe', 8);
-    expect(strobe).toContain('- **part** `p4hi`, port `part` — kind `half4` of this table: one half of pc + 4');
+    expect(strobe).toContain('- **part** `p4hi`, port `part`, kind `half4` (of this table) — one half of pc + 4');
     expect(strobe).toContain('- **bus** `result` — lines 31..16 of 32 (the others are left to other drivers)');
   });
 });

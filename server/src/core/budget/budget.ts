@@ -4,8 +4,10 @@
 // path from the control word changing to the closing clock edge, which bounds the step clock.
 // These are estimates from entered figures; real boards need margin and measurement.
 import { customPortBusReads } from '../model/buildCustomPart';
+import { definitionOf, inputWiring, isCombinationalPort, portOfStrobe } from '../model/partFacts';
 import type { Bus, Figures, Machine, Part, StepAlt, Strobe } from '../model/types';
 import type { Span } from '../text/span';
+import type { KindDef } from '../parts/kinds';
 
 export interface LineLoad {
   /** Strobe name, or `bus name` for a bus row. */
@@ -140,10 +142,10 @@ export function computeBudget(machine: Machine): Budget {
   };
 }
 
-/** Inputs one control line of a part reaches: `loads` per card, times `cards` for a register file. */
+/** Inputs one control line of a part reaches: `loads` per card, times its `cards` (a register file built of cards). */
 function inputsOfPart(part: Part): number {
   const loads = fig(part.figures, 'loads') ?? 1;
-  return part.kind === 'regfile' ? loads * (fig(part.figures, 'cards') ?? 1) : loads;
+  return loads * (fig(part.figures, 'cards') ?? 1);
 }
 
 function strobeLoad(machine: Machine, strobe: Strobe, store: { name: string; figures: Figures } | undefined, ledMa: number): LineLoad {
@@ -182,12 +184,8 @@ function busLoads(machine: Machine, bus: Bus, ledMa: number): LineLoad[] {
       if (!drivers.has(part.name)) drivers.set(part.name, { part, strobe: signal });
     } else readers.set(part.name, part);
   }
-  for (const part of machine.parts.values()) {
-    if ((part.kind === 'alu' || part.kind === 'compare') && (part.a === bus.name || part.b === bus.name)) readers.set(part.name, part);
-    if (part.kind === 'memory' && part.addressFrom === 'bus' && part.address === bus.name) readers.set(part.name, part);
-    // A part of the table's own kind loads every bus an input of it is wired to.
-    if (part.kind === 'custom' && [...part.inputs.values()].some((i) => i.from === 'bus' && i.name === bus.name)) readers.set(part.name, part);
-  }
+  // A part loads every bus an input of its definition is wired to.
+  for (const part of machine.parts.values()) if (inputWiring(machine, part).buses.includes(bus.name)) readers.set(part.name, part);
   // A connection drives its bus like an enable that is always on.
   for (const c of machine.connections) {
     const part = c.bus === bus.name && c.part ? machine.parts.get(c.part) : undefined;
@@ -292,6 +290,12 @@ function stepPaths(machine: Machine, missing: Set<string>): StepPath[] {
   return paths;
 }
 
+/** What a part of the kind is called in a path: the start of its description (`ALU: ...`), else `(kind)`. */
+function kindNoun(def: KindDef): string {
+  const noun = def.description?.split(':')[0];
+  return noun && noun !== def.description && noun.length <= 24 ? noun : `(${def.name})`;
+}
+
 interface Arrival {
   ns: number;
   segments: PathSegment[];
@@ -314,9 +318,19 @@ function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, miss
   // The step's control word is complete when its slowest store's outputs are; each path starts
   // from the store holding its strobe, and a part with a control field from that field's store.
   const start = alt.actions.map((a) => access(a.signal)).reduce(later, access(undefined));
-  const control = (s: Strobe, part: Part) => {
-    if (part.kind === 'custom') return [...part.controlFields.values()].reduce((a, f) => later(a, access(f)), access(s.name));
-    return later(access(s.name), part.controlField ? access(part.controlField) : access(s.name));
+  const control = (s: Strobe, part: Part) => [...definitionOf(machine, part).controlFields.values()].reduce((a, f) => later(a, access(f)), access(s.name));
+  /**
+   * Through the part: the latest of the buses its port reads (the arms its controls cannot pick
+   * are left out) and its control fields, then its tpd_ns. Only a port that reads a control or a
+   * bus changes within the step; one that reads its state or settings is valid from the start.
+   */
+  const throughPart = (s: Strobe, part: Part, depth: number): Arrival | undefined => {
+    const port = portOfStrobe(machine, part, s);
+    if (!port || depth >= 4 || !isCombinationalPort(machine, part, port)) return undefined;
+    const reads = customPortBusReads(definitionOf(machine, part), port.name, new Map());
+    const inputs = [...reads.map((b) => arrivalOnBus(b, depth + 1)), control(s, part)].filter((a): a is Arrival => !!a);
+    const latest = inputs.reduce(later);
+    return { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} ${kindNoun(definitionOf(machine, part).def)}${port.drive ? '' : ` ${port.name}`}`, ns: need(part, 'tpd_ns') }] };
   };
   const busArrival = new Map<string, Arrival | undefined>();
   const arrivalOnBus = (busName: string, depth = 0): Arrival | undefined => {
@@ -329,24 +343,8 @@ function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, miss
       if (!part) continue;
       const enabled = access(s.name);
       let arrival: Arrival = { ns: enabled.ns + need(part, 'en_ns'), segments: [...enabled.segments, { what: `${s.name} enable`, ns: need(part, 'en_ns') }] };
-      if ((part.kind === 'alu' || part.kind === 'compare') && depth < 4) {
-        const inputs = [arrivalOnBus(part.a, depth + 1), arrivalOnBus(part.b, depth + 1), control(s, part)].filter((a): a is Arrival => !!a);
-        const latest = inputs.reduce(later);
-        const through = { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} ${part.kind === 'alu' ? 'ALU' : 'comparator'}`, ns: need(part, 'tpd_ns') }] };
-        if (through.ns > arrival.ns) arrival = through;
-      } else if (part.kind === 'custom' && depth < 4) {
-        // Through a part of the table's own kind: the latest of the buses its port reads (the
-        // arms its controls cannot pick are left out) and its control fields, then its tpd_ns.
-        const reads = customPortBusReads(part, s.kindPort ?? '', new Map());
-        const inputs = [...reads.map((b) => arrivalOnBus(b, depth + 1)), control(s, part)].filter((a): a is Arrival => !!a);
-        const latest = inputs.reduce(later);
-        const through = { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} (${part.kindName})`, ns: need(part, 'tpd_ns') }] };
-        if (through.ns > arrival.ns) arrival = through;
-      } else if (part.kind === 'immediate' || part.kind === 'memory') {
-        const from = control(s, part);
-        const through = { ns: from.ns + need(part, 'tpd_ns'), segments: [...from.segments, { what: `${part.name} ${part.kind === 'memory' ? 'memory read' : 'immediate'}`, ns: need(part, 'tpd_ns') }] };
-        if (through.ns > arrival.ns) arrival = through;
-      }
+      const through = throughPart(s, part, depth);
+      if (through && through.ns > arrival.ns) arrival = through;
       if (!best || arrival.ns > best.ns) best = arrival;
     }
     if (best) {
@@ -363,11 +361,11 @@ function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, miss
     if (!part) continue;
     let arrival: Arrival | undefined;
     if ((s.kind === 'clock' || s.kind === 'write') && s.bus) arrival = arrivalOnBus(s.bus);
-    else if (s.kind === 'clock' && part.kind === 'compare') {
-      const inputs = [arrivalOnBus(part.a), arrivalOnBus(part.b), control(s, part)].filter((a): a is Arrival => !!a);
-      const latest = inputs.reduce(later);
-      arrival = { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} comparator`, ns: need(part, 'tpd_ns') }] };
-    } else if (s.kind === 'count') arrival = access(s.name);
+    else if (s.kind === 'clock' || s.kind === 'count') {
+      // An edge port with no bus (a latch of a flag, a count): through the part when what it
+      // stores reads buses or controls, else only the strobe itself.
+      arrival = throughPart(s, part, 0) ?? access(s.name);
+    }
     if (!arrival) continue;
     // The loading strobe itself must be valid before the edge too.
     arrival = later(arrival, access(s.name));

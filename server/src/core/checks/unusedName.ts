@@ -2,6 +2,7 @@
 // or part touches, parts nothing is wired to, maps and phases never used, flags never tested.
 // Often a forgotten step or a misspelling. The fix removes an unused strobe with its placement.
 import type { SymbolInfo } from '../model/types';
+import { inputWiring, kindOf } from '../model/partFacts';
 import { type Check, writtenAlternatives } from './context';
 import { removeLinesEdit } from './fixes';
 
@@ -26,15 +27,13 @@ export const unusedName: Check = {
       } else if (signal.target) usedParts.add(signal.target);
     }
     for (const part of machine.parts.values()) {
-      if (part.kind === 'alu' || part.kind === 'compare') {
-        usedBuses.add(part.a);
-        usedBuses.add(part.b);
-      }
-      if (part.kind === 'memory') (part.addressFrom === 'bus' ? usedBuses : usedParts).add(part.address);
-      if (part.kind === 'immediate' && part.source) usedParts.add(part.source);
-      if (part.kind === 'instruction' || part.kind === 'regfile') usedParts.add(part.name);
-      // A part of the table's own kind uses the buses and parts its inputs are wired to.
-      if (part.kind === 'custom') for (const input of part.inputs.values()) if (input.from !== 'instruction') (input.from === 'bus' ? usedBuses : usedParts).add(input.name);
+      // A part uses the buses and parts its definition's inputs are wired to.
+      const wired = inputWiring(machine, part);
+      for (const bus of wired.buses) usedBuses.add(bus);
+      for (const name of wired.parts) usedParts.add(name);
+      // The instruction register feeds the address lines; a register array (the register file)
+      // holds the program's registers, which the run's environment reads and writes.
+      if (part.name === machine.instructionRegister || kindOf(machine, part).states.some((s) => typeof s.count === 'object')) usedParts.add(part.name);
     }
     for (const flag of machine.flags.values()) usedParts.add(flag.part);
     for (const c of machine.connections) {

@@ -5,25 +5,37 @@
 // guard that excludes rd = 00000 never happens for rd = x0. So the check walks every
 // instruction of every class with rd = 00000 from step 0 along its guards (reach.ts) and
 // reports the rd writes such a walk reaches.
+//
+// Which parts and ports this concerns comes from their definitions, run with each part's
+// settings (model/partFacts.ts): a register array whose element 0 the read ports really give,
+// written by an edge port whose index is instruction bits (rd, 11..7) and whose `when` can hold
+// with those bits 0. A `guarded` or `hardwired` x0 fails the second test, a stored one passes.
 import { RV32I_INSTRUCTIONS } from '../isa/rv32i';
-import type { Action } from '../model/types';
+import { portOfStrobe, registerArrayFacts, settingsKeepingElementZero } from '../model/partFacts';
+import type { Action, Part } from '../model/types';
 import type { RelatedInfo } from '../text/diagnostic';
 import { type Check, classAlternatives, strobeOf } from './context';
 import { cubeOfBits, instructionCube, intersect } from './inputSpace';
 import { reachedAlternatives } from './reach';
 
-/** Instruction bits 11..7 (rd) all zero: RISC-V Unprivileged ISA §2.2, every format with rd. */
-const rdIsX0 = cubeOfBits(11, 7, '00000');
 
 export const x0StoredWrite: Check = {
   codes: ['x0-stored-write'],
   run(ctx) {
     const machine = ctx.machine;
     for (const part of machine.parts.values()) {
-      if (part.kind !== 'regfile' || part.x0 !== 'stored') continue;
+      for (const facts of registerArrayFacts(machine, part)) {
+        // Element 0 read as stored, written through a port indexed by instruction bits that can store into it.
+        const ports = facts.elementZeroStored ? facts.writes.filter((w) => w.writesElementZero && w.indexBits) : [];
+        for (const write of ports) checkPort(part, facts.array, write.port, write.indexBits!);
+      }
+    }
+    function checkPort(part: Part, array: string, port: string, bits: { hi: number; lo: number }) {
+      // The index bits all zero: rd = x0 for ir[11:7] (RISC-V Unprivileged ISA §2.2, every format with rd).
+      const rdIsX0 = cubeOfBits(bits.hi, bits.lo, '0'.repeat(bits.hi - bits.lo + 1));
       const writesRd = (action: Action) => {
         const strobe = strobeOf(machine, action);
-        return !!strobe && strobe.part === part.name && strobe.kind === 'clock' && strobe.port === 'rd';
+        return !!strobe && strobe.part === part.name && strobe.register === undefined && portOfStrobe(machine, part, strobe)?.name === port;
       };
       const writes: RelatedInfo[] = [];
       const seen = new Set<number>();
@@ -52,12 +64,15 @@ export const x0StoredWrite: Check = {
           }
         }
       }
-      if (writes.length === 0) continue;
+      if (writes.length === 0) return;
       const example = victims.has('addi') ? '`addi x0, x0, 0` (the canonical NOP)' : `${[...victims][0]} with rd = x0`;
+      const index = `ir[${bits.hi}:${bits.lo}]`;
+      const settings = settingsKeepingElementZero(machine, part, array).map((t) => `\`${t}\``);
+      const fix = settings.length ? `declare ${settings.join(' or ')}, or ` : '';
       ctx.report(
         'x0-stored-write',
         part.symbol.span,
-        `register file \`${part.name}\` stores x0 in a real register and ${writes.length} step(s) write rd with nothing to stop rd = x0: ${example} would store into x0; declare \`x0=hardwired\` or \`x0=guarded\`, or write rd only under a guard that excludes \`ir[11:7]=00000\``,
+        `\`${part.name}\` stores x0 (element 0 of \`${array}\`) in a real register and ${writes.length} step(s) write rd through \`${part.name}.${port}\` with nothing to stop rd (\`${index}\`) = x0: ${example} would store into x0; ${fix}write rd only under a guard that excludes \`${index}=${'0'.repeat(bits.hi - bits.lo + 1)}\``,
         writes.slice(0, 20),
       );
     }

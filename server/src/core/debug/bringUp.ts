@@ -11,6 +11,7 @@
 // lock-step), so they do not depend on what a debug session changed.
 //
 // Deliberately not here: files and terminals (the CLI writes the text and CSV), the webview.
+import { elementZeroStored, heldValue } from '../model/partFacts';
 import type { LineIndex } from '../text/lineIndex';
 import { disassemble } from '../isa/disasm';
 import { chipImagesOf } from '../encode/plan';
@@ -80,12 +81,13 @@ function indicatorsOf(plan: SimPlan): { group: IndicatorGroup; read: (r: { bus: 
   plan.parts.forEach((part, p) => {
     const leds = ledCount(part.figures);
     if (leds === 0) return;
-    if (part.kind === 'regfile') {
-      const f = plan.regfileIndex.get(part.name)!;
-      const first = part.x0 === 'hardwired' ? 1 : 0;
+    const f = plan.regfileIndex.get(part.name);
+    if (f !== undefined) {
+      // A register file: one card of LEDs per register; a hard-wired x0 (its read ports give a constant) has none.
+      const first = elementZeroStored(machine, part) ? 0 : 1;
       const cards = Math.min(32 - first, Math.floor(leds / part.width));
       for (let r = first; r < first + cards; r++) out.push({ group: { name: `${part.name}${r}`, kind: 'register', leds: part.width }, read: (read) => bits(read.reg(f, r), part.width) });
-    } else if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') {
+    } else if (heldValue(machine, part)) {
       const n = Math.min(leds, part.width);
       out.push({ group: { name: part.name, kind: 'part', leds: n }, read: (read) => bits(read.part(p), n) });
     }

@@ -13,6 +13,7 @@ import { ABI_REGISTER_NAMES, disassemble, disassembleParts } from '../isa/disasm
 import { immediateOf } from '../isa/rv32i';
 import { describeAddress } from '../encode/listing';
 import { chipImagesOf } from '../encode/plan';
+import { heldValue } from '../model/partFacts';
 import type { DebugMachine } from './machine';
 
 export type Edit = { kind: 'register'; index: number } | { kind: 'memory'; address: number } | { kind: 'memory-address' };
@@ -166,7 +167,8 @@ export class MachineViews {
     const plan = this.dm.plan;
     const nodes: ViewNode[] = [];
     plan.parts.forEach((part, i) => {
-      if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') nodes.push({ name: part.name, value: numberText(sim.partValue[i]) });
+      // A part holding one register a bus can read: the simulator keeps it as the part's value.
+      if (heldValue(plan.machine, part)) nodes.push({ name: part.name, value: numberText(sim.partValue[i]) });
     });
     plan.regfiles.forEach((file, f) => {
       if (f === 0) return; // the first register file is the Registers scope

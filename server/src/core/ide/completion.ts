@@ -10,12 +10,15 @@ import { MAJOR_OPCODES, RV32I_INSTRUCTIONS } from '../isa/rv32i';
 import { knownChipNames } from '../model/chips';
 import type { Decl } from '../syntax/ast';
 import { declarationKeywords } from '../syntax/ast';
-import type { Field, Machine, Part, PartKind, Strobe, StrobeKind } from '../model/types';
-import { controlVocabulary, partKinds, strobeKinds } from '../model/vocabulary';
+import type { Field, Machine, Part, Strobe, StrobeKind } from '../model/types';
+import { strobeKinds } from '../model/vocabulary';
+import { controlOfTarget, definitionOf, fieldValueMeaning, heldValue, strobeTargets, valueMeaning } from '../model/partFacts';
+import { standardLibrary } from '../parts/library';
+import type { KindDef } from '../parts/kinds';
 import { scan } from '../syntax/scanner';
 import { T, type Token } from '../syntax/tokens';
 import type { Span } from '../text/span';
-import { addressInputTexts, binaryDigits, keywordTexts, partKindText, strobeKindText, valueMeaning } from './describe';
+import { addressInputTexts, binaryDigits, keywordTexts, partKindText, strobeKindText } from './describe';
 
 export type CompletionKind = 'keyword' | 'class' | 'kind' | 'strobe' | 'field' | 'value' | 'map' | 'bus' | 'part' | 'port' | 'phase' | 'input' | 'flag' | 'setting' | 'chip';
 
@@ -143,12 +146,11 @@ function signalItems(machine: Machine, insertEquals: boolean): CompletionEntry[]
 function fieldValueItems(machine: Machine, fieldName: string): CompletionEntry[] {
   const field = machine.signals.get(fieldName);
   if (field?.type !== 'field') return [];
-  const kind = field.target ? machine.parts.get(field.target)?.kind : undefined;
   const items: CompletionEntry[] = [...field.values.values()].map((v) => ({
     label: v.name,
     kind: 'value',
     detail: `code ${v.code} = ${binaryDigits(v.code, field.width)}`,
-    documentation: valueMeaning(kind, v.name),
+    documentation: fieldValueMeaning(machine, field.name, v.name),
   }));
   for (const map of machine.maps.values()) {
     if (map.output !== field.name) continue;
@@ -164,7 +166,7 @@ function inputItems(machine: Machine, options: { step?: boolean; fields?: boolea
     if (name === 'ir') items.push({ label: 'ir[n]', kind: 'input', detail: 'instruction bits', documentation: text, insertText: 'ir[' });
     else items.push({ label: name, kind: 'input', detail: 'address input', documentation: text });
   }
-  for (const flag of machine.flags.values()) items.push({ label: flag.name, kind: 'flag', detail: `flag latched by ${flag.part}`, documentation: `One bit from comparator \`${flag.part}\`.` });
+  for (const flag of machine.flags.values()) items.push({ label: flag.name, kind: 'flag', detail: `flag of ${flag.part}`, documentation: `One bit from part \`${flag.part}\`.` });
   if (options.fields) for (const signal of machine.signals.values()) if (signal.type === 'field') items.push({ label: signal.name, kind: 'field', detail: 'field of another store (entry-point decoder)', documentation: signal.description });
   return items;
 }
@@ -173,31 +175,31 @@ function busItems(machine: Machine): CompletionEntry[] {
   return [...machine.buses.values()].map((b) => ({ label: b.name, kind: 'bus', detail: `bus · ${b.width} lines${b.keeper ? ' · keeper' : ''}`, documentation: b.description }));
 }
 
-function partItem(part: Part): CompletionEntry {
-  return { label: part.name, kind: 'part', detail: `part · ${part.kind}`, documentation: [part.description, partKindText(part.kind)].filter(Boolean).join('\n\n') };
+function partItem(machine: Machine, part: Part): CompletionEntry {
+  const kind = definitionOf(machine, part).def;
+  return { label: part.name, kind: 'part', detail: `part · ${kind.name}`, documentation: [part.description, partKindText(machine, kind.name)].filter(Boolean).join('\n\n') };
 }
 
-/** Parts (and register-file ports) a strobe of this kind can act on, on the side given. */
+/** Parts and ports a strobe of this kind can act on, on the side given, from each part's definition. */
 function wiringParts(machine: Machine, kind: StrobeKind, side: 'drive' | 'load'): CompletionEntry[] {
   const items: CompletionEntry[] = [];
-  const accepts: Record<string, PartKind[]> = {
-    enable: ['register', 'counter', 'instruction', 'immediate', 'alu', 'constant'],
-    read: ['memory'],
-    write: ['memory'],
-    clock: ['register', 'counter', 'instruction', ...(side === 'drive' ? (['compare'] as PartKind[]) : [])],
-    count: ['counter'],
-  };
   for (const part of machine.parts.values()) {
-    if (part.kind === 'regfile') {
-      const ports = kind === 'enable' ? ['rs1', 'rs2'] : kind === 'clock' && side === 'load' ? ['rd'] : [];
-      for (const port of ports) {
-        items.push({ label: `${part.name}.${port}`, kind: 'port', detail: `port of register file ${part.name}`, documentation: port === 'rd' ? 'Input: loads the register the instruction\'s rd field selects.' : `Output: the register the instruction's ${port} field selects.` });
-      }
-      continue;
+    for (const { label, port } of strobeTargets(machine, part, kind, side)) {
+      if (label === part.name) items.push(partItem(machine, part));
+      else items.push({ label, kind: 'port', detail: `port of ${part.name}`, documentation: port.description ? `${port.description}.` : undefined });
     }
-    if (accepts[kind]?.includes(part.kind)) items.push(partItem(part));
   }
   return items;
+}
+
+/** The kind a part line names, from the table's kinds or the library. */
+function kindNamed(machine: Machine, name: string): KindDef | undefined {
+  return machine.kinds.get(name) ?? standardLibrary().kinds.get(name);
+}
+
+/** Parts that hold a value a bus can read (registers), for an input such as a memory's address. */
+function valueParts(machine: Machine): CompletionEntry[] {
+  return [...machine.parts.values()].filter((p) => heldValue(machine, p)).map((p) => partItem(machine, p));
 }
 
 function settingItem(label: string, documentation: string): CompletionEntry {
@@ -223,39 +225,40 @@ function inDeclarationLine(analysis: Analysis, keyword: string, tokens: Token[],
     case 'part': {
       if (tokens.length === 2) {
         // The standard library's kinds, then the table's own (`kind` declarations).
-        const own = [...machine.kinds.values()].filter((k) => k.origin === 'table');
-        return [...words(partKinds, 'kind', 'part kind', (k) => partKindText(k as PartKind)), ...own.map((k) => ({ label: k.name, kind: 'kind' as const, detail: 'part kind of this table', documentation: k.description }))];
+        const kinds = [...standardLibrary().kinds.values(), ...[...machine.kinds.values()].filter((k) => k.origin === 'table')];
+        return kinds.map((k) => ({ label: k.name, kind: 'kind' as const, detail: k.origin === 'table' ? 'part kind of this table' : 'part kind', documentation: k.description }));
       }
       if (tokens.length < 3) return [];
-      const kind = tokens[2].text as PartKind;
-      if (afterEquals === 'x0') return words(['hardwired', 'stored', 'guarded'], 'setting', 'x0', (v) => keywordTexts[v] ?? { hardwired: 'x0 reads 0 and ignores writes', stored: 'x0 is a real register', guarded: 'stored, but a zero detector on rd blocks its clock' }[v]);
-      if (afterEquals === 'bit0') return words(['zero', 'kept'], 'setting', 'bit0', (v) => (v === 'zero' ? 'bit 0 is always stored as 0 (RV32I jump targets)' : 'bit 0 stored as loaded'));
-      if (afterEquals === 'cond') return words(['funct3'], 'setting', 'cond', () => 'the branch condition wired from funct3 (000 eq, 001 ne, 100 lt, 101 ge, 110 ltu, 111 geu)');
-      if (afterEquals === 'addr') return [...[...machine.parts.values()].filter((p) => p.kind === 'register' || p.kind === 'counter').map(partItem), ...busItems(machine)];
+      const def = kindNamed(machine, tokens[2].text);
+      if (!def) return [];
+      // After `NAME=`: a choice setting's choices; a keyed input's sources.
+      const setting = afterEquals ? def.settings.find((s) => s.name === afterEquals) : undefined;
+      if (setting) return setting.type === 'choice' ? words(setting.choices, 'setting', setting.name, (v) => keywordTexts[v] ?? setting.description) : [];
+      const keyed = afterEquals ? def.inputs.find((i) => i.name === afterEquals && i.wiring === 'keyed') : undefined;
+      if (keyed) return [...valueParts(machine), ...busItems(machine)];
       if (afterEquals) return [];
-      if (last.text === 'from') return [...machine.parts.values()].filter((p) => p.kind === 'instruction').map(partItem);
+      const after = def.inputs.find((i) => i.wiring === 'after' && i.after === last.text);
+      if (after) return [...machine.parts.values()].filter((p) => p.name === machine.instructionRegister || heldValue(machine, p)).map((p) => partItem(machine, p));
       if (last.kind === T.Arrow) return [];
-      switch (kind) {
-        case 'regfile':
-          return [settingItem('x0=', 'x0: hardwired (reads 0), stored (a real register) or guarded (writes to x0 blocked)')];
-        case 'register':
-        case 'instruction':
-          return [settingItem('reset=', 'the value after reset')];
-        case 'counter':
-          return [settingItem('inc=', 'the increment added at a count strobe (4 for a program counter)'), settingItem('bit0=', 'bit0=zero stores bit 0 as 0'), settingItem('reset=', 'the value after reset')];
-        case 'immediate':
-          return [{ label: 'from', kind: 'keyword', documentation: 'the instruction register the immediate generator takes its bits from' }];
-        case 'alu':
-          return tokens.length < 5 ? busItems(machine) : [];
-        case 'compare':
-          if (tokens.length < 5) return busItems(machine);
-          return [settingItem('cond=', 'cond=funct3 wires the branch condition to the instruction\'s funct3'), { label: '->', kind: 'keyword', documentation: 'names the flag the comparator latches', insertText: '-> ' }];
-        case 'memory':
-          return [settingItem('addr=', 'the address source: a register part or a bus')];
-        case 'constant':
-          return [settingItem('value=', 'the fixed value the part drives')];
+      // Inputs written in order first (buses), then what may follow them.
+      const positional = def.inputs.filter((i) => i.wiring === 'positional');
+      let written = 0;
+      for (let i = 3; i < tokens.length; i++) {
+        const t = tokens[i];
+        if (t.kind !== T.Ident || tokens[i + 1]?.kind === T.Equals || tokens[i - 1]?.kind === T.Equals || tokens[i - 1]?.kind === T.Arrow) continue;
+        if (def.inputs.some((input) => input.wiring === 'after' && (input.after === t.text || tokens[i - 1]?.text === input.after))) continue;
+        written++;
       }
-      return [];
+      if (written < positional.length) return busItems(machine);
+      const given = new Set(tokens.filter((t, i) => tokens[i + 1]?.kind === T.Equals).map((t) => t.text));
+      const items: CompletionEntry[] = [];
+      for (const s of def.settings) if (s.name !== 'width' && !given.has(s.name)) items.push(settingItem(`${s.name}=`, s.description ?? `setting \`${s.name}\``));
+      for (const i of def.inputs) {
+        if (i.wiring === 'keyed' && !given.has(i.name)) items.push(settingItem(`${i.name}=`, i.description ?? `input \`${i.name}\``));
+        if (i.wiring === 'after' && !tokens.some((t) => t.text === i.after)) items.push({ label: i.after!, kind: 'keyword', documentation: i.description ?? `input \`${i.name}\`` });
+      }
+      if (def.flags.length && !hasArrow) items.push({ label: '->', kind: 'keyword', documentation: `names the flag${def.flags.length > 1 ? 's' : ''} the part produces (${def.flags.map((f) => f.name).join(', ')})`, insertText: '-> ' });
+      return items;
     }
     case 'strobe': {
       if (tokens.length === 2) return words(strobeKinds, 'kind', 'strobe kind', (k) => strobeKindText(k as StrobeKind));
@@ -272,7 +275,7 @@ function inDeclarationLine(analysis: Analysis, keyword: string, tokens: Token[],
         return [];
       }
       if (tokens.length === 3) {
-        if (kind === 'clock') return [...busItems(machine), ...wiringParts(machine, 'clock', 'drive').filter((i) => machine.parts.get(i.label)?.kind === 'compare')];
+        if (kind === 'clock') return [...busItems(machine), ...wiringParts(machine, 'clock', 'drive')];
         if (kind === 'write') return busItems(machine);
         return wiringParts(machine, kind, 'drive');
       }
@@ -286,7 +289,7 @@ function inDeclarationLine(analysis: Analysis, keyword: string, tokens: Token[],
         const decl = enclosingDeclAt(analysis, offset);
         return decl?.kind === 'field' ? decl.values.map((v) => ({ label: v.name.text, kind: 'value' as const, detail: v.code ? `code ${v.code.text}` : undefined })) : [];
       }
-      if (last.kind === T.Arrow) return [...machine.parts.values()].filter((p) => controlVocabulary(p.kind)).map(partItem);
+      if (last.kind === T.Arrow) return [...machine.parts.values()].filter((p) => definitionOf(machine, p).def.controls.length > 0).map((p) => partItem(machine, p));
       const decl = enclosingDeclAt(analysis, offset);
       if (decl?.kind === 'field' && decl.open && decl.open.end <= offset && (!decl.close || decl.close.start >= offset)) return fieldValueNames(analysis, decl, tokens);
       if (tokens.length >= 3 && !tokens.some((t) => t.kind === T.LBrace)) {
@@ -324,11 +327,13 @@ function enclosingDeclAt(analysis: Analysis, offset: number): Decl | undefined {
 function fieldValueNames(analysis: Analysis, decl: Decl & { kind: 'field' }, tokens: Token[]): CompletionEntry[] {
   const last = tokens[tokens.length - 1];
   if (last && last.kind === T.Equals) return [];
-  const target = decl.target ? analysis.machine.parts.get(decl.target.name.text) : undefined;
-  const vocabulary = target ? controlVocabulary(target.kind) : undefined;
-  if (!vocabulary) return [];
+  const machine = analysis.machine;
+  const target = decl.target ? controlOfTarget(machine, decl.target.name.text) : undefined;
+  if (!target) return [];
   const listed = new Set(decl.values.map((v) => v.name.text));
-  return vocabulary.filter((v) => !listed.has(v)).map((v) => ({ label: v, kind: 'value', detail: `${target!.kind} value`, documentation: valueMeaning(target!.kind, v), insertText: `${v}=` }));
+  return target.control.values
+    .filter((v) => !listed.has(v))
+    .map((v) => ({ label: v, kind: 'value', detail: `value of ${target.part.name}.${target.control.name}`, documentation: valueMeaning(machine, target.part, target.control.name, v), insertText: `${v}=` }));
 }
 
 /** At the start of a body line: what such a line may begin with. */

@@ -1,64 +1,28 @@
 // Plain-words explanations the editor features share: what each part kind, strobe kind, value
 // name, address input and keyword means, where a word bit lands (chip and data pin), and how
-// hexadecimal per chip is written. Text only; it knows nothing of positions or of the protocol.
-import type { Part, PartKind, Strobe, StrobeKind, WordLayout } from '../model/types';
-import { partKindDescriptions, strobeKindDescriptions } from '../model/vocabulary';
+// hexadecimal per chip is written. What a part, its ports, settings and values mean comes from
+// its kind's definition (model/partFacts.ts), so a table's own kind is explained like a library
+// kind. Text only; it knows nothing of positions or of the protocol.
+import type { Machine, Part, Strobe, StrobeKind, WordLayout } from '../model/types';
+import { strobeKindDescriptions } from '../model/vocabulary';
+import { standardLibrary } from '../parts/library';
+import { type PortFact, definitionOf, inputsOf, inputsReadBy, portText, portsOf, settingsReadBy, strobeWiring } from '../model/partFacts';
 
-export function partKindText(kind: PartKind): string {
-  return partKindDescriptions[kind];
+/** What a part kind is: its definition's description (the table's own kinds, then the library's). */
+export function partKindText(machine: Machine | undefined, kind: string): string {
+  const def = machine?.kinds.get(kind) ?? standardLibrary().kinds.get(kind);
+  if (!def) return `part kind \`${kind}\``;
+  return (def.description ?? `part kind \`${def.name}\``) + (def.origin === 'table' ? ' (a kind of this table; hover it for its definition)' : '');
+}
+
+/** The kind of a part, in words: its name and description. */
+export function partKindLine(machine: Machine, part: Part): string {
+  const def = definitionOf(machine, part).def;
+  return `\`${def.name}\`${def.origin === 'table' ? ' (of this table)' : ''}${def.description ? ` — ${def.description}` : ''}`;
 }
 
 export function strobeKindText(kind: StrobeKind): string {
   return strobeKindDescriptions[kind];
-}
-
-/**
- * What each value name means to the part kind a field controls. ALU operations follow RV32I
- * semantics (RISC-V Unprivileged ISA 20191213, ch. 2.4); immediate formats ch. 2.3; memory
- * sizes and branch conditions ch. 2.6 and 2.5.
- */
-const valueMeanings: Record<string, Record<string, string>> = {
-  alu: {
-    add: 'a + b (32-bit, wrapping)',
-    sub: 'a − b (32-bit, wrapping)',
-    sll: 'a shifted left by the low 5 bits of b',
-    slt: '1 if a < b as signed numbers, else 0',
-    sltu: '1 if a < b as unsigned numbers, else 0',
-    xor: 'bitwise a XOR b',
-    srl: 'a shifted right by the low 5 bits of b, zeros shifted in (logical)',
-    sra: 'a shifted right by the low 5 bits of b, the sign bit copied in (arithmetic)',
-    or: 'bitwise a OR b',
-    and: 'bitwise a AND b',
-    passa: 'a unchanged (operand bus A passed through)',
-    passb: 'b unchanged (operand bus B passed through)',
-  },
-  immediate: {
-    i: 'I format: instruction bits 31..20, sign-extended (loads, OP-IMM, JALR)',
-    s: 'S format: bits 31..25 and 11..7, sign-extended (stores)',
-    b: 'B format: a branch offset, bits 31, 7, 30..25, 11..8, times 2, sign-extended',
-    u: 'U format: bits 31..12 in the upper 20 bits, low 12 bits zero (LUI, AUIPC)',
-    j: 'J format: a jump offset, bits 31, 19..12, 20, 30..21, times 2, sign-extended (JAL)',
-  },
-  memory: {
-    byte: 'one byte, sign-extended on read (lb, sb)',
-    half: 'a halfword (2 bytes), sign-extended on read (lh, sh)',
-    word: 'a word (4 bytes) (lw, sw)',
-    ubyte: 'one byte, zero-extended on read (lbu)',
-    uhalf: 'a halfword, zero-extended on read (lhu)',
-  },
-  compare: {
-    eq: 'taken when a = b (beq)',
-    ne: 'taken when a ≠ b (bne)',
-    lt: 'taken when a < b as signed numbers (blt)',
-    ge: 'taken when a ≥ b as signed numbers (bge)',
-    ltu: 'taken when a < b as unsigned numbers (bltu)',
-    geu: 'taken when a ≥ b as unsigned numbers (bgeu)',
-  },
-};
-
-/** The meaning of a value name for a part kind, when the kind gives it one. */
-export function valueMeaning(kind: PartKind | undefined, value: string): string | undefined {
-  return kind ? valueMeanings[kind]?.[value] : undefined;
 }
 
 /** What the ROM bit of a strobe is when it is asserted, in words. */
@@ -172,67 +136,56 @@ export const keywordTexts: Record<string, string> = {
   as: 'the split of the word over chips: `4 x 8` or `8 + 8 + 16`',
 };
 
-/** The ports of a part, for hovers: name, direction and what it carries. */
-export function partPorts(part: Part): string[] {
-  switch (part.kind) {
-    case 'regfile':
-      return [
-        '`rs1`: output, the register the instruction\'s rs1 field (bits 19..15) selects',
-        '`rs2`: output, the register the rs2 field (bits 24..20) selects',
-        '`rd`: input, loads the register the rd field (bits 11..7) selects',
-        '`x[n]`: fixed register n',
-      ];
-    case 'register':
-    case 'counter':
-    case 'instruction':
-      return ['output: drives a bus through an enable strobe', 'input: loads a bus at a clock strobe\'s edge'];
-    case 'immediate':
-    case 'alu':
-    case 'constant':
-      return ['output: drives a bus through an enable strobe'];
-    case 'compare':
-      return [`inputs: buses \`${part.a}\` and \`${part.b}\``, `output: flag \`${part.flag}\`, latched at its clock strobe's edge`];
-    case 'memory':
-      return ['data out: drives a bus through a read strobe', 'data in: stores a bus at a write strobe\'s closing edge'];
-    case 'custom':
-      return [
-        ...part.def.drives.map((d) => `\`${d.name}\`: output, drives a bus through an enable strobe` + (d.description ? ` (${d.description})` : '')),
-        ...part.def.edges.map((e) => `\`${e.name}\`: ${e.width ? 'input, loads a bus' : 'acts'} at a strobe's closing edge` + (e.description ? ` (${e.description})` : '')),
-        ...part.def.flags.map((f) => `\`${f.name}\`: flag \`${part.flagNames.get(f.name) ?? f.name}\``),
-      ];
-  }
+const roleTexts: Record<PortFact['role'], string> = {
+  enable: 'output, drives a bus through an enable strobe',
+  read: 'output, drives a bus through a read strobe',
+  clock: 'input, loads a bus at a clock strobe\'s closing edge',
+  write: 'input, stores a bus at a write strobe\'s closing edge',
+  latch: 'acts at a clock strobe\'s closing edge (no bus)',
+  count: 'acts at a count strobe\'s closing edge',
+};
+
+/** Longest expression a port's line spells out. */
+const maxShownExpression = 72;
+
+/** One port of a part in words: its role, description and what it computes (with the part's settings). */
+export function portLine(machine: Machine, part: Part, port: PortFact): string {
+  const computes = portText(machine, part, port);
+  const settings = settingsReadBy(machine, part, port);
+  // A long expression is left to the kind's hover, which shows the whole definition.
+  const shown = [...(computes.length <= maxShownExpression ? [`\`${computes}\``] : []), ...settings];
+  return `\`${port.name}\`: ${roleTexts[port.role]}${port.description ? `: ${port.description}` : ''}${shown.length ? ` (${shown.join(', ')})` : ''}`;
 }
 
-/** The settings of a part as written or defaulted, for hovers. */
-export function partSettings(part: Part): string[] {
-  const settings = [`width ${part.width}`];
-  switch (part.kind) {
-    case 'regfile':
-      settings.push(`x0=${part.x0}` + (part.x0 === 'hardwired' ? ' (reads 0, ignores writes)' : part.x0 === 'stored' ? ' (a real register)' : ' (stored; a zero detector on rd blocks its clock)'));
-      break;
-    case 'register':
-    case 'instruction':
-      settings.push(`reset=${part.reset}`);
-      break;
-    case 'counter':
-      settings.push(`inc=${part.increment}`, `bit0=${part.bit0Zero ? 'zero (bit 0 always stored as 0)' : 'kept'}`, `reset=${part.reset}`);
-      break;
-    case 'immediate':
-      if (part.source) settings.push(`from \`${part.source}\``);
-      break;
-    case 'alu':
-      settings.push(`operand a from bus \`${part.a}\``, `operand b from bus \`${part.b}\``);
-      break;
-    case 'compare':
-      settings.push(`a from bus \`${part.a}\``, `b from bus \`${part.b}\``, `flag \`${part.flag}\``, part.condition === 'funct3' ? 'cond=funct3 (RV32I branch encoding)' : 'condition from a field');
-      break;
-    case 'memory':
-      settings.push(`address from ${part.addressFrom === 'bus' ? 'bus' : 'register'} \`${part.address}\``);
-      break;
-    case 'constant':
-      settings.push(`value=${part.value} (0x${part.value.toString(16).toUpperCase()})`);
-      break;
+/** The ports of a part, for hovers: name, direction and what it carries, from its kind's definition. */
+export function partPorts(machine: Machine, part: Part): string[] {
+  const defined = definitionOf(machine, part);
+  const lines = portsOf(machine, part).map((p) => portLine(machine, part, p));
+  for (const flag of defined.def.flags) lines.push(`\`${flag.name}\`: flag \`${defined.flagNames.get(flag.name) ?? flag.name}\` (\`${flag.expr.text}\`), an address input`);
+  const numbered = defined.def.states.find((s) => typeof s.count === 'object');
+  if (strobeWiring(part).numbered && numbered) lines.push(`\`${part.name}[n]\`: register n of \`${numbered.name}\` itself, for a strobe wired to one fixed register`);
+  return lines;
+}
+
+/** Inputs a port reads with their sources, for a strobe hover: `a from \`left\``. */
+export function portInputs(machine: Machine, part: Part, port: PortFact): string[] {
+  return inputsReadBy(machine, part, port);
+}
+
+/** The settings of a part as written or defaulted, and where its inputs come from, for hovers. */
+export function partSettings(machine: Machine, part: Part): string[] {
+  const defined = definitionOf(machine, part);
+  const out: string[] = [];
+  for (const setting of defined.def.settings) {
+    const value = defined.settings.get(setting.name);
+    if (value === undefined) continue;
+    const shown = typeof value === 'number' && value > 9 && setting.name !== 'width' ? `${value} (0x${value.toString(16).toUpperCase()})` : String(value);
+    out.push(`${setting.name}=${shown}${setting.description && setting.name !== 'width' ? ` (${setting.description})` : ''}`);
   }
-  if (part.controlField) settings.push(`controlled by field \`${part.controlField}\``);
-  return settings;
+  for (const input of inputsOf(machine, part)) {
+    const from = input.source.from === 'instruction' ? 'the instruction register' : `${input.source.from} \`${input.source.name}\``;
+    out.push(`${input.name} from ${from}${input.description ? ` (${input.description})` : ''}`);
+  }
+  for (const [control, field] of defined.controlFields) out.push(`\`${control}\` from field \`${field}\``);
+  return out;
 }

@@ -9,7 +9,7 @@ import type { Analysis } from '../analysis';
 import { kindSource } from '../parts/kinds';
 import { standardLibraryText } from '../parts/library';
 import { RV32I_INSTRUCTIONS, majorOpcodeOf } from '../isa/rv32i';
-import { controlVocabulary } from '../model/vocabulary';
+import { definitionOf, fieldValueMeaning, inputsOf, liveControls, portOfStrobe, portsOf, settingsReadBy } from '../model/partFacts';
 import { T } from '../syntax/tokens';
 import type { Bus, ClassDef, DecodeMap, Field, FieldValue, Flag, Machine, Part, Phase, Store, Strobe, SymbolInfo, WordLayout } from '../model/types';
 import type { Span } from '../text/span';
@@ -19,16 +19,17 @@ import {
   binaryDigits,
   chipPinsText,
   keywordTexts,
+  partKindLine,
   partKindText,
   partPorts,
   partSettings,
+  portInputs,
   strobeKindText,
-  valueMeaning,
 } from './describe';
 import { occurrenceAt, tokenAt } from './lookup';
 import { type WrittenAlt, countUses, describeWritten, guardText, usageOf } from './usage';
 import { stepWords } from './words';
-import { partKinds, strobeKinds } from '../model/vocabulary';
+import { strobeKinds } from '../model/vocabulary';
 
 export interface HoverResult {
   markdown: string;
@@ -145,10 +146,9 @@ function strobeHover(machine: Machine, strobe: Strobe): string {
     lines.push(`- **part** none — an \`${strobe.kind}\` strobe acts on the sequencer, not on a part`);
     lines.push('- **bus** none');
   } else {
-    const portName = strobe.port ?? (part?.kind === 'custom' ? strobe.kindPort : undefined);
+    const portName = strobe.port ?? (part ? portOfStrobe(machine, part, strobe)?.name : undefined);
     const port = portName ? `, port \`${portName}\`` : '';
-    const kindText = part?.kind === 'custom' ? `kind \`${part.kindName}\` of this table${part.def.description ? `: ${part.def.description}` : ''}` : part ? partKindText(part.kind) : '';
-    lines.push(part ? `- **part** \`${part.name}\`${port} — ${kindText}` : '- **part** not wired (see the wiring error)');
+    lines.push(part ? `- **part** \`${part.name}\`${port}, kind ${partKindLine(machine, part)}` : '- **part** not wired (see the wiring error)');
     const bus = strobe.bus ? machine.buses.get(strobe.bus) : undefined;
     const lineText = strobe.lines ? (strobe.lines.hi === strobe.lines.lo ? `line ${strobe.lines.hi} of ${bus?.width} (the others are left to other drivers)` : `lines ${strobe.lines.hi}..${strobe.lines.lo} of ${bus?.width} (the others are left to other drivers)`) : `${bus?.width} lines`;
     if (bus) lines.push(`- **bus** \`${bus.name}\` — ${lineText}, ${bus.keeper ? 'with keepers (holds its last value when undriven)' : 'no keepers (floats when undriven)'}`);
@@ -180,32 +180,41 @@ function useLine(machine: Machine, signal: string, verb: string): string {
   return `- **used** ${verb} in ${plural(steps, 'step')} of ${plural(classes.length, 'class', 'classes')}${phases}: ${listNames(classes.map((c) => c.name), false)}`;
 }
 
+/** What a strobe makes its part do, from the port of the part's definition it uses. */
 function strobeEffect(machine: Machine, strobe: Strobe, part: Part | undefined): string {
-  const who = part?.kind === 'regfile' ? (strobe.register !== undefined ? `register x${strobe.register}` : `the register the instruction's ${strobe.port} field selects`) : `\`${strobe.part}\``;
+  if (strobe.kind === 'end') return 'after this step the step counter returns to 0 and the next instruction starts';
+  if (strobe.kind === 'trap') return 'stops the clock and hands the instruction to the environment (the monitor, or the simulator\'s ecall/ebreak service)';
+  const port = part ? portOfStrobe(machine, part, strobe) : undefined;
+  if (!part || (!port && strobe.register === undefined)) return `\`${strobe.part}\` ${strobe.kind === 'enable' || strobe.kind === 'read' ? `drives bus \`${strobe.bus}\`` : 'acts'} (its port is not known)`;
+  const who = strobe.register !== undefined ? `register ${strobe.register} of \`${part.name}\`` : `\`${part.name}${strobe.port || strobe.kindPort ? `.${port!.name}` : ''}\``;
+  const what = port?.description ? ` (${port.description})` : '';
+  const inputs = port ? portInputs(machine, part, port) : [];
+  const settings = port ? settingsReadBy(machine, part, port) : [];
+  const reading = [...(inputs.length ? [`reading ${inputs.join(', ')}`] : []), ...settings].join('; ');
+  const tail = reading ? `; ${reading}` : '';
   switch (strobe.kind) {
     case 'enable':
-      return `${who} drives bus \`${strobe.bus}\` for the whole step`;
     case 'read':
-      return `memory \`${strobe.part}\` drives bus \`${strobe.bus}\` with the data at its address${part?.kind === 'memory' ? ` (from \`${part.address}\`)` : ''} for the whole step`;
+      return `${who}${what} drives bus \`${strobe.bus}\` for the whole step${tail}`;
     case 'write':
-      return `bus \`${strobe.bus}\` is written to memory \`${strobe.part}\` at the step's closing edge`;
+      return `bus \`${strobe.bus}\` is stored into ${who}${what} at the step's closing edge${tail}`;
     case 'clock':
-      if (part?.kind === 'compare') return `comparator \`${part.name}\` latches flag \`${part.flag}\` (the comparison of \`${part.a}\` and \`${part.b}\`) at the closing edge`;
-      return `${who} loads bus \`${strobe.bus}\` at the step's closing edge`;
+      if (!strobe.bus) {
+        const defined = definitionOf(machine, part);
+        const targets = new Set(port?.edge?.assigns.map((a) => a.target) ?? []);
+        const flags = defined.def.flags.filter((f) => [...targets].some((t) => new RegExp(`\\b${t}\\b`).test(f.expr.text))).map((f) => `\`${defined.flagNames.get(f.name) ?? f.name}\``);
+        return `${who}${what} latches ${flags.length ? `flag ${flags.join(', ')}` : [...targets].map((t) => `\`${t}\``).join(', ')} at the closing edge${tail}`;
+      }
+      return `${who}${what} loads bus \`${strobe.bus}\` at the step's closing edge${tail}`;
     case 'count':
-      return `counter \`${strobe.part}\` adds its increment${part?.kind === 'counter' ? ` (${part.increment})` : ''} at the closing edge`;
-    case 'end':
-      return 'after this step the step counter returns to 0 and the next instruction starts';
-    case 'trap':
-      return 'stops the clock and hands the instruction to the environment (the monitor, or the simulator\'s ecall/ebreak service)';
+      return `${who}${what} acts at the closing edge${tail}`;
   }
-  void machine;
 }
 
 function fieldHover(machine: Machine, field: Field): string {
   const target = field.target ? machine.parts.get(field.target) : undefined;
   const lines = [header('field', field.name, field.description ?? 'no description'), ''];
-  lines.push(`- **width** ${plural(field.width, 'bit')}` + (target ? `, controls part \`${target.name}\` — ${partKindText(target.kind)}` : ', controls no part'));
+  lines.push(`- **width** ${plural(field.width, 'bit')}` + (target ? `, controls part \`${target.name}\`, kind ${partKindLine(machine, target)}` : ', controls no part'));
   lines.push(placementLine(machine, field.name));
   const idle = [...field.values.values()].find((v) => v.code === field.idle);
   lines.push(`- **idle** ${idle ? `\`${idle.name}\` ` : ''}(code ${field.idle}): the value where no step sets the field`);
@@ -214,14 +223,14 @@ function fieldHover(machine: Machine, field: Field): string {
   if (maps.length) lines.push(`- **maps** ${listNames(maps)}`);
   lines.push('', '| value | code | binary | meaning |', '|---|---|---|---|');
   for (const value of field.values.values()) {
-    lines.push(`| \`${value.name}\` | ${value.code} | ${binaryDigits(value.code, field.width)} | ${valueMeaning(target?.kind, value.name) ?? ''} |`);
+    lines.push(`| \`${value.name}\` | ${value.code} | ${binaryDigits(value.code, field.width)} | ${fieldValueMeaning(machine, field.name, value.name) ?? ''} |`);
   }
   return lines.join('\n');
 }
 
 function valueHover(machine: Machine, field: Field, value: FieldValue): string {
   const target = field.target ? machine.parts.get(field.target) : undefined;
-  const meaning = valueMeaning(target?.kind, value.name);
+  const meaning = fieldValueMeaning(machine, field.name, value.name);
   const lines = [`**value \`${value.name}\`** of field \`${field.name}\` — code **${value.code}** = 0b${binaryDigits(value.code, field.width)} (${plural(field.width, 'bit')})`];
   if (meaning) lines.push('', `${target ? `\`${target.name}\`: ` : ''}${meaning}`);
   if (value.code === field.idle) lines.push('', 'This is the field\'s idle value: the code where no step sets the field.');
@@ -245,8 +254,12 @@ function busHover(machine: Machine, bus: Bus): string {
   const connections = machine.connections.filter((c) => c.bus === bus.name);
   if (connections.length) lines.push(`- **always driven by** ${connections.map((c) => `\`${c.part}${c.kindPort ? `.${c.kindPort}` : ''}\`${lineText(c)}`).join(', ')} (\`connect\`: in every step)`);
   lines.push(`- **loaded by** ${loads.length ? loads.map(wired).join(', ') : 'no strobe'}`);
-  const readers = [...machine.parts.values()].filter((p) => ((p.kind === 'alu' || p.kind === 'compare') && (p.a === bus.name || p.b === bus.name)) || (p.kind === 'memory' && p.addressFrom === 'bus' && p.address === bus.name));
-  if (readers.length) lines.push(`- **read by** ${readers.map((p) => `\`${p.name}\` (${p.kind === 'memory' ? 'address' : p.kind === 'alu' || p.kind === 'compare' ? (p.a === bus.name ? 'operand a' : 'operand b') : ''})`).join(', ')}`);
+  // Parts whose inputs are wired to the bus, with the inputs it feeds.
+  const readers = [...machine.parts.values()].flatMap((p) => {
+    const fed = inputsOf(machine, p).filter((i) => i.source.from === 'bus' && i.source.name === bus.name);
+    return fed.length ? [`\`${p.name}\` (input ${fed.map((i) => `\`${i.name}\``).join(', ')})`] : [];
+  });
+  if (readers.length) lines.push(`- **read by** ${readers.join(', ')}`);
   const driverNames = new Set(drivers.map((s) => s.name));
   const loadNames = new Set(loads.map((s) => s.name));
   const active: string[] = [];
@@ -274,35 +287,32 @@ function busHover(machine: Machine, bus: Bus): string {
 
 function partHover(machine: Machine, part: Part): string {
   const lines = [header('part', part.name, part.description), ''];
-  if (part.kind === 'custom') {
-    // A kind of the table's own: its name and description, and the settings its part line gave.
-    lines.push(`- **kind** \`${part.kindName}\` (of this table)${part.def.description ? ` — ${part.def.description}` : ''}`);
-    const settings = [...part.settings].map(([k, v]) => `${k} ${v}`);
-    const inputs = [...part.inputs].map(([k, v]) => `${k} from ${v.from === 'instruction' ? 'the instruction register' : `\`${v.name}\``}`);
-    if (settings.length) lines.push(`- **settings** ${settings.join('; ')}`);
-    if (inputs.length) lines.push(`- **inputs** ${inputs.join('; ')}`);
-  } else {
-    lines.push(`- **kind** \`${part.kind}\` — ${partKindText(part.kind)}`);
-    lines.push(`- **settings** ${partSettings(part).join('; ')}`);
-  }
-  lines.push(`- **ports** ${partPorts(part).join('; ')}`);
+  lines.push(`- **kind** ${partKindLine(machine, part)}`);
+  const settings = partSettings(machine, part);
+  if (settings.length) lines.push(`- **settings** ${settings.join('; ')}`);
+  lines.push(`- **ports** ${partPorts(machine, part).join('; ')}`);
   const strobes = [...machine.signals.values()].filter((s): s is Strobe => s.type === 'strobe' && s.part === part.name);
   const busLines = (s: Strobe) => (s.lines ? `[${s.lines.hi}:${s.lines.lo}]` : '');
   const wiring = (s: Strobe) => {
-    const port = s.port ? `.${s.port}` : s.kindPort && part.kind === 'custom' ? `.${s.kindPort}` : '';
+    const port = s.port ? `.${s.port}` : s.kindPort ? `.${s.kindPort}` : '';
     if (s.kind === 'enable' || s.kind === 'read') return `\`${s.name}\` ${s.kind} ${part.name}${port} → \`${s.bus}${busLines(s)}\``;
     if (s.kind === 'clock' || s.kind === 'write') return s.bus ? `\`${s.name}\` ${s.kind} \`${s.bus}\` → ${part.name}${port}` : `\`${s.name}\` ${s.kind}`;
     return `\`${s.name}\` ${s.kind}`;
   };
   lines.push(`- **strobes** ${strobes.length ? strobes.map(wiring).join('; ') : 'none wired to it'}`);
-  const vocabulary = controlVocabulary(part.kind);
-  if (vocabulary && !part.controlField && !(part.kind === 'compare' && part.condition === 'funct3')) lines.push(`- **values** a field \`-> ${part.name}\` may use ${vocabulary.map((v) => `\`${v}\``).join(', ')}`);
+  // The controls its settings leave in use and no field drives yet: what a field may choose.
+  const defined = definitionOf(machine, part);
+  for (const control of liveControls(machine, part)) {
+    if (defined.controlFields.has(control.name)) continue;
+    const target = defined.def.controls.length === 1 ? part.name : `${part.name}.${control.name}`;
+    lines.push(`- **values** a field \`-> ${target}\` may use ${control.values.map((v) => `\`${v}\``).join(', ')}`);
+  }
   return lines.join('\n');
 }
 
 function flagHover(machine: Machine, flag: Flag): string {
   const part = machine.parts.get(flag.part);
-  const lines = [`**flag \`${flag.name}\`** — one bit latched by comparator \`${flag.part}\`` + (part?.kind === 'compare' ? ` (compares \`${part.a}\` with \`${part.b}\`${part.condition === 'funct3' ? ', condition from funct3' : ''})` : ''), ''];
+  const lines = [`**flag \`${flag.name}\`** — one bit of part \`${flag.part}\`` + (part ? flagSource(machine, part, flag.name) : ''), ''];
   const lines2: string[] = [];
   for (const store of machine.stores) {
     const source = store.address?.sources.find((s) => s.input.kind === 'flag' && s.input.name === flag.name);
@@ -313,6 +323,16 @@ function flagHover(machine: Machine, flag: Flag): string {
   lines2.push(`- **tested** by ${plural(tested.length, 'guard')}` + (tested.length ? `: ${listNames(tested.map(describeWritten), false)}` : ''));
   lines2.push('- A register loaded at a step\'s closing edge (such as this flag) is seen by the address lines from the next step on.');
   return [...lines, ...lines2].join('\n');
+}
+
+/** How a part's flag is made: its definition's flag line and the edge ports that set what it reads. */
+function flagSource(machine: Machine, part: Part, flagName: string): string {
+  const defined = definitionOf(machine, part);
+  const flag = defined.def.flags.find((f) => (defined.flagNames.get(f.name) ?? f.name) === flagName);
+  if (!flag) return '';
+  const setters = portsOf(machine, part).filter((p) => p.edge?.assigns.some((a) => new RegExp(`\\b${a.target}\\b`).test(flag.expr.text)));
+  const inputs = setters.flatMap((p) => portInputs(machine, part, p));
+  return `, kind ${partKindLine(machine, part)}: \`${flag.name} = ${flag.expr.text}\`` + (setters.length ? `, latched by ${setters.map((p) => `\`${part.name}.${p.name}\``).join(', ')} at the closing edge${inputs.length ? ` (reading ${[...new Set(inputs)].join(', ')})` : ''}` : '');
 }
 
 function mapHover(machine: Machine, map: DecodeMap): string {
@@ -431,12 +451,12 @@ function kindHover(analysis: Analysis, symbol: SymbolInfo): string | undefined {
 function wordHover(analysis: Analysis, word: string, start: number): string | undefined {
   const machine = analysis.machine;
   const part = machine.parts.get(word.split('.')[0]);
-  if ((partKinds as string[]).includes(word) && isKindPosition(analysis, start, 'part')) return `**part kind \`${word}\`** — ${partKindText(word as Part['kind'])}`;
+  if (machine.kinds.has(word) && isKindPosition(analysis, start, 'part')) return `**part kind \`${word}\`** — ${partKindText(machine, word)}`;
   if ((strobeKinds as string[]).includes(word) && isKindPosition(analysis, start, 'strobe')) return `**strobe kind \`${word}\`** — ${strobeKindText(word as Strobe['kind'])}`;
   if (word in addressInputTexts && !machine.flags.has(word)) return `**address input \`${word}\`** — ${addressInputTexts[word]}`;
   if (part && word.includes('.')) {
     const port = word.slice(word.indexOf('.') + 1);
-    const description = partPorts(part).find((p) => p.startsWith(`\`${port}\`:`));
+    const description = partPorts(machine, part).find((p) => p.startsWith(`\`${port}\`:`));
     if (description) return `**port \`${port}\` of \`${part.name}\`** — ${description.slice(port.length + 4)}`;
   }
   if (word in keywordTexts) return `**\`${word}\`** — ${keywordTexts[word]}`;

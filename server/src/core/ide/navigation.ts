@@ -7,7 +7,7 @@
 import type { Analysis } from '../analysis';
 import { declarationKeywords } from '../syntax/ast';
 import type { SymbolInfo, SymbolKind } from '../model/types';
-import { controlVocabulary } from '../model/vocabulary';
+import { controlOfField, kindOf } from '../model/partFacts';
 import type { TextEdit } from '../text/diagnostic';
 import type { Span } from '../text/span';
 import { type Occurrence, occurrenceAt, occurrencesOf } from './lookup';
@@ -98,10 +98,8 @@ export function checkNewName(analysis: Analysis, symbol: SymbolInfo, newName: st
       const fieldName = symbol.key.slice(0, symbol.key.indexOf('/'));
       if (machine.symbols.some((s) => s.kind === 'value' && s.key === `${fieldName}/${newName}`)) return clash(`value of \`${fieldName}\``);
       // `field=NAME` looks for a value first, then a map: the two must not share a name.
-      const field = machine.signals.get(fieldName);
-      const part = field?.type === 'field' && field.target ? machine.parts.get(field.target) : undefined;
-      const vocabulary = part ? controlVocabulary(part.kind) : undefined;
-      if (part && vocabulary && !vocabulary.includes(newName)) return `\`${newName}\` means nothing to the ${part.kind} part \`${part.name}\` that \`${fieldName}\` controls; its values are ${vocabulary.join(', ')}`;
+      const control = controlOfField(machine, fieldName);
+      if (control && !control.control.values.includes(newName)) return `\`${newName}\` means nothing to control \`${control.control.name}\` of \`${control.part.name}\` (kind \`${kindOf(machine, control.part).name}\`) that \`${fieldName}\` drives; its values are ${control.control.values.join(', ')}`;
       const map = machine.maps.get(newName);
       if (map && map.output === fieldName) return `\`${newName}\` is already the name of a map that sets \`${fieldName}\`; \`${fieldName}=${newName}\` would become ambiguous`;
       break;

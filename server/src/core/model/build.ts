@@ -517,7 +517,7 @@ function buildPart(ctx: BuildContext, decl: A.PartDecl): void {
           return;
         }
         const cond = optionText(args.options.get('cond'));
-        if (cond !== undefined && cond !== 'funct3') ctx.report('unknown-kind', args.options.get('cond')!.span, '`cond=` takes `funct3` (the branch condition wired from the instruction); otherwise declare a field `-> ' + name + '`');
+        if (cond !== undefined && cond !== 'funct3' && cond !== 'field') ctx.report('unknown-kind', args.options.get('cond')!.span, '`cond=` takes `funct3` (the branch condition wired from the instruction) or `field` (the default: a field `-> ' + name + '` chooses it)');
         part = { ...base, kind: 'compare', width, a, b, flag: args.arrow.target.text, condition: cond === 'funct3' ? 'funct3' : 'field', figures: readFigures(ctx, args.figureOptions, 'part') };
       }
       break;

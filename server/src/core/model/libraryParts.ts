@@ -3,9 +3,10 @@
 // shape holds (width, reset, inc, bit0, x0, cond, value), its inputs (the ALU's and
 // comparator's operand buses, the memory's address part or bus, the instruction register of the
 // immediate generator, register file and comparator) and the field driving its control. This is
-// the one place that translates the built-in shapes; the simulator runs library parts from their
-// definitions through it (`SimPlan.build(machine, { fromDefinitions: true })`), and the model
-// can later build library parts this way directly and drop the shapes of model/types.ts.
+// the one place that translates the built-in shapes: every layer reads a part through
+// `definitionOf` (model/partFacts.ts derives what each needs, the simulator compiles it), and
+// the model can later build library parts this way directly and drop the shapes of
+// model/types.ts. `strobeWiring` says how the builder reads the built-in shapes' strobe lines.
 import { libraryKind } from '../parts/library';
 import { customPortFor } from './buildCustomPart';
 import type { CustomPart, InputSource, Machine, Part, Strobe } from './types';
@@ -13,12 +14,25 @@ import type { CustomPart, InputSource, Machine, Part, Strobe } from './types';
 /** The control each library kind's field drives (docs/notation.md: `field F W -> PART`). */
 const controlOf: Partial<Record<Part['kind'], string>> = { immediate: 'fmt', alu: 'fn', compare: 'test', memory: 'size' };
 
+const definitions = new WeakMap<Part, CustomPart>();
+
 /**
- * The part as a part of its library kind's definition, or why it cannot run from it yet: a
- * memory port without a size field (the built-in port then moves words; the definition reads
- * its control, which no field drives).
+ * The part as a part of its kind's definition, for every reader (simulator, prover, hover,
+ * completion, budget, checks, debugger). A memory port without a size field is read too: its
+ * `size` control then holds its default. Cached per part object; a model is not changed once built.
  */
-export function asDefinedPart(machine: Machine, part: Part): CustomPart | { problem: string } {
+export function definitionOf(machine: Machine, part: Part): CustomPart {
+  if (part.kind === 'custom') return part;
+  let defined = definitions.get(part);
+  if (!defined) {
+    const translated = translate(machine, part);
+    if ('problem' in translated) throw new Error(translated.problem);
+    definitions.set(part, (defined = translated));
+  }
+  return defined;
+}
+
+function translate(machine: Machine, part: Part): CustomPart | { problem: string } {
   if (part.kind === 'custom') return part;
   const def = libraryKind(part.kind);
   if (!def) return { problem: `the standard library has no kind \`${part.kind}\`` };
@@ -83,9 +97,22 @@ export function asDefinedPart(machine: Machine, part: Part): CustomPart | { prob
  */
 export function definedPortOf(part: CustomPart, strobe: Strobe): string | undefined {
   if (strobe.kindPort !== undefined) return strobe.kindPort;
-  // A library register file's `x[n]` (the model's built-in shape keeps the number, not the port).
+  // `x[5]`: the kind's numbered port (the model keeps the number, not the port, for a library register file).
   if (strobe.kind === 'end' || strobe.kind === 'trap') return undefined;
   const role = strobe.kind === 'clock' && strobe.bus === undefined ? 'clock-flag' : strobe.kind;
   const found = customPortFor(part, role, strobe.register !== undefined ? undefined : strobe.port, strobe.register !== undefined);
   return 'port' in found ? found.port : undefined;
+}
+
+/**
+ * How strobe lines name this part's ports, as the model builder reads them: a register file of
+ * the library is always wired by port (`x.rs1`, `x.rd`) and also by register number (`x[5]`,
+ * its numbered ports); the other library parts have no port
+ * names on strobe lines (`enable pc`); a part of a table's own kind takes `part.port` or, for
+ * the first port that fits, just `part`, and `part[5]` when its kind has numbered ports.
+ */
+export function strobeWiring(part: Part): { ports: 'always' | 'never' | 'optional'; numbered: boolean } {
+  if (part.kind === 'custom') return { ports: 'optional', numbered: [...part.def.drives, ...part.def.edges].some((p) => p.param !== undefined) };
+  if (part.kind === 'regfile') return { ports: 'always', numbered: true };
+  return { ports: 'never', numbered: false };
 }

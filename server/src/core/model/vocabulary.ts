@@ -1,48 +1,33 @@
-// What each built-in part kind understands: the value names a field controlling it may use
-// (their meaning is fixed; their codes are the user's), its ports, and the instruction-bit
-// names the notation accepts as address inputs.
-import type { InputVar, PartKind, StrobeKind } from './types';
+// What the notation understands besides the part kinds' own definitions: the strobe kinds, the
+// instruction-bit names it accepts as address inputs, and, read from the standard library, the
+// names of its part kinds and the values their controls take. The micro-op numbering of the
+// simulator's built-in operations (the four lists below) is the order of the library's controls.
+import type { InputVar, StrobeKind } from './types';
+import { standardLibrary } from '../parts/library';
 
-/** Operations of the ALU part: the RV32I integer operations plus two pass-throughs. */
-export const aluOperations = ['add', 'sub', 'sll', 'slt', 'sltu', 'xor', 'srl', 'sra', 'or', 'and', 'passa', 'passb'] as const;
-/** Immediate formats of the RISC-V base ISA (spec ch. 2.3). */
-export const immediateFormats = ['i', 's', 'b', 'u', 'j'] as const;
-/** Memory access sizes: byte, halfword, word; u = zero-extended on read. */
-export const memorySizes = ['byte', 'half', 'word', 'ubyte', 'uhalf'] as const;
-/** Branch conditions of RV32I. */
-export const compareConditions = ['eq', 'ne', 'lt', 'ge', 'ltu', 'geu'] as const;
-
-export const partKinds: PartKind[] = ['regfile', 'register', 'counter', 'instruction', 'immediate', 'alu', 'compare', 'memory', 'constant'];
-export const strobeKinds: StrobeKind[] = ['enable', 'read', 'write', 'clock', 'count', 'end', 'trap'];
-
-/** The value names a field controlling this kind of part must use, or undefined if no field may. */
-export function controlVocabulary(kind: PartKind): readonly string[] | undefined {
-  switch (kind) {
-    case 'alu':
-      return aluOperations;
-    case 'immediate':
-      return immediateFormats;
-    case 'memory':
-      return memorySizes;
-    case 'compare':
-      return compareConditions;
-    default:
-      return undefined;
-  }
+/** The values of the first control of a standard-library kind, in the definition's order. */
+function libraryControl(kind: string): readonly string[] {
+  return standardLibrary().kinds.get(kind)?.controls[0]?.values ?? [];
 }
 
-export const partKindDescriptions: Record<PartKind, string> = {
-  regfile: 'register file: 32 registers selected by the instruction\'s rs1, rs2 and rd fields',
-  register: 'register: loads a bus at the closing edge, can drive a bus',
-  counter: 'counter: a register that can also count up by its increment',
-  instruction: 'instruction register: its bits feed the address lines, register selects and immediate generator',
-  immediate: 'immediate generator: sign-extended I/S/B/U/J immediate of the instruction',
-  alu: 'ALU: combines its two operand buses',
-  compare: 'comparator: tests its two operand buses and latches a flag',
-  memory: 'memory port: reads and writes bytes, halfwords and words',
-  constant: 'constant source: a fixed value',
-  custom: 'a part of a kind this table declares (`kind`); hover the kind for its definition',
-};
+/** Operations of the library's ALU: the RV32I integer operations plus two pass-throughs (its control `fn`). */
+export const aluOperations: readonly string[] = libraryControl('alu');
+/** Immediate formats of the RISC-V base ISA (spec ch. 2.3): the library immediate generator's control `fmt`. */
+export const immediateFormats: readonly string[] = libraryControl('immediate');
+/** Memory access sizes: byte, halfword, word; u = zero-extended on read (the library memory port's control `size`). */
+export const memorySizes: readonly string[] = libraryControl('memory');
+/** Branch conditions of RV32I (the library comparator's control `test`). */
+export const compareConditions: readonly string[] = libraryControl('compare');
+
+/** The standard library's part kinds, in the order it declares them. */
+export const partKinds: string[] = [...standardLibrary().kinds.keys()];
+export const strobeKinds: StrobeKind[] = ['enable', 'read', 'write', 'clock', 'count', 'end', 'trap'];
+
+/** The value names a field controlling a part of this library kind must use (its kind's one control), or undefined if no field may. */
+export function controlVocabulary(kind: string): readonly string[] | undefined {
+  const controls = standardLibrary().kinds.get(kind)?.controls ?? [];
+  return controls.length === 1 ? controls[0].values : undefined;
+}
 
 export const strobeKindDescriptions: Record<StrobeKind, string> = {
   enable: 'output enable: the part drives the bus for the whole step',

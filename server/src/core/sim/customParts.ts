@@ -20,7 +20,7 @@ import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource, ty
 import type { InlineBinding } from '../parts/expr';
 import { edgeInputName } from '../parts/kinds';
 import { customPortBusReads, partSetting } from '../model/buildCustomPart';
-import { asDefinedPart, definedPortOf } from '../model/libraryParts';
+import { definedPortOf, definitionOf } from '../model/libraryParts';
 import { lineMask } from '../model/busDrivers';
 
 /** What a compiled port reads from the running machine. */
@@ -112,8 +112,6 @@ export class CustomParts {
   readonly resetValues: number[] = [];
   /** Reset values of states stored in part values (part number, value), set by the simulator at reset. */
   readonly partResets: { part: number; value: number }[] = [];
-  /** Parts that cannot run from their definitions, and why (the plan refuses the machine). */
-  readonly unrunnable: string[] = [];
   readonly drivers: Getter[] = [];
   /** Beside `drivers` and `edges`, what inlining each needs (sim/compile.ts). */
   private readonly driverSpecs: PortSpec[] = [];
@@ -129,12 +127,7 @@ export class CustomParts {
     regfileIndex: ReadonlyMap<string, number> = new Map(),
   ) {
     for (const original of machine.parts.values()) {
-      const defined = asDefinedPart(machine, original);
-      if ('problem' in defined) {
-        this.unrunnable.push(`part \`${original.name}\`: ${defined.problem}`);
-        continue;
-      }
-      const part = defined;
+      const part = definitionOf(machine, original);
       const partNumber = partIndex.get(part.name)!;
       const rt: PartRuntime = { part, partNumber, storage: new Map(), widths: new Map(), arrays: new Map(), element: () => 0 };
       const roles = new Map(part.def.holds.map((h) => [h.state, h.role]));
@@ -206,37 +199,11 @@ export class CustomParts {
     return rt !== undefined && definedPortOf(rt.part, strobe) !== undefined;
   }
 
-  /**
-   * Whether an instruction can write register 0 of the part's RV32I registers (`holds
-   * registers`): one of its closing-edge ports (not a numbered one, which the table names
-   * itself) writes element 0 when every input, the instruction among them, is 0, so rd = 0.
-   * False for x0 hardwired to zero or guarded by its clock; true for a stored x0.
-   */
-  writesRegisterZero(partName: string): boolean {
-    const rt = this.byName.get(partName);
-    const registers = rt?.part.def.holds.find((h) => h.role === 'registers')?.state;
-    if (!rt || !registers) return false;
-    const setting = partSetting(this.machine, rt.part);
-    for (const edge of rt.part.def.edges) {
-      if (edge.param !== undefined) continue;
-      for (const a of edge.assigns) {
-        if (a.target !== registers || !a.index) continue;
-        const texts = [{ text: a.index }, ...(a.when ? [{ text: a.when, width: 1 }] : [])];
-        const port = compilePort(rt.part.def, setting, texts, edge.width ? sizeOf(edge.width, rt.part.settings) : undefined, { element: () => 0 });
-        const choices = choiceCodes(rt.part.def, rt.part.settings);
-        const [index, when] = port.run(port.inputs.map((name) => choices.get(name) ?? 0));
-        if (Number(index) === 0 && (when === undefined || Number(when) !== 0)) return true;
-      }
-    }
-    return false;
-  }
-
   /** Problems that stop the simulator from running these parts at all (widths it does not hold). */
   static problems(machine: Machine): string[] {
     const out: string[] = [];
     for (const original of machine.parts.values()) {
-      const part = asDefinedPart(machine, original);
-      if ('problem' in part) continue; // reported when the parts are built
+      const part = definitionOf(machine, original);
       for (const state of part.def.states) {
         if (sizeOf(state.width, part.settings) > 32) out.push(`part \`${part.name}\`: state \`${state.name}\` is wider than 32 bits, which the simulator does not hold yet`);
       }

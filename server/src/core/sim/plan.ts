@@ -18,7 +18,8 @@ import { pointInputs } from '../encode/universe';
 import type { ClassDef, Machine, Part, StepAlt, Store } from '../model/types';
 import type { HoldsRole } from '../parts/kinds';
 import { sizeOf } from '../parts/behaviour';
-import { asDefinedPart } from '../model/libraryParts';
+import { definitionOf } from '../model/libraryParts';
+import { elementZeroWritable } from '../model/partFacts';
 import { MAX_BUSES, MicroOps } from './microops';
 import { CustomParts } from './customParts';
 
@@ -120,7 +121,7 @@ export class SimPlan {
       if (cls.opcode !== undefined && this.classOfOpcode[cls.opcode] === -1) this.classOfOpcode[cls.opcode] = i;
     });
     this.custom = new CustomParts(machine, this.busIndex, this.partIndex, this.flagIndex, this.regfileIndex);
-    this.x0Stored = this.regfiles.length > 0 && this.custom.writesRegisterZero(this.regfiles[0].name);
+    this.x0Stored = this.regfiles.length > 0 && elementZeroWritable(machine, this.regfiles[0]);
     this.microOps = new MicroOps(this);
   }
 
@@ -132,10 +133,7 @@ export class SimPlan {
     if (typeof pc === 'string') errors.push(pc);
     const ir = machine.instructionRegister ? machine.parts.get(machine.instructionRegister) : parts.find((p) => holds(machine, p, 'instruction'));
     if (!ir) errors.push('the machine has no instruction register (`part ir instruction 32`), so it cannot hold an instruction');
-    const holdsMemory = (p: Part) => {
-      const defined = asDefinedPart(machine, p);
-      return !('problem' in defined) && defined.def.states.some((s) => s.count === 'memory');
-    };
+    const holdsMemory = (p: Part) => definitionOf(machine, p).def.states.some((s) => s.count === 'memory');
     if (!parts.some(holdsMemory)) errors.push('the machine has no memory part, so it cannot fetch instructions');
     if (!parts.some((p) => holds(machine, p, 'registers'))) errors.push('the machine has no register file (`part x regfile 32`), so it cannot hold x1..x31');
     if (machine.buses.size > MAX_BUSES) errors.push(`the machine has ${machine.buses.size} buses; the simulator handles up to ${MAX_BUSES}`);
@@ -159,7 +157,6 @@ export class SimPlan {
     const stores: StorePlan[] = [];
     for (const enc of order) stores.push(planStore(machine, enc, stores, flagNumbers));
     const plan = new SimPlan(machine, encoded, stores, partNumbers.get((pc as Part).name)!, partNumbers.get(ir!.name)!);
-    if (plan.custom.unrunnable.length) return { ok: false, errors: plan.custom.unrunnable };
     return { ok: true, plan };
   }
 
@@ -184,8 +181,7 @@ export class SimPlan {
 
 /** Whether the part's kind says a state of it holds `role` (`holds registers r`). */
 function holds(machine: Machine, part: Part, role: HoldsRole): boolean {
-  const defined = asDefinedPart(machine, part);
-  return !('problem' in defined) && defined.def.holds.some((h) => h.role === role);
+  return definitionOf(machine, part).def.holds.some((h) => h.role === role);
 }
 
 function findProgramCounter(machine: Machine, parts: Part[]): Part | string {
@@ -195,9 +191,9 @@ function findProgramCounter(machine: Machine, parts: Part[]): Part | string {
   if (candidates.length === 1) return candidates[0];
   const register = parts.find((p) => {
     if (p.name !== 'pc') return false;
-    const defined = asDefinedPart(machine, p);
-    const first = 'problem' in defined ? undefined : defined.def.states.find((s) => !s.count);
-    return first !== undefined && sizeOf(first.width, (defined as { settings: Map<string, number | string> }).settings) === 32;
+    const defined = definitionOf(machine, p);
+    const first = defined.def.states.find((s) => !s.count);
+    return first !== undefined && sizeOf(first.width, defined.settings) === 32;
   });
   if (register) return register;
   if (candidates.length > 1) return `the machine has ${candidates.length} program counters (${candidates.map((c) => c.name).join(', ')}); name the program counter \`pc\` so the simulator knows where programs start`;

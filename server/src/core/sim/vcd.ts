@@ -16,6 +16,7 @@
 // Deliberately not here: writing files (the CLI does that atomically) and the clock: the date
 // line comes from the caller.
 import type { BusSimulator } from './simulator';
+import { heldValue } from '../model/partFacts';
 
 interface TracedSignal {
   id: string;
@@ -121,7 +122,7 @@ export class VcdTrace {
     this.stepSignal = declare('step', Math.max(1, plan.stepBits));
     plan.stores.forEach((s) => this.addressSignals.push(declare(`address_${s.store.name}`, s.enc.addressBits)));
     plan.parts.forEach((part, i) => {
-      if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') this.partSignals.push({ signal: declare(part.name, Math.min(32, part.width)), part: i });
+      if (heldValue(machine, part)) this.partSignals.push({ signal: declare(part.name, Math.min(32, part.width)), part: i });
     });
     plan.flagNames.forEach((flag) => this.flagSignals.push(declare(flag, 1)));
     h.push('$upscope $end', '$upscope $end', '$enddefinitions $end');
