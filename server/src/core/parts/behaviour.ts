@@ -166,6 +166,17 @@ export interface CompiledPort {
 }
 
 /**
+ * The expressions of one port of a part as its runners see them (number settings replaced by
+ * their values), with the scope they are read in: what compilePort compiles, and what the prover
+ * evaluates over terms (prove/definedParts.ts), so both run the same text in the same scope.
+ */
+export function portExpressions(def: KindDef, setting: PartSetting, texts: { text: ExprText; width?: number }[], edgeWidth?: number): { scope: Map<string, NameInfo>; exprs: { expr: Expr; width?: number }[] } {
+  const numbers = numberSettings(setting);
+  const scope = scopeEntries(def, setting, edgeWidth);
+  return { scope, exprs: texts.map((t) => ({ expr: substitute(parsedExpr(def, t.text).expr!, numbers), width: t.width })) };
+}
+
+/**
  * Compiles the expressions of one port of a part: a drive port (one value), a flag (one bit), a
  * state's reset value, or an edge port (per assignment its value and, with `when`, its condition,
  * in that order). The part must have checked clean. Arrays are not inputs: `arrays.element`
@@ -178,9 +189,8 @@ export function compilePort(
   edgeWidth?: number,
   arrays: Pick<RunOptions, 'element' | 'onOutOfRange'> = {},
 ): CompiledPort {
-  const numbers = numberSettings(setting);
-  const scope = scopeEntries(def, setting, edgeWidth);
-  const exprs = texts.map((t, k) => ({ name: `r${k}`, expr: substitute(parsedExpr(def, t.text).expr!, numbers), width: t.width }));
+  const { scope, exprs: placed } = portExpressions(def, setting, texts, edgeWidth);
+  const exprs = placed.map((e, k) => ({ name: `r${k}`, ...e }));
   const inputs = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))].filter((name) => scope.get(name)?.elements === undefined);
   const run = compileExpressions(exprs, inputs, (name) => scope.get(name)!.width, { ...arrays, values: (name) => scope.get(name)?.values, elements: (name) => scope.get(name)?.elements });
   return { inputs, run };
