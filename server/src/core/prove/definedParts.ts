@@ -13,7 +13,7 @@
 import { partSetting } from '../model/buildCustomPart';
 import { asDefinedPart, definedPortOf } from '../model/libraryParts';
 import type { CustomPart, Field, Machine, Strobe } from '../model/types';
-import { portExpressions, sizeOf, type PartSetting } from '../parts/behaviour';
+import { parsedExpr, portExpressions, sizeOf, type PartSetting } from '../parts/behaviour';
 import { bitsFor, resolveExpression, scopeOf, type Expr, type NameInfo, type Resolution } from '../parts/expr';
 import { edgeInputName } from '../parts/kinds';
 import type { SimPlan } from '../sim/plan';
@@ -36,7 +36,7 @@ export interface DefinedPart {
   readonly number: number;
   readonly setting: PartSetting;
   readonly homes: ReadonlyMap<string, StateHome>;
-  /** The state whose value is the part's value (what `from part` inputs, the pc and the address lines read): its first state, when scalar. */
+  /** The state whose value is the part's value (what `from part` inputs, the pc and the address lines read), as the simulator keeps it; absent: an unknown that never changes. */
   readonly valueState?: string;
 }
 
@@ -123,13 +123,12 @@ export class DefinedParts {
             else homes.set(state.name, { in: 'array', key: `${name}.${state.name}`, width, count });
           } else homes.set(state.name, { in: 'slot', key: `${name}.${state.name}`, width });
         }
-        const first = defined.def.states[0];
         result = {
           part: defined,
           number: this.plan.partIndex.get(name)!,
           setting: partSetting(this.machine, defined),
           homes,
-          ...(first && !first.count && { valueState: first.name }),
+          ...valueStateOf(original.kind === 'custom', defined),
         };
       }
     }
@@ -294,6 +293,29 @@ export class DefinedParts {
     };
     return symbolicResolved(T, compiled.expr, compiled.resolution, { name, element });
   }
+}
+
+/**
+ * Which state the simulator keeps as a part's value (sim/customParts.ts): a part of the table's
+ * own kind mirrors its first state that is not the memory; a library part keeps there the
+ * scalar state it drives as it is (a register's, counter's or instruction register's `q`), and
+ * nothing else (a comparator's latch is not its part value). Where the simulator's value would
+ * be a constant of no meaning (no state, an array), the prover leaves it unknown: a proof over
+ * every value covers it.
+ */
+function valueStateOf(own: boolean, part: CustomPart): { valueState?: string } {
+  const states = part.def.states;
+  if (own) {
+    const first = states.find((s) => s.count !== 'memory');
+    return first && !first.count ? { valueState: first.name } : {};
+  }
+  const drivesAsIs = (state: string) =>
+    part.def.drives.some((d) => {
+      const e = parsedExpr(part.def, d.expr).expr;
+      return e?.kind === 'name' && e.name === state;
+    });
+  const driven = states.find((s) => !s.count && drivesAsIs(s.name));
+  return driven ? { valueState: driven.name } : {};
 }
 
 const cache = new WeakMap<SimPlan, DefinedParts>();
