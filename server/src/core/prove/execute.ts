@@ -347,6 +347,8 @@ export function executeInstruction(T: Terms, plan: SimPlan, start: Start, previo
     const pending: { assignment: EdgeAssignment; strobe: string }[] = [];
     for (let e = 0; e < nEdges; e++, p += EDGE_WORDS) {
       const strobe = info.edges[e].strobe;
+      // A load of some lines of a bus (beside an edge entry, as beside a driver: the lines' mask).
+      if ((lines[p] ?? 0) !== 0) return finish(s, { kind: 'given-up', why: `step ${step}: \`${strobe}\` loads some lines of a bus; the prover handles whole-bus loads so far` });
       if (code[p] !== E_CUSTOM) return finish(s, { kind: 'given-up', why: builtIn(step, strobe, driverNamed(machine, strobe)?.part ?? '') });
       try {
         for (const assignment of defs.edge(T, view(s), `${uop}:${e}`, driverNamed(machine, strobe)!, info.fields, code[p + 1])) pending.push({ assignment, strobe });
