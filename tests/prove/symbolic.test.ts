@@ -63,6 +63,26 @@ describe('terms', () => {
     expect(T.extract(ir, 6, 0)).toBe(T.const(7, 0b0110011));
   });
 
+  it('fold an aligned address plus a byte offset into its byte address, and compare concatenations piece by piece', () => {
+    // Common practice, no source: {h, c1} + c2 = {h, c1 + c2} while c1 + c2 fits c1's bits.
+    const T = new Terms();
+    const h = T.variable('h', 30);
+    const aligned = T.concat([h, T.const(2, 0)]);
+    expect(T.add(aligned, T.const(32, 3))).toBe(T.concat([h, T.const(2, 3)]));
+    expect(T.eq(T.add(aligned, T.const(32, 1)), T.concat([T.extract(aligned, 31, 2), T.const(2, 2)]))).toBe(T.false);
+    expect(T.eq(T.add(aligned, T.const(32, 2)), T.concat([h, T.const(2, 2)]))).toBe(T.true);
+    // A carry out of the low bits is not folded: the solver decides it.
+    const sum = T.add(aligned, T.const(32, 4));
+    expect(sum.k === 'op' && sum.op).toBe('bvadd');
+    const env = new Map([['h', 0x3fffffffn]]);
+    expect(evalTerm(sum, env)).toBe(0n);
+    // The folded forms mean what the unfolded ones do on numbers.
+    for (const v of [0n, 1n, 0x12345678n, 0x3fffffffn]) {
+      const e = new Map([['h', v]]);
+      expect(evalTerm(T.add(aligned, T.const(32, 3)), e)).toBe(((v << 2n) + 3n) & 0xffffffffn);
+    }
+  });
+
   it('are written as a QF_BV script with each variable declared once and shared terms defined once', () => {
     const T = new Terms();
     const a = T.variable('a', 32);

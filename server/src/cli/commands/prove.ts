@@ -5,8 +5,7 @@
 import { basename, resolve } from 'node:path';
 import { analyse } from '../../core/analysis';
 import { RV32I_INSTRUCTIONS, instructionByMnemonic } from '../../core/isa/rv32i';
-import { cannotProve, describeCounterexample, obligationsOf, proveMachine } from '../../core/prove';
-import { SimPlan } from '../../core/sim/plan';
+import { cannotProve, describeCounterexample, obligationsOf, proofPlan, proveMachine } from '../../core/prove';
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { readSource } from '../readSource';
@@ -57,7 +56,7 @@ export const proveCommand = defineCommand({
       io.err(`phasewright prove: ${file} has ${analysis.counts.error} error(s); run \`phasewright check ${file}\` and fix them first\n`);
       return 2;
     }
-    const built = SimPlan.build(analysis.machine);
+    const built = proofPlan(analysis.machine);
     const why = built.ok ? cannotProve(built.plan) : built.errors.join('; ');
     if (!built.ok || why) {
       io.err(`phasewright prove: ${file}: ${why}\n`);

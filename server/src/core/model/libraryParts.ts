@@ -8,6 +8,7 @@
 // the model can later build library parts this way directly and drop the shapes of
 // model/types.ts. `strobeWiring` says how the builder reads the built-in shapes' strobe lines.
 import { libraryKind } from '../parts/library';
+import type { PortNumber } from '../parts/behaviour';
 import { customPortFor } from './buildCustomPart';
 import type { CustomPart, InputSource, Machine, Part, Strobe } from './types';
 
@@ -115,4 +116,9 @@ export function strobeWiring(part: Part): { ports: 'always' | 'never' | 'optiona
   if (part.kind === 'custom') return { ports: 'optional', numbered: [...part.def.drives, ...part.def.edges].some((p) => p.param !== undefined) };
   if (part.kind === 'regfile') return { ports: 'always', numbered: true };
   return { ports: 'never', numbered: false };
+}
+
+/** The number a strobe gives a numbered port (`x[5]` on `drive xout[n] ...`), for the port's expressions. */
+export function strobePortNumber(param: string | undefined, strobe: Strobe): PortNumber | undefined {
+  return param !== undefined && strobe.register !== undefined ? { name: param, value: strobe.register } : undefined;
 }

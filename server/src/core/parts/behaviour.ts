@@ -180,6 +180,26 @@ export interface CompiledPort {
 }
 
 /**
+ * The expressions of one port of a part as its runners see them (number settings replaced by
+ * their values), with the scope they are read in: what compilePort compiles, and what the prover
+ * evaluates over terms (prove/definedParts.ts), so both run the same text in the same scope.
+ */
+export function portExpressions(def: KindDef, setting: PartSetting, texts: { text: ExprText; width?: number }[], edgeWidth?: number, param?: PortNumber): { scope: Map<string, NameInfo>; exprs: { expr: Expr; width?: number }[] } {
+  const numbers = numberSettings(setting);
+  if (param) numbers.set(param.name, param.value);
+  const scope = scopeEntries(def, setting, edgeWidth);
+  return {
+    scope,
+    exprs: texts.map((t) => {
+      const expr = substitute(parsedExpr(def, t.text).expr!, numbers);
+      // A numbered port's index alone (`r[n] <= in`) is a decimal with nothing around it: its own bits.
+      const width = t.width ?? (expr.kind === 'number' ? Math.max(1, expr.value.toString(2).length) : undefined);
+      return { expr, width };
+    }),
+  };
+}
+
+/**
  * Compiles the expressions of one port of a part: a drive port (one value), a flag (one bit), a
  * state's reset value, or an edge port (per assignment its value and, with `when`, its condition,
  * in that order). The part must have checked clean. Arrays are not inputs: `arrays.element`
@@ -193,10 +213,8 @@ export function compilePort(
   arrays: Pick<RunOptions, 'element' | 'onOutOfRange'> = {},
   param?: PortNumber,
 ): CompiledPort {
-  const numbers = numberSettings(setting);
-  if (param) numbers.set(param.name, param.value);
-  const scope = scopeEntries(def, setting, edgeWidth);
-  const exprs = texts.map((t, k) => ({ name: `r${k}`, expr: substitute(parsedExpr(def, t.text).expr!, numbers), width: t.width }));
+  const { scope, exprs: placed } = portExpressions(def, setting, texts, edgeWidth, param);
+  const exprs = placed.map((e, k) => ({ name: `r${k}`, ...e }));
   const inputs = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))].filter((name) => scope.get(name)?.elements === undefined);
   const run = compileExpressions(exprs, inputs, (name) => scope.get(name)!.width, { ...arrays, values: (name) => scope.get(name)?.values, elements: (name) => scope.get(name)?.elements });
   return { inputs, run };
@@ -209,10 +227,7 @@ export function compilePort(
  * expressions read (arrays included), as compilePort's `inputs` but with arrays.
  */
 export function portSource(def: KindDef, setting: PartSetting, texts: { text: ExprText; width?: number }[], edgeWidth: number | undefined, bind: InlineBinding, param?: PortNumber): { temps: string[]; codes: string[]; reads: string[] } {
-  const numbers = numberSettings(setting);
-  if (param) numbers.set(param.name, param.value);
-  const scope = scopeEntries(def, setting, edgeWidth);
-  const exprs = texts.map((t) => ({ expr: substitute(parsedExpr(def, t.text).expr!, numbers), width: t.width }));
+  const { scope, exprs } = portExpressions(def, setting, texts, edgeWidth, param);
   const reads = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))];
   return { ...expressionSource(exprs, (name) => scope.get(name), bind), reads };
 }

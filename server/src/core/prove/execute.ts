@@ -1,24 +1,35 @@
 // Symbolic execution of one instruction through the ENCODED control store: the words the
 // simulator's plan read back from the images (sim/plan.ts) and the micro-ops it compiles from
-// them (sim/microops.ts), walked from step 0 with terms instead of numbers. At each step the
-// address is formed as the board forms it (step counter, instruction bits, flags); where a flag
-// the lines carry is not known the walk forks, one path per distinct word, with the condition
-// that leads there. Each path ends at a word asserting `end` (the instruction retires), at a trap
-// (the environment takes over) or in a fault (an undefined bus loaded, a fault word), or it is
-// given up with a reason (a construct this slice does not run symbolically).
+// them (sim/microops.ts), walked from step 0 with terms instead of numbers. Every part runs from
+// its kind's definition (definedParts.ts), the standard library's and the table's own alike:
+// the plan is built with `fromDefinitions` (proofPlan), so its micro-ops are drive and edge
+// ports of definitions, and the executor gives each port the terms of the buses, parts and
+// states it reads and the codes of the step's fields. At each step the address is formed as
+// the board forms it (step counter, instruction bits, flags); where a flag the lines carry is
+// not known the walk forks, one path per distinct word, with the condition that leads there.
+// Each path ends at a word asserting `end` (the instruction retires), at a trap (the
+// environment takes over) or in a fault (an undefined bus loaded, a fault word), or it is given
+// up with a reason (a micro-op the simulator runs on its built-in path, or anything else the
+// executor does not model): given up is "not proved", never proved.
 //
-// The state before the instruction: the pc is the variable `pc`; every other part, every bus
-// and every flag holds an unknown value of the previous instruction; the register file and the
-// memory are InitialContents (the instruction's own bytes stand at pc). While the instruction
-// register still holds the previous instruction (the fetch), its address bits can be those of
-// any RV32I instruction: the walk takes every distinct word they reach and otherwise leaves the
-// previous word unconstrained (more behaviours than the hardware has, so a proof stays a proof).
+// The timing is the simulator's (sim/simulator.ts, docs/notation.md "Timing model"): floating
+// buses lose their value, the drivers settle in order (a driver of some lines of a bus keeps
+// the others), every edge port computes from the values before the edge, then all of them are
+// stored at once, then the flags are read from the new state.
+//
+// The state before the instruction: the pc is `{pc.word, 0b00}` (aligned); every other state, every bus
+// and every flag holds an unknown value of the previous instruction (a flag: what its
+// definition gives over those states); the register file and the memory are InitialContents
+// (the instruction's own bytes stand at pc). While the instruction register still holds the
+// previous instruction (the fetch), its address bits can be those of any RV32I instruction:
+// the walk takes every distinct word they reach and otherwise leaves the previous word
+// unconstrained (more behaviours than the hardware has, so a proof stays a proof).
 import { RV32I_INSTRUCTIONS, type InstructionSpec } from '../isa/rv32i';
-import { aluOperations, compareConditions, immediateFormats, memorySizes } from '../model/vocabulary';
-import { CONDITION_FROM_FUNCT3 } from '../sim/operations';
-import { DRIVER_WORDS, EDGE_WORDS, HEADER_END, HEADER_STOP, HEADER_TRAP, U_DRIVERS, U_FLOAT_MASK, U_HEADER, U_INDEX, U_NEED_MASK } from '../sim/microops';
-import type { SimPlan } from '../sim/plan';
-import { aluResult, compareResult, immediateResult, memoryReadResult, memoryWriteResult } from './libraryKinds';
+import { driverNamed } from '../model/busDrivers';
+import type { Machine } from '../model/types';
+import { DRIVER_WORDS, D_CUSTOM, D_UNDEFINED, EDGE_WORDS, E_CUSTOM, E_FAULT, HEADER_END, HEADER_STOP, HEADER_TRAP, U_DRIVERS, U_FLOAT_MASK, U_HEADER, U_INDEX, U_NEED_MASK } from '../sim/microops';
+import { SimPlan, type PlanResult } from '../sim/plan';
+import { ProverLimit, definedParts, fit, type EdgeAssignment, type MachineView } from './definedParts';
 import { InitialContents, type ArrayWrite } from './symbolicArray';
 import type { Term, Terms } from './term';
 
@@ -53,31 +64,48 @@ export interface Start {
   readonly ir: Term;
   readonly registers: InitialContents;
   readonly memory: InitialContents;
+  /** Register arrays of parts other than the register file (their contents before), by `part.state`; filled as the walk reads them. */
+  readonly arrays: Map<string, InitialContents>;
 }
 
 interface State {
-  parts: Term[];
   buses: Term[];
   defined: number;
+  /** Scalar states by `part.state` (absent: as before the instruction). */
+  slots: Map<string, Term>;
   flags: Term[];
   registerWrites: ArrayWrite[];
   memoryWrites: ArrayWrite[];
+  /** Writes to the parts' own register arrays, by `part.state`. */
+  arrayWrites: Map<string, ArrayWrite[]>;
   condition: Term[];
   steps: StepTrace[];
   pcWriter?: { step: number; strobe: string };
 }
 
-const clone = (s: State): State => ({ ...s, parts: [...s.parts], buses: [...s.buses], flags: [...s.flags], registerWrites: [...s.registerWrites], memoryWrites: [...s.memoryWrites], condition: [...s.condition], steps: [...s.steps] });
+const clone = (s: State): State => ({
+  ...s,
+  buses: [...s.buses],
+  slots: new Map(s.slots),
+  flags: [...s.flags],
+  registerWrites: [...s.registerWrites],
+  memoryWrites: [...s.memoryWrites],
+  arrayWrites: new Map([...s.arrayWrites].map(([k, w]) => [k, [...w]])),
+  condition: [...s.condition],
+  steps: [...s.steps],
+});
 
-/** Why this plan cannot be run symbolically by this slice, or undefined when it can. */
+/** The simulator's plan the prover runs: every part from its kind's definition. */
+export function proofPlan(machine: Machine): PlanResult {
+  return SimPlan.build(machine);
+}
+
+/** Why this plan cannot be run symbolically at all, or undefined when it can. */
 export function unsupported(plan: SimPlan): string | undefined {
   if (plan.stores.length !== 1) return `the machine has ${plan.stores.length} control stores; the prover runs machines with one store so far`;
   if (plan.stores[0].fieldSources.length) return 'a field of a store drives address lines; the prover does not follow such stores yet';
-  if (plan.parts.some((p) => p.kind === 'custom')) return 'the machine has parts of its own kinds; the prover runs only the standard library kinds so far';
-  if ([...plan.busWidth].some((w) => w !== 32)) return 'the machine has a bus narrower or wider than 32 bits; the prover handles 32-bit buses so far';
-  if (plan.parts.some((p) => p.kind !== 'compare' && p.width !== 32)) return 'the machine has a part that is not 32 bits wide; the prover handles 32-bit parts so far';
   if (plan.regfiles.length !== 1) return 'the prover handles machines with exactly one register file so far';
-  return undefined;
+  return definedParts(plan).problems();
 }
 
 /** Address-bit patterns of every RV32I instruction (bits the store's lines carry, from the universe), for the fetch's previous instruction. */
@@ -136,37 +164,77 @@ export function instructionTerm(T: Terms, value: number, mask: number): Term {
 
 /** The start state for an instruction term: pc, registers (x0 reads 0) and memory (the instruction's bytes at pc). */
 export function startState(T: Terms, ir: Term): Start {
-  const pc = T.variable('pc', 32);
+  // The pc is four-byte aligned (assumed, docs/proving.md): its two low bits are zeros, so the
+  // byte addresses of the fetched word fold, whether a memory forms them as pc + k or {pc[31:2], k}.
+  const pc = T.concat([T.variable('pc.word', 30), T.const(2, 0)]);
   const registers = new InitialContents(T, 'x', 32, (index, unknown) => T.ite(T.eq(index, T.const(index.w, 0)), T.const(32, 0), unknown));
   const memory = new InitialContents(T, 'm', 8, (index, unknown) => {
     let v = unknown;
     for (let k = 3; k >= 0; k--) v = T.ite(T.eq(index, T.add(pc, T.const(32, k))), T.extract(ir, 8 * k + 7, 8 * k), v);
     return v;
   });
-  return { pc, ir, registers, memory };
+  return { pc, ir, registers, memory, arrays: new Map() };
 }
+
 
 /** Every path of the instruction `start.ir` through the encoded store, from step 0. */
 export function executeInstruction(T: Terms, plan: SimPlan, start: Start, previous: readonly number[]): MachinePath[] {
   const store = plan.stores[0];
   const mo = plan.microOps;
-  const parts = plan.parts.map((p, i) => (i === plan.pcPart ? start.pc : T.variable(`${p.name}.before`, p.width)));
-  const buses = plan.busNames.map((b) => T.variable(`${b}.before`, 32));
-  const flags = plan.flagNames.map((f) => T.variable(`${f}.before`, 1));
+  const machine = plan.machine;
+  const defs = definedParts(plan);
+  const valueHome = (p: number) => {
+    const m = defs.model(plan.parts[p].name);
+    if ('problem' in m || !m.valueState) return undefined;
+    const home = m.homes.get(m.valueState)!;
+    return home.in === 'slot' ? home : undefined;
+  };
+  // unsupported() has made sure the pc and the instruction register hold their value in a 32-bit slot.
+  const pcKey = valueHome(plan.pcPart)!.key;
+  const initialSlot = (key: string, width: number) => (key === pcKey ? start.pc : T.variable(`${key}.before`, width));
+  const arrayContents = (key: string, width: number) => {
+    let a = start.arrays.get(key);
+    if (!a) start.arrays.set(key, (a = new InitialContents(T, key, width)));
+    return a;
+  };
+  const slotOf = (s: State, key: string, width: number) => s.slots.get(key) ?? initialSlot(key, width);
+  /** The value of part `p` as the simulator's part value holds it: its first state, zero-extended to 32 bits. */
+  const partValue = (s: State, p: number): Term => {
+    const home = valueHome(p);
+    return home ? fit(T, slotOf(s, home.key, home.width), 32) : T.variable(`${plan.parts[p].name}.value`, 32);
+  };
+  const view = (s: State): MachineView => ({
+    bus: (b) => s.buses[b],
+    partValue: (p) => partValue(s, p),
+    slot: (key, width) => slotOf(s, key, width),
+    register: (index) => start.registers.readAfter(s.registerWrites, index),
+    byte: (address) => start.memory.readAfter(s.memoryWrites, address),
+    element: (key, index, width) => arrayContents(key, width).readAfter(s.arrayWrites.get(key) ?? [], index),
+  });
+
+  const buses = plan.busNames.map((b, i) => T.variable(`${b}.before`, plan.busWidth[i]));
   let keepers = 0;
   plan.busKeeper.forEach((k, i) => (keepers |= k ? 1 << i : 0));
-  const initial: State = { parts, buses, defined: keepers, flags, registerWrites: [], memoryWrites: [], condition: [], steps: [] };
+  const initial: State = { buses, defined: keepers, slots: new Map(), flags: [], registerWrites: [], memoryWrites: [], arrayWrites: new Map(), condition: [], steps: [] };
+  // A flag before the instruction is what its definition gives over the states before it.
+  initial.flags = plan.flagNames.map((f) => T.variable(`${f}.before`, 1));
+  try {
+    for (const { flag, value } of defs.flags(T, view(initial))) initial.flags[flag] = value;
+  } catch (e) {
+    if (!(e instanceof ProverLimit)) throw e;
+    return [{ condition: [], ending: { kind: 'given-up', why: e.message }, pc: start.pc, registerWrites: [], memoryWrites: [], steps: [] }];
+  }
   const paths: MachinePath[] = [];
   let undefinedCount = 0;
-  const fresh = (why: string) => T.variable(`undefined.${undefinedCount++}.${why}`, 32);
+  const fresh = (why: string, w: number) => T.variable(`undefined.${undefinedCount++}.${why}`, w);
 
   const finish = (s: State, ending: PathEnding): void => {
-    paths.push({ condition: s.condition, ending, pc: s.parts[plan.pcPart], ...(s.pcWriter && { pcWriter: s.pcWriter }), registerWrites: s.registerWrites, memoryWrites: s.memoryWrites, steps: s.steps });
+    paths.push({ condition: s.condition, ending, pc: partValue(s, plan.pcPart), ...(s.pcWriter && { pcWriter: s.pcWriter }), registerWrites: s.registerWrites, memoryWrites: s.memoryWrites, steps: s.steps });
   };
 
   /** The words the lines can form at `step`, each with the condition to get there. */
   const choices = (s: State, step: number): { word: number; address: number; condition: Term[] }[] | string => {
-    const ir = s.parts[plan.irPart];
+    const ir = partValue(s, plan.irPart);
     let irValues: number[];
     const known = store.irSources.every((src) => T.extract(ir, Math.min(31, src.inputLo + 31 - Math.clz32(src.lineMask)), src.inputLo).k === 'const');
     if (known) {
@@ -216,91 +284,105 @@ export function executeInstruction(T: Terms, plan: SimPlan, start: Start, previo
     }
   };
 
+  /** A micro-op code this executor does not know (every part runs from its definition, so none should reach here). */
+  const unknownOp = (step: number, strobe: string) => `step ${step}: \`${strobe}\` is a micro-op the prover does not run`;
+
   const runWord = (s: State, step: number, word: number, address: number): void => {
     const base = mo.lookup(word, [word]);
     const code = mo.code.data;
     const lines = mo.lines.data;
     const header = code[base + U_HEADER];
-    const info = mo.info[code[base + U_INDEX]];
+    const uop = code[base + U_INDEX];
+    const info = mo.info[uop];
     s.steps.push({ step, address, asserted: info.asserted });
     if (header & HEADER_STOP) return finish(s, { kind: 'fault', why: `step ${step} (address ${address}): ${info.contention.length ? 'two drivers on one bus' : info.loop}` });
-    const ir = s.parts[plan.irPart];
-    const regs = start.registers;
-    const mem = start.memory;
-    const memRead = (a: Term) => mem.readAfter(s.memoryWrites, a);
     // Buses: floating ones lose their value, then the drivers in settle order.
     const floating = code[base + U_FLOAT_MASK];
-    for (let b = 0; b < plan.busNames.length; b++) if ((floating >>> b) & 1) s.buses[b] = fresh(`${plan.busNames[b]}.floating`);
+    for (let b = 0; b < plan.busNames.length; b++) if ((floating >>> b) & 1) s.buses[b] = fresh(`${plan.busNames[b]}.floating`, plan.busWidth[b]);
     s.defined &= ~floating;
     let p = base + U_DRIVERS + 1;
     const nDrivers = code[base + U_DRIVERS];
     for (let d = 0; d < nDrivers; d++, p += DRIVER_WORDS) {
-      const [op, bus, a, b] = [code[p], code[p + 1], code[p + 2], code[p + 3]];
-      if (lines[p] !== 0) return finish(s, { kind: 'given-up', why: `step ${step}: \`${info.drivers[d].strobe}\` drives part of a bus; the prover handles whole-bus drivers so far` });
+      const op = code[p];
+      const bus = code[p + 1];
+      const width = plan.busWidth[bus];
+      const driver = info.drivers[d];
       let value: Term;
-      let ok = true;
-      switch (op) {
-        case 1: value = regs.readAfter(s.registerWrites, T.extract(ir, 19, 15)); break; // D_REG_RS1
-        case 2: value = regs.readAfter(s.registerWrites, T.extract(ir, 24, 20)); break; // D_REG_RS2
-        case 3: value = regs.readAfter(s.registerWrites, T.const(5, b)); break; // D_REG_FIXED
-        case 4: value = s.parts[a]; break; // D_PART
-        case 5: value = immediateResult(T, immediateFormats[a], s.parts[b]); break; // D_IMMEDIATE
-        case 6: { // D_ALU
-          const fn = aluOperations[a];
-          const c = code[p + 4];
-          value = aluResult(T, fn, s.buses[b], s.buses[c]);
-          const da = ((s.defined >>> b) & 1) === 1;
-          const db = ((s.defined >>> c) & 1) === 1;
-          ok = fn === 'passa' ? da : fn === 'passb' ? db : da && db;
-          break;
+      let ok: boolean;
+      if (op === D_CUSTOM) {
+        try {
+          value = defs.drive(T, view(s), `${uop}:${d}`, driverNamed(machine, driver.strobe)!, info.fields);
+        } catch (e) {
+          if (e instanceof ProverLimit) return finish(s, { kind: 'given-up', why: `step ${step}: ${e.message}` });
+          throw e;
         }
-        case 7: value = memoryReadResult(T, memorySizes[a], s.parts[b], memRead); break; // D_MEM_PART
-        case 8: value = memoryReadResult(T, memorySizes[a], s.buses[b], memRead); ok = ((s.defined >>> b) & 1) === 1; break; // D_MEM_BUS
-        case 9: value = T.const(32, a); break; // D_CONSTANT
-        case 10: return finish(s, { kind: 'given-up', why: 'a part of the table\'s own kind drives a bus' });
-        default: value = fresh('undriven'); ok = false; // D_UNDEFINED
+        const reads = code[p + 3];
+        ok = (s.defined & reads) === reads;
+      } else if (op === D_UNDEFINED) {
+        value = fresh(`${plan.busNames[bus]}.unknown`, width);
+        ok = false;
+      } else return finish(s, { kind: 'given-up', why: unknownOp(step, driver.strobe) });
+      const driven = lines[p];
+      if (driven === 0) {
+        s.buses[bus] = fit(T, value, width);
+        s.defined = ok ? s.defined | (1 << bus) : s.defined & ~(1 << bus);
+      } else {
+        // Some lines of the bus (a byte lane): the others keep what they hold.
+        const lo = lines[p + 1];
+        const hi = Math.min(width - 1, 31 - Math.clz32(driven));
+        const old = s.buses[bus];
+        s.buses[bus] = T.concat([...(hi < width - 1 ? [T.extract(old, width - 1, hi + 1)] : []), fit(T, value, hi - lo + 1), ...(lo > 0 ? [T.extract(old, lo - 1, 0)] : [])]);
+        if (lines[p + 2] === 0) s.defined = ok ? s.defined | (1 << bus) : s.defined & ~(1 << bus);
+        else if (!ok) s.defined &= ~(1 << bus);
       }
-      s.buses[bus] = value;
-      s.defined = ok ? s.defined | (1 << bus) : s.defined & ~(1 << bus);
     }
     if (header & HEADER_TRAP) return finish(s, { kind: 'trap' });
     const nEdges = code[p++];
     if ((code[base + U_NEED_MASK] & ~s.defined) !== 0) return finish(s, { kind: 'fault', why: `step ${step} (address ${address}): a strobe loads a bus whose value is not defined` });
-    if (nEdges !== 0 && code[p] === 0) return finish(s, { kind: 'fault', why: `step ${step} (address ${address}): ${info.edges[0].fault}` });
+    if (nEdges !== 0 && code[p] === E_FAULT) return finish(s, { kind: 'fault', why: `step ${step} (address ${address}): ${info.edges[0].fault}` });
+    // Every edge port computes from the values before the edge; then all are stored, in order.
+    const pending: { assignment: EdgeAssignment; strobe: string }[] = [];
     for (let e = 0; e < nEdges; e++, p += EDGE_WORDS) {
-      const [op, bus, a, b, c] = [code[p], code[p + 1], code[p + 2], code[p + 3], code[p + 4]];
       const strobe = info.edges[e].strobe;
-      if (lines[p] !== 0) return finish(s, { kind: 'given-up', why: `step ${step}: \`${strobe}\` loads some lines of a bus; the prover handles whole-bus loads so far` });
-      switch (op) {
-        case 1: // E_MEM_WRITE_PART
-        case 2: { // E_MEM_WRITE_BUS
-          const addr = op === 1 ? s.parts[b] : s.buses[b];
-          for (const w of memoryWriteResult(T, memorySizes[a], addr, s.buses[bus])) s.memoryWrites.push({ index: w.address, value: w.byte, when: w.when, step, strobe });
+      // A load of some lines of a bus (beside an edge entry, as beside a driver: the lines' mask).
+      if ((lines[p] ?? 0) !== 0) return finish(s, { kind: 'given-up', why: `step ${step}: \`${strobe}\` loads some lines of a bus; the prover handles whole-bus loads so far` });
+      if (code[p] !== E_CUSTOM) return finish(s, { kind: 'given-up', why: unknownOp(step, strobe) });
+      try {
+        for (const assignment of defs.edge(T, view(s), `${uop}:${e}`, driverNamed(machine, strobe)!, info.fields, code[p + 1])) pending.push({ assignment, strobe });
+      } catch (err) {
+        if (err instanceof ProverLimit) return finish(s, { kind: 'given-up', why: `step ${step}: ${err.message}` });
+        throw err;
+      }
+    }
+    for (const { assignment: a, strobe } of pending) {
+      const home = a.home;
+      switch (home.in) {
+        case 'slot': {
+          const value = fit(T, a.value, home.width);
+          s.slots.set(home.key, a.when.k === 'const' && a.when.v === 1n ? value : T.ite(a.when, value, slotOf(s, home.key, home.width)));
+          if (home.key === pcKey) s.pcWriter = { step, strobe };
           break;
         }
-        case 3: { // E_REG_RD: rd from the instruction register as it was before this edge
-          const rd = T.extract(ir, 11, 7);
-          s.registerWrites.push({ index: rd, value: s.buses[bus], when: b ? T.true : T.not(T.eq(rd, T.const(5, 0))), step, strobe });
+        case 'registers':
+          s.registerWrites.push({ index: a.index!, value: fit(T, a.value, 32), when: a.when, step, strobe });
+          break;
+        case 'memory':
+          s.memoryWrites.push({ index: a.index!, value: fit(T, a.value, 8), when: a.when, step, strobe });
+          break;
+        case 'array': {
+          const writes = s.arrayWrites.get(home.key) ?? [];
+          writes.push({ index: a.index!, value: fit(T, a.value, home.width), when: a.when, step, strobe });
+          s.arrayWrites.set(home.key, writes);
           break;
         }
-        case 4: // E_REG_FIXED
-          if (c) s.registerWrites.push({ index: T.const(5, b), value: s.buses[bus], when: T.true, step, strobe });
-          break;
-        case 5: { // E_COMPARE
-          const test = a === CONDITION_FROM_FUNCT3 ? ({ funct3: true } as const) : { test: compareConditions[a] };
-          s.flags[bus] = compareResult(T, test, s.buses[b], s.buses[c], ir);
-          break;
-        }
-        case 6: // E_COUNT
-          s.parts[a] = T.and(T.add(s.parts[a], T.const(32, b)), T.const(32, c >>> 0));
-          if (a === plan.pcPart) s.pcWriter = { step, strobe };
-          break;
-        case 7: // E_CLOCK
-          s.parts[a] = T.and(s.buses[bus], T.const(32, b >>> 0));
-          if (a === plan.pcPart) s.pcWriter = { step, strobe };
-          break;
-        case 8:
-          return finish(s, { kind: 'given-up', why: 'a part of the table\'s own kind acts at a closing edge' });
+      }
+    }
+    if (nEdges > 0) {
+      try {
+        for (const { flag, value } of defs.flags(T, view(s))) s.flags[flag] = value;
+      } catch (err) {
+        if (err instanceof ProverLimit) return finish(s, { kind: 'given-up', why: `step ${step}: ${err.message}` });
+        throw err;
       }
     }
     if (header & HEADER_END) return finish(s, { kind: 'end' });

@@ -2,4 +2,5 @@
 // semantics, obligations as SMT-LIB 2 QF_BV scripts, verdicts from a solver behind `Solver`.
 // Pure: the adapters give the solver (the CLI spawns z3).
 export { cannotProve, describeCounterexample, obligationsOf, proveInstruction, proveMachine, type Counterexample, type InstructionResult, type Obligation, type Verdict } from './prove';
+export { proofPlan } from './execute';
 export { readSolverOutput, smtScript, type Solver, type SolverReply } from './smtlib';

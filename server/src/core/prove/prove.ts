@@ -128,6 +128,11 @@ function specification(T: Terms, effect: Effect, start: Start) {
   return { nextPc, registerWrites, memoryWrites, misaligned, rs1v, rs2v };
 }
 
+/** Same index, same value, for the register file, the memory and every part's own register array. */
+function consistency(start: Start): Term[] {
+  return [...start.registers.consistency(), ...start.memory.consistency(), ...[...start.arrays.values()].flatMap((a) => a.consistency())];
+}
+
 function assumptions(T: Terms, start: Start, path: MachinePath, misaligned: Term): Term[] {
   return [...path.condition, T.eq(T.extract(start.pc, 1, 0), T.const(2, 0)), T.not(misaligned)];
 }
@@ -144,7 +149,7 @@ function effectObligation(T: Terms, spec: InstructionSpec, effect: Effect, start
   const mWant = start.memory.readAfter(want.memoryWrites, probeM);
   const holds = T.andAll([T.eq(pcGot, pcWant), T.eq(xGot, xWant), T.eq(mGot, mWant)]);
   const facts = [...assumptions(T, start, path, want.misaligned), T.not(holds)];
-  facts.push(...start.registers.consistency(), ...start.memory.consistency());
+  facts.push(...consistency(start));
   const explain = (model: ReadonlyMap<string, bigint>): Counterexample => {
     const memo = new Map<number, bigint>();
     const ev = (t: Term) => evalTerm(t, model, memo);
@@ -169,7 +174,7 @@ function effectObligation(T: Terms, spec: InstructionSpec, effect: Effect, start
 function faultObligation(T: Terms, spec: InstructionSpec, start: Start, path: MachinePath, description: string, why: string): Obligation {
   const effect = effectOf(spec.mnemonic);
   const want = specification(T, effect, start);
-  const facts = [...assumptions(T, start, path, want.misaligned), ...start.registers.consistency(), ...start.memory.consistency()];
+  const facts = [...assumptions(T, start, path, want.misaligned), ...consistency(start)];
   const explain = (model: ReadonlyMap<string, bigint>): Counterexample => {
     const memo = new Map<number, bigint>();
     return concreteStart(start, path, (t) => evalTerm(t, model, memo), [{ what: 'fault', expected: effect.special ? 'a trap to the environment' : 'the instruction retires', obtained: why }]);

@@ -99,12 +99,21 @@ export function symbolicResolved(T: Terms, expr: Expr, r: Resolution, env: Symbo
         }
         break;
       }
-      case 'cond':
-        return T.ite(T.bool(ev(e.cond)), ev(e.then), ev(e.otherwise));
+      case 'cond': {
+        // A known condition reads only the side it takes (no array reads of the other side).
+        const c = T.bool(ev(e.cond));
+        if (c.k === 'const') return ev(c.v ? e.then : e.otherwise);
+        return T.ite(c, ev(e.then), ev(e.otherwise));
+      }
       case 'select': {
         // The arms as a chain of tests on the selector, the first arm outermost; no arm and no
-        // `else` gives 0 (evaluate.ts).
+        // `else` gives 0 (evaluate.ts). A known selector (a control fixed by the step's field
+        // code, a choice setting) evaluates only the arm it takes, as the hardware reads it.
         const selector = ev(e.selector);
+        if (selector.k === 'const') {
+          const arm = e.arms.find((a) => r.codes.get(a) === selector.v);
+          return arm ? ev(arm.value) : e.otherwise ? ev(e.otherwise) : T.const(w, 0);
+        }
         let result = e.otherwise ? ev(e.otherwise) : T.const(w, 0);
         for (const arm of [...e.arms].reverse()) result = T.ite(T.eq(selector, T.const(selector.w, r.codes.get(arm)!)), ev(arm.value), result);
         return result;

@@ -78,6 +78,12 @@ export class Terms {
     if (b.k === 'const' && b.v === 0n) return a;
     // (x + c1) + c2 = x + (c1 + c2): keeps addresses like mar + 1 in one shape.
     if (b.k === 'const' && a.k === 'op' && a.op === 'bvadd' && a.args[1].k === 'const') return this.add(a.args[0], this.const(a.w, a.args[1].v + b.v));
+    // {h, c1} + c2 = {h, c1 + c2} when the sum stays inside c1's bits (no carry into h): keeps
+    // an aligned address plus 3 the same term as its byte address {a[31:2], 0b11}.
+    if (b.k === 'const' && a.k === 'op' && a.op === 'concat') {
+      const low = a.args[a.args.length - 1];
+      if (low.k === 'const' && low.v + b.v < 1n << BigInt(low.w)) return this.concat([...a.args.slice(0, -1), this.const(low.w, low.v + b.v)]);
+    }
     return this.raw('bvadd', a.w, [a, b]);
   }
   sub(a: Term, b: Term): Term {
@@ -137,6 +143,20 @@ export class Terms {
     const [x, cx] = offsetOf(a);
     const [y, cy] = offsetOf(b);
     if (x === y) return this.const(1, cx === cy ? 1 : 0);
+    // A concatenation against a term: piece by piece, two different constants in one place differ.
+    const cat = a.k === 'op' && a.op === 'concat' ? a : b.k === 'op' && b.op === 'concat' ? b : undefined;
+    if (cat) {
+      const other = cat === a ? b : a;
+      let top = cat.w;
+      let same = true;
+      for (const item of cat.args) {
+        const piece = this.extract(other, top - 1, top - item.w);
+        if (item.k === 'const' && piece.k === 'const' && item.v !== piece.v) return this.false;
+        if (piece !== item) same = false;
+        top -= item.w;
+      }
+      if (same) return this.true;
+    }
     return this.raw('eq', 1, a.id < b.id ? [a, b] : [b, a]);
   }
   compare(op: 'bvult' | 'bvule' | 'bvslt' | 'bvsle', a: Term, b: Term): Term {

@@ -20,7 +20,7 @@ import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource, ty
 import type { InlineBinding } from '../parts/expr';
 import { edgeInputName } from '../parts/kinds';
 import { customPortBusReads, partSetting } from '../model/buildCustomPart';
-import { definedPortOf, definitionOf } from '../model/libraryParts';
+import { definedPortOf, definitionOf, strobePortNumber } from '../model/libraryParts';
 import { lineMask } from '../model/busDrivers';
 
 /** What a compiled port reads from the running machine. */
@@ -305,7 +305,7 @@ export class CustomParts {
     const rt = this.byName.get(strobe.part ?? '')!;
     const drive = rt.part.def.drives.find((d) => d.name === definedPortOf(rt.part, strobe))!;
     const texts = [{ text: drive.expr, width: sizeOf(drive.width, rt.part.settings) }];
-    const param = portNumber(drive.param, strobe);
+    const param = strobePortNumber(drive.param, strobe);
     const port = compilePort(rt.part.def, partSetting(this.machine, rt.part), texts, undefined, { element: rt.element }, param);
     const problem = this.unnamedControl(rt, texts, port.inputs, fields);
     if (problem) return { problem };
@@ -328,7 +328,7 @@ export class CustomParts {
     const edge = def.edges.find((e) => e.name === definedPortOf(rt.part, strobe))!;
     const texts = edge.assigns.flatMap((a) => [{ text: a.expr, width: rt.widths.get(a.target)! }, ...(a.when ? [{ text: a.when, width: 1 }] : []), ...(a.index ? [{ text: a.index }] : [])]);
     const edgeWidth = edge.width ? sizeOf(edge.width, rt.part.settings) : undefined;
-    const param = portNumber(edge.param, strobe);
+    const param = strobePortNumber(edge.param, strobe);
     const port = compilePort(def, partSetting(this.machine, rt.part), texts, edgeWidth, { element: rt.element }, param);
     const problem = this.unnamedControl(rt, texts, port.inputs, fields);
     if (problem) return { problem };
@@ -502,10 +502,6 @@ export class CustomParts {
 
 type CompileText = Parameters<typeof compilePort>[2][number];
 
-/** The number a strobe gives a numbered port (`x[5]` on `drive at[n] ...`). */
-function portNumber(param: string | undefined, strobe: Strobe): PortNumber | undefined {
-  return param !== undefined && strobe.register !== undefined ? { name: param, value: strobe.register } : undefined;
-}
 
 /** A choice setting's choices by code (the names a `select` on it is keyed by). */
 function valuesOfChoice(part: CustomPart, name: string): ReadonlyMap<string, number> | undefined {
