@@ -1,23 +1,8 @@
 // What the notation understands besides the part kinds' own definitions: the strobe kinds, the
 // instruction-bit names it accepts as address inputs, and, read from the standard library, the
-// names of its part kinds and the values their controls take. The micro-op numbering of the
-// simulator's built-in operations (the four lists below) is the order of the library's controls.
+// names of its part kinds and the values their controls take.
 import type { InputVar, StrobeKind } from './types';
 import { standardLibrary } from '../parts/library';
-
-/** The values of the first control of a standard-library kind, in the definition's order. */
-function libraryControl(kind: string): readonly string[] {
-  return standardLibrary().kinds.get(kind)?.controls[0]?.values ?? [];
-}
-
-/** Operations of the library's ALU: the RV32I integer operations plus two pass-throughs (its control `fn`). */
-export const aluOperations: readonly string[] = libraryControl('alu');
-/** Immediate formats of the RISC-V base ISA (spec ch. 2.3): the library immediate generator's control `fmt`. */
-export const immediateFormats: readonly string[] = libraryControl('immediate');
-/** Memory access sizes: byte, halfword, word; u = zero-extended on read (the library memory port's control `size`). */
-export const memorySizes: readonly string[] = libraryControl('memory');
-/** Branch conditions of RV32I (the library comparator's control `test`). */
-export const compareConditions: readonly string[] = libraryControl('compare');
 
 /** The standard library's part kinds, in the order it declares them. */
 export const partKinds: string[] = [...standardLibrary().kinds.keys()];

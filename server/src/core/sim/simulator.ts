@@ -36,7 +36,6 @@ import type { SparseMemory } from '../isa/memory';
 import { D_CUSTOM, DRIVER_WORDS, EDGE_WORDS, E_FAULT, HEADER_PARTIAL_LOAD, U_DRIVERS, U_INDEX, type MicroOpInfo } from './microops';
 import type { CustomAccess } from './customParts';
 import { FAST_BUDGET, FAST_RETIRED, FAST_SLOW_STEP, FAST_WRAP, canCompile, compileStepper, type FastStepper } from './compile';
-import { sizeBytes } from './operations';
 import type { SimPlan } from './plan';
 
 /** Something the table makes the hardware do that cannot work, found while running. */
@@ -199,7 +198,7 @@ export class BusSimulator implements MachineAccess {
       if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') this.partValue[i] = part.reset & plan.partMask[i];
     });
     // Parts run from their definitions: states kept in part values take their definitions' resets.
-    for (const { part, value } of plan.custom.partResets) this.partValue[part] = value & plan.partMask[part];
+    for (const { part, value } of plan.custom.partResets) this.partValue[part] = value;
     this.custom = { busValue: this.busValue, partValue: this.partValue, regs: this.regs, ir: 0, customState: this.customState, memory, store: (size, address, value) => this.storeMemory(size, address, value) };
     plan.custom.refresh(this.custom, this.flags);
     this.partValue[plan.pcPart] = entry & plan.partMask[plan.pcPart];
@@ -897,6 +896,11 @@ export class BusSimulator implements MachineAccess {
 
 function copyInto<T extends Int32Array | Uint8Array>(target: T, source: T): void {
   for (let i = 0; i < source.length; i++) target[i] = source[i];
+}
+
+/** Bytes of a memory write by its size code (0 byte, 1 halfword, 2 word, as the parts' byte stage gives them). */
+function sizeBytes(size: number): 1 | 2 | 4 {
+  return size === 0 ? 1 : size === 1 ? 2 : 4;
 }
 
 /** The outcome of a retirement: one shared object, since lock-step sees one per instruction. */
