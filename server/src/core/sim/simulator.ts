@@ -194,10 +194,7 @@ export class BusSimulator implements MachineAccess {
     this.logAddress = new Int32Array(plan.nSteps * this.nStores);
     this.logBusValue = new Int32Array(plan.nSteps * nBuses);
     this.logDefined = new Int32Array(plan.nSteps);
-    plan.parts.forEach((part, i) => {
-      if (part.kind === 'register' || part.kind === 'counter' || part.kind === 'instruction') this.partValue[i] = part.reset & plan.partMask[i];
-    });
-    // Parts run from their definitions: states kept in part values take their definitions' resets.
+    // Every part runs from its definition: a state kept in a part value takes its definition's reset.
     for (const { part, value } of plan.custom.partResets) this.partValue[part] = value;
     this.custom = { busValue: this.busValue, partValue: this.partValue, regs: this.regs, ir: 0, customState: this.customState, memory, store: (size, address, value) => this.storeMemory(size, address, value) };
     plan.custom.refresh(this.custom, this.flags);
