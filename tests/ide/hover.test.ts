@@ -120,7 +120,7 @@ describe('exact hover texts', () => {
         '**strobe `x.rs1.oe`** — Card selected by rs1 drives the left bus.',
         '',
         '- **kind** `enable` — output enable: the part drives the bus for the whole step',
-        "- **part** `x`, port `rs1`, kind `regfile` — register file: 32 registers selected by the instruction's rs1, rs2 and rd fields",
+        "- **part** `x`, kind `regfile` — register file: 32 registers selected by the instruction's rs1, rs2 and rd fields",
         '- **bus** `left` — 32 lines, with keepers (holds its last value when undriven)',
         '- **level** active low: the ROM bit is 0 when asserted and 1 when idle (typical for /OE and /WE inputs)',
         '- **bit** 0 of the word of store `main` → **chip 0, D0** (28C64, 8192 × 8)',

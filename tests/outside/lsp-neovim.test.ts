@@ -55,7 +55,7 @@ describe.skipIf(!available)('Neovim 0.7 LSP client', () => {
       '**strobe `a.oe`** — a drives the result bus.',
       '',
       '- **kind** `enable` — output enable: the part drives the bus for the whole step',
-      '- **part** `a` — register: loads a bus at the closing edge, can drive a bus',
+      '- **part** `a`, kind `register` — register: loads a bus at the closing edge, can drive a bus',
       '- **bus** `result` — 8 lines, no keepers (floats when undriven)',
     ]);
     expect(result.hover.value).toContain('- **bit** 0 of the word of store `main` → **chip 0, D0**');

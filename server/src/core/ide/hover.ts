@@ -146,9 +146,7 @@ function strobeHover(machine: Machine, strobe: Strobe): string {
     lines.push(`- **part** none — an \`${strobe.kind}\` strobe acts on the sequencer, not on a part`);
     lines.push('- **bus** none');
   } else {
-    const portName = strobe.port ?? (part ? portOfStrobe(machine, part, strobe)?.name : undefined);
-    const port = portName ? `, port \`${portName}\`` : '';
-    lines.push(part ? `- **part** \`${part.name}\`${port}, kind ${partKindLine(machine, part)}` : '- **part** not wired (see the wiring error)');
+    lines.push(part ? `- **part** \`${part.name}\`, kind ${partKindLine(machine, part)}` : '- **part** not wired (see the wiring error)');
     const bus = strobe.bus ? machine.buses.get(strobe.bus) : undefined;
     const lineText = strobe.lines ? (strobe.lines.hi === strobe.lines.lo ? `line ${strobe.lines.hi} of ${bus?.width} (the others are left to other drivers)` : `lines ${strobe.lines.hi}..${strobe.lines.lo} of ${bus?.width} (the others are left to other drivers)`) : `${bus?.width} lines`;
     if (bus) lines.push(`- **bus** \`${bus.name}\` — ${lineText}, ${bus.keeper ? 'with keepers (holds its last value when undriven)' : 'no keepers (floats when undriven)'}`);
