@@ -100,7 +100,7 @@ describe('checks on parts of the table\'s own kinds', () => {
     expect(part).toContain('- **ports** `part`: output, drives a bus through an enable strobe (`(x + 4)[31:16]`)');
     expect(part).toContain('`p4hi.oe` enable p4hi.part → `result[31:16]`');
     const strobe = at('strobe p4hi.oe', 8);
-    expect(strobe).toContain('- **part** `p4hi`, port `part`, kind `half4` (of this table) — one half of pc + 4');
+    expect(strobe).toContain('- **part** `p4hi`, kind `half4` (of this table) — one half of pc + 4');
     expect(strobe).toContain('- **bus** `result` — lines 31..16 of 32 (the others are left to other drivers)');
   });
 });

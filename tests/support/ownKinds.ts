@@ -60,3 +60,30 @@ export function gantryWithByteLanes(text: string): string {
   if (/\bt\.ck\b/.test(replaced) || !replaced.includes('t.ck3 38')) throw new Error('gantry-32 changed: update gantryWithByteLanes');
   return replaced;
 }
+
+/** The branch comparator of halyard-32 without its latch: its flag is combinational. */
+const branchComparatorKind = [
+  'kind brcmp "branch comparator without a latch: the address lines read its result within the step"',
+  '  input a 32 "operand a (a bus)"',
+  '  input b 32 "operand b (a bus)"',
+  '  input ir 32 instruction "the instruction register: funct3 is the condition"',
+  '  flag taken = select ir[14:12] { 0: a == b, 1: a != b, 4: a <s b, 5: a >=s b, 6: a < b, 7: a >= b, else: 0b0 }',
+  '',
+].join('\n');
+
+/**
+ * halyard-32 with the comparator flag made combinational (kind `brcmp`, no `cmp.ck`): BRANCH
+ * compares in step 2 and the same step's word depends on the result. Both words of step 2 put
+ * rs1 and rs2 on the operand buses; only what they do at the closing edge differs (a branch not
+ * taken ends in step 2, one taken adds the offset in step 3).
+ */
+export function halyardWithCombinationalBranch(text: string, step2 = ['  2 if taken: x.rs1.oe, x.rs2.oe', '  2 else: x.rs1.oe, x.rs2.oe, pc.inc, done', '  3: pc.oe, imm.fmt=b, imm.oe, alu.fn=add, alu.oe, pc.ck, done']): string {
+  const replaced = text
+    .replace('\nbus left ', `\n${branchComparatorKind}\nbus left `)
+    .replace('part cmp  compare left right -> taken cond=funct3 loads=8 in_ua=1 tpd_ns=120 tsu_ns=20 "Branch comparator; the condition comes from funct3."', 'part cmp  brcmp left right -> taken loads=8 in_ua=1 tpd_ns=120 "Branch comparator without a latch; the condition comes from funct3."')
+    .replace('strobe cmp.ck    clock cmp               active high "Comparator latches the taken flag."\n', '')
+    .replace('alu.oe 12   cmp.ck 13   mem.rd 14', 'alu.oe 12   mem.rd 14')
+    .replace('  2: x.rs1.oe, x.rs2.oe, cmp.ck\n  3 if taken: pc.oe, imm.fmt=b, imm.oe, alu.fn=add, alu.oe, pc.ck, done\n  3 else: pc.inc, done', step2.join('\n'));
+  if (replaced.includes('cmp.ck') || !replaced.includes('kind brcmp') || !replaced.includes(step2[0])) throw new Error('halyard-32 changed: update halyardWithCombinationalBranch');
+  return replaced;
+}

@@ -4,6 +4,7 @@
 // path from the control word changing to the closing clock edge, which bounds the step clock.
 // These are estimates from entered figures; real boards need margin and measurement.
 import { customPortBusReads } from '../model/buildCustomPart';
+import { combinationalFlags, type FlagFact } from '../model/flagFacts';
 import { definitionOf, inputWiring, isCombinationalPort, portOfStrobe } from '../model/partFacts';
 import type { Bus, Figures, Machine, Part, StepAlt, Strobe } from '../model/types';
 import type { Span } from '../text/span';
@@ -279,14 +280,17 @@ function stepPaths(machine: Machine, missing: Set<string>): StepPath[] {
   const access = (signal: string | undefined): Arrival => (signal !== undefined ? bySignal.get(signal) : undefined) ?? latest;
   const paths: StepPath[] = [];
   const seen = new Set<number>();
-  const visit = (alt: StepAlt, owner: string) => {
+  // Combinational flags the address lines carry: a step whose guards test one settles its word twice.
+  const onLines = combinationalFlags(machine).filter((f) => machine.stores.some((s) => s.address?.sources.some((src) => src.input.kind === 'flag' && src.input.name === f.name)));
+  const testedBy = (alts: readonly StepAlt[]) => onLines.filter((f) => alts.some((a) => a.guard?.some((g) => g.input.kind === 'flag' && g.input.name === f.name)));
+  const visit = (alt: StepAlt, owner: string, siblings: readonly StepAlt[]) => {
     if (seen.has(alt.span.start)) return;
     seen.add(alt.span.start);
-    const path = longestPath(machine, alt, access, missing);
+    const path = longestPath(machine, alt, access, missing, testedBy(siblings.filter((s) => s.step === alt.step)));
     if (path) paths.push({ owner, step: alt.step, guard: alt.isElse ? 'else' : (alt.guard ?? []).map((g) => `${g.label}=${g.bits}`).join(' & '), ...path, span: alt.numberSpan });
   };
-  for (const phase of machine.phases.values()) for (const alt of phase.steps) visit(alt, `phase ${phase.name}`);
-  for (const cls of machine.classes) for (const alts of cls.steps.values()) for (const alt of alts) if (!alt.phase) visit(alt, `class ${cls.name}`);
+  for (const phase of machine.phases.values()) for (const alt of phase.steps) visit(alt, `phase ${phase.name}`, phase.steps);
+  for (const cls of machine.classes) for (const alts of cls.steps.values()) for (const alt of alts) if (!alt.phase) visit(alt, `class ${cls.name}`, alts);
   return paths;
 }
 
@@ -308,7 +312,7 @@ function later(a: Arrival, b: Arrival): Arrival {
   return b.ns > a.ns ? b : a;
 }
 
-function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, missing: Set<string>): Omit<StepPath, 'owner' | 'step' | 'guard' | 'span'> | undefined {
+function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, missing: Set<string>, flags: readonly FlagFact[] = []): Omit<StepPath, 'owner' | 'step' | 'guard' | 'span'> | undefined {
   const strobes = alt.actions.map((a) => machine.signals.get(a.signal)).filter((s): s is Strobe => s?.type === 'strobe');
   const need = (part: Part, name: string): number => {
     const v = fig(part.figures, name);
@@ -373,6 +377,24 @@ function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, miss
     const total = { ns: arrival.ns + setup, segments: [...arrival.segments, { what: `${s.name} setup`, ns: setup }] };
     if (!worst || total.ns > worst.arrival.ns) worst = { arrival: total, endpoint: s.name };
   }
-  if (!worst) return { endpoint: '(nothing loaded)', segments: start.segments, totalNs: start.ns };
-  return { endpoint: worst.endpoint, segments: worst.arrival.segments, totalNs: worst.arrival.ns };
+  const own = worst ? { endpoint: worst.endpoint, segments: worst.arrival.segments, totalNs: worst.arrival.ns } : { endpoint: '(nothing loaded)', segments: start.segments, totalNs: start.ns };
+  // A combinational flag the step's guards test: the word must settle twice within the step.
+  // The first word's drivers reach the flag's part through its inputs, the flag settles after
+  // the part's tpd_ns, the address lines change and the store is read again; only then does
+  // the step's own path (from that second access to the setup before the edge) begin. Adding
+  // the two in series is common practice, no source.
+  let flagPath: Arrival | undefined;
+  for (const fact of flags) {
+    const part = machine.parts.get(fact.part.name);
+    if (!part) continue;
+    const inputs = [...fact.buses.map((b) => arrivalOnBus(b)), ...fact.controls.map((c) => fact.part.controlFields.get(c)).filter((f): f is string => f !== undefined).map((f) => access(f))].filter((a): a is Arrival => !!a);
+    // Nothing it reads changes in this step: it holds what it settled to before.
+    if (inputs.length === 0) continue;
+    const latest = inputs.reduce(later);
+    const tpd = need(part, 'tpd_ns');
+    const arrival = { ns: latest.ns + tpd, segments: [...latest.segments, { what: `${part.name} flag ${fact.name} to the address`, ns: tpd }] };
+    if (!flagPath || arrival.ns > flagPath.ns) flagPath = arrival;
+  }
+  if (!flagPath) return own;
+  return { endpoint: own.endpoint, segments: [...flagPath.segments, ...own.segments], totalNs: flagPath.ns + own.totalNs };
 }

@@ -262,6 +262,12 @@ export const catalogue: CodeInfo[] = [
     explanation: 'For every step the longest path runs from the control word changing (access_ns) through the enabled drivers (en_ns), the ALU or other logic (tpd_ns) and the bus (settle_ns) to the setup time (tsu_ns) of the part that loads at the closing edge. A clock period shorter than that path latches values before they settle. Slow the clock (the message gives the fastest safe one before margin) or shorten the path. Estimates from entered figures: real boards need margin and measurement.',
   },
   {
+    code: 'address-loop',
+    severity: 'error',
+    title: 'a combinational flag can change the word that decides it',
+    explanation: 'A flag that reads a bus or a control settles within the step from what the step\'s word drives, and the address lines carry it, so it chooses that same word. Where the word chosen with the flag at 0 and the one chosen with it at 1 drive the flag\'s inputs differently, the new word changes the flag again: the address oscillates (the control word never settles, and strobes glitch), or it settles on whichever word the previous step left it at. Make both words drive what the flag reads the same way and differ only in what they do at the closing edge, or latch the flag at a closing edge and test it in the next step.',
+  },
+  {
     code: 'expr-syntax',
     severity: 'error',
     title: 'an expression does not follow the expression syntax',

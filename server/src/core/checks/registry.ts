@@ -1,6 +1,7 @@
 // The checks that run, in order. Adding a check: write checks/<name>.ts exporting a Check,
 // add its codes to catalogue.ts and docs/diagnostics.md, add a fault example, list it here.
 import type { Check } from './context';
+import { addressLoop } from './addressLoop';
 import { bitOverlap } from './bitOverlap';
 import { busContention } from './busContention';
 import { chipCapacity } from './chipCapacity';
@@ -42,6 +43,7 @@ export const checks: Check[] = [
   classEnd,
   stepRange,
   guardCoverage,
+  addressLoop,
   mapOverlap,
   bitOverlap,
   placementWidth,

@@ -11,6 +11,7 @@ import { standardLibraryText } from '../parts/library';
 import { RV32I_INSTRUCTIONS, majorOpcodeOf } from '../isa/rv32i';
 import { definitionOf, fieldValueMeaning, inputsOf, liveControls, portOfStrobe, portsOf, settingsReadBy } from '../model/partFacts';
 import { T } from '../syntax/tokens';
+import { flagFacts } from '../model/flagFacts';
 import type { Bus, ClassDef, DecodeMap, Field, FieldValue, Flag, Machine, Part, Phase, Store, Strobe, SymbolInfo, WordLayout } from '../model/types';
 import type { Span } from '../text/span';
 import {
@@ -319,7 +320,11 @@ function flagHover(machine: Machine, flag: Flag): string {
   if (lines2.length === 0) lines2.push('- **address** on no store\'s address lines: the ROM cannot react to it (see not-addressable)');
   const tested = usageOf(machine).written.filter((w) => w.alt.guard?.some((g) => g.input.kind === 'flag' && g.input.name === flag.name));
   lines2.push(`- **tested** by ${plural(tested.length, 'guard')}` + (tested.length ? `: ${listNames(tested.map(describeWritten), false)}` : ''));
-  lines2.push('- A register loaded at a step\'s closing edge (such as this flag) is seen by the address lines from the next step on.');
+  const fact = flagFacts(machine).get(flag.name);
+  if (fact?.timing === 'combinational') {
+    const reads = [...fact.buses.map((b) => `bus \`${b}\``), ...fact.controls.map((c) => `control \`${c}\`${fact.part.controlFields.has(c) ? ` (field \`${fact.part.controlFields.get(c)}\`)` : ''}`)];
+    lines2.push(`- **combinational**: it reads ${reads.join(', ')} and settles within the step from what the step's word drives; the address lines see it in the same step, so a word it selects is read again (the word settles twice: see the timing budget, and \`address-loop\`).`);
+  } else lines2.push('- **latched**: it reads only what changes at a closing edge, so it changes there and the address lines see it from the next step on.');
   return [...lines, ...lines2].join('\n');
 }
 

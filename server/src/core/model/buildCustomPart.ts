@@ -157,7 +157,7 @@ export function customPortFor(part: M.CustomPart, role: M.StrobeKind | 'clock-fl
 }
 
 /**
- * The buses a port of the part reads when its controls hold `controlCodes` (a control not listed
+ * The buses a port (or a flag) of the part reads when its controls hold `controlCodes` (a control not listed
  * is unknown: every arm it selects counts). `edge`: the port is an edge port, whose `in` is the
  * bus its strobe loads (listed by the caller, not here). The simulator requires these buses to
  * be defined; the latch checks require them to be driven.
@@ -170,7 +170,7 @@ export function customPortBusReads(part: M.CustomPart, port: string, controlCode
     if (setting?.type === 'choice') return new Map(setting.choices.map((c, i) => [c, i]));
     return part.controlValues.get(name);
   };
-  const texts = [...def.drives.filter((d) => d.name === port).map((d) => d.expr), ...def.edges.filter((e) => e.name === port).flatMap((e) => e.assigns.flatMap((a) => [a.expr, ...(a.when ? [a.when] : []), ...(a.index ? [a.index] : [])]))];
+  const texts = [...def.drives.filter((d) => d.name === port).map((d) => d.expr), ...def.flags.filter((f) => f.name === port).map((f) => f.expr), ...def.edges.filter((e) => e.name === port).flatMap((e) => e.assigns.flatMap((a) => [a.expr, ...(a.when ? [a.when] : []), ...(a.index ? [a.index] : [])]))];
   const buses = new Set<string>();
   for (const text of texts) {
     const expr = parsedExpr(def, text).expr;

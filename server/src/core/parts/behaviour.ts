@@ -141,19 +141,6 @@ export function checkBehaviour(def: KindDef, setting: PartSetting, report: (d: D
     const result = 'array' in p.place ? checkElementIndex(p.expr, scope, p.place.array) : checkExpression(p.expr, scope, p.place.width);
     result.diagnostics.forEach(report);
   }
-  const stateNames = new Set(def.states.map((s) => s.name));
-  for (const flag of def.flags) {
-    const parsed = parsedExpr(def, flag.expr).expr;
-    const reads = parsed ? namesUsed(parsed).filter((n) => !stateNames.has(n) && !def.leftOut.has(n) && !def.settings.some((s) => s.name === n)) : [];
-    if (reads.length) {
-      report({
-        code: 'kind-definition',
-        severity: 'error',
-        span: flag.expr.span,
-        message: `flag \`${flag.name}\` reads ${reads.map((r) => `\`${r}\``).join(', ')}: the address lines read a flag after the closing edge, so in this version a flag may depend only on the part's state and settings; latch the value into a state with an \`on\` line and make the flag read that state`,
-      });
-    }
-  }
   if (def.origin === 'table') {
     for (const state of def.states) {
       const width = sizeOf(state.width, setting.settings);

@@ -89,8 +89,9 @@ const MAX_CHAIN_STEPS = 16;
 export function canCompile(plan: SimPlan): boolean {
   // Strobes that drive some lines of a bus run on the interpreter.
   const partial = [...plan.machine.signals.values()].some((s) => s.type === 'strobe' && s.lines !== undefined);
-  // And connections (`connect`), which drive in every step.
-  return !partial && plan.machine.connections.length === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
+  // And connections (`connect`), which drive in every step, and combinational flags, whose
+  // settle (the address formed again within a step) only the interpreter runs.
+  return !partial && plan.machine.connections.length === 0 && plan.custom.combinationalCount === 0 && plan.stores.length === 1 && plan.microOps.byKey !== null && plan.microOps.count <= MAX_COMPILED_WORDS;
 }
 
 // Word reads (every instruction fetch among them) go through the live word view of the page the

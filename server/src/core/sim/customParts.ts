@@ -13,12 +13,15 @@
 //
 // Timing (docs/notation.md, "Timing model"): a drive port is combinational for the whole step;
 // at the closing edge every edge port of every part computes from the values before the edge,
-// then all of them are stored at once, then the flags are read from the new state.
+// then all of them are stored at once, then the latched flags are read from the new state. A
+// combinational flag (model/flagFacts.ts: it reads a bus or a control) is computed per
+// micro-op after the drivers (`settler`), and the simulator settles the address with it.
 import type { CustomPart, Field, Machine, Strobe } from '../model/types';
 import type { Memory } from '../isa/memory';
 import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource, type PortNumber } from '../parts/behaviour';
 import type { InlineBinding } from '../parts/expr';
-import { edgeInputName } from '../parts/kinds';
+import { edgeInputName, type KindFlag } from '../parts/kinds';
+import { combinationalFlags } from '../model/flagFacts';
 import { customPortBusReads, partSetting } from '../model/buildCustomPart';
 import { definedPortOf, definitionOf, strobePortNumber } from '../model/libraryParts';
 import { lineMask } from '../model/busDrivers';
@@ -38,6 +41,20 @@ export interface CustomAccess {
 }
 
 type Getter = (m: CustomAccess) => number;
+
+/**
+ * The combinational flags of one micro-op: computed from its field codes and the buses after
+ * its drivers settled (the simulator then settles the address with them).
+ */
+export interface FlagSettler {
+  /** The simulator's flag numbers, in the order `run` writes their values. */
+  flags: number[];
+  /** Per flag: the buses it reads (one bit each), which must hold defined values for its value to be known. */
+  needs: number[];
+  /** Per flag: why its value cannot be known whatever the buses hold (a control code that names no value), else ''. */
+  problems: string[];
+  run: (m: CustomAccess, out: Uint8Array) => void;
+}
 
 /** Where a state is stored (staged edge values name it by this number). */
 const IN_STATE = 0; // customState, from `base`
@@ -59,8 +76,8 @@ interface PartRuntime {
   arrays: Map<string, number | 'memory'>;
   /** Reads an element of one of this part's arrays from where it is stored. */
   element: (array: string, index: number) => number;
-  /** Computes every flag from the state; indices into the simulator's flags. */
-  flags?: { run: (m: CustomAccess) => number[]; flagNumbers: number[] };
+  /** Computes every latched flag from the state; indices into the simulator's flags. */
+  flags?: { run: (m: CustomAccess) => number[]; flagNumbers: number[]; texts: KindFlag[] };
 }
 
 /**
@@ -118,6 +135,11 @@ export class CustomParts {
   private readonly edgeSpecs: (PortSpec & { assigns: { storage: Storage; value: number; when: number; index: number; count: number }[] })[] = [];
   /** Edge ports: each pushes (storage, index, value) triples into `stage`. */
   readonly edges: ((m: CustomAccess, stage: number[]) => void)[] = [];
+  /** The combinational flags, by part (their flag numbers in the simulator's flags). */
+  readonly combinational: { rt: PartRuntime; flags: KindFlag[]; flagNumbers: number[] }[] = [];
+  /** Number of combinational flags (0: every flag is latched, and no micro-op needs a settler). */
+  combinationalCount = 0;
+  readonly settlers: FlagSettler[] = [];
 
   constructor(
     private readonly machine: Machine,
@@ -125,7 +147,10 @@ export class CustomParts {
     private readonly partIndex: ReadonlyMap<string, number>,
     flagIndex: ReadonlyMap<string, number>,
     regfileIndex: ReadonlyMap<string, number> = new Map(),
+    /** The instruction register's part number: a latched flag reading the instruction reads it after the edge. */
+    private readonly irPart = -1,
   ) {
+    const combinational = new Set(combinationalFlags(machine).map((f) => `${f.part.name}\u0000${f.flag.name}`));
     for (const original of machine.parts.values()) {
       const part = definitionOf(machine, original);
       const partNumber = partIndex.get(part.name)!;
@@ -155,7 +180,7 @@ export class CustomParts {
       this.runtimes.push(rt);
       this.byName.set(part.name, rt);
     }
-    // Reset values and flags, once every part has its slots (a flag reads only its own state).
+    // Reset values and flags, once every part has its slots.
     for (const rt of this.runtimes) {
       const def = rt.part.def;
       const setting = partSetting(this.machine, rt.part);
@@ -172,8 +197,11 @@ export class CustomParts {
         if (storage.in === IN_PART) this.partResets.push({ part: storage.base, value });
         else for (let k = 0; k < (count as number); k++) this.resetValues[storage.base + k] = value;
       }
-      if (def.flags.length) {
-        const port = compilePort(def, setting, def.flags.map((f) => ({ text: f.expr, width: 1 })));
+      const flagNumber = (f: KindFlag) => flagIndex.get(rt.part.flagNames.get(f.name)!) ?? -1;
+      const latched = def.flags.filter((f) => !combinational.has(`${rt.part.name}\u0000${f.name}`));
+      const combFlags = def.flags.filter((f) => combinational.has(`${rt.part.name}\u0000${f.name}`));
+      if (latched.length) {
+        const port = compilePort(def, setting, latched.map((f) => ({ text: f.expr, width: 1 })));
         const getters = port.inputs.map((name) => this.getter(rt, name, new Map(), -1));
         const values = new Array<number>(getters.length);
         rt.flags = {
@@ -181,13 +209,52 @@ export class CustomParts {
             for (let i = 0; i < getters.length; i++) values[i] = getters[i](m);
             return port.run(values).map((v) => Number(v));
           },
-          flagNumbers: def.flags.map((f) => flagIndex.get(rt.part.flagNames.get(f.name)!) ?? -1),
+          flagNumbers: latched.map(flagNumber),
+          texts: latched,
         };
+      }
+      if (combFlags.length) {
+        this.combinational.push({ rt, flags: combFlags, flagNumbers: combFlags.map(flagNumber) });
+        this.combinationalCount += combFlags.length;
       }
     }
   }
 
   private readonly bytes = new ByteStage();
+
+  /**
+   * The combinational flags of one micro-op (its field codes): what they read, and one function
+   * computing them all into `out` (in `flags` order). Returns its index in `settlers`.
+   */
+  settler(fields: ReadonlyMap<string, number>): number {
+    const flags: number[] = [];
+    const needs: number[] = [];
+    const problems: string[] = [];
+    const runs: ((m: CustomAccess, out: Uint8Array) => void)[] = [];
+    for (const { rt, flags: kindFlags, flagNumbers } of this.combinational) {
+      const texts = kindFlags.map((f) => ({ text: f.expr, width: 1 }));
+      const port = compilePort(rt.part.def, partSetting(this.machine, rt.part), texts, undefined, { element: rt.element });
+      const problem = this.unnamedControl(rt, texts, port.inputs, fields) ?? '';
+      const codes = this.controlCodes(rt, fields);
+      const at = flags.length;
+      kindFlags.forEach((f, k) => {
+        flags.push(flagNumbers[k]);
+        problems.push(problem);
+        needs.push(customPortBusReads(rt.part, f.name, codes).reduce((mask, bus) => mask | (1 << this.busIndex.get(bus)!), 0));
+      });
+      if (problem) continue;
+      const getters = port.inputs.map((name) => this.getter(rt, name, fields, -1));
+      const values = new Array<number>(getters.length);
+      runs.push((m, out) => {
+        for (let i = 0; i < getters.length; i++) values[i] = getters[i](m);
+        this.current = m;
+        const results = port.run(values);
+        for (let k = 0; k < results.length; k++) out[at + k] = Number(results[k]) & 1;
+      });
+    }
+    this.settlers.push({ flags, needs, problems, run: (m, out) => runs.forEach((r) => r(m, out)) });
+    return this.settlers.length - 1;
+  }
 
   /** The machine a compiled port runs on right now (element reads go through it). */
   current: CustomAccess | undefined;
@@ -365,7 +432,7 @@ export class CustomParts {
   }
 
   /** How the expressions of one port reach their names when inlined at `site`. */
-  private binding(spec: PortSpec, site: InlineSite): InlineBinding {
+  private binding(spec: PortSpec, site: InlineSite, afterEdge = false): InlineBinding {
     const { rt, fields, bus } = spec;
     const part = rt.part;
     const masked = (code: string, width: number) => (width >= 32 ? `(${code} >>> 0)` : `(${code} & ${2 ** width - 1})`);
@@ -392,7 +459,8 @@ export class CustomParts {
         const input = part.inputs.get(name);
         if (input?.from === 'bus') return masked(site.bus(this.busIndex.get(input.name)!), w);
         if (input?.from === 'part') return masked(`partValue[${this.partIndex.get(input.name)!}]`, w);
-        if (input?.from === 'instruction') return masked('ir', w);
+        // After the edge (a latched flag read from the new state) the instruction register may have just loaded.
+        if (input?.from === 'instruction') return masked(afterEdge && this.irPart >= 0 ? `partValue[${this.irPart}]` : 'ir', w);
         throw new Error(`custom part ${part.name}: no value for \`${name}\``);
       },
       element: (array, index, width) => {
@@ -449,8 +517,8 @@ export class CustomParts {
     let changesInputs = false;
     if (rt.flags) {
       const def = rt.part.def;
-      const flagSpec: PortSpec = { rt, texts: def.flags.map((f) => ({ text: f.expr, width: 1 })), fields: new Map(), bus: -1 };
-      const flagSrc = portSource(def, partSetting(this.machine, rt.part), flagSpec.texts, undefined, this.binding(flagSpec, { ...site, prefix: `${p}f` }));
+      const flagSpec: PortSpec = { rt, texts: rt.flags.texts.map((f) => ({ text: f.expr, width: 1 })), fields: new Map(), bus: -1 };
+      const flagSrc = portSource(def, partSetting(this.machine, rt.part), flagSpec.texts, undefined, this.binding(flagSpec, { ...site, prefix: `${p}f` }, true));
       if (flagSrc.temps.length) store.push(`let ${flagSrc.temps.join(', ')};`);
       rt.flags.flagNumbers.forEach((f, i) => {
         if (f >= 0) store.push(`flags[${f}] = (${flagSrc.codes[i]}) & 1;`);
@@ -482,10 +550,12 @@ export class CustomParts {
     }
     stage.length = 0;
     bytes.flush(m.store);
+    // The latched flags read the new state, and the instruction register as it is after the edge.
+    if (this.irPart >= 0) m.ir = m.partValue[this.irPart];
     this.refresh(m, flags);
   }
 
-  /** Part values and flags from the current state (after reset and after every commit). */
+  /** The latched flags from the current state (after reset and after every commit); combinational flags keep their values. */
   refresh(m: CustomAccess, flags: Uint8Array): void {
     // Only parts with flags have anything to refresh (this runs every step).
     this.refreshed ??= this.runtimes.filter((rt) => rt.flags);

@@ -147,6 +147,8 @@ export function faultText(fault: MachineFault): string {
         .join('; ') + `. ${busContentionCaution} Check the drivers' data sheets.`;
     case 'combinational-loop':
       return `${fault.message}; the bus value cannot settle`;
+    case 'address-flag':
+      return fault.message;
     case 'undefined-value':
       return `\`${fault.strobe}\` loads an undefined value from \`${fault.bus}\`: ${fault.why}`;
     case 'control-code':

@@ -75,6 +75,8 @@ export interface MicroOpInfo {
   loop: string;
   /** Buses driven in this step (1) or not (0). */
   driven: Uint8Array;
+  /** The combinational flags of this word (an index into plan.custom.settlers), or -1 when the machine has none. */
+  settle: number;
 }
 
 interface DriverSpec {
@@ -279,6 +281,7 @@ export class MicroOps {
       contention,
       loop,
       driven,
+      settle: plan.custom.combinationalCount > 0 ? plan.custom.settler(fields) : -1,
     });
     return base;
   }

@@ -120,7 +120,7 @@ export class SimPlan {
     machine.classes.forEach((cls, i) => {
       if (cls.opcode !== undefined && this.classOfOpcode[cls.opcode] === -1) this.classOfOpcode[cls.opcode] = i;
     });
-    this.custom = new CustomParts(machine, this.busIndex, this.partIndex, this.flagIndex, this.regfileIndex);
+    this.custom = new CustomParts(machine, this.busIndex, this.partIndex, this.flagIndex, this.regfileIndex, irPart);
     this.x0Stored = this.regfiles.length > 0 && elementZeroWritable(machine, this.regfiles[0]);
     this.microOps = new MicroOps(this);
   }

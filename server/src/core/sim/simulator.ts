@@ -14,6 +14,15 @@
 // Two drivers on one bus, a load of an undefined value, a combinational loop or a control code
 // that names no operation stop the machine with a fault naming the step, strobes and values.
 //
+// Combinational flags on the address lines (model/flagFacts.ts: a flag that reads a bus or a
+// control; docs/notation.md, "Timing model"): the address is first formed with the flags as
+// they stand (from the previous step), the word's drivers settle, and then the word's
+// combinational flags are computed. If they form another word, the step starts again with that
+// word from the buses as they were at the step's start (nothing is stored yet); a word already
+// tried in this step, or more than MAX_SETTLE_ROUNDS words, is an address that oscillates (a
+// fault), and so is a word that depends on a flag computed from a bus with no defined value.
+// Only the settled word's closing edge runs. Such machines run on this interpreter only.
+//
 // Reset state (as createReferenceMachine and qemu-riscv32 start a program): the program counter
 // (see plan.ts for which part that is) holds the entry point, every other register and counter
 // its `reset=` value (0 by default), the instruction register too (0 by default), the register
@@ -42,6 +51,8 @@ import type { SimPlan } from './plan';
 export type MachineFault =
   | { kind: 'contention'; buses: { bus: string; drivers: { strobe: string; value: number | undefined }[] }[] }
   | { kind: 'combinational-loop'; message: string }
+  /** The address lines carry a combinational flag that does not settle (it oscillates, or reads a bus with no defined value where the word depends on it). */
+  | { kind: 'address-flag'; message: string }
   | { kind: 'undefined-value'; strobe: string; bus: string; why: string }
   | { kind: 'control-code'; strobe: string; message: string };
 
@@ -92,6 +103,12 @@ const STATE_NUMBERS = 11;
 
 /** Most memory writes one instruction's record keeps (RV32I makes at most one). */
 const MAX_RECORDED_WRITES = 16;
+/** Most words one step may try while its combinational flags settle (the first one included). */
+export const MAX_SETTLE_ROUNDS = 4;
+const SETTLED = 0;
+const SETTLE_AGAIN = 1;
+const SETTLE_FAULT = 2;
+
 /** Steps per call of the stepping loops (see run()). */
 const CHUNK_STEPS = 1 << 16;
 
@@ -164,6 +181,14 @@ export class BusSimulator implements MachineAccess {
   private readonly undoOld = new Int32Array(MAX_RECORDED_WRITES);
   private undoCount = 0;
   private readonly staticParts: Int32Array;
+  /** The combinational flags' settle: computed values, a trial flag vector, the buses at the step's start, the words tried. */
+  private readonly settleOut: Uint8Array;
+  private readonly settleFlags: Uint8Array;
+  private readonly settleBusValue: Int32Array;
+  private readonly settleDefinedLines: Int32Array;
+  private settleDefined = 0;
+  private readonly settleTried: { base: number; flags: Uint8Array }[] = [];
+  private settleStop: SimStop | null = null;
   private pendingExit: { exitCode: number; status: number } | null = null;
   private readonly nStores: number;
   private useCompiled: boolean;
@@ -187,6 +212,10 @@ export class BusSimulator implements MachineAccess {
     this.useCompiled = (options.compiled ?? true) && canCompile(plan);
     this.nStores = plan.stores.length;
     this.staticParts = new Int32Array(this.nStores);
+    this.settleOut = new Uint8Array(plan.custom.combinationalCount);
+    this.settleFlags = new Uint8Array(plan.flagNames.length);
+    this.settleBusValue = new Int32Array(nBuses);
+    this.settleDefinedLines = new Int32Array(nBuses);
     const nClasses = plan.machine.classes.length;
     this.classInstructions = new Float64Array(nClasses + 1);
     this.classSteps = new Float64Array(nClasses + 1);
@@ -196,7 +225,7 @@ export class BusSimulator implements MachineAccess {
     this.logDefined = new Int32Array(plan.nSteps);
     // Every part runs from its definition: a state kept in a part value takes its definition's reset.
     for (const { part, value } of plan.custom.partResets) this.partValue[part] = value;
-    this.custom = { busValue: this.busValue, partValue: this.partValue, regs: this.regs, ir: 0, customState: this.customState, memory, store: (size, address, value) => this.storeMemory(size, address, value) };
+    this.custom = { busValue: this.busValue, partValue: this.partValue, regs: this.regs, ir: this.partValue[plan.irPart], customState: this.customState, memory, store: (size, address, value) => this.storeMemory(size, address, value) };
     plan.custom.refresh(this.custom, this.flags);
     this.partValue[plan.pcPart] = entry & plan.partMask[plan.pcPart];
     this.instructionPc = this.partValue[plan.pcPart] >>> 0;
@@ -266,6 +295,134 @@ export class BusSimulator implements MachineAccess {
       key += w * microOps.strides[s];
     }
     return microOps.lookup(key, words);
+  }
+
+  /** The buses as the step starts: every round of a settle starts from them. */
+  private saveStepBuses(defined: number): void {
+    this.settleBusValue.set(this.busValue);
+    this.settleDefinedLines.set(this.definedLines);
+    this.settleDefined = defined;
+  }
+
+  private restoreStepBuses(): number {
+    this.busValue.set(this.settleBusValue);
+    this.definedLines.set(this.settleDefinedLines);
+    return this.settleDefined;
+  }
+
+  /** The micro-op (its base) the address lines select in `step` with the flags `flags` (nothing logged). */
+  private uopBaseWith(step: number, ir: number, flags: Uint8Array): number {
+    const plan = this.plan;
+    const mo = plan.microOps;
+    if (this.nStores === 1 && mo.byKey !== null) {
+      const s0 = plan.stores[0];
+      return mo.byKey[s0.wordOfAddress[plan.staticPart(0, ir, flags) + s0.stepPart[step]]];
+    }
+    const words: number[] = [];
+    let key = 0;
+    for (let s = 0; s < plan.stores.length; s++) {
+      const sp = plan.stores[s];
+      let address = plan.staticPart(s, ir, flags) + sp.stepPart[step];
+      for (const f of sp.fieldSources) address += f.byWord[words[f.fromStore]];
+      const w = sp.wordOfAddress[address];
+      words.push(w);
+      key += w * mo.strides[s];
+    }
+    return mo.lookup(key, words);
+  }
+
+  /** The addresses of the stores in `step` with the flags `flags`, as text for a fault message. */
+  private addressesWith(step: number, ir: number, flags: Uint8Array): string {
+    const plan = this.plan;
+    const words: number[] = [];
+    const out: string[] = [];
+    for (let s = 0; s < plan.stores.length; s++) {
+      const sp = plan.stores[s];
+      let address = plan.staticPart(s, ir, flags) + sp.stepPart[step];
+      for (const f of sp.fieldSources) address += f.byWord[words[f.fromStore]];
+      words.push(sp.wordOfAddress[address]);
+      out.push(`${plan.stores.length > 1 ? `${sp.store.name} ` : ''}0x${address.toString(16).padStart(4, '0')}`);
+    }
+    return out.join(', ');
+  }
+
+  /**
+   * After the drivers of the word at `base` settled (round `round` of this step): computes the
+   * word's combinational flags and says whether the address lines now select another word (the
+   * flags are then set and the static address parts refreshed: run the step again), the word
+   * stands (the flags keep their new values), or the address does not settle (settleStop).
+   */
+  private settle(base: number, step: number, ir: number, defined: number, round: number): number {
+    const plan = this.plan;
+    const settler = plan.custom.settlers[this.infoAt(base).settle];
+    const out = this.settleOut;
+    this.custom.ir = ir;
+    settler.run(this.custom, out);
+    const next = this.settleFlags;
+    next.set(this.flags);
+    // Flags whose value cannot be known here (a bus they read holds no defined value) keep theirs,
+    // provided the word does not depend on them.
+    const unknown: number[] = [];
+    for (let k = 0; k < settler.flags.length; k++) {
+      const f = settler.flags[k];
+      if (f < 0) continue;
+      if (settler.problems[k] !== '' || (settler.needs[k] & ~defined) !== 0) unknown.push(k);
+      else next[f] = out[k];
+    }
+    const nextBase = this.uopBaseWith(step, ir, next);
+    if (unknown.length > 0) {
+      const flips = unknown.length > 8 ? 8 : unknown.length;
+      for (let combo = 1; combo < 1 << flips; combo++) {
+        for (let i = 0; i < flips; i++) if ((combo >>> i) & 1) next[settler.flags[unknown[i]]] ^= 1;
+        const other = this.uopBaseWith(step, ir, next);
+        for (let i = 0; i < flips; i++) if ((combo >>> i) & 1) next[settler.flags[unknown[i]]] ^= 1;
+        if (other !== nextBase) {
+          const k = unknown.find((_, i) => (combo >>> i) & 1)!;
+          const name = plan.flagNames[settler.flags[k]];
+          const busMask = settler.needs[k] & ~defined;
+          const bus = plan.busNames.findIndex((_, b) => (busMask >>> b) & 1);
+          const why = settler.problems[k] !== '' ? settler.problems[k] : `it reads bus \`${plan.busNames[bus]}\`, which holds no defined value: ${this.whyUndefined(base, bus)}`;
+          this.settleStop = { kind: 'fault', pc: this.instructionPc, word: ir >>> 0, step, fault: { kind: 'address-flag', message: `the word of step ${step} depends on combinational flag \`${name}\` (address ${this.addressesWith(step, ir, next)}), but its value is not known: ${why}` } };
+          this.settleTried.length = 0;
+          return SETTLE_FAULT;
+        }
+      }
+    }
+    if (nextBase === base) {
+      this.flags.set(next);
+      this.settleTried.length = 0;
+      return SETTLED;
+    }
+    if (round === 0) {
+      this.settleTried.length = 0;
+      this.settleTried.push({ base, flags: this.flags.slice() });
+    }
+    const again = this.settleTried.some((t) => t.base === nextBase);
+    this.settleTried.push({ base: nextBase, flags: next.slice() });
+    if (again || this.settleTried.length > MAX_SETTLE_ROUNDS) {
+      this.settleStop = { kind: 'fault', pc: this.instructionPc, word: ir >>> 0, step, fault: { kind: 'address-flag', message: this.oscillation(step, ir, again) } };
+      this.settleTried.length = 0;
+      return SETTLE_FAULT;
+    }
+    this.flags.set(next);
+    this.refreshStaticParts();
+    return SETTLE_AGAIN;
+  }
+
+  /** The words a step tried while its combinational flags did not settle, as a fault message. */
+  private oscillation(step: number, ir: number, again: boolean): string {
+    const plan = this.plan;
+    const tried = this.settleTried;
+    const changed = new Set<number>();
+    for (let i = 1; i < tried.length; i++) for (let f = 0; f < plan.flagNames.length; f++) if (tried[i].flags[f] !== tried[i - 1].flags[f]) changed.add(f);
+    const names = [...changed].map((f) => `\`${plan.flagNames[f]}\``).join(', ');
+    const words = tried.map((t, i) => {
+      const values = [...changed].map((f) => `${plan.flagNames[f]}=${t.flags[f]}`).join(' ');
+      const made = i + 1 < tried.length ? `, whose drivers make ${[...changed].map((f) => `${plan.flagNames[f]}=${tried[i + 1].flags[f]}`).join(' ')}` : '';
+      return `address ${this.addressesWith(step, ir, t.flags)} (${values})${made}`;
+    });
+    const verdict = again ? 'back to a word already tried' : `still changing after ${MAX_SETTLE_ROUNDS} words`;
+    return `the address of step ${step} oscillates through combinational flag ${names}: ${words.join('; ')}: ${verdict}, so the control word never settles`;
   }
 
   private stopWith(stop: SimStop, retired = false): RunOutcome {
@@ -368,8 +525,11 @@ export class BusSimulator implements MachineAccess {
     let ir = partValue[irPart];
     let static0 = this.staticParts[0];
     let stepsRun = 0;
+    const settling = plan.custom.combinationalCount > 0;
+    let round = 0;
     while (stepsRun < maxSteps) {
       stepsRun++;
+      if (settling && round === 0) this.saveStepBuses(defined);
       // 1. Address and control word.
       let base: number;
       if (single) {
@@ -423,6 +583,26 @@ export class BusSimulator implements MachineAccess {
           const now = ok !== 0 ? before | driven : before & ~driven;
           definedLines[bus] = now;
           defined = (now & busMask[bus]) === busMask[bus] ? defined | (1 << bus) : defined & ~(1 << bus);
+        }
+      }
+      // 2b. Combinational flags on the address lines: settle the word (see the top of the file).
+      if (settling) {
+        const verdict = this.settle(base, step, ir, defined, round);
+        code = mo.code.data; // trying a word may have compiled a new micro-op
+        lines = mo.lines.data;
+        if (verdict === SETTLE_AGAIN) {
+          round++;
+          defined = this.restoreStepBuses();
+          static0 = this.staticParts[0];
+          stepsRun--;
+          continue;
+        }
+        round = 0;
+        if (verdict === SETTLE_FAULT) {
+          this.step = step;
+          this.steps += stepsRun;
+          this.definedMask = defined;
+          return this.stopWith(this.settleStop!);
         }
       }
       if (recordBuses) {
@@ -615,25 +795,32 @@ export class BusSimulator implements MachineAccess {
   settleNextStep(): number {
     const plan = this.plan;
     const mo = plan.microOps;
+    const settling = plan.custom.combinationalCount > 0;
     this.refreshStaticParts();
-    let base: number;
-    if (this.nStores === 1 && mo.byKey !== null) {
-      const address = this.staticParts[0] + plan.stores[0].stepPart[this.step];
-      this.logAddress[this.step] = address;
-      base = mo.byKey[plan.stores[0].wordOfAddress[address]];
-    } else {
-      base = this.multiStoreUop(this.step);
+    // With combinational flags on the address lines the word settles as in runSteps (a word that
+    // does not settle is left as the last one tried: running on reports the fault).
+    for (let round = 0; ; round++) {
+      if (settling && round === 0) this.saveStepBuses(this.definedMask);
+      let base: number;
+      if (this.nStores === 1 && mo.byKey !== null) {
+        const address = this.staticParts[0] + plan.stores[0].stepPart[this.step];
+        this.logAddress[this.step] = address;
+        base = mo.byKey[plan.stores[0].wordOfAddress[address]];
+      } else {
+        base = this.multiStoreUop(this.step);
+      }
+      const code = mo.code.data;
+      const uop = code[base + 1];
+      this.logUop[this.step] = uop;
+      const info = mo.info[uop];
+      for (let bus = 0; bus < plan.busNames.length; bus++) if (!info.driven[bus] && !plan.busKeeper[bus]) this.definedMask &= ~(1 << bus);
+      for (let k = 0; k < info.drivers.length; k++) {
+        const { value, defined } = this.driverValue(base, k);
+        this.putOnBus(base, k, value, defined);
+      }
+      if (!settling || (code[base] & 1) !== 0 || this.settle(base, this.step, this.partValue[plan.irPart], this.definedMask, round) !== SETTLE_AGAIN) return uop;
+      this.definedMask = this.restoreStepBuses();
     }
-    const code = mo.code.data;
-    const uop = code[base + 1];
-    this.logUop[this.step] = uop;
-    const info = mo.info[uop];
-    for (let bus = 0; bus < plan.busNames.length; bus++) if (!info.driven[bus] && !plan.busKeeper[bus]) this.definedMask &= ~(1 << bus);
-    for (let k = 0; k < info.drivers.length; k++) {
-      const { value, defined } = this.driverValue(base, k);
-      this.putOnBus(base, k, value, defined);
-    }
-    return uop;
   }
 
   /** Remembers the state at the start of an instruction (call with the step counter at 0). */
