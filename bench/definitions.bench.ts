@@ -54,8 +54,15 @@ function baselineEngine(): Engine | string {
 interface Measured {
   name: string;
   instructions: number;
+  /** Wall time, and CPU time of this process (less disturbed by other load on a shared machine). */
   ms: number;
+  cpuMs: number;
   output: string;
+}
+
+function cpuNow(): number {
+  const usage = process.cpuUsage();
+  return (usage.user + usage.system) / 1000;
 }
 
 function main(): void {
@@ -68,6 +75,7 @@ function main(): void {
     const loaded = engine.loadProgram(elf);
     if (!loaded.ok) throw new Error(loaded.error);
     const started = performance.now();
+    const cpuStarted = cpuNow();
     const run = new engine.ProgramRun(built.plan, loaded.program, { reference: false, compiled });
     const ending = withProgress(name, (update) => {
       let end = run.advance(5_000_000);
@@ -76,15 +84,16 @@ function main(): void {
     });
     const ms = performance.now() - started;
     if (ending.kind !== 'exit') throw new Error(`${name}: the run ended with ${ending.kind}`);
-    return { name, instructions: run.sim.instructionsRetired, ms, output: run.sim.environment.stdoutText() };
+    return { name, instructions: run.sim.instructionsRetired, ms, cpuMs: cpuNow() - cpuStarted, output: run.sim.environment.stdoutText() };
   };
   const reference = (): Measured => {
     const created = createReferenceMachine(elf);
     if (!created.ok) throw new Error(created.error);
     const started = performance.now();
+    const cpuStarted = cpuNow();
     const { instructionsExecuted, stop } = created.machine.run(1e9);
     if (stop?.kind !== 'exit') throw new Error('the reference did not exit');
-    return { name: 'RV32I reference interpreter', instructions: instructionsExecuted, ms: performance.now() - started, output: created.machine.environment.stdoutText() };
+    return { name: 'RV32I reference interpreter', instructions: instructionsExecuted, ms: performance.now() - started, cpuMs: cpuNow() - cpuStarted, output: created.machine.environment.stdoutText() };
   };
   const today: Engine = { analyse, SimPlan, ProgramRun, loadProgram };
   const baseline = baselineEngine();
@@ -98,18 +107,20 @@ function main(): void {
   }
   results.push(measure(today, 'from definitions, interpreter only', false));
   const rate = (m: Measured) => (m.instructions / m.ms) * 1000;
+  const cpuRate = (m: Measured) => (m.instructions / m.cpuMs) * 1000;
   const width = Math.max(...results.map((r) => r.name.length));
   console.log(`program: ${elfPath} (${ref.instructions.toLocaleString('en')} instructions); ${cpus().length} CPUs, load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
-  console.log(`${''.padEnd(width)}  ${'wall'.padStart(8)}  ${'instructions/s'.padStart(14)}  ${'x reference'.padStart(11)}`);
+  console.log(`${''.padEnd(width)}  ${'wall'.padStart(8)}  ${'instructions/s'.padStart(14)}  ${'x reference'.padStart(11)}  ${'by CPU time'.padStart(11)}  ${'x reference'.padStart(11)}`);
   for (const r of results) {
     const same = r.output === ref.output && r.instructions === ref.instructions ? '' : '  RESULTS DIFFER';
-    console.log(`${r.name.padEnd(width)}  ${(r.ms / 1000).toFixed(3).padStart(6)} s  ${millions(rate(r)).padStart(14)}  ${(rate(r) / rate(ref)).toFixed(3).padStart(11)}${same}`);
+    console.log(`${r.name.padEnd(width)}  ${(r.ms / 1000).toFixed(3).padStart(6)} s  ${millions(rate(r)).padStart(14)}  ${(rate(r) / rate(ref)).toFixed(3).padStart(11)}  ${millions(cpuRate(r)).padStart(11)}  ${(cpuRate(r) / cpuRate(ref)).toFixed(3).padStart(11)}${same}`);
   }
   if (typeof baseline === 'string') console.log(`no ratio against the built-in operations: ${baseline}`);
   else {
-    const best = (prefix: string) => Math.max(...results.filter((r) => r.name.startsWith(prefix)).map(rate));
-    const ratio = best('from definitions, compiled') / best('built-in');
-    console.log(`target >= 0.8 x the built-in operations' instructions per second (best of ${rounds} each): ${ratio >= 0.8 ? 'met' : 'MISSED'} (${ratio.toFixed(3)})`);
+    const best = (prefix: string, of: (m: Measured) => number) => Math.max(...results.filter((r) => r.name.startsWith(prefix)).map(of));
+    const ratio = best('from definitions, compiled', rate) / best('built-in', rate);
+    const cpuRatio = best('from definitions, compiled', cpuRate) / best('built-in', cpuRate);
+    console.log(`target >= 0.8 x the built-in operations' instructions per second (best of ${rounds} each): ${ratio >= 0.8 ? 'met' : 'MISSED'} (${ratio.toFixed(3)} by wall time, ${cpuRatio.toFixed(3)} by CPU time)`);
   }
   if (results.some((r) => r.output !== ref.output || r.instructions !== ref.instructions)) process.exit(1);
 }

@@ -19,7 +19,7 @@
 import type { CustomPart, Field, Machine, Strobe } from '../model/types';
 import type { Memory } from '../isa/memory';
 import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource, type PortNumber } from '../parts/behaviour';
-import type { InlineBinding } from '../parts/expr';
+import { formatExpression, type InlineBinding } from '../parts/expr';
 import { edgeInputName, type KindFlag } from '../parts/kinds';
 import { combinationalFlags } from '../model/flagFacts';
 import { customPortBusReads, partSetting } from '../model/buildCustomPart';
@@ -496,9 +496,21 @@ export class CustomParts {
     const compute: string[] = src.temps.length ? [`let ${src.temps.join(', ')};`] : [];
     const store: string[] = [];
     let bytes = 0;
+    const lanes = this.laneRun(spec, src.codes);
+    if (lanes) {
+      // The word, halfword or byte written in one access, as the byte stage would group it; an
+      // address run that wraps past 2^32 - 1 goes through the stage, which splits it as the board does.
+      const binding = this.binding(spec, site);
+      compute.push(`const ${p}a = ${src.codes[spec.assigns[lanes.first].index]};`, `const ${p}d = ${binding.name(edgeInputName)};`);
+      const size = lanes.n === 4 ? 2 : lanes.n === 2 ? 1 : 0;
+      const value = lanes.n === 4 ? `${p}d | 0` : `${p}d & ${2 ** (8 * lanes.n) - 1}`;
+      const staged = Array.from({ length: lanes.n }, (_, k) => `stageByte((${p}a + ${k}) >>> 0, (${p}d >>> ${8 * k}) & 0xff);`).join(' ');
+      store.push(`if (${p}a <= ${0xffffffff - (lanes.n - 1)}) state.storeMemory(${size}, ${p}a, ${value}); else { ${staged} }`);
+      bytes = lanes.n;
+    }
     spec.assigns.forEach((a, k) => {
       const when = a.when >= 0 ? src.codes[a.when] : '1';
-      if (when === '0') return;
+      if (when === '0' || (lanes && a.storage.in === IN_MEMORY)) return;
       compute.push(`const ${p}v${k} = ${src.codes[a.value]};`);
       if (when !== '1') compute.push(`const ${p}w${k} = ${when};`);
       if (a.index >= 0) compute.push(`const ${p}i${k} = ${src.codes[a.index]};`);
@@ -526,6 +538,37 @@ export class CustomParts {
       changesInputs = true;
     }
     return { compute, store, changesInputs, writesMemory: bytes > 0 };
+  }
+
+  /**
+   * The byte-memory writes of an edge port in one micro-op when they are one little-endian run
+   * of 1, 2 or 4 lanes: `m[a] <= in[7:0]`, `m[a + 1] <= in[15:8]`, ... with every condition
+   * folded to true by the step's controls and every other memory write folded away. Undefined
+   * otherwise (the bytes then go through the stage one by one).
+   */
+  private laneRun(spec: (typeof this.edgeSpecs)[number], codes: string[]): { first: number; n: number } | undefined {
+    const def = spec.rt.part.def;
+    const live = spec.assigns.map((a, k) => ({ a, k })).filter(({ a }) => a.storage.in === IN_MEMORY && (a.when < 0 || codes[a.when] !== '0'));
+    if (live.length === 0 || ![1, 2, 4].includes(live.length) || live.some(({ a }) => a.when >= 0 && codes[a.when] !== '1')) return undefined;
+    let base: string | undefined;
+    let first = -1;
+    const offsets = new Set<number>();
+    for (const { a, k } of live) {
+      const index = parsedExpr(def, spec.texts[a.index].text).expr;
+      const value = parsedExpr(def, spec.texts[a.value].text).expr;
+      if (!index || !value) return undefined;
+      const offset = index.kind === 'binary' && index.op === '+' && index.right.kind === 'number' ? Number(index.right.value) : 0;
+      const at = offset === 0 ? index : index.kind === 'binary' ? index.left : index;
+      const text = formatExpression(at);
+      if (base !== undefined && text !== base) return undefined;
+      base = text;
+      // The lane's byte of the bus value: in[8k+7:8k].
+      if (value.kind !== 'slice' || value.operand.kind !== 'name' || value.operand.name !== edgeInputName || value.lo !== 8 * offset || value.hi !== 8 * offset + 7) return undefined;
+      offsets.add(offset);
+      if (offset === 0) first = k;
+    }
+    for (let k = 0; k < live.length; k++) if (!offsets.has(k)) return undefined;
+    return first < 0 ? undefined : { first, n: live.length };
   }
 
   /** Stores what the edge ports computed and reads the flags. */
