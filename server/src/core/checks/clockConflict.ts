@@ -49,10 +49,10 @@ export const clockConflict: Check = {
   },
 };
 
-/** The states a strobe's edge port assigns (own kinds), or `[undefined]`: the whole part. */
+/** The states a strobe's edge port assigns, or `[undefined]`: the whole part. */
 function statesLoaded(machine: Machine, strobe: Strobe): (string | undefined)[] {
   const part = machine.parts.get(strobe.part!);
-  if (part?.kind !== 'custom' || strobe.kindPort === undefined) return [undefined];
+  if (!part || strobe.kindPort === undefined) return [undefined];
   const edge = part.def.edges.find((e) => e.name === strobe.kindPort);
   if (!edge) return [undefined];
   return [...new Set(edge.assigns.map((a) => a.target))];

@@ -1,6 +1,5 @@
 // Every part in the simulator runs from its kind's definition: a table's own kinds and the
-// standard library's alike (a library part is read as a part of its kind through
-// model/libraryParts.ts). Their behaviour is their kind's expressions, compiled to JavaScript per
+// standard library's alike (the model builds every part as a part of its kind). Their behaviour is their kind's expressions, compiled to JavaScript per
 // part and per control code (parts/behaviour.ts): closures for the interpreter, inlined source
 // for the compiled steps (sim/compile.ts), so the simulator runs exactly what the definition says.
 //
@@ -14,13 +13,13 @@
 // Timing (docs/notation.md, "Timing model"): a drive port is combinational for the whole step;
 // at the closing edge every edge port of every part computes from the values before the edge,
 // then all of them are stored at once, then the flags are read from the new state.
-import type { CustomPart, Field, Machine, Strobe } from '../model/types';
+import type { Part, Field, Machine, Strobe } from '../model/types';
 import type { Memory } from '../isa/memory';
 import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource, type PortNumber } from '../parts/behaviour';
 import type { InlineBinding } from '../parts/expr';
 import { edgeInputName } from '../parts/kinds';
-import { customPortBusReads, partSetting } from '../model/buildCustomPart';
-import { definedPortOf, definitionOf, strobePortNumber } from '../model/libraryParts';
+import { portBusReads, partSetting } from '../model/buildCustomPart';
+import { definedPortOf, strobePortNumber } from '../model/partFacts';
 import { lineMask } from '../model/busDrivers';
 
 /** What a compiled port reads from the running machine. */
@@ -50,7 +49,7 @@ interface Storage {
 }
 
 interface PartRuntime {
-  part: CustomPart;
+  part: Part;
   partNumber: number;
   /** Where each state is stored. */
   storage: Map<string, Storage>;
@@ -127,7 +126,7 @@ export class CustomParts {
     regfileIndex: ReadonlyMap<string, number> = new Map(),
   ) {
     for (const original of machine.parts.values()) {
-      const part = definitionOf(machine, original);
+      const part = original;
       const partNumber = partIndex.get(part.name)!;
       const rt: PartRuntime = { part, partNumber, storage: new Map(), widths: new Map(), arrays: new Map(), element: () => 0 };
       const roles = new Map(part.def.holds.map((h) => [h.state, h.role]));
@@ -203,7 +202,7 @@ export class CustomParts {
   static problems(machine: Machine): string[] {
     const out: string[] = [];
     for (const original of machine.parts.values()) {
-      const part = definitionOf(machine, original);
+      const part = original;
       for (const state of part.def.states) {
         if (sizeOf(state.width, part.settings) > 32) out.push(`part \`${part.name}\`: state \`${state.name}\` is wider than 32 bits, which the simulator does not hold yet`);
       }
@@ -213,7 +212,7 @@ export class CustomParts {
   }
 
 
-  private controlField(part: CustomPart, control: string): Field | undefined {
+  private controlField(part: Part, control: string): Field | undefined {
     const name = part.controlFields.get(control);
     const field = name ? this.machine.signals.get(name) : undefined;
     return field?.type === 'field' ? field : undefined;
@@ -272,7 +271,7 @@ export class CustomParts {
 
   /** Buses a port reads with this micro-op's control codes (they must be defined, and settle first). */
   private busReads(rt: PartRuntime, port: string, fields: ReadonlyMap<string, number>): number[] {
-    return customPortBusReads(rt.part, port, this.controlCodes(rt, fields)).map((b) => this.busIndex.get(b)!);
+    return portBusReads(rt.part, port, this.controlCodes(rt, fields)).map((b) => this.busIndex.get(b)!);
   }
 
   /**
@@ -504,7 +503,7 @@ type CompileText = Parameters<typeof compilePort>[2][number];
 
 
 /** A choice setting's choices by code (the names a `select` on it is keyed by). */
-function valuesOfChoice(part: CustomPart, name: string): ReadonlyMap<string, number> | undefined {
+function valuesOfChoice(part: Part, name: string): ReadonlyMap<string, number> | undefined {
   const setting = part.def.settings.find((s) => s.name === name);
   return setting?.type === 'choice' ? new Map(setting.choices.map((c, i) => [c, i])) : undefined;
 }
