@@ -3,7 +3,7 @@
 // indicator and all lit at once) against the supply budget, and for every step the longest
 // path from the control word changing to the closing clock edge, which bounds the step clock.
 // These are estimates from entered figures; real boards need margin and measurement.
-import { portBusReads } from '../model/buildCustomPart';
+import { portBusReads } from '../model/buildPart';
 import { inputWiring, isCombinationalPort, portOfStrobe } from '../model/partFacts';
 import type { Bus, Figures, Machine, Part, StepAlt, Strobe } from '../model/types';
 import type { Span } from '../text/span';

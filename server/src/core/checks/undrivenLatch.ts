@@ -1,13 +1,13 @@
 // undriven-latch / stale-latch: a part loads (clock, memory write, comparator clock) from a bus
 // that nothing drives in that step, directly or through a part whose port computes from an
 // undriven bus (an ALU's operand); which buses a port reads comes from the part's definition
-// (model/buildCustomPart.ts portBusReads), with the controls the step sets.
+// (model/buildPart.ts portBusReads), with the controls the step sets.
 // Line by line: a load of some lines (`clock result[7:0] -> acc`) needs just those driven, by
 // any mix of enables and connections, and only their drivers' own inputs are followed.
 // Without keepers the bus floats and the part stores noise (error); with keepers it stores the
 // last value some earlier step drove, which is rarely what was meant (warning).
 import type { Action, Machine, Part, StepAlt } from '../model/types';
-import { portBusReads } from '../model/buildCustomPart';
+import { portBusReads } from '../model/buildPart';
 import { portOfStrobe } from '../model/partFacts';
 import { drivenLines, lineMask, lineRanges, linesOf } from '../model/busDrivers';
 import { type Check, type CheckContext, driversByBus, strobeOf, writtenAlternatives } from './context';

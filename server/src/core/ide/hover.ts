@@ -294,7 +294,8 @@ function partHover(machine: Machine, part: Part): string {
   const strobes = [...machine.signals.values()].filter((s): s is Strobe => s.type === 'strobe' && s.part === part.name);
   const busLines = (s: Strobe) => (s.lines ? `[${s.lines.hi}:${s.lines.lo}]` : '');
   const wiring = (s: Strobe) => {
-    const port = s.port ? `.${s.port}` : '';
+    // The port each strobe uses, written or not: the part's hover is about its ports.
+    const port = s.kindPort ? `.${s.kindPort}` : '';
     if (s.kind === 'enable' || s.kind === 'read') return `\`${s.name}\` ${s.kind} ${part.name}${port} → \`${s.bus}${busLines(s)}\``;
     if (s.kind === 'clock' || s.kind === 'write') return s.bus ? `\`${s.name}\` ${s.kind} \`${s.bus}\` → ${part.name}${port}` : `\`${s.name}\` ${s.kind}`;
     return `\`${s.name}\` ${s.kind}`;

@@ -16,7 +16,7 @@ import { type FigureHost, figureInfo, figureNamesFor, figureRangeProblem, figure
 import { acceptableCodes, codeInfo } from '../checks/catalogue';
 import { buildKind } from '../parts/kinds';
 import { checkBehaviour, defaultSetting } from '../parts/behaviour';
-import { buildPartOfKind, portFor, partSetting } from './buildCustomPart';
+import { buildPartOfKind, portFor, partSetting } from './buildPart';
 import { liveControls, strobeWiring } from './partFacts';
 import { libraryKind, standardLibrary } from '../parts/library';
 

@@ -8,7 +8,7 @@ import { type Expr, children, formatExpression, namesUsed } from '../parts/expr'
 import { choiceCodes, compilePort, parsedExpr } from '../parts/behaviour';
 import type { KindAssign, KindDef, KindDrive, KindEdge } from '../parts/kinds';
 import type { PortNumber } from '../parts/behaviour';
-import { partSetting, portFor, sizeIn } from './buildCustomPart';
+import { partSetting, portFor, sizeIn } from './buildPart';
 import type { Machine, Part, Strobe, StrobeKind } from './types';
 
 /**

@@ -42,7 +42,7 @@ export type InputSource = { from: 'bus'; name: string } | { from: 'part'; name: 
 
 /**
  * A part: an instance of a part kind (the standard library's or the table's own, `kind`), read
- * from its part line against the kind's definition (model/buildCustomPart.ts). Everything the
+ * from its part line against the kind's definition (model/buildPart.ts). Everything the
  * checks, the simulator, the prover and the editor know about it comes from `def` and what the
  * part line and the fields set here; no layer asks which kind it is by name.
  */

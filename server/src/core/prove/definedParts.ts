@@ -10,7 +10,7 @@
 // instruction register, states, controls fixed by the step's field codes, choice settings, the
 // edge's `in`. What this cannot give is thrown as a ProverLimit, which the executor reports as
 // "not proved" with the reason.
-import { partSetting } from '../model/buildCustomPart';
+import { partSetting } from '../model/buildPart';
 import { definedPortOf, strobePortNumber } from '../model/partFacts';
 import type { Part, Field, Machine, Strobe } from '../model/types';
 import { parsedExpr, portExpressions, sizeOf, type PartSetting } from '../parts/behaviour';

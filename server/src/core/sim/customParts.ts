@@ -18,7 +18,7 @@ import type { Memory } from '../isa/memory';
 import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource, type PortNumber } from '../parts/behaviour';
 import type { InlineBinding } from '../parts/expr';
 import { edgeInputName } from '../parts/kinds';
-import { portBusReads, partSetting } from '../model/buildCustomPart';
+import { portBusReads, partSetting } from '../model/buildPart';
 import { definedPortOf, strobePortNumber } from '../model/partFacts';
 import { lineMask } from '../model/busDrivers';
 
