@@ -132,15 +132,15 @@ describe('declarations', () => {
         part r register 32
         part alu alu result result
         strobe x.rd.oe enable x.rd -> result
-        #                     ^^^^ wrong-wiring: the rd port is an input
+        #                     ^^^^ wrong-wiring: \`x.rd\` is an input
         strobe x.rs1.ck clock result -> x.rs1
         #                               ^^^^^ wrong-wiring: is an output
         strobe r.inc count r
-        #                  ^ wrong-wiring: only a counter counts
+        #                  ^ wrong-wiring: cannot count
         field r.mode 2 -> r { a=0 }
-        #                 ^ wrong-wiring: has no function to select
+        #                 ^ wrong-wiring: has no control for a field to drive
         field alu.fn 4 -> alu { add=0 plus=1 }
-        #                             ^^^^ wrong-wiring: means nothing to a alu part
+        #                             ^^^^ wrong-wiring: means nothing to control \`fn\` of part \`alu\` (kind \`alu\`)
       `),
       ['wrong-wiring'],
     );

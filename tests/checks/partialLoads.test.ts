@@ -87,7 +87,7 @@ describe('loads of some lines of a bus', () => {
           use fetch
           2: x.rs1.oe, lok.oe, s8.oe, alu.fn=add, kb0.ck
           3: x.rs1.oe, lok.oe, s8.oe, alu.fn=add, kb3.ck, pc.inc, done
-        #                                         ^^^^^^ stale-latch: the ALU output \`sum8\` on \`kept\` computed from bus \`right\`
+        #                                         ^^^^^^ stale-latch: the output \`sum8.y\` on \`kept\` computed from bus \`right\`
       `),
       CODES,
     );
@@ -109,8 +109,8 @@ describe('loads of some lines of a bus', () => {
     // width-mismatch spans the whole strobe line (column 0, which a caret annotation cannot mark).
     const widths = a.diagnostics.filter((d) => d.code === 'width-mismatch').map((d) => ({ line: a.lines.lineText(a.lines.position(d.span.start).line), message: d.message }));
     expect(widths).toEqual([
-      { line: 'strobe b8.ck   clock wide[15:0] -> b8', message: expect.stringContaining('`b8` is 8 bits wide but lines 15..0 of the bus `wide` are 16') },
-      { line: 'strobe x.lo    clock wide[7:0] -> x.rd', message: expect.stringContaining('`x` is 32 bits wide but lines 7..0 of the bus `wide` are 8') },
+      { line: 'strobe b8.ck   clock wide[15:0] -> b8', message: expect.stringContaining('`b8.load` is 8 bits wide but lines 15..0 of the bus `wide` are 16') },
+      { line: 'strobe x.lo    clock wide[7:0] -> x.rd', message: expect.stringContaining('`x.rd` is 32 bits wide but lines 7..0 of the bus `wide` are 8') },
     ]);
   });
 });

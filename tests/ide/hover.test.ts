@@ -237,7 +237,7 @@ describe('exact hover texts', () => {
         '- **settings** width=32; inc=4 (what a count strobe adds); bit0=zero (zero: bit 0 is always stored as 0 (RV32I jump targets need it)); reset=0 (value after reset)',
         // The ports of the library's counter with this part's bit0=zero: its select picks `in & ~1`.
         "- **ports** `out`: output, drives a bus through an enable strobe: the value it holds (`q`); `load`: input, loads a bus at a clock strobe's closing edge: loads the bus (`q <= in & ~1`); `count`: acts at a count strobe's closing edge: adds its increment (`q <= q + inc & ~1`, inc=4)",
-        '- **strobes** `pc.oe` enable pc → `left`; `pc.ck` clock `result` → pc; `pc.inc` count',
+        '- **strobes** `pc.oe` enable pc.out → `left`; `pc.ck` clock `result` → pc.load; `pc.inc` count',
       ].join('\n'),
     );
   });

@@ -126,7 +126,7 @@ describe('hover', () => {
         '- **kind** `memory` — memory port: reads and writes bytes, halfwords and words (little-endian, spec 2.6)',
         '- **settings** width=32; addr from part `mar` (the byte address: a register part or a bus); `size` from field `mem.size`',
         "- **ports** `data`: output, drives a bus through a read strobe: the data at the address, of the size the field selects; `write`: input, stores a bus at a write strobe's closing edge: stores the bus at the address, as many bytes as the size",
-        '- **strobes** `mem.rd` read mem → `result`; `mem.wr` write `right` → mem',
+        '- **strobes** `mem.rd` read mem.data → `result`; `mem.wr` write `right` → mem.write',
       ].join('\n'),
     );
   });

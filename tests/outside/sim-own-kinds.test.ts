@@ -67,7 +67,7 @@ describe.skipIf(!toolsPresent).each(EXAMPLES)('test programs through %s (kinds o
   it('declares kinds of its own and uses them, and checks clean', () => {
     const analysis = analyse(text);
     expect(analysis.diagnostics).toEqual([]);
-    expect([...analysis.machine.parts.values()].filter((p) => p.kind === 'custom').length).toBeGreaterThan(0);
+    expect([...analysis.machine.parts.values()].filter((p) => p.def.origin === 'table').length).toBeGreaterThan(0);
   });
 
   it.each(NAMES)('%s: same stdout and exit code, program stderr first, no divergence', (name) => {

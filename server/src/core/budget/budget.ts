@@ -3,9 +3,9 @@
 // indicator and all lit at once) against the supply budget, and for every step the longest
 // path from the control word changing to the closing clock edge, which bounds the step clock.
 // These are estimates from entered figures; real boards need margin and measurement.
-import { customPortBusReads } from '../model/buildCustomPart';
+import { portBusReads } from '../model/buildPart';
 import { combinationalFlags, type FlagFact } from '../model/flagFacts';
-import { definitionOf, inputWiring, isCombinationalPort, portOfStrobe } from '../model/partFacts';
+import { inputWiring, isCombinationalPort, portOfStrobe } from '../model/partFacts';
 import type { Bus, Figures, Machine, Part, StepAlt, Strobe } from '../model/types';
 import type { Span } from '../text/span';
 import type { KindDef } from '../parts/kinds';
@@ -322,7 +322,7 @@ function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, miss
   // The step's control word is complete when its slowest store's outputs are; each path starts
   // from the store holding its strobe, and a part with a control field from that field's store.
   const start = alt.actions.map((a) => access(a.signal)).reduce(later, access(undefined));
-  const control = (s: Strobe, part: Part) => [...definitionOf(machine, part).controlFields.values()].reduce((a, f) => later(a, access(f)), access(s.name));
+  const control = (s: Strobe, part: Part) => [...part.controlFields.values()].reduce((a, f) => later(a, access(f)), access(s.name));
   /**
    * Through the part: the latest of the buses its port reads (the arms its controls cannot pick
    * are left out) and its control fields, then its tpd_ns. Only a port that reads a control or a
@@ -331,10 +331,10 @@ function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, miss
   const throughPart = (s: Strobe, part: Part, depth: number): Arrival | undefined => {
     const port = portOfStrobe(machine, part, s);
     if (!port || depth >= 4 || !isCombinationalPort(machine, part, port)) return undefined;
-    const reads = customPortBusReads(definitionOf(machine, part), port.name, new Map());
+    const reads = portBusReads(part, port.name, new Map());
     const inputs = [...reads.map((b) => arrivalOnBus(b, depth + 1)), control(s, part)].filter((a): a is Arrival => !!a);
     const latest = inputs.reduce(later);
-    return { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} ${kindNoun(definitionOf(machine, part).def)}${port.drive ? '' : ` ${port.name}`}`, ns: need(part, 'tpd_ns') }] };
+    return { ns: latest.ns + need(part, 'tpd_ns'), segments: [...latest.segments, { what: `${part.name} ${kindNoun(part.def)}${port.drive ? '' : ` ${port.name}`}`, ns: need(part, 'tpd_ns') }] };
   };
   const busArrival = new Map<string, Arrival | undefined>();
   const arrivalOnBus = (busName: string, depth = 0): Arrival | undefined => {

@@ -11,10 +11,10 @@
 // its control fields in too. Decode maps whose inputs include the flag are not followed (a
 // field set from a map is compared by the map's name).
 import { driverNamed } from '../model/busDrivers';
-import { customPortBusReads } from '../model/buildCustomPart';
+import { portBusReads } from '../model/buildPart';
 import { combinationalFlags, flagBusReads, type FlagFact } from '../model/flagFacts';
-import { definitionOf, portOfStrobe } from '../model/partFacts';
-import type { CustomPart, Machine, StepAlt } from '../model/types';
+import { portOfStrobe } from '../model/partFacts';
+import type { Machine, Part, StepAlt } from '../model/types';
 import { type Check, type CheckContext, driversByBus } from './context';
 import { bitsOf, forEachScenario, guardInputs, matchingAlternatives, type Scenario } from './inputSpace';
 
@@ -64,7 +64,7 @@ interface InputPath {
 function inputPath(machine: Machine, fact: FlagFact, alt: StepAlt): InputPath {
   const path: InputPath = { buses: new Map(), fields: new Map() };
   /** Codes of a part's controls in this word (a control set from a map or by no field stays unknown: every arm counts). */
-  const codes = (part: CustomPart): Map<string, number> => {
+  const codes = (part: Part): Map<string, number> => {
     const out = new Map<string, number>();
     for (const [control, fieldName] of part.controlFields) {
       const field = machine.signals.get(fieldName);
@@ -91,9 +91,9 @@ function inputPath(machine: Machine, fact: FlagFact, alt: StepAlt): InputPath {
       const strobe = driverNamed(machine, action.signal);
       const original = strobe?.part ? machine.parts.get(strobe.part) : undefined;
       if (!strobe || !original) continue;
-      const part = definitionOf(machine, original);
+      const part = original;
       const port = portOfStrobe(machine, original, strobe);
-      if (port) pending.push(...customPortBusReads(part, port.name, codes(part)));
+      if (port) pending.push(...portBusReads(part, port.name, codes(part)));
     }
     path.buses.set(bus, names.sort());
   }

@@ -1,6 +1,6 @@
 // clock-conflict: a part loaded from two buses in one step, or a counter loaded and counted
 // at the same edge. One edge can do one thing to a register; which wins depends on the chip.
-// A part of the table's own kind may hold several registers (states): two of its edge ports
+// A part may hold several registers (states of its kind): two of its edge ports
 // conflict only when they assign the same state; ports on different states (a result register
 // and a carry flip-flop of one part) act side by side at one edge, as the simulator runs them.
 import type { Machine, Strobe } from '../model/types';
@@ -10,7 +10,7 @@ interface Load {
   signal: string;
   bus?: string;
   kind: string;
-  /** The edge port of a part of the table's own kind. */
+  /** The edge port of the part's kind. */
   port?: string;
   span: { start: number; end: number };
 }
@@ -37,7 +37,9 @@ export const clockConflict: Check = {
       for (const { part, state, list } of loads.values()) {
         if (list.length < 2) continue;
         const what = list.map((l) => describeLoad(part, l)).join(' and ');
-        const subject = state === undefined ? `\`${part}\` is` : `state \`${state}\` of \`${part}\` is`;
+        // The state is named where the part holds several (a result register and a carry flip-flop).
+        const several = (ctx.machine.parts.get(part)?.def.states.length ?? 0) > 1;
+        const subject = state === undefined || !several ? `\`${part}\` is` : `state \`${state}\` of \`${part}\` is`;
         ctx.report(
           'clock-conflict',
           list[1].span,
@@ -49,10 +51,10 @@ export const clockConflict: Check = {
   },
 };
 
-/** The states a strobe's edge port assigns (own kinds), or `[undefined]`: the whole part. */
+/** The states a strobe's edge port assigns, or `[undefined]`: the whole part. */
 function statesLoaded(machine: Machine, strobe: Strobe): (string | undefined)[] {
   const part = machine.parts.get(strobe.part!);
-  if (part?.kind !== 'custom' || strobe.kindPort === undefined) return [undefined];
+  if (!part || strobe.kindPort === undefined) return [undefined];
   const edge = part.def.edges.find((e) => e.name === strobe.kindPort);
   if (!edge) return [undefined];
   return [...new Set(edge.assigns.map((a) => a.target))];

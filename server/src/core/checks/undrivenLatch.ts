@@ -1,11 +1,14 @@
 // undriven-latch / stale-latch: a part loads (clock, memory write, comparator clock) from a bus
-// that nothing drives in that step, directly or through the ALU whose operand bus is undriven.
+// that nothing drives in that step, directly or through a part whose port computes from an
+// undriven bus (an ALU's operand); which buses a port reads comes from the part's definition
+// (model/buildPart.ts portBusReads), with the controls the step sets.
 // Line by line: a load of some lines (`clock result[7:0] -> acc`) needs just those driven, by
 // any mix of enables and connections, and only their drivers' own inputs are followed.
 // Without keepers the bus floats and the part stores noise (error); with keepers it stores the
 // last value some earlier step drove, which is rarely what was meant (warning).
-import type { Action, AluPart, CustomPart, Machine, StepAlt } from '../model/types';
-import { customPortBusReads } from '../model/buildCustomPart';
+import type { Action, Machine, Part, StepAlt } from '../model/types';
+import { portBusReads } from '../model/buildPart';
+import { portOfStrobe } from '../model/partFacts';
 import { drivenLines, lineMask, lineRanges, linesOf } from '../model/busDrivers';
 import { type Check, type CheckContext, driversByBus, strobeOf, writtenAlternatives } from './context';
 
@@ -32,17 +35,18 @@ export const undrivenLatch: Check = {
         if ((strobe.kind === 'clock' || strobe.kind === 'write') && strobe.bus) {
           need(strobe.bus, action, () => (strobe.kind === 'write' ? `\`${action.signal}\` writes bus \`${strobe.bus}\` to memory` : `\`${action.signal}\` loads \`${strobe.part}\` from bus \`${strobe.bus}\``), strobe.lines);
         }
-        if (strobe.kind === 'clock' && part?.kind === 'compare') {
-          need(part.a, action, () => `\`${action.signal}\` latches the comparison of \`${part.a}\` and \`${part.b}\``);
-          need(part.b, action, () => `\`${action.signal}\` latches the comparison of \`${part.a}\` and \`${part.b}\``);
-        }
-        if (part?.kind === 'custom' && strobe.kind !== 'enable' && strobe.kind !== 'read') {
-          for (const bus of customReadsIn(ctx.machine, alt, part, strobe.kindPort ?? '')) {
+        if (!part || strobe.kindPort === undefined) continue;
+        const port = portOfStrobe(ctx.machine, part, strobe);
+        if (port?.role === 'read' || port?.role === 'write') {
+          // A memory access needs its address (and whatever else the port reads) driven, even
+          // when nothing loads what a read gives.
+          for (const bus of readsIn(ctx.machine, alt, part, strobe.kindPort)) {
+            need(bus, action, () => `\`${action.signal}\` makes \`${part.name}\` access its memory with bus \`${bus}\` as an input`);
+          }
+        } else if (strobe.kind !== 'enable' && strobe.kind !== 'read') {
+          for (const bus of readsIn(ctx.machine, alt, part, strobe.kindPort)) {
             need(bus, action, () => `\`${action.signal}\` makes \`${part.name}\` compute from bus \`${bus}\` at the closing edge`);
           }
-        }
-        if ((strobe.kind === 'read' || strobe.kind === 'write') && part?.kind === 'memory' && part.addressFrom === 'bus') {
-          need(part.address, action, () => `\`${action.signal}\` takes its memory address from bus \`${part.address}\``);
         }
       }
     }
@@ -54,7 +58,7 @@ interface Undriven {
   keeper: boolean;
   /** The lines nobody drives when other lines of the bus are driven, e.g. `15..8`. */
   lines?: string;
-  /** Set when the bus is driven by the ALU but the ALU's operand bus is not. */
+  /** Set when the bus is driven by a part's port (an ALU's) that computes from a bus nothing drives. */
   via?: string;
 }
 
@@ -69,7 +73,7 @@ function undrivenReason(machine: Machine, alt: StepAlt, drivers: Map<string, Act
   const wanted = lineMask(want.hi, want.lo);
   const missing = wanted & ~drivenLines(machine, driving.map((a) => a.signal), bus);
   if (missing !== 0) return { bus, keeper: !!busInfo?.keeper, lines: lineRanges(missing) };
-  // A driver that computes from other buses (the ALU, a part of the table's own kind) needs
+  // A driver that computes from other buses (an ALU, a multiplexer) needs
   // them driven too, through any number of such parts (a loop is the settle check's business).
   // Only the drivers of the lines the reader takes matter: another byte lane may float.
   const key = needed ? `${bus}[${want.hi}:${want.lo}]` : bus;
@@ -80,15 +84,9 @@ function undrivenReason(machine: Machine, alt: StepAlt, drivers: Map<string, Act
     const lines = strobe && linesOf(machine, strobe);
     if (lines && (lineMask(lines.hi, lines.lo) & wanted) === 0) continue;
     const part = strobe?.part ? machine.parts.get(strobe.part) : undefined;
-    let reads: string[] = [];
-    let output = '';
-    if (part?.kind === 'custom') {
-      reads = customReadsIn(machine, alt, part, strobe!.kindPort ?? '');
-      output = `the output \`${part.name}.${strobe!.kindPort}\``;
-    } else if (part?.kind === 'alu') {
-      reads = aluOperandsUsed(machine, alt, part);
-      output = `the ALU output \`${part.name}\``;
-    }
+    if (!part || strobe!.kindPort === undefined) continue;
+    const reads = readsIn(machine, alt, part, strobe!.kindPort);
+    const output = `the output \`${part.name}.${strobe!.kindPort}\``;
     for (const operand of reads) {
       if (!drivers.get(operand)?.length) return { bus: operand, keeper: !!machine.buses.get(operand)?.keeper, via: `${output} on \`${bus}\`` };
       const deeper = undrivenReason(machine, alt, drivers, operand, seen);
@@ -99,11 +97,11 @@ function undrivenReason(machine: Machine, alt: StepAlt, drivers: Map<string, Act
 }
 
 /**
- * Buses a port of a part of the table's own kind reads in this step: a control the step sets to
+ * Buses a port of the part reads in this step: a control the step sets to
  * a value reads only the arm that value selects; one set from a map, or unset (its idle code),
  * counts every value it may hold.
  */
-function customReadsIn(machine: Machine, alt: StepAlt, part: CustomPart, port: string): string[] {
+function readsIn(machine: Machine, alt: StepAlt, part: Part, port: string): string[] {
   const known = new Map<string, number>();
   for (const [control, fieldName] of part.controlFields) {
     const field = machine.signals.get(fieldName);
@@ -112,34 +110,16 @@ function customReadsIn(machine: Machine, alt: StepAlt, part: CustomPart, port: s
     if (!action) known.set(control, field.idle);
     else if (action.value!.kind === 'code') known.set(control, action.value!.code);
   }
-  const reads = new Set(customPortBusReads(part, port, known));
+  const reads = new Set(portBusReads(part, port, known));
   // Controls set from a map: every value the map may give.
   for (const [control, fieldName] of part.controlFields) {
     const action = alt.actions.find((a) => a.signal === fieldName && a.value?.kind === 'map');
     if (!action || action.value!.kind !== 'map') continue;
     for (const row of machine.maps.get(action.value!.map)?.rows ?? []) {
-      for (const bus of customPortBusReads(part, port, new Map([...known, [control, row.code]]))) reads.add(bus);
+      for (const bus of portBusReads(part, port, new Map([...known, [control, row.code]]))) reads.add(bus);
     }
   }
   return [...reads];
-}
-
-/** Operand buses the ALU's function in this step reads: pass-throughs read one, the rest both. */
-function aluOperandsUsed(machine: Machine, alt: StepAlt, alu: AluPart): string[] {
-  if (!alu.controlField) return [alu.a, alu.b];
-  const field = machine.signals.get(alu.controlField);
-  if (field?.type !== 'field') return [alu.a, alu.b];
-  const action = alt.actions.find((a) => a.signal === field.name && a.value);
-  let ops: string[];
-  if (!action) ops = [...field.values.values()].filter((v) => v.code === field.idle).map((v) => v.name);
-  else if (action.value!.kind === 'code') ops = [action.value!.name];
-  else ops = (machine.maps.get(action.value!.map)?.rows ?? []).map((r) => r.value);
-  const used = new Set<string>();
-  for (const op of ops.length ? ops : ['add']) {
-    if (op !== 'passb') used.add(alu.a);
-    if (op !== 'passa') used.add(alu.b);
-  }
-  return [...used];
 }
 
 function report(ctx: CheckContext, alt: StepAlt, owner: string, action: Action, what: string, problem: Undriven): void {

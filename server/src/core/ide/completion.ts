@@ -12,7 +12,7 @@ import type { Decl } from '../syntax/ast';
 import { declarationKeywords } from '../syntax/ast';
 import type { Field, Machine, Part, Strobe, StrobeKind } from '../model/types';
 import { strobeKinds } from '../model/vocabulary';
-import { controlOfTarget, definitionOf, fieldValueMeaning, heldValue, strobeTargets, valueMeaning } from '../model/partFacts';
+import { controlOfTarget, fieldValueMeaning, heldValue, strobeTargets, valueMeaning } from '../model/partFacts';
 import { standardLibrary } from '../parts/library';
 import type { KindDef } from '../parts/kinds';
 import { scan } from '../syntax/scanner';
@@ -176,7 +176,7 @@ function busItems(machine: Machine): CompletionEntry[] {
 }
 
 function partItem(machine: Machine, part: Part): CompletionEntry {
-  const kind = definitionOf(machine, part).def;
+  const kind = part.def;
   return { label: part.name, kind: 'part', detail: `part · ${kind.name}`, documentation: [part.description, partKindText(machine, kind.name)].filter(Boolean).join('\n\n') };
 }
 
@@ -289,7 +289,7 @@ function inDeclarationLine(analysis: Analysis, keyword: string, tokens: Token[],
         const decl = enclosingDeclAt(analysis, offset);
         return decl?.kind === 'field' ? decl.values.map((v) => ({ label: v.name.text, kind: 'value' as const, detail: v.code ? `code ${v.code.text}` : undefined })) : [];
       }
-      if (last.kind === T.Arrow) return [...machine.parts.values()].filter((p) => definitionOf(machine, p).def.controls.length > 0).map((p) => partItem(machine, p));
+      if (last.kind === T.Arrow) return [...machine.parts.values()].filter((p) => p.def.controls.length > 0).map((p) => partItem(machine, p));
       const decl = enclosingDeclAt(analysis, offset);
       if (decl?.kind === 'field' && decl.open && decl.open.end <= offset && (!decl.close || decl.close.start >= offset)) return fieldValueNames(analysis, decl, tokens);
       if (tokens.length >= 3 && !tokens.some((t) => t.kind === T.LBrace)) {

@@ -6,7 +6,7 @@
 import type { Machine, Part, Strobe, StrobeKind, WordLayout } from '../model/types';
 import { strobeKindDescriptions } from '../model/vocabulary';
 import { standardLibrary } from '../parts/library';
-import { type PortFact, definitionOf, inputsOf, inputsReadBy, portText, portsOf, settingsReadBy, strobeWiring } from '../model/partFacts';
+import { type PortFact, inputsOf, inputsReadBy, portText, portsOf, settingsReadBy, strobeWiring } from '../model/partFacts';
 
 /** What a part kind is: its definition's description (the table's own kinds, then the library's). */
 export function partKindText(machine: Machine | undefined, kind: string): string {
@@ -17,7 +17,7 @@ export function partKindText(machine: Machine | undefined, kind: string): string
 
 /** The kind of a part, in words: its name and description. */
 export function partKindLine(machine: Machine, part: Part): string {
-  const def = definitionOf(machine, part).def;
+  const def = part.def;
   return `\`${def.name}\`${def.origin === 'table' ? ' (of this table)' : ''}${def.description ? ` — ${def.description}` : ''}`;
 }
 
@@ -159,7 +159,7 @@ export function portLine(machine: Machine, part: Part, port: PortFact): string {
 
 /** The ports of a part, for hovers: name, direction and what it carries, from its kind's definition. */
 export function partPorts(machine: Machine, part: Part): string[] {
-  const defined = definitionOf(machine, part);
+  const defined = part;
   const lines = portsOf(machine, part).map((p) => portLine(machine, part, p));
   for (const flag of defined.def.flags) lines.push(`\`${flag.name}\`: flag \`${defined.flagNames.get(flag.name) ?? flag.name}\` (\`${flag.expr.text}\`), an address input`);
   const numbered = defined.def.states.find((s) => typeof s.count === 'object');
@@ -174,7 +174,7 @@ export function portInputs(machine: Machine, part: Part, port: PortFact): string
 
 /** The settings of a part as written or defaulted, and where its inputs come from, for hovers. */
 export function partSettings(machine: Machine, part: Part): string[] {
-  const defined = definitionOf(machine, part);
+  const defined = part;
   const out: string[] = [];
   for (const setting of defined.def.settings) {
     const value = defined.settings.get(setting.name);

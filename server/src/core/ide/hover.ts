@@ -9,7 +9,7 @@ import type { Analysis } from '../analysis';
 import { kindSource } from '../parts/kinds';
 import { standardLibraryText } from '../parts/library';
 import { RV32I_INSTRUCTIONS, majorOpcodeOf } from '../isa/rv32i';
-import { definitionOf, fieldValueMeaning, inputsOf, liveControls, portOfStrobe, portsOf, settingsReadBy } from '../model/partFacts';
+import { fieldValueMeaning, inputsOf, liveControls, portOfStrobe, portsOf, settingsReadBy } from '../model/partFacts';
 import { T } from '../syntax/tokens';
 import { flagFacts } from '../model/flagFacts';
 import type { Bus, ClassDef, DecodeMap, Field, FieldValue, Flag, Machine, Part, Phase, Store, Strobe, SymbolInfo, WordLayout } from '../model/types';
@@ -185,7 +185,7 @@ function strobeEffect(machine: Machine, strobe: Strobe, part: Part | undefined):
   if (strobe.kind === 'trap') return 'stops the clock and hands the instruction to the environment (the monitor, or the simulator\'s ecall/ebreak service)';
   const port = part ? portOfStrobe(machine, part, strobe) : undefined;
   if (!part || (!port && strobe.register === undefined)) return `\`${strobe.part}\` ${strobe.kind === 'enable' || strobe.kind === 'read' ? `drives bus \`${strobe.bus}\`` : 'acts'} (its port is not known)`;
-  const who = strobe.register !== undefined ? `register ${strobe.register} of \`${part.name}\`` : `\`${part.name}${strobe.port || strobe.kindPort ? `.${port!.name}` : ''}\``;
+  const who = strobe.register !== undefined ? `register ${strobe.register} of \`${part.name}\`` : `\`${part.name}${strobe.port ? `.${port!.name}` : ''}\``;
   const what = port?.description ? ` (${port.description})` : '';
   const inputs = port ? portInputs(machine, part, port) : [];
   const settings = port ? settingsReadBy(machine, part, port) : [];
@@ -199,7 +199,7 @@ function strobeEffect(machine: Machine, strobe: Strobe, part: Part | undefined):
       return `bus \`${strobe.bus}\` is stored into ${who}${what} at the step's closing edge${tail}`;
     case 'clock':
       if (!strobe.bus) {
-        const defined = definitionOf(machine, part);
+        const defined = part;
         const targets = new Set(port?.edge?.assigns.map((a) => a.target) ?? []);
         const flags = defined.def.flags.filter((f) => [...targets].some((t) => new RegExp(`\\b${t}\\b`).test(f.expr.text))).map((f) => `\`${defined.flagNames.get(f.name) ?? f.name}\``);
         return `${who}${what} latches ${flags.length ? `flag ${flags.join(', ')}` : [...targets].map((t) => `\`${t}\``).join(', ')} at the closing edge${tail}`;
@@ -248,10 +248,10 @@ function busHover(machine: Machine, bus: Bus): string {
   const drivers = strobes.filter((s) => s.kind === 'enable' || s.kind === 'read');
   const loads = strobes.filter((s) => s.kind === 'clock' || s.kind === 'write');
   const lineText = (s: Strobe) => (s.lines ? (s.lines.hi === s.lines.lo ? ` line ${s.lines.hi}` : ` lines ${s.lines.hi}..${s.lines.lo}`) : '');
-  const wired = (s: Strobe) => `\`${s.name}\` (${s.part}${s.port ? `.${s.port}` : s.kindPort ? `.${s.kindPort}` : ''}${s.lines ? `,${lineText(s)}` : ''})`;
+  const wired = (s: Strobe) => `\`${s.name}\` (${s.part}${s.port ? `.${s.port}` : ''}${s.lines ? `,${lineText(s)}` : ''})`;
   lines.push(`- **driven by** ${drivers.length ? drivers.map(wired).join(', ') : 'no strobe'}`);
   const connections = machine.connections.filter((c) => c.bus === bus.name);
-  if (connections.length) lines.push(`- **always driven by** ${connections.map((c) => `\`${c.part}${c.kindPort ? `.${c.kindPort}` : ''}\`${lineText(c)}`).join(', ')} (\`connect\`: in every step)`);
+  if (connections.length) lines.push(`- **always driven by** ${connections.map((c) => `\`${c.part}${c.port ? `.${c.port}` : ''}\`${lineText(c)}`).join(', ')} (\`connect\`: in every step)`);
   lines.push(`- **loaded by** ${loads.length ? loads.map(wired).join(', ') : 'no strobe'}`);
   // Parts whose inputs are wired to the bus, with the inputs it feeds.
   const readers = [...machine.parts.values()].flatMap((p) => {
@@ -293,14 +293,15 @@ function partHover(machine: Machine, part: Part): string {
   const strobes = [...machine.signals.values()].filter((s): s is Strobe => s.type === 'strobe' && s.part === part.name);
   const busLines = (s: Strobe) => (s.lines ? `[${s.lines.hi}:${s.lines.lo}]` : '');
   const wiring = (s: Strobe) => {
-    const port = s.port ? `.${s.port}` : s.kindPort ? `.${s.kindPort}` : '';
+    // The port each strobe uses, written or not: the part's hover is about its ports.
+    const port = s.kindPort ? `.${s.kindPort}` : '';
     if (s.kind === 'enable' || s.kind === 'read') return `\`${s.name}\` ${s.kind} ${part.name}${port} → \`${s.bus}${busLines(s)}\``;
     if (s.kind === 'clock' || s.kind === 'write') return s.bus ? `\`${s.name}\` ${s.kind} \`${s.bus}\` → ${part.name}${port}` : `\`${s.name}\` ${s.kind}`;
     return `\`${s.name}\` ${s.kind}`;
   };
   lines.push(`- **strobes** ${strobes.length ? strobes.map(wiring).join('; ') : 'none wired to it'}`);
   // The controls its settings leave in use and no field drives yet: what a field may choose.
-  const defined = definitionOf(machine, part);
+  const defined = part;
   for (const control of liveControls(machine, part)) {
     if (defined.controlFields.has(control.name)) continue;
     const target = defined.def.controls.length === 1 ? part.name : `${part.name}.${control.name}`;
@@ -330,7 +331,7 @@ function flagHover(machine: Machine, flag: Flag): string {
 
 /** How a part's flag is made: its definition's flag line and the edge ports that set what it reads. */
 function flagSource(machine: Machine, part: Part, flagName: string): string {
-  const defined = definitionOf(machine, part);
+  const defined = part;
   const flag = defined.def.flags.find((f) => (defined.flagNames.get(f.name) ?? f.name) === flagName);
   if (!flag) return '';
   const setters = portsOf(machine, part).filter((p) => p.edge?.assigns.some((a) => new RegExp(`\\b${a.target}\\b`).test(flag.expr.text)));

@@ -10,13 +10,14 @@ import { closest } from '../text/suggest';
 import { chipType, knownChipNames } from './chips';
 import { parseBits, parseNumber } from './numbers';
 import type * as M from './types';
-import { controlVocabulary, instructionFields, partKinds, strobeKinds } from './vocabulary';
+import { instructionFields, partKinds, strobeKinds } from './vocabulary';
 import { buildBodies } from './buildSteps';
 import { type FigureHost, figureInfo, figureNamesFor, figureRangeProblem, figureTextProblem, parseFigureValue } from '../budget/figures';
 import { acceptableCodes, codeInfo } from '../checks/catalogue';
 import { buildKind } from '../parts/kinds';
 import { checkBehaviour, defaultSetting } from '../parts/behaviour';
-import { buildCustomPart, customPortFor, partSetting } from './buildCustomPart';
+import { buildPartOfKind, portFor, partSetting } from './buildPart';
+import { liveControls, strobeWiring } from './partFacts';
 import { libraryKind, standardLibrary } from '../parts/library';
 
 export interface BuildResult {
@@ -271,7 +272,7 @@ function declareAll(ctx: BuildContext, tree: A.FileNode): void {
         break;
     }
   }
-  // Flags are declared by the parts that produce them (`-> taken`); a flag of a table's own kind
+  // Flags are declared by the parts that produce them (`-> taken`); a flag of the part's kind
   // that the part line does not name is called PART.FLAG (`cnt.zero`).
   for (const decl of tree.decls) {
     if (decl.kind !== 'part' || !decl.name || ctx.lookup('structure', decl.name.text)?.declSpan !== decl.span) continue;
@@ -283,8 +284,8 @@ function declareAll(ctx: BuildContext, tree: A.FileNode): void {
         if (symbol) ctx.machine.flags.set(arg.target.text, { name: arg.target.text, part: decl.name.text, symbol });
       }
     }
-    const own = decl.partKind && ctx.lookup('kind', decl.partKind.text) && !ctx.lookup('kind', decl.partKind.text)!.origin ? ctx.machine.kinds.get(decl.partKind.text) : undefined;
-    for (const flag of own?.flags.slice(arrows) ?? []) {
+    const kind = decl.partKind ? ctx.machine.kinds.get(decl.partKind.text) : undefined;
+    for (const flag of kind?.flags.slice(arrows) ?? []) {
       const flagName = `${decl.name.text}.${flag.name}`;
       // Not written anywhere: an empty span at the part's name keeps it out of the editor's occurrences.
       const symbol = ctx.declare('flag', { text: flagName, span: { start: decl.name.span.end, end: decl.name.span.end } }, decl.span);
@@ -356,50 +357,6 @@ function buildBus(ctx: BuildContext, decl: A.BusDecl): void {
   });
 }
 
-interface PartArgs {
-  numbers: A.Literal[];
-  words: A.Name[];
-  options: Map<string, A.OptionNode>;
-  arrow?: { target?: A.Name; span: Span };
-  figureOptions: A.OptionNode[];
-}
-
-function splitArgs(ctx: BuildContext, decl: A.PartDecl, allowedOptions: string[]): PartArgs {
-  const args: PartArgs = { numbers: [], words: [], options: new Map(), figureOptions: [] };
-  for (const arg of decl.args) {
-    if (arg.kind === 'number') args.numbers.push(arg.value);
-    else if (arg.kind === 'word') args.words.push(arg.name);
-    else if (arg.kind === 'arrow') args.arrow = { target: arg.target, span: arg.span };
-    else if (allowedOptions.includes(arg.option.key.text)) args.options.set(arg.option.key.text, arg.option);
-    else if (figureInfo(arg.option.key.text)?.hosts.includes('part')) args.figureOptions.push(arg.option);
-    else {
-      const guess = closest(arg.option.key.text, [...allowedOptions, ...figureNamesFor('part')]);
-      ctx.report(
-        'unknown-kind',
-        arg.option.key.span,
-        `a ${decl.partKind?.text} part has no setting \`${arg.option.key.text}\`` +
-          (guess ? `; did you mean \`${guess}\`?` : allowedOptions.length ? `; it takes ${allowedOptions.map((o) => `\`${o}=\``).join(', ')}` : ''),
-      );
-    }
-  }
-  return args;
-}
-
-function optionText(option: A.OptionNode | undefined): string | undefined {
-  return option?.value?.text;
-}
-
-function optionNumber(ctx: BuildContext, option: A.OptionNode | undefined, what: string, fallback: number): number {
-  if (!option) return fallback;
-  if (!option.value || !('text' in option.value)) return fallback;
-  const value = parseNumber(option.value.text);
-  if (value === undefined || value > 0xffffffff) {
-    ctx.report('bad-number', option.value.span, `${what} must be a number from 0 to 0xFFFFFFFF`);
-    return fallback;
-  }
-  return value;
-}
-
 function busArg(ctx: BuildContext, name: A.Name | undefined, role: string, partName: string): string | undefined {
   if (!name) {
     return undefined;
@@ -414,138 +371,24 @@ function busArg(ctx: BuildContext, name: A.Name | undefined, role: string, partN
 function buildPart(ctx: BuildContext, decl: A.PartDecl): void {
   if (!owns(ctx, 'structure', decl.name, decl.span) || !decl.partKind) return;
   const name = decl.name!.text;
-  const kindText = decl.partKind.text as M.PartKind;
+  const kindText = decl.partKind.text;
   const kindSymbol = ctx.lookup('kind', kindText);
   if (kindSymbol) ctx.reference(decl.partKind.span, kindSymbol);
-  const ownKind = kindSymbol && !kindSymbol.origin ? ctx.machine.kinds.get(kindText) : undefined;
-  if (kindSymbol && !kindSymbol.origin) {
-    if (!ownKind) return; // its definition could not be read; that is reported there
-    const symbol = ctx.lookup('structure', name)!;
-    const part = buildCustomPart(ctx, decl, ownKind, { name, description: decl.description?.value, symbol }, (options) => readFigures(ctx, options, 'part'));
-    if (part) ctx.machine.parts.set(name, part);
-    return;
-  }
-  if (!partKinds.includes(kindText)) {
-    const guess = closest(decl.partKind.text, [...partKinds, ...ctx.machine.kinds.keys()]);
+  const def = ctx.machine.kinds.get(kindText);
+  if (!def) {
+    if (kindSymbol) return; // a table's kind whose definition could not be read; that is reported there
+    const guess = closest(decl.partKind.text, [...ctx.machine.kinds.keys()]);
     ctx.report(
       'unknown-kind',
       decl.partKind.span,
-      `\`${decl.partKind.text}\` is not a part kind` + (guess ? `; did you mean \`${guess}\`?` : `; use one of ${partKinds.join(', ')}`),
+      `\`${decl.partKind.text}\` is not a part kind` + (guess ? `; did you mean \`${guess}\`?` : `; use one of ${partKinds.join(', ')} or declare it with \`kind\``),
       undefined,
       guess ? [{ title: `Change to \`${guess}\``, edits: [{ span: decl.partKind.span, newText: guess }], preferred: true }] : undefined,
     );
     return;
   }
   const symbol = ctx.lookup('structure', name)!;
-  const base = { name, description: decl.description?.value, symbol };
-  const widthOf = (args: PartArgs, fallback: number) => (args.numbers[0] ? (ctx.number(args.numbers[0], 'a part width', 1, 64) ?? fallback) : fallback);
-  const tooMany = (args: PartArgs, numbers: number, words: number) => {
-    for (const extra of args.numbers.slice(numbers)) ctx.report('wrong-wiring', extra.span, `a ${kindText} part takes ${numbers ? 'one width' : 'no number'} here; remove \`${extra.text}\``);
-    for (const extra of args.words.slice(words)) ctx.report('wrong-wiring', extra.span, `unexpected \`${extra.text}\` in a ${kindText} part`);
-    if (args.arrow && kindText !== 'compare') ctx.report('wrong-wiring', args.arrow.span, `only a comparator produces a flag with \`->\``);
-  };
-  let part: M.Part | undefined;
-  switch (kindText) {
-    case 'regfile': {
-      const args = splitArgs(ctx, decl, ['x0']);
-      const words = args.words[0]?.text === 'from' ? args.words.slice(2) : args.words;
-      tooMany({ ...args, words }, 1, 0);
-      const x0Text = optionText(args.options.get('x0')) ?? 'hardwired';
-      if (!['hardwired', 'stored', 'guarded'].includes(x0Text)) {
-        ctx.report('unknown-kind', args.options.get('x0')!.span, '`x0=` takes `hardwired` (reads 0, ignores writes), `stored` (a real register) or `guarded` (stored, clock blocked when rd is 0)');
-      }
-      part = { ...base, kind: 'regfile', width: widthOf(args, 32), x0: (['hardwired', 'stored', 'guarded'].includes(x0Text) ? x0Text : 'hardwired') as M.RegfilePart['x0'], figures: readFigures(ctx, args.figureOptions, 'part') };
-      break;
-    }
-    case 'register':
-    case 'instruction': {
-      const args = splitArgs(ctx, decl, ['reset']);
-      tooMany(args, 1, 0);
-      part = { ...base, kind: kindText, width: widthOf(args, 32), reset: optionNumber(ctx, args.options.get('reset'), 'the reset value', 0), figures: readFigures(ctx, args.figureOptions, 'part') };
-      break;
-    }
-    case 'counter': {
-      const args = splitArgs(ctx, decl, ['inc', 'bit0', 'reset']);
-      tooMany(args, 1, 0);
-      const bit0 = optionText(args.options.get('bit0'));
-      if (bit0 !== undefined && bit0 !== 'zero' && bit0 !== 'kept') ctx.report('unknown-kind', args.options.get('bit0')!.span, '`bit0=` takes `zero` (bit 0 always stored as 0, as RV32I jumps need) or `kept`');
-      part = {
-        ...base,
-        kind: 'counter',
-        width: widthOf(args, 32),
-        increment: optionNumber(ctx, args.options.get('inc'), 'the increment', 4),
-        bit0Zero: bit0 === 'zero',
-        reset: optionNumber(ctx, args.options.get('reset'), 'the reset value', 0),
-        figures: readFigures(ctx, args.figureOptions, 'part'),
-      };
-      break;
-    }
-    case 'immediate': {
-      const args = splitArgs(ctx, decl, []);
-      let source: string | undefined;
-      let words = args.words;
-      if (words[0]?.text === 'from') {
-        const sourceName = words[1];
-        words = words.slice(2);
-        if (!sourceName) ctx.report('wrong-wiring', args.words[0].span, 'name the instruction register after `from`, e.g. `from ir`');
-        else {
-          const sym = ctx.resolve('structure', sourceName, 'part', (s) => s.kind === 'part');
-          if (sym) source = sourceName.text;
-        }
-      }
-      tooMany({ ...args, words }, 1, 0);
-      part = { ...base, kind: 'immediate', width: widthOf(args, 32), source: source ?? '', figures: readFigures(ctx, args.figureOptions, 'part') };
-      break;
-    }
-    case 'alu':
-    case 'compare': {
-      const args = splitArgs(ctx, decl, kindText === 'compare' ? ['cond'] : []);
-      tooMany(args, 0, 2);
-      if (args.words.length < 2) {
-        ctx.report('wrong-wiring', decl.partKind.span, `a ${kindText === 'alu' ? 'ALU' : 'comparator'} needs its two operand buses, e.g. \`part ${name} ${kindText} left right\``);
-        return;
-      }
-      const a = busArg(ctx, args.words[0], 'first operand', name);
-      const b = busArg(ctx, args.words[1], 'second operand', name);
-      if (!a || !b) return;
-      const width = ctx.machine.buses.get(a)?.width ?? 32;
-      if (kindText === 'alu') {
-        part = { ...base, kind: 'alu', width, a, b, figures: readFigures(ctx, args.figureOptions, 'part') };
-      } else {
-        if (!args.arrow?.target) {
-          ctx.report('wrong-wiring', decl.partKind.span, `a comparator latches a flag: name it, e.g. \`part ${name} compare ${a} ${b} -> taken\``);
-          return;
-        }
-        const cond = optionText(args.options.get('cond'));
-        if (cond !== undefined && cond !== 'funct3' && cond !== 'field') ctx.report('unknown-kind', args.options.get('cond')!.span, '`cond=` takes `funct3` (the branch condition wired from the instruction) or `field` (the default: a field `-> ' + name + '` chooses it)');
-        part = { ...base, kind: 'compare', width, a, b, flag: args.arrow.target.text, condition: cond === 'funct3' ? 'funct3' : 'field', figures: readFigures(ctx, args.figureOptions, 'part') };
-      }
-      break;
-    }
-    case 'memory': {
-      const args = splitArgs(ctx, decl, ['addr']);
-      tooMany(args, 1, 0);
-      const addrOption = args.options.get('addr');
-      const addrName = addrOption?.value && !/^[0-9]/.test(addrOption.value.text) ? (addrOption.value as A.Name) : undefined;
-      if (!addrName) {
-        ctx.report('wrong-wiring', addrOption?.span ?? decl.partKind.span, `a memory port needs its address source, e.g. \`addr=mar\` (a register) or \`addr=result\` (a bus)`);
-        return;
-      }
-      const sym = ctx.resolve('structure', addrName, 'part or bus', (s) => s.kind === 'part' || s.kind === 'bus');
-      if (!sym) return;
-      part = { ...base, kind: 'memory', width: widthOf(args, 32), address: addrName.text, addressFrom: sym.kind === 'bus' ? 'bus' : 'part', figures: readFigures(ctx, args.figureOptions, 'part') };
-      break;
-    }
-    case 'constant': {
-      const args = splitArgs(ctx, decl, ['value']);
-      tooMany(args, 1, 0);
-      if (!args.options.get('value')) {
-        ctx.report('wrong-wiring', decl.partKind.span, `a constant needs its value, e.g. \`part ${name} constant 32 value=4\``);
-      }
-      part = { ...base, kind: 'constant', width: widthOf(args, 32), value: optionNumber(ctx, args.options.get('value'), 'the constant', 0), figures: readFigures(ctx, args.figureOptions, 'part') };
-      break;
-    }
-  }
+  const part = buildPartOfKind(ctx, decl, def, { name, description: decl.description?.value, symbol }, (options) => readFigures(ctx, options, 'part'));
   if (part) ctx.machine.parts.set(name, part);
 }
 
@@ -556,7 +399,7 @@ function buildPart(ctx: BuildContext, decl: A.PartDecl): void {
  */
 function checkKindBehaviours(ctx: BuildContext): void {
   const seen = new Set<string>();
-  const report = (d: Diagnostic, part?: M.CustomPart) => {
+  const report = (d: Diagnostic, part?: M.Part) => {
     const key = `${d.code}@${d.span.start}-${d.span.end}`;
     if (seen.has(key)) return;
     seen.add(key);
@@ -567,14 +410,19 @@ function checkKindBehaviours(ctx: BuildContext): void {
     const defaults = defaultSetting(kind);
     if (defaults) checkBehaviour(kind, defaults, (d) => report(d));
   }
+  // The library's kinds are checked clean with their defaults by a test; their spans are in the library's text.
   for (const part of ctx.machine.parts.values()) {
-    if (part.kind === 'custom') checkBehaviour(part.def, partSetting(ctx.machine, part), (d) => report(d, part));
+    if (part.def.origin === 'table') checkBehaviour(part.def, partSetting(ctx.machine, part), (d) => report(d, part));
   }
 }
 
-/** Checks what needs every part and field: the IR, immediate sources, comparator conditions. */
+/**
+ * What needs every part and field: the instruction register (the part whose kind `holds
+ * instruction`), inputs that read the instruction wired to it, and controls the part's settings
+ * leave read that no field drives and that have no default.
+ */
 function finishParts(ctx: BuildContext, tree: A.FileNode): void {
-  const irs = [...ctx.machine.parts.values()].filter((p) => p.kind === 'instruction');
+  const irs = [...ctx.machine.parts.values()].filter((p) => p.def.holds.some((h) => h.role === 'instruction'));
   if (irs.length === 1) ctx.machine.instructionRegister = irs[0].name;
   else if (irs.length > 1) {
     for (const extra of irs.slice(1)) {
@@ -582,20 +430,66 @@ function finishParts(ctx: BuildContext, tree: A.FileNode): void {
     }
     ctx.machine.instructionRegister = irs[0].name;
   }
+  const ir = ctx.machine.instructionRegister;
+  const irKinds = [...ctx.machine.kinds.values()].filter((k) => k.holds.some((h) => h.role === 'instruction')).map((k) => k.name);
   for (const part of ctx.machine.parts.values()) {
-    if (part.kind === 'immediate' && part.source) {
-      const source = ctx.machine.parts.get(part.source);
-      if (source && source.kind !== 'instruction') ctx.report('wrong-wiring', part.symbol.declSpan, `the immediate generator must take its bits from the instruction register, not from the ${source.kind} \`${source.name}\``);
+    for (const input of part.def.inputs) {
+      if (!input.readsInstruction) continue;
+      const source = part.inputs.get(input.name);
+      if (!ir) {
+        ctx.report('wrong-wiring', part.symbol.span, `${partPhrase(part)} reads instruction fields (input \`${input.name}\`): declare an instruction register, e.g. \`part ir ${irKinds[0] ?? 'KIND'} 32\``);
+        break;
+      }
+      if (source?.from === 'part' && source.name !== ir) {
+        const other = ctx.machine.parts.get(source.name);
+        ctx.report('wrong-wiring', part.symbol.declSpan, `input \`${input.name}\` of \`${part.name}\` reads the instruction: take it from the instruction register \`${ir}\`, not from ${other ? partPhrase(other) : `\`${source.name}\``}`);
+      } else if (source?.from === 'bus') {
+        ctx.report('wrong-wiring', part.symbol.declSpan, `input \`${input.name}\` of \`${part.name}\` reads the instruction: take it from the instruction register \`${ir}\`, not from the bus \`${source.name}\``);
+      }
     }
-    if (part.kind === 'immediate' && !part.source && ctx.machine.instructionRegister) part.source = ctx.machine.instructionRegister;
-    if ((part.kind === 'immediate' || part.kind === 'regfile') && !ctx.machine.instructionRegister) {
-      ctx.report('wrong-wiring', part.symbol.span, `a ${part.kind === 'immediate' ? 'immediate generator' : 'register file'} reads instruction fields: declare an instruction register, e.g. \`part ir instruction 32\``);
-    }
-    if (part.kind === 'compare' && part.condition === 'field' && !part.controlField) {
-      ctx.report('wrong-wiring', part.symbol.span, `the comparator \`${part.name}\` has no condition: add \`cond=funct3\` or declare a field \`-> ${part.name}\` with values eq, ne, lt, ge, ltu, geu`);
+    // A control with no default that the part's choice settings make it read (a comparator's
+    // `cond=field`), where another choice would not, needs the field those settings call for.
+    // (A control every setting reads, such as an ALU's function, may be left to its first value.)
+    const live = liveControls(ctx.machine, part);
+    for (const control of part.def.controls) {
+      if (control.default !== undefined || part.controlFields.has(control.name) || !live.includes(control)) continue;
+      const unread = settingsLeavingUnread(ctx, part, control.name);
+      if (unread.length === 0) continue;
+      ctx.report(
+        'wrong-wiring',
+        part.symbol.span,
+        `${partPhrase(part)} reads its control \`${control.name}\` with its settings and no field drives it: set ${unread.map((u) => `\`${u}\``).join(' or ')}, or declare a field \`-> ${part.def.controls.length === 1 ? part.name : `${part.name}.${control.name}`}\` with values ${control.values.join(', ')}`,
+      );
     }
   }
   void tree;
+}
+
+/**
+ * The part's choice settings, as written (`cond=funct3`), when with them its expressions do not
+ * read the control but with another value of one of them they do: a field driving it would drive nothing.
+ */
+function unreadBySettings(ctx: BuildContext, part: M.Part, control: string): string | undefined {
+  if (liveControls(ctx.machine, part).some((c) => c.name === control)) return undefined;
+  const blocking = part.def.settings.filter((setting) => setting.type === 'choice' && setting.choices.some((choice) => {
+    const other: M.Part = { ...part, settings: new Map([...part.settings, [setting.name, choice]]) };
+    return liveControls(ctx.machine, other).some((c) => c.name === control);
+  }));
+  return blocking.length ? blocking.map((st) => `\`${st.name}=${part.settings.get(st.name)}\``).join(' and ') : undefined;
+}
+
+/** The other values of the part's choice settings with which its expressions no longer read the control. */
+function settingsLeavingUnread(ctx: BuildContext, part: M.Part, control: string): string[] {
+  const out: string[] = [];
+  for (const setting of part.def.settings) {
+    if (setting.type !== 'choice') continue;
+    for (const choice of setting.choices) {
+      if (choice === part.settings.get(setting.name)) continue;
+      const other: M.Part = { ...part, settings: new Map([...part.settings, [setting.name, choice]]) };
+      if (!liveControls(ctx.machine, other).some((c) => c.name === control)) out.push(`${setting.name}=${choice}`);
+    }
+  }
+  return out;
 }
 
 function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
@@ -605,12 +499,13 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
   if (width === undefined) return;
   const field: M.Field = { type: 'field', name, width, values: new Map(), idle: 0, description: decl.description?.value, symbol: ctx.lookup('signal', name)! };
   let vocabulary: readonly string[] | undefined;
-  const custom = decl.target ? customControlTarget(ctx, decl.target) : undefined;
+  const custom = decl.target ? controlTarget(ctx, decl.target) : undefined;
   if (custom) {
     if (custom.control) {
       vocabulary = custom.control.values;
       const other = custom.part.controlFields.get(custom.control.name);
       if (other) ctx.report('wrong-wiring', decl.target!.span, `control \`${custom.control.name}\` of \`${custom.part.name}\` is already driven by the field \`${other}\``, [{ span: ctx.machine.signals.get(other)!.symbol.span, message: 'the other field' }]);
+      else if (unreadBySettings(ctx, custom.part, custom.control.name)) ctx.report('wrong-wiring', decl.target!.span, `${partPhrase(custom.part)} does not read its control \`${custom.control.name}\` with ${unreadBySettings(ctx, custom.part, custom.control.name)}; remove that or this field`);
       else {
         custom.part.controlFields.set(custom.control.name, name);
         custom.part.controlValues.set(custom.control.name, new Map()); // filled with the field's values below
@@ -618,25 +513,9 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
       }
     }
   } else if (decl.target) {
+    // Not a part: a bus, a flag, or a name nothing declares.
     const sym = ctx.resolve('structure', decl.target.name, 'part', (s) => s.kind === 'part');
-    const part = sym ? ctx.machine.parts.get(decl.target.name.text) : undefined;
-    if (sym && !part) {
-      // The part exists but could not be understood; its own error says why.
-    } else if (!sym && ctx.lookup('structure', decl.target.name.text)) {
-      ctx.report('wrong-wiring', decl.target.span, `a field controls a part, not a ${ctx.lookup('structure', decl.target.name.text)!.kind}`);
-    } else if (part) {
-      vocabulary = controlVocabulary(part.kind);
-      if (!vocabulary) {
-        ctx.report('wrong-wiring', decl.target.span, `a ${part.kind} part has no function to select; fields can control an alu, immediate, memory or compare part`);
-      } else if (part.controlField) {
-        ctx.report('wrong-wiring', decl.target.span, `\`${part.name}\` is already controlled by the field \`${part.controlField}\``, [{ span: ctx.machine.signals.get(part.controlField)!.symbol.span, message: 'the other field' }]);
-      } else if (part.kind === 'compare' && part.condition === 'funct3') {
-        ctx.report('wrong-wiring', decl.target.span, `the comparator \`${part.name}\` takes its condition from funct3 (\`cond=funct3\`); remove that or this field`);
-      } else {
-        part.controlField = name;
-        field.target = part.name;
-      }
-    }
+    if (!sym && ctx.lookup('structure', decl.target.name.text)) ctx.report('wrong-wiring', decl.target.span, `a field controls a part, not a ${ctx.lookup('structure', decl.target.name.text)!.kind}`);
   }
   const maxCode = 2 ** width - 1;
   for (const value of decl.values) {
@@ -647,7 +526,7 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
       ctx.report(
         'wrong-wiring',
         value.name.span,
-        `\`${value.name.text}\` means nothing to ${partPhrase(ctx.machine.parts.get(field.target!)!)}; its values are ${vocabulary.join(', ')}` + (guess ? ` (did you mean \`${guess}\`?)` : ''),
+        `\`${value.name.text}\` means nothing to control \`${custom!.control!.name}\` of ${partPhrase(custom!.part)}; its values are ${vocabulary.join(', ')}` + (guess ? ` (did you mean \`${guess}\`?)` : ''),
       );
       continue;
     }
@@ -678,15 +557,15 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
 }
 
 /**
- * `-> PART` or `-> PART.CONTROL` naming a part of a table's own kind: the control the field
- * drives (the kind's only control when none is named). Undefined when the target is not such a part.
+ * `-> PART` or `-> PART.CONTROL`: the control of the part the field drives (the kind's only
+ * control when none is named). Undefined when the target is not a part.
  */
-function customControlTarget(ctx: BuildContext, target: A.Ref): { part: M.CustomPart; control?: M.CustomPart['def']['controls'][number] } | undefined {
+function controlTarget(ctx: BuildContext, target: A.Ref): { part: M.Part; control?: M.Part['def']['controls'][number] } | undefined {
   const text = target.name.text;
   const dot = text.indexOf('.');
-  const partName = ctx.machine.parts.get(text)?.kind === 'custom' || dot < 0 ? text : text.slice(0, dot);
+  const partName = ctx.machine.parts.has(text) || dot < 0 ? text : text.slice(0, dot);
   const part = ctx.machine.parts.get(partName);
-  if (part?.kind !== 'custom') return undefined;
+  if (!part) return undefined;
   const partSpan = { start: target.name.span.start, end: target.name.span.start + partName.length };
   ctx.reference(partSpan, part.symbol);
   const controlName = partName === text ? undefined : text.slice(dot + 1);
@@ -694,14 +573,14 @@ function customControlTarget(ctx: BuildContext, target: A.Ref): { part: M.Custom
   const control = controlName ? controls.find((c) => c.name === controlName) : controls.length === 1 ? controls[0] : undefined;
   if (!control) {
     const list = controls.map((c) => `\`${part.name}.${c.name}\``).join(', ');
-    ctx.report('wrong-wiring', target.span, controls.length === 0 ? `kind \`${part.def.name}\` has no control for a field to drive` : controlName ? `kind \`${part.def.name}\` has no control \`${controlName}\`; its controls are ${list}` : `\`${part.name}\` has several controls: name one, e.g. ${list}`);
+    ctx.report('wrong-wiring', target.span, controls.length === 0 ? `${partPhrase(part)} has no control for a field to drive` : controlName ? `kind \`${part.def.name}\` has no control \`${controlName}\`; its controls are ${list}` : `\`${part.name}\` has several controls: name one, e.g. ${list}`);
   }
   return { part, control };
 }
 
-/** `a memory part`, or `part \`amux\` (kind \`opa_mux\`)` for a part of the table's own kind. */
+/** `part \`amux\` (kind \`opa_mux\`)`: a part named with its kind. */
 function partPhrase(part: M.Part): string {
-  return part.kind === 'custom' ? `part \`${part.name}\` (kind \`${part.kindName}\`)` : `a ${part.kind} part`;
+  return `part \`${part.name}\` (kind \`${part.kindName}\`)`;
 }
 
 function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
@@ -770,19 +649,17 @@ function buildStrobe(ctx: BuildContext, decl: A.StrobeDecl): void {
   }
   const bus = strobe.bus ? ctx.machine.buses.get(strobe.bus) : undefined;
   const part = strobe.part ? ctx.machine.parts.get(strobe.part) : undefined;
-  const partWidth = part?.kind === 'custom' ? (customPortFor(part, kind, strobe.kindPort) as { width?: number }).width ?? part.width : part?.width;
+  // The port's width from the kind's definition (a register file's registers, a memory's data word).
+  const partWidth = part ? ((portFor(part, kind, strobe.kindPort) as { width?: number }).width ?? part.width) : undefined;
   const lineCount = strobe.lines ? strobe.lines.hi - strobe.lines.lo + 1 : bus?.width;
-  // A register file or memory takes any bus whole (the memory's size field picks the bytes); a
-  // load of some lines into a register file is held to the register width like any other part.
-  const exempt = part?.kind === 'memory' || (part?.kind === 'regfile' && !(strobe.lines && form === 'bus-to-part'));
-  if (bus && part && partWidth !== undefined && !exempt && lineCount !== partWidth && !accepted.has('width-mismatch')) {
+  if (bus && part && partWidth !== undefined && lineCount !== partWidth && !accepted.has('width-mismatch')) {
     // The fix accepts the change on this line: before the description, or at the line's end.
     const at = decl.description?.span.start ?? decl.span.end;
     ctx.diagnostics.push({
       code: 'width-mismatch',
       severity: 'warning',
       span: decl.span,
-      message: `\`${part.name}${part.kind === 'custom' ? `.${strobe.kindPort}` : ''}\` is ${partWidth} bits wide but ${strobe.lines ? `lines ${strobe.lines.hi}..${strobe.lines.lo} of the bus \`${bus.name}\` are ${lineCount}` : `the bus \`${bus.name}\` is ${bus.width}`}; the extra bits ${lineCount! > partWidth ? 'of the bus are undriven or ignored' : 'of the part are lost'}. If that is deliberate, end the line with \`accept width-mismatch\``,
+      message: `\`${part.name}.${strobe.kindPort}\` is ${partWidth} bits wide but ${strobe.lines ? `lines ${strobe.lines.hi}..${strobe.lines.lo} of the bus \`${bus.name}\` are ${lineCount}` : `the bus \`${bus.name}\` is ${bus.width}`}; the extra bits ${lineCount! > partWidth ? 'of the bus are undriven or ignored' : 'of the part are lost'}. If that is deliberate, end the line with \`accept width-mismatch\``,
       fixes: [{ title: 'Accept this width change on this line', edits: [{ span: { start: at, end: at }, newText: decl.description ? 'accept width-mismatch ' : ' accept width-mismatch' }] }],
     });
   }
@@ -807,9 +684,9 @@ function buildConnection(ctx: BuildContext, decl: A.ConnectDecl): void {
   strobe.bus = bus;
   const part = ctx.machine.parts.get(strobe.part!);
   const busInfo = ctx.machine.buses.get(bus)!;
-  const width = part?.kind === 'custom' ? (customPortFor(part, 'enable', strobe.kindPort) as { width?: number }).width : part?.width;
+  const width = part ? (portFor(part, 'enable', strobe.kindPort) as { width?: number }).width : undefined;
   const lines = strobe.lines ? strobe.lines.hi - strobe.lines.lo + 1 : busInfo.width;
-  if (width !== undefined && part?.kind !== 'regfile' && width !== lines) {
+  if (width !== undefined && width !== lines) {
     ctx.diagnostics.push({ code: 'width-mismatch', severity: 'warning', span: decl.span, message: `\`${decl.source.name.text}\` is ${width} bits wide but it is connected to ${lines} lines of \`${bus}\`` });
   }
   if (ctx.machine.connections.some((c) => c.name === name && c.bus === bus)) {
@@ -903,9 +780,9 @@ function wirePart(ctx: BuildContext, strobe: M.Strobe, ref: A.Ref, role: M.Strob
   ctx.reference(partSpan, sym);
   const part = ctx.machine.parts.get(partName);
   if (!part) return false;
+  const wiring = strobeWiring(part);
   if (ref.index) {
-    const numbered = part.kind === 'custom' && [...part.def.drives, ...part.def.edges].some((p) => p.param !== undefined);
-    if (part.kind !== 'regfile' && !numbered) {
+    if (!wiring.numbered) {
       ctx.report('wrong-wiring', ref.span, `only a part whose kind has numbered ports (a register file's \`x[5]\`) takes a number; \`${partName}\` is ${partPhrase(part)}`);
       return false;
     }
@@ -920,46 +797,15 @@ function wirePart(ctx: BuildContext, strobe: M.Strobe, ref: A.Ref, role: M.Strob
     ctx.report('wrong-wiring', ref.span, message);
     return false;
   };
-  if (part.kind === 'custom') {
-    const found = strobe.register !== undefined ? customPortFor(part, role, undefined, true) : customPortFor(part, role, port);
-    if ('problem' in found) return fail(found.problem);
-    strobe.kindPort = found.port;
-    return true;
+  // A kind with several drive ports (a register file's rs1 and rs2) is always wired by port name.
+  if (wiring.ports === 'always' && port === undefined) {
+    const names = [...part.def.drives, ...part.def.edges].filter((p) => p.param === undefined).map((p) => `\`${partName}.${p.name}\``);
+    if (wiring.numbered) names.push(`\`${partName}[n]\``);
+    return fail(`say which port of ${partPhrase(part)}: ${names.slice(0, -1).join(', ')} or ${names[names.length - 1]}`);
   }
-  if (part.kind === 'regfile') {
-    const outPorts = ['rs1', 'rs2'];
-    if (!port) return fail(`say which port of the register file: \`${partName}.rs1\`, \`${partName}.rs2\`, \`${partName}.rd\` or \`${partName}[n]\``);
-    if (strobe.register === undefined && ![...outPorts, 'rd'].includes(port)) return fail(`a register file has ports rs1, rs2 (outputs) and rd (input), or \`${partName}[n]\` for a fixed register; not \`${port}\``);
-    if (role === 'enable' && port === 'rd') return fail(`the rd port is an input: drive the bus from \`${partName}.rs1\` or \`${partName}.rs2\``);
-    if (role === 'clock' && outPorts.includes(port)) return fail(`\`${partName}.${port}\` is an output: load the register file through \`${partName}.rd\``);
-    if (role !== 'enable' && role !== 'clock') return fail(`a register file is driven with \`enable\` and loaded with \`clock\``);
-    return true;
-  }
-  if (port) return fail(`a ${part.kind} part has no ports; write just \`${partName}\``);
-  const can: Record<string, M.PartKind[]> = {
-    enable: ['register', 'counter', 'instruction', 'immediate', 'alu', 'constant'],
-    read: ['memory'],
-    write: ['memory'],
-    clock: ['register', 'counter', 'instruction'],
-    count: ['counter'],
-    'clock-flag': ['compare'],
-  };
-  if (!can[role].includes(part.kind)) {
-    const hint: Record<string, string> = {
-      enable: part.kind === 'memory' ? 'memory data goes onto a bus with a `read` strobe' : 'this part has no output to put on a bus',
-      read: 'only a memory port is read',
-      write: 'only a memory port is written',
-      clock:
-        part.kind === 'compare'
-          ? 'a comparator is clocked with no bus: `clock ' + partName + '`'
-          : part.kind === 'memory'
-            ? 'memory is stored to with a `write` strobe'
-            : 'this part has nothing to load',
-      count: 'only a counter counts',
-      'clock-flag': 'only a comparator loads without a bus; name the bus: `clock BUS -> ' + partName + '`',
-    };
-    return fail(`\`${partName}\` is a ${part.kind}: ${hint[role]}`);
-  }
+  const found = strobe.register !== undefined ? portFor(part, role, undefined, true) : portFor(part, role, port);
+  if ('problem' in found) return fail(found.problem);
+  strobe.kindPort = found.port;
   return true;
 }
 

@@ -14,15 +14,15 @@
 import { type Expr, namesUsed } from '../parts/expr';
 import { choiceCodes, parsedExpr } from '../parts/behaviour';
 import type { KindFlag } from '../parts/kinds';
-import { customPortBusReads } from './buildCustomPart';
-import { definitionOf, specialise } from './partFacts';
-import type { CustomPart, Machine } from './types';
+import { portBusReads } from './buildPart';
+import { specialise } from './partFacts';
+import type { Machine, Part } from './types';
 
 export interface FlagFact {
   /** The machine's name of the flag (`taken`, `cnt.zero`). */
   name: string;
   /** The part producing it, read as a part of its kind. */
-  part: CustomPart;
+  part: Part;
   flag: KindFlag;
   timing: 'latched' | 'combinational';
   /** Buses it reads through the part's inputs (every arm a control could pick). */
@@ -38,13 +38,7 @@ export function flagFacts(machine: Machine): ReadonlyMap<string, FlagFact> {
   let facts = cache.get(machine);
   if (facts) return facts;
   facts = new Map();
-  for (const original of machine.parts.values()) {
-    let part: CustomPart;
-    try {
-      part = definitionOf(machine, original);
-    } catch {
-      continue; // a part whose kind is not known is reported where it is declared
-    }
+  for (const part of machine.parts.values()) {
     for (const flag of part.def.flags) {
       const name = part.flagNames.get(flag.name);
       if (!name || !machine.flags.has(name)) continue;
@@ -62,10 +56,10 @@ export function combinationalFlags(machine: Machine): FlagFact[] {
 
 /** The buses a flag reads when its part's controls hold `codes` (an arm the codes cannot pick is left out). */
 export function flagBusReads(fact: FlagFact, codes: ReadonlyMap<string, number>): string[] {
-  return customPortBusReads(fact.part, fact.flag.name, codes);
+  return portBusReads(fact.part, fact.flag.name, codes);
 }
 
-function factOf(part: CustomPart, flag: KindFlag, name: string): FlagFact {
+function factOf(part: Part, flag: KindFlag, name: string): FlagFact {
   const def = part.def;
   const expr: Expr | undefined = parsedExpr(def, flag.expr).expr;
   // Only the choice settings are known here: a select on one reads just the arm it takes.

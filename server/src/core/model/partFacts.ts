@@ -1,6 +1,5 @@
 // What the editor, the budget, the checks and the debugger need to know about a part, read from
-// its kind's definition (a standard-library kind through model/libraryParts.ts, a table's own
-// kind as written): the ports strobes use and what each does, where its inputs come from, what a
+// its kind's definition (the standard library's or the table's own, alike): the ports strobes use and what each does, where its inputs come from, what a
 // control value makes it compute, whether it holds a value a bus can read, and the facts about
 // element 0 of a register array (RV32I x0) found by running the definition's own expressions.
 // Nothing here names a part kind; a kind added to the library or declared in a table gets the
@@ -8,11 +7,9 @@
 import { type Expr, children, formatExpression, namesUsed } from '../parts/expr';
 import { choiceCodes, compilePort, parsedExpr } from '../parts/behaviour';
 import type { KindAssign, KindDef, KindDrive, KindEdge } from '../parts/kinds';
-import { partSetting, sizeIn } from './buildCustomPart';
-import { definitionOf, strobeWiring } from './libraryParts';
-import type { CustomPart, Machine, Part, Strobe, StrobeKind } from './types';
-
-export { definitionOf } from './libraryParts';
+import type { PortNumber } from '../parts/behaviour';
+import { partSetting, portFor, sizeIn } from './buildPart';
+import type { Machine, Part, Strobe, StrobeKind } from './types';
 
 /**
  * What a port does for a strobe: `enable` drives a bus, `read` drives a bus from the memory,
@@ -33,7 +30,7 @@ export interface PortFact {
 
 /** The part's kind: its name and definition. */
 export function kindOf(machine: Machine, part: Part): KindDef {
-  return definitionOf(machine, part).def;
+  return part.def;
 }
 
 /** The names of states of `def` that are the program memory (`x memory`). */
@@ -59,19 +56,18 @@ const assignTexts = (a: KindAssign) => [a.expr, a.when, a.index];
 
 /** The ports of the part with what each does, drive ports first, in the kind's order. */
 export function portsOf(machine: Machine, part: Part): PortFact[] {
-  const defined = definitionOf(machine, part);
-  const def = defined.def;
+  const def = part.def;
   const memory = memoryStates(def);
   const flagStates = reads(def, def.flags.map((f) => f.expr));
   const out: PortFact[] = [];
   for (const drive of def.drives) {
     const fromMemory = [...reads(def, [drive.expr])].some((n) => memory.has(n));
-    out.push({ name: drive.name, role: fromMemory ? 'read' : 'enable', width: sizeIn(defined, drive.width), description: drive.description, drive });
+    out.push({ name: drive.name, role: fromMemory ? 'read' : 'enable', width: sizeIn(part, drive.width), description: drive.description, drive });
   }
   for (const edge of def.edges) {
     const targets = edge.assigns.map((a) => a.target);
     const role: PortRole = edge.width ? (targets.some((t) => memory.has(t)) ? 'write' : 'clock') : targets.some((t) => flagStates.has(t)) ? 'latch' : 'count';
-    out.push({ name: edge.name, role, width: edge.width ? sizeIn(defined, edge.width) : undefined, description: edge.description, edge });
+    out.push({ name: edge.name, role, width: edge.width ? sizeIn(part, edge.width) : undefined, description: edge.description, edge });
   }
   return out;
 }
@@ -107,7 +103,7 @@ export function strobeKindsFor(role: PortRole): { kind: StrobeKind; side: 'drive
 
 /**
  * What a strobe line may write to reach each port of this role: `part` (its first port of the
- * role) or `part.port`, as the part's line is read (model/libraryParts.ts `strobeWiring`).
+ * role) or `part.port`, as the part's line is read (`strobeWiring`).
  */
 export function strobeTargets(machine: Machine, part: Part, kind: StrobeKind, side: 'drive' | 'load'): { label: string; port: PortFact }[] {
   // A numbered port is written `x[5]`, not by its name: it is not offered as `part.port`.
@@ -119,15 +115,14 @@ export function strobeTargets(machine: Machine, part: Part, kind: StrobeKind, si
   if (fitting.length === 0) return [];
   const naming = strobeWiring(part).ports;
   if (naming === 'always') return fitting.map((p) => ({ label: `${part.name}.${p.name}`, port: p }));
-  if (naming === 'never' || fitting.length === 1) return [{ label: part.name, port: fitting[0] }];
+  if (fitting.length === 1) return [{ label: part.name, port: fitting[0] }];
   return fitting.map((p, i) => ({ label: i === 0 ? part.name : `${part.name}.${p.name}`, port: p }));
 }
 
 /** Where each input of the part comes from, with the input's description. */
-export function inputsOf(machine: Machine, part: Part): { name: string; source: CustomPart['inputs'] extends Map<string, infer S> ? S : never; description?: string }[] {
-  const defined = definitionOf(machine, part);
-  return defined.def.inputs.flatMap((input) => {
-    const source = defined.inputs.get(input.name);
+export function inputsOf(machine: Machine, part: Part): { name: string; source: Part['inputs'] extends Map<string, infer S> ? S : never; description?: string }[] {
+  return part.def.inputs.flatMap((input) => {
+    const source = part.inputs.get(input.name);
     return source ? [{ name: input.name, source, description: input.description }] : [];
   });
 }
@@ -144,9 +139,9 @@ export function inputWiring(machine: Machine, part: Part): { buses: string[]; pa
 }
 
 /** Known codes of the part's choice settings (their index among the choices) and their value lists. */
-function settingCodes(defined: CustomPart): { known: Map<string, number>; values: (name: string) => ReadonlyMap<string, number> | undefined } {
-  const def = defined.def;
-  const known = choiceCodes(def, defined.settings);
+function settingCodes(part: Part): { known: Map<string, number>; values: (name: string) => ReadonlyMap<string, number> | undefined } {
+  const def = part.def;
+  const known = choiceCodes(def, part.settings);
   const values = (name: string) => {
     const setting = def.settings.find((s) => s.name === name);
     if (setting?.type === 'choice') return new Map(setting.choices.map((c, i) => [c, i]));
@@ -190,9 +185,8 @@ function selectsOn(expr: Expr, name: string): boolean {
 
 /** What a port computes with the part's settings (choices resolved), as text: `r[ir[19:15]]`, `q <= q + inc`. */
 export function portText(machine: Machine, part: Part, port: PortFact, extra: ReadonlyMap<string, number> = new Map()): string {
-  const defined = definitionOf(machine, part);
-  const def = defined.def;
-  const { known, values } = settingCodes(defined);
+  const def = part.def;
+  const { known, values } = settingCodes(part);
   for (const [k, v] of extra) known.set(k, v);
   const show = (text: { text: string; span: { start: number; end: number } }) => {
     const e = exprOf(def, text);
@@ -204,17 +198,15 @@ export function portText(machine: Machine, part: Part, port: PortFact, extra: Re
 
 /** The number settings a port's expressions read, with the part's values: `inc=4`. */
 export function settingsReadBy(machine: Machine, part: Part, port: PortFact): string[] {
-  const defined = definitionOf(machine, part);
-  const def = defined.def;
+  const def = part.def;
   const texts = port.drive ? [port.drive.expr] : (port.edge?.assigns ?? []).flatMap(assignTexts);
   const used = reads(def, texts);
-  return def.settings.filter((s) => s.type === 'number' && s.name !== 'width' && used.has(s.name)).map((s) => `${s.name}=${defined.settings.get(s.name)}`);
+  return def.settings.filter((s) => s.type === 'number' && s.name !== 'width' && used.has(s.name)).map((s) => `${s.name}=${part.settings.get(s.name)}`);
 }
 
 /** The inputs a port reads, with where they come from: `a from \`left\``. */
 export function inputsReadBy(machine: Machine, part: Part, port: PortFact): string[] {
-  const defined = definitionOf(machine, part);
-  const def = defined.def;
+  const def = part.def;
   const texts = port.drive ? [port.drive.expr] : (port.edge?.assigns ?? []).flatMap(assignTexts);
   const used = reads(def, texts);
   return inputsOf(machine, part)
@@ -227,8 +219,7 @@ export function controlOfField(machine: Machine, fieldName: string): { part: Par
   const field = machine.signals.get(fieldName);
   const part = field?.type === 'field' && field.target ? machine.parts.get(field.target) : undefined;
   if (!part) return undefined;
-  const defined = definitionOf(machine, part);
-  const control = defined.def.controls.find((c) => defined.controlFields.get(c.name) === fieldName);
+  const control = part.def.controls.find((c) => part.controlFields.get(c.name) === fieldName);
   return control ? { part, control } : undefined;
 }
 
@@ -241,7 +232,7 @@ export function controlOfTarget(machine: Machine, target: string): { part: Part;
   const dot = target.indexOf('.');
   const part = whole ?? (dot > 0 ? machine.parts.get(target.slice(0, dot)) : undefined);
   if (!part) return undefined;
-  const controls = definitionOf(machine, part).def.controls;
+  const controls = part.def.controls;
   const control = whole ? (controls.length === 1 ? controls[0] : undefined) : controls.find((c) => c.name === target.slice(dot + 1));
   return control ? { part, control } : undefined;
 }
@@ -252,11 +243,10 @@ export function controlOfTarget(machine: Machine, target: string): { part: Part;
  * is not one of the control's.
  */
 export function valueMeaning(machine: Machine, part: Part, controlName: string, value: string): string | undefined {
-  const defined = definitionOf(machine, part);
-  const def = defined.def;
+  const def = part.def;
   const control = def.controls.find((c) => c.name === controlName);
   if (!control || !control.values.includes(value)) return undefined;
-  const { known, values } = settingCodes(defined);
+  const { known, values } = settingCodes(part);
   known.set(control.name, control.values.indexOf(value));
   const shown: string[] = [];
   for (const drive of def.drives) {
@@ -282,9 +272,8 @@ export function fieldValueMeaning(machine: Machine, fieldName: string, value: st
 
 /** The controls of the part its expressions really read with its settings (a choice setting may leave one unused). */
 export function liveControls(machine: Machine, part: Part): KindDef['controls'] {
-  const defined = definitionOf(machine, part);
-  const def = defined.def;
-  const { known, values } = settingCodes(defined);
+  const def = part.def;
+  const { known, values } = settingCodes(part);
   const texts = [...def.drives.map((d) => d.expr), ...def.flags.map((f) => f.expr), ...def.edges.flatMap((e) => e.assigns.flatMap(assignTexts))];
   const used = new Set<string>();
   for (const t of texts) {
@@ -299,12 +288,11 @@ export function liveControls(machine: Machine, part: Part): KindDef['controls'] 
  * array) and a drive port reads it. The simulator keeps that value as the part's value.
  */
 export function heldValue(machine: Machine, part: Part): { state: string; width: number } | undefined {
-  const defined = definitionOf(machine, part);
-  const def = defined.def;
+  const def = part.def;
   const first = def.states[0];
   if (!first || first.count) return undefined;
   if (!def.drives.some((d) => reads(def, [d.expr]).has(first.name))) return undefined;
-  return { state: first.name, width: sizeIn(defined, first.width) };
+  return { state: first.name, width: sizeIn(part, first.width) };
 }
 
 /**
@@ -313,10 +301,9 @@ export function heldValue(machine: Machine, part: Part): { state: string; width:
  * reads only its state, settings and registers loaded at an earlier edge is valid from the start.
  */
 export function isCombinationalPort(machine: Machine, part: Part, port: PortFact): boolean {
-  const defined = definitionOf(machine, part);
-  const def = defined.def;
+  const def = part.def;
   const texts = port.drive ? [port.drive.expr] : (port.edge?.assigns ?? []).flatMap(assignTexts);
-  const { known, values } = settingCodes(defined);
+  const { known, values } = settingCodes(part);
   // Names a choice setting leaves unread do not count.
   const live = new Set<string>();
   for (const t of texts) {
@@ -324,7 +311,7 @@ export function isCombinationalPort(machine: Machine, part: Part, port: PortFact
     if (e) for (const n of namesUsed(specialise(e, known, values))) live.add(n);
   }
   if (def.controls.some((c) => live.has(c.name))) return true;
-  return def.inputs.some((i) => live.has(i.name) && defined.inputs.get(i.name)?.from === 'bus');
+  return def.inputs.some((i) => live.has(i.name) && part.inputs.get(i.name)?.from === 'bus');
 }
 
 /** Seeded values for probing a definition: zero first, then a fixed pseudo-random run (xorshift32). */
@@ -365,8 +352,7 @@ export interface RegisterArrayFacts {
  * that cannot be run (the part did not check clean) counts as neither, so nothing is claimed.
  */
 export function registerArrayFacts(machine: Machine, part: Part, settingsOverride?: ReadonlyMap<string, number | string>): RegisterArrayFacts[] {
-  const base = definitionOf(machine, part);
-  const defined: CustomPart = settingsOverride ? { ...base, settings: new Map([...base.settings, ...settingsOverride]) } : base;
+  const defined: Part = settingsOverride ? { ...part, settings: new Map([...part.settings, ...settingsOverride]) } : part;
   const def = defined.def;
   const setting = partSetting(machine, defined);
   const codes = choiceCodes(def, defined.settings);
@@ -436,12 +422,11 @@ export function registerArrayFacts(machine: Machine, part: Part, settingsOverrid
  * into element 0 of `array` (`x0=hardwired`, `x0=guarded`): what a fix may suggest.
  */
 export function settingsKeepingElementZero(machine: Machine, part: Part, array: string): string[] {
-  const defined = definitionOf(machine, part);
   const out: string[] = [];
-  for (const setting of defined.def.settings) {
+  for (const setting of part.def.settings) {
     if (setting.type !== 'choice') continue;
     for (const choice of setting.choices) {
-      if (choice === defined.settings.get(setting.name)) continue;
+      if (choice === part.settings.get(setting.name)) continue;
       const facts = registerArrayFacts(machine, part, new Map([[setting.name, choice]])).find((f) => f.array === array);
       if (facts && facts.writes.length > 0 && facts.writes.every((w) => !w.writesElementZero)) out.push(`${setting.name}=${choice}`);
     }
@@ -449,8 +434,35 @@ export function settingsKeepingElementZero(machine: Machine, part: Part, array: 
   return out;
 }
 
-/** How the part's line and strobes are written (ports named, numbered registers), from the translation layer. */
-export { strobeWiring };
+/**
+ * How strobe lines name the part's ports: a kind with several drive ports that read elements of
+ * a register array (a register file's rs1 and rs2) is always wired by port (`x.rs1`, `x.rd`):
+ * which port says which register, so none is taken by default; any other takes `part.port` or,
+ * for the first port that fits, just `part`. `numbered`: its kind has numbered ports, written `part[5]`.
+ */
+export function strobeWiring(part: Part): { ports: 'always' | 'optional'; numbered: boolean } {
+  const def = part.def;
+  const arrays = new Set(def.states.filter((st) => st.count !== undefined && st.count !== 'memory').map((st) => st.name));
+  const arrayReaders = def.drives.filter((d) => d.param === undefined && [...reads(def, [d.expr])].some((n) => arrays.has(n))).length;
+  return { ports: arrayReaders > 1 ? 'always' : 'optional', numbered: [...def.drives, ...def.edges].some((p) => p.param !== undefined) };
+}
+
+/**
+ * The port of the part's definition a strobe uses: the one the model resolved, else the one the
+ * strobe's kind and written port name. Undefined when the definition has no such port.
+ */
+export function definedPortOf(part: Part, strobe: Strobe): string | undefined {
+  if (strobe.kindPort !== undefined) return strobe.kindPort;
+  if (strobe.kind === 'end' || strobe.kind === 'trap') return undefined;
+  const role = strobe.kind === 'clock' && strobe.bus === undefined ? 'clock-flag' : strobe.kind;
+  const found = portFor(part, role, strobe.register !== undefined ? undefined : strobe.port, strobe.register !== undefined);
+  return 'port' in found ? found.port : undefined;
+}
+
+/** The number a strobe gives a numbered port (`x[5]` on `drive xout[n] ...`), for the port's expressions. */
+export function strobePortNumber(param: string | undefined, strobe: Strobe): PortNumber | undefined {
+  return param !== undefined && strobe.register !== undefined ? { name: param, value: strobe.register } : undefined;
+}
 
 /** True when a write through the part's ports can change element 0 of a register array (a stored x0, which a debugger may set). */
 export function elementZeroWritable(machine: Machine, part: Part): boolean {

@@ -37,69 +37,22 @@ export interface Bus {
   figures: Figures;
 }
 
-export type PartKind = 'regfile' | 'register' | 'counter' | 'instruction' | 'immediate' | 'alu' | 'compare' | 'memory' | 'constant' | 'custom';
+/** Where an input of a part comes from: a bus, another part's value, or the instruction register. */
+export type InputSource = { from: 'bus'; name: string } | { from: 'part'; name: string } | { from: 'instruction' };
 
-interface PartBase {
+/**
+ * A part: an instance of a part kind (the standard library's or the table's own, `kind`), read
+ * from its part line against the kind's definition (model/buildPart.ts). Everything the
+ * checks, the simulator, the prover and the editor know about it comes from `def` and what the
+ * part line and the fields set here; no layer asks which kind it is by name.
+ */
+export interface Part {
   name: string;
+  /** The width setting's value, or the first drive port's width for a kind without one. */
   width: number;
   description?: string;
   symbol: SymbolInfo;
-  /** The field that selects this part's operation, format, size or condition, if any. */
-  controlField?: string;
   figures: Figures;
-}
-
-export interface RegfilePart extends PartBase {
-  kind: 'regfile';
-  /** hardwired: reads 0, ignores writes; stored: a real register; guarded: stored, with its clock blocked when rd = 0. */
-  x0: 'hardwired' | 'stored' | 'guarded';
-}
-export interface RegisterPart extends PartBase {
-  kind: 'register' | 'instruction';
-  reset: number;
-}
-export interface CounterPart extends PartBase {
-  kind: 'counter';
-  increment: number;
-  /** RV32I jump targets clear bit 0; a counter with bit0=zero stores it as 0. */
-  bit0Zero: boolean;
-  reset: number;
-}
-export interface ImmediatePart extends PartBase {
-  kind: 'immediate';
-  /** The instruction register whose bits it rearranges. */
-  source: string;
-}
-export interface AluPart extends PartBase {
-  kind: 'alu';
-  a: string;
-  b: string;
-}
-export interface ComparePart extends PartBase {
-  kind: 'compare';
-  a: string;
-  b: string;
-  flag: string;
-  /** `funct3`: the condition is wired to the instruction's funct3 (RV32I branch encoding); else a field. */
-  condition: 'funct3' | 'field';
-}
-export interface MemoryPart extends PartBase {
-  kind: 'memory';
-  /** A register part or a bus that supplies the byte address. */
-  address: string;
-  addressFrom: 'part' | 'bus';
-}
-export interface ConstantPart extends PartBase {
-  kind: 'constant';
-  value: number;
-}
-
-/** Where an input of a part of the table's own kind comes from. */
-export type InputSource = { from: 'bus'; name: string } | { from: 'part'; name: string } | { from: 'instruction' };
-
-/** A part of a kind the table declares itself (`kind`): its definition and what its part line set. */
-export interface CustomPart extends PartBase {
-  kind: 'custom';
   /** The kind's name (`def.name`). */
   kindName: string;
   def: KindDef;
@@ -114,9 +67,7 @@ export interface CustomPart extends PartBase {
   controlValues: Map<string, ReadonlyMap<string, number>>;
 }
 
-export type Part = RegfilePart | RegisterPart | CounterPart | ImmediatePart | AluPart | ComparePart | MemoryPart | ConstantPart | CustomPart;
-
-/** A one-bit flag produced by a part (a comparator) and usable as an address input. */
+/** A one-bit flag produced by a part (`flag` in its kind) and usable as an address input. */
 export interface Flag {
   name: string;
   part: string;
@@ -138,11 +89,11 @@ export interface Strobe {
   description?: string;
   /** The part driven, loaded, counted, read or written. */
   part?: string;
-  /** Regfile port: rs1, rs2, rd, or `x[n]` for a fixed register. */
+  /** The port as written (`x.rs1` gives `rs1`), or `x[n]` for a numbered port. */
   port?: string;
   /** For `x[n]` ports. */
   register?: number;
-  /** For a part of a table's own kind: the drive or edge port the strobe uses (named or the default). */
+  /** The drive or edge port of the part's kind the strobe uses (named or the default). */
   kindPort?: string;
   /** A connection (`connect`): on in every step, held by no control bit. */
   always?: boolean;
@@ -317,7 +268,7 @@ export interface Machine {
   references: Reference[];
   /** Width of the step counter: the widest `step` address source of any store. */
   stepBits?: number;
-  /** The instruction register, when exactly one is declared. */
+  /** The instruction register (the part whose kind `holds instruction`), when one is declared. */
   instructionRegister?: string;
 }
 

@@ -1,18 +1,12 @@
 // What the notation understands besides the part kinds' own definitions: the strobe kinds, the
 // instruction-bit names it accepts as address inputs, and, read from the standard library, the
-// names of its part kinds and the values their controls take.
+// names of its part kinds (for suggestions and highlighting).
 import type { InputVar, StrobeKind } from './types';
 import { standardLibrary } from '../parts/library';
 
 /** The standard library's part kinds, in the order it declares them. */
 export const partKinds: string[] = [...standardLibrary().kinds.keys()];
 export const strobeKinds: StrobeKind[] = ['enable', 'read', 'write', 'clock', 'count', 'end', 'trap'];
-
-/** The value names a field controlling a part of this library kind must use (its kind's one control), or undefined if no field may. */
-export function controlVocabulary(kind: string): readonly string[] | undefined {
-  const controls = standardLibrary().kinds.get(kind)?.controls ?? [];
-  return controls.length === 1 ? controls[0].values : undefined;
-}
 
 export const strobeKindDescriptions: Record<StrobeKind, string> = {
   enable: 'output enable: the part drives the bus for the whole step',

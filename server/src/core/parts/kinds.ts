@@ -34,6 +34,12 @@ export interface KindInput {
   wiring: InputWiring;
   /** For `after WORD`: the word the part line writes before the source. */
   after?: string;
+  /**
+   * The input reads the instruction: wired to the machine's instruction register (`instruction`),
+   * or for `after WORD instruction` to what the part line names, which must be that register,
+   * and to it when the line names nothing.
+   */
+  readsInstruction?: boolean;
   description?: string;
   span: Span;
 }
@@ -227,7 +233,7 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
           break;
         }
         const wiring: InputWiring = item.after ? 'after' : item.instruction ? 'instruction' : item.keyed ? 'keyed' : 'positional';
-        def.inputs.push({ name: item.name.text, width, wiring, after: item.after?.text, description: item.description?.value, span: item.name.span });
+        def.inputs.push({ name: item.name.text, width, wiring, after: item.after?.text, readsInstruction: item.instruction ? true : undefined, description: item.description?.value, span: item.name.span });
         break;
       }
       case 'control': {

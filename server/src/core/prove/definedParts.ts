@@ -1,6 +1,6 @@
 // Every part as its kind's definition says, over terms: the drive ports, the closing-edge ports
 // and the flags of the standard library's kinds and of the table's own kinds alike, read through
-// model/libraryParts.ts (definitionOf, definedPortOf) and parts/behaviour.ts (portExpressions:
+// model/partFacts.ts (definedPortOf) and parts/behaviour.ts (portExpressions:
 // the same expressions in the same scope the simulator compiles), then evaluated symbolically by
 // symbolicExpr.ts. Nothing here knows a kind by name: where a state lives follows from the
 // definition and the plan (a scalar state is a slot of its own; the register array of the
@@ -10,9 +10,9 @@
 // instruction register, states, controls fixed by the step's field codes, choice settings, the
 // edge's `in`. What this cannot give is thrown as a ProverLimit, which the executor reports as
 // "not proved" with the reason.
-import { partSetting } from '../model/buildCustomPart';
-import { definedPortOf, definitionOf, strobePortNumber } from '../model/libraryParts';
-import type { CustomPart, Field, Machine, Strobe } from '../model/types';
+import { partSetting } from '../model/buildPart';
+import { definedPortOf, strobePortNumber } from '../model/partFacts';
+import type { Part, Field, Machine, Strobe } from '../model/types';
 import { parsedExpr, portExpressions, sizeOf, type PartSetting } from '../parts/behaviour';
 import { bitsFor, resolveExpression, scopeOf, type Expr, type NameInfo, type Resolution } from '../parts/expr';
 import { edgeInputName } from '../parts/kinds';
@@ -32,7 +32,7 @@ export type StateHome =
 
 /** One part read as its kind's definition. */
 export interface DefinedPart {
-  readonly part: CustomPart;
+  readonly part: Part;
   readonly number: number;
   readonly setting: PartSetting;
   readonly homes: ReadonlyMap<string, StateHome>;
@@ -109,7 +109,7 @@ export class DefinedParts {
     let result: DefinedPart | { problem: string };
     if (!original) result = { problem: `there is no part \`${name}\`` };
     else {
-      const defined = definitionOf(this.machine, original);
+      const defined = original;
       {
         const homes = new Map<string, StateHome>();
         let arrays = 0;
@@ -127,7 +127,7 @@ export class DefinedParts {
           number: this.plan.partIndex.get(name)!,
           setting: partSetting(this.machine, defined),
           homes,
-          ...valueStateOf(original.kind === 'custom', defined),
+          ...valueStateOf(original.def.origin === 'table', defined),
         };
       }
     }
@@ -167,7 +167,7 @@ export class DefinedParts {
     return { model: m, port };
   }
 
-  private controlField(part: CustomPart, control: string): Field | undefined {
+  private controlField(part: Part, control: string): Field | undefined {
     const name = part.controlFields.get(control);
     const field = name ? this.machine.signals.get(name) : undefined;
     return field?.type === 'field' ? field : undefined;
@@ -302,7 +302,7 @@ export class DefinedParts {
  * be a constant of no meaning (no state, an array), the prover leaves it unknown: a proof over
  * every value covers it.
  */
-function valueStateOf(own: boolean, part: CustomPart): { valueState?: string } {
+function valueStateOf(own: boolean, part: Part): { valueState?: string } {
   const states = part.def.states;
   if (own) {
     const first = states.find((s) => s.count !== 'memory');

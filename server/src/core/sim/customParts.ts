@@ -1,6 +1,5 @@
 // Every part in the simulator runs from its kind's definition: a table's own kinds and the
-// standard library's alike (a library part is read as a part of its kind through
-// model/libraryParts.ts). Their behaviour is their kind's expressions, compiled to JavaScript per
+// standard library's alike (the model builds every part as a part of its kind). Their behaviour is their kind's expressions, compiled to JavaScript per
 // part and per control code (parts/behaviour.ts): closures for the interpreter, inlined source
 // for the compiled steps (sim/compile.ts), so the simulator runs exactly what the definition says.
 //
@@ -16,14 +15,14 @@
 // then all of them are stored at once, then the latched flags are read from the new state. A
 // combinational flag (model/flagFacts.ts: it reads a bus or a control) is computed per
 // micro-op after the drivers (`settler`), and the simulator settles the address with it.
-import type { CustomPart, Field, Machine, Strobe } from '../model/types';
+import type { Part, Field, Machine, Strobe } from '../model/types';
 import type { Memory } from '../isa/memory';
 import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource, type PortNumber } from '../parts/behaviour';
 import { formatExpression, type InlineBinding } from '../parts/expr';
 import { edgeInputName, type KindFlag } from '../parts/kinds';
 import { combinationalFlags } from '../model/flagFacts';
-import { customPortBusReads, partSetting } from '../model/buildCustomPart';
-import { definedPortOf, definitionOf, strobePortNumber } from '../model/libraryParts';
+import { portBusReads, partSetting } from '../model/buildPart';
+import { definedPortOf, strobePortNumber } from '../model/partFacts';
 import { lineMask } from '../model/busDrivers';
 
 /** What a compiled port reads from the running machine. */
@@ -67,7 +66,7 @@ interface Storage {
 }
 
 interface PartRuntime {
-  part: CustomPart;
+  part: Part;
   partNumber: number;
   /** Where each state is stored. */
   storage: Map<string, Storage>;
@@ -152,7 +151,7 @@ export class CustomParts {
   ) {
     const combinational = new Set(combinationalFlags(machine).map((f) => `${f.part.name}\u0000${f.flag.name}`));
     for (const original of machine.parts.values()) {
-      const part = definitionOf(machine, original);
+      const part = original;
       const partNumber = partIndex.get(part.name)!;
       const rt: PartRuntime = { part, partNumber, storage: new Map(), widths: new Map(), arrays: new Map(), element: () => 0 };
       const roles = new Map(part.def.holds.map((h) => [h.state, h.role]));
@@ -240,7 +239,7 @@ export class CustomParts {
       kindFlags.forEach((f, k) => {
         flags.push(flagNumbers[k]);
         problems.push(problem);
-        needs.push(customPortBusReads(rt.part, f.name, codes).reduce((mask, bus) => mask | (1 << this.busIndex.get(bus)!), 0));
+        needs.push(portBusReads(rt.part, f.name, codes).reduce((mask, bus) => mask | (1 << this.busIndex.get(bus)!), 0));
       });
       if (problem) continue;
       const getters = port.inputs.map((name) => this.getter(rt, name, fields, -1));
@@ -270,7 +269,7 @@ export class CustomParts {
   static problems(machine: Machine): string[] {
     const out: string[] = [];
     for (const original of machine.parts.values()) {
-      const part = definitionOf(machine, original);
+      const part = original;
       for (const state of part.def.states) {
         if (sizeOf(state.width, part.settings) > 32) out.push(`part \`${part.name}\`: state \`${state.name}\` is wider than 32 bits, which the simulator does not hold yet`);
       }
@@ -280,7 +279,7 @@ export class CustomParts {
   }
 
 
-  private controlField(part: CustomPart, control: string): Field | undefined {
+  private controlField(part: Part, control: string): Field | undefined {
     const name = part.controlFields.get(control);
     const field = name ? this.machine.signals.get(name) : undefined;
     return field?.type === 'field' ? field : undefined;
@@ -339,7 +338,7 @@ export class CustomParts {
 
   /** Buses a port reads with this micro-op's control codes (they must be defined, and settle first). */
   private busReads(rt: PartRuntime, port: string, fields: ReadonlyMap<string, number>): number[] {
-    return customPortBusReads(rt.part, port, this.controlCodes(rt, fields)).map((b) => this.busIndex.get(b)!);
+    return portBusReads(rt.part, port, this.controlCodes(rt, fields)).map((b) => this.busIndex.get(b)!);
   }
 
   /**
@@ -617,7 +616,7 @@ type CompileText = Parameters<typeof compilePort>[2][number];
 
 
 /** A choice setting's choices by code (the names a `select` on it is keyed by). */
-function valuesOfChoice(part: CustomPart, name: string): ReadonlyMap<string, number> | undefined {
+function valuesOfChoice(part: Part, name: string): ReadonlyMap<string, number> | undefined {
   const setting = part.def.settings.find((s) => s.name === name);
   return setting?.type === 'choice' ? new Map(setting.choices.map((c, i) => [c, i])) : undefined;
 }

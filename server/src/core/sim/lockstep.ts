@@ -18,7 +18,8 @@
 import { describeStop, Rv32iReference, type MemoryWrite, type StopReason } from '../isa/interp';
 import { LinuxUserEnvironment } from '../isa/environment';
 import { disassemble, disassembleParts } from '../isa/disasm';
-import type { Strobe } from '../model/types';
+import type { Machine, Strobe } from '../model/types';
+import { registerArrayFacts } from '../model/partFacts';
 import type { Span } from '../text/span';
 import { collectSteps, faultText, formatStep, hex, instructionText, sourcePlace, stopText, type FormatOptions, type StepRecord } from './describe';
 import type { SimPlan } from './plan';
@@ -268,7 +269,10 @@ export class ProgramRun {
     if (difference.what === 'register') {
       const r = difference.register!;
       const rd = (word >>> 7) & 31;
-      match = strobeMatches((s) => s.kind === 'clock' && machine.parts.get(s.part ?? '')?.kind === 'regfile' && (s.register === r || (s.register === undefined && s.port === 'rd' && rd === r)));
+      // A clock of the register file (the part whose kind `holds registers`): its numbered port
+      // `x[r]`, or a port that stores the register the instruction's rd field selects.
+      const holdsRegisters = (s: Strobe) => machine.parts.get(s.part ?? '')?.def.holds.some((h) => h.role === 'registers') ?? false;
+      match = strobeMatches((s) => s.kind === 'clock' && holdsRegisters(s) && (s.register === r || (s.register === undefined && rd === r && writesRdRegister(machine, s))));
       why = `loads x${r}`;
     } else if (difference.what === 'pc') {
       match = strobeMatches((s) => (s.kind === 'clock' || s.kind === 'count') && s.part === pcName);
@@ -281,6 +285,13 @@ export class ProgramRun {
     for (let i = steps.length - 1; i >= 0; i--) if (match(steps[i])) return { index: i, why };
     return undefined;
   }
+}
+
+/** Whether the strobe's port stores into the register the instruction's rd field (bits 11..7, spec 2.2) selects. */
+function writesRdRegister(machine: Machine, strobe: Strobe): boolean {
+  const part = machine.parts.get(strobe.part ?? '');
+  if (!part || strobe.kindPort === undefined) return false;
+  return registerArrayFacts(machine, part).some((f) => f.writes.some((w) => w.port === strobe.kindPort && w.indexBits?.hi === 11 && w.indexBits.lo === 7));
 }
 
 /** Whether x0..x31 agree (the first 32 entries: the table's first register file). */

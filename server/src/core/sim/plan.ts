@@ -18,7 +18,6 @@ import { pointInputs } from '../encode/universe';
 import type { ClassDef, Machine, Part, StepAlt, Store } from '../model/types';
 import type { HoldsRole } from '../parts/kinds';
 import { sizeOf } from '../parts/behaviour';
-import { definitionOf } from '../model/libraryParts';
 import { elementZeroWritable } from '../model/partFacts';
 import { MAX_BUSES, MicroOps } from './microops';
 import { CustomParts } from './customParts';
@@ -133,7 +132,7 @@ export class SimPlan {
     if (typeof pc === 'string') errors.push(pc);
     const ir = machine.instructionRegister ? machine.parts.get(machine.instructionRegister) : parts.find((p) => holds(machine, p, 'instruction'));
     if (!ir) errors.push('the machine has no instruction register (`part ir instruction 32`), so it cannot hold an instruction');
-    const holdsMemory = (p: Part) => definitionOf(machine, p).def.states.some((s) => s.count === 'memory');
+    const holdsMemory = (p: Part) => p.def.states.some((s) => s.count === 'memory');
     if (!parts.some(holdsMemory)) errors.push('the machine has no memory part, so it cannot fetch instructions');
     if (!parts.some((p) => holds(machine, p, 'registers'))) errors.push('the machine has no register file (`part x regfile 32`), so it cannot hold x1..x31');
     if (machine.buses.size > MAX_BUSES) errors.push(`the machine has ${machine.buses.size} buses; the simulator handles up to ${MAX_BUSES}`);
@@ -181,7 +180,7 @@ export class SimPlan {
 
 /** Whether the part's kind says a state of it holds `role` (`holds registers r`). */
 function holds(machine: Machine, part: Part, role: HoldsRole): boolean {
-  return definitionOf(machine, part).def.holds.some((h) => h.role === role);
+  return part.def.holds.some((h) => h.role === role);
 }
 
 function findProgramCounter(machine: Machine, parts: Part[]): Part | string {
@@ -191,7 +190,7 @@ function findProgramCounter(machine: Machine, parts: Part[]): Part | string {
   if (candidates.length === 1) return candidates[0];
   const register = parts.find((p) => {
     if (p.name !== 'pc') return false;
-    const defined = definitionOf(machine, p);
+    const defined = p;
     const first = defined.def.states.find((s) => !s.count);
     return first !== undefined && sizeOf(first.width, defined.settings) === 32;
   });

@@ -261,7 +261,7 @@ export interface KindInputLine extends KindLineBase {
   width?: SizeRef;
   /** `after from`: the part line writes `from NAME` for this input. */
   after?: Name;
-  /** `instruction`: wired to the machine's instruction register, never written on the part line. */
+  /** `instruction`: wired to the machine's instruction register, never written on the part line (after `after WORD`: unless the part line names it). */
   instruction?: Span;
   /** `keyed`: written `NAME=SOURCE` on the part line. */
   keyed?: Span;

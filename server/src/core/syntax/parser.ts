@@ -713,6 +713,8 @@ class Parser {
         if (this.atWord('after')) {
           this.next();
           line.after = this.expectName('the word the part line writes before this input, e.g. `after from`');
+          // `after from instruction`: the part line may name its source, else the instruction register.
+          if (this.atWord('instruction')) line.instruction = this.keywordSpan();
         } else if (this.atWord('instruction')) line.instruction = this.keywordSpan();
         else if (this.atWord('keyed')) line.keyed = this.keywordSpan();
         return done(line);

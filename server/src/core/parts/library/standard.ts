@@ -53,7 +53,7 @@ kind instruction "instruction register: its bits feed the address lines, registe
   on load width: q <= in "loads the instruction from the bus"
 
 kind immediate "immediate generator: sign-extended I, S, B, U and J immediate of the instruction"
-  input ir 32 after from "the instruction register it rearranges (spec 2.3, figure 2.4)"
+  input ir 32 after from instruction "the instruction register it rearranges (spec 2.3, figure 2.4); the instruction register when the part line names none"
   control fmt: i s b u j
   drive imm 32 = select fmt { i: sext(ir[31:20], 32), s: sext({ir[31:25], ir[11:7]}, 32), b: sext({ir[31], ir[7], ir[30:25], ir[11:8], 0b0}, 32), u: {ir[31:12], 0x000}, j: sext({ir[31], ir[19:12], ir[20], ir[30:21], 0b0}, 32) } "the immediate of the format the field selects"
 

@@ -1,9 +1,13 @@
-// A part of a kind the table declares itself: the part line read against the kind's definition.
+// A part: its part line read against its kind's definition, for the standard library's kinds
+// and the table's own alike (one path; the library's part lines are written in this grammar).
 //   part NAME KIND [WIDTH] {SOURCE | WORD SOURCE} {SETTING=VALUE | INPUT=SOURCE | FIGURE=N} {-> FLAG}
 // A bare number sets the kind's `width` setting; names wire the kind's positional inputs in the
 // order the kind declares them (an `after WORD` input is written `WORD SOURCE`); `key=value`
 // sets a setting, wires a keyed input or gives an electrical figure; each `-> NAME` names the
-// kind's flags in order. What is missing or left over is reported where it stands.
+// kind's flags in order (a flag not named is `PART.FLAG`). An `instruction` input is wired to the
+// instruction register. A number setting that sizes an input (`input a width`), when the line does
+// not give it, is the width of what that input is wired to. What is missing or left over is
+// reported where it stands.
 import type * as A from '../syntax/ast';
 import { closest } from '../text/suggest';
 import { figureInfo, figureNamesFor } from '../budget/figures';
@@ -14,7 +18,7 @@ import type { BuildContext } from './build';
 import { parseNumber } from './numbers';
 import type * as M from './types';
 
-export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDef, base: { name: string; description?: string; symbol: M.SymbolInfo }, readFigures: (options: A.OptionNode[]) => M.Figures): M.CustomPart | undefined {
+export function buildPartOfKind(ctx: BuildContext, decl: A.PartDecl, def: KindDef, base: { name: string; description?: string; symbol: M.SymbolInfo }, readFigures: (options: A.OptionNode[]) => M.Figures): M.Part | undefined {
   const name = base.name;
   const settings = new Map<string, number | string>();
   const inputs = new Map<string, M.InputSource>();
@@ -33,6 +37,13 @@ export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDe
     if (setting.type === 'number') {
       const n = parseNumber(value.text);
       if (n === undefined) return wrong(value.span, `\`${setting.name}=\` takes a number; \`${value.text}\` is not one`);
+      // A width is a part's lines, as a bus's; every other number setting is a value of up to 32 bits.
+      const [max, what] = setting.name === 'width' ? [64, 'a part width'] : [0xffffffff, `\`${setting.name}=\``];
+      if ((setting.name === 'width' && n < 1) || n > max) {
+        ctx.report('bad-number', value.span, `${what} must be between ${setting.name === 'width' ? 1 : 0} and ${setting.name === 'width' ? max : '0xFFFFFFFF'}; \`${value.text}\` is out of range`);
+        ok = false;
+        return;
+      }
       settings.set(setting.name, n);
     } else {
       if (!setting.choices.includes(value.text)) return wrong(value.span, `\`${setting.name}=\` takes ${setting.choices.map((c) => `\`${c}\``).join(', ')}; not \`${value.text}\``);
@@ -82,13 +93,23 @@ export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDe
       else if (arg.target) flagNames.set(flag.name, arg.target.text);
     }
   }
+  // A number setting an input's width names (`input a width`), not written, is the width of what
+  // the first such input is wired to: an ALU on 8-bit buses is 8 bits wide.
+  for (const input of def.inputs) {
+    const source = inputs.get(input.name);
+    if (input.width.kind !== 'setting' || settings.has(input.width.name) || !source || source.from === 'instruction') continue;
+    const setting = def.settings.find((st) => st.type === 'number' && st.name === (input.width as { name: string }).name);
+    const sourceWidth = source.from === 'bus' ? ctx.machine.buses.get(source.name)?.width : ctx.machine.parts.get(source.name)?.width;
+    if (setting && sourceWidth !== undefined) settings.set(setting.name, sourceWidth);
+  }
   for (const setting of def.settings) {
     if (settings.has(setting.name)) continue;
     if (setting.default === undefined) wrong(decl.partKind!.span, `kind \`${def.name}\` needs \`${setting.name}=\` on the part line${setting.description ? ` (${setting.description})` : ''}`);
     else settings.set(setting.name, setting.default);
   }
   for (const input of def.inputs) {
-    if (input.wiring === 'instruction') {
+    // `instruction`, or `after WORD instruction` left off the line: the instruction register.
+    if (input.wiring === 'instruction' || (input.readsInstruction && !inputs.has(input.name))) {
       inputs.set(input.name, { from: 'instruction' });
       continue;
     }
@@ -102,7 +123,6 @@ export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDe
   const width = settings.get('width');
   return {
     ...base,
-    kind: 'custom',
     kindName: def.name,
     def,
     width: typeof width === 'number' ? width : (def.drives[0] && def.drives[0].width.kind === 'number' ? def.drives[0].width.value : 32),
@@ -116,41 +136,54 @@ export function buildCustomPart(ctx: BuildContext, decl: A.PartDecl, def: KindDe
 }
 
 /** The width a size stands for in this part (a number, or a number setting's value). */
-export function sizeIn(part: M.CustomPart, size: Size): number {
+export function sizeIn(part: M.Part, size: Size): number {
   if (size.kind === 'number') return size.value;
   const value = part.settings.get(size.name);
   return typeof value === 'number' ? value : 0;
 }
 
 /**
- * The port of a part of a table's own kind that a strobe of kind `role` uses: `enable`/`read`
- * drive ports; `clock`/`write` with a bus, edge ports that take a bus value; `count` and a
- * `clock` without a bus, edge ports that take none. `port` is the written `.port`, if any.
- * Returns the port's name, or the reason it does not fit.
+ * The port of a part's kind that a strobe of kind `role` uses: `enable`/`read` drive ports;
+ * `clock`/`write` with a bus, edge ports that take a bus value; `count` and a `clock` without a
+ * bus, edge ports that take none. `port` is the written `.port`, if any. Returns the port's
+ * name, or the reason it does not fit.
  */
-export function customPortFor(part: M.CustomPart, role: M.StrobeKind | 'clock-flag', port: string | undefined, numbered = false): { port: string; width?: number } | { problem: string } {
+export function portFor(part: M.Part, role: M.StrobeKind | 'clock-flag', port: string | undefined, numbered = false): { port: string; width?: number } | { problem: string } {
   const def = part.def;
-  const list = (names: string[]) => (names.length ? names.map((n) => `\`${part.name}.${n}\``).join(', ') : 'none');
+  const names = (ports: { name: string; param?: string }[]) => ports.map((p) => (p.param === undefined ? `\`${part.name}.${p.name}\`` : `\`${part.name}[n]\``));
+  const list = (ports: { name: string; param?: string }[], conjunction = 'and') => {
+    const all = names(ports);
+    return all.length === 0 ? 'none' : all.length === 1 ? all[0] : `${all.slice(0, -1).join(', ')} ${conjunction} ${all[all.length - 1]}`;
+  };
+  const drives = role === 'enable' || role === 'read';
   // `PART[n]` names the kind's numbered port (`drive at[n] ...`); a numbered port needs its number.
   if (numbered) {
-    const found = role === 'enable' || role === 'read' ? def.drives.find((d) => d.param !== undefined) : def.edges.find((e) => e.param !== undefined && (e.width !== undefined) === (role === 'clock' || role === 'write'));
-    if (!found) return { problem: `kind \`${def.name}\` has no numbered ${role === 'enable' || role === 'read' ? 'drive' : 'closing-edge'} port, so \`${part.name}[n]\` names nothing; its ports are ${list([...def.drives, ...def.edges].map((p) => p.name))}` };
+    const found = drives ? def.drives.find((d) => d.param !== undefined) : def.edges.find((e) => e.param !== undefined && (e.width !== undefined) === (role === 'clock' || role === 'write'));
+    if (!found) return { problem: `kind \`${def.name}\` has no numbered ${drives ? 'drive' : 'closing-edge'} port, so \`${part.name}[n]\` names nothing; its ports are ${list([...def.drives, ...def.edges])}` };
     return { port: found.name, width: 'expr' in found ? sizeIn(part, found.width) : found.width ? sizeIn(part, found.width) : undefined };
   }
   const numberedPort = [...def.drives, ...def.edges].find((p) => p.name === port && p.param !== undefined);
   if (numberedPort) return { problem: `\`${part.name}.${port}\` is a numbered port: write \`${part.name}[N]\` with the number` };
-  if (role === 'enable' || role === 'read') {
-    const drive = port ? def.drives.find((d) => d.name === port) : def.drives[0];
-    if (!drive) return { problem: port ? `kind \`${def.name}\` has no drive port \`${port}\`; its drive ports are ${list(def.drives.map((d) => d.name))}` : `kind \`${def.name}\` has no drive port, so \`${part.name}\` cannot put anything on a bus` };
+  if (drives) {
+    const drive = port ? def.drives.find((d) => d.name === port) : def.drives.find((d) => d.param === undefined);
+    if (!drive) {
+      if (port && def.edges.some((e) => e.name === port)) return { problem: `\`${part.name}.${port}\` is an input: it loads at the closing edge; drive the bus from ${list(def.drives.filter((d) => d.param === undefined), 'or')}` };
+      return { problem: port ? `kind \`${def.name}\` has no drive port \`${port}\`; its drive ports are ${list(def.drives)}` : `kind \`${def.name}\` has no drive port, so \`${part.name}\` cannot put anything on a bus` };
+    }
     return { port: drive.name, width: sizeIn(part, drive.width) };
   }
   if (role === 'end' || role === 'trap') return { problem: `an ${role} strobe acts on the sequencer, not on a part` };
   const takesBus = role === 'clock' || role === 'write';
   const fits = (e: KindDef['edges'][number]) => (takesBus ? e.width !== undefined : e.width === undefined);
-  const edge = port ? def.edges.find((e) => e.name === port) : def.edges.find(fits);
+  const edge = port ? def.edges.find((e) => e.name === port) : def.edges.find((e) => fits(e) && e.param === undefined);
   if (!edge) {
-    const names = def.edges.filter(fits).map((e) => e.name);
-    return { problem: port ? `kind \`${def.name}\` has no closing-edge port \`${port}\`; ${takesBus ? 'those that load a bus' : 'those that take no bus'} are ${list(names)}` : `kind \`${def.name}\` has no closing-edge port that ${takesBus ? 'loads a bus' : 'takes no bus'}` };
+    const fitting = def.edges.filter((e) => fits(e) && e.param === undefined);
+    const others = def.edges.filter((e) => !fits(e) && e.param === undefined);
+    if (port && def.drives.some((d) => d.name === port)) return { problem: `\`${part.name}.${port}\` is an output: ${fitting.length ? `load \`${part.name}\` through ${list(fitting, 'or')}` : `\`${part.name}\` has no closing-edge port that ${takesBus ? 'loads a bus' : 'takes no bus'}`}` };
+    if (port) return { problem: `kind \`${def.name}\` has no closing-edge port \`${port}\`; ${takesBus ? 'those that load a bus' : 'those that take no bus'} are ${list(fitting)}` };
+    const cannot = role === 'count' ? 'count' : takesBus ? (role === 'write' ? 'be written' : 'load a bus') : 'be clocked without a bus';
+    const hint = others.length === 0 ? '' : takesBus ? `; it is clocked with no bus: \`clock ${part.name}\`` : `; it loads a bus: \`clock BUS -> ${part.name}\``;
+    return { problem: `kind \`${def.name}\` has no closing-edge port that ${takesBus ? 'loads a bus' : 'takes no bus'}, so \`${part.name}\` cannot ${cannot}${hint}` };
   }
   if (!fits(edge)) return { problem: takesBus ? `\`${part.name}.${edge.name}\` takes no bus value: write \`${role === 'write' ? 'clock' : role} ${part.name}.${edge.name}\` without a bus` : `\`${part.name}.${edge.name}\` loads a bus value: write \`clock BUS -> ${part.name}.${edge.name}\`` };
   return { port: edge.name, width: edge.width ? sizeIn(part, edge.width) : undefined };
@@ -162,7 +195,7 @@ export function customPortFor(part: M.CustomPart, role: M.StrobeKind | 'clock-fl
  * bus its strobe loads (listed by the caller, not here). The simulator requires these buses to
  * be defined; the latch checks require them to be driven.
  */
-export function customPortBusReads(part: M.CustomPart, port: string, controlCodes: ReadonlyMap<string, number>): string[] {
+export function portBusReads(part: M.Part, port: string, controlCodes: ReadonlyMap<string, number>): string[] {
   const def = part.def;
   const known = new Map([...choiceCodes(def, part.settings), ...controlCodes]);
   const values = (name: string): ReadonlyMap<string, number> | undefined => {
@@ -188,7 +221,7 @@ export function customPortBusReads(part: M.CustomPart, port: string, controlCode
  * field drives (or whose field's values were all refused, with their own errors) keeps the
  * kind's own numbering. The checks and the simulator read the part through this one setting.
  */
-export function partSetting(machine: M.Machine, part: M.CustomPart): PartSetting {
+export function partSetting(machine: M.Machine, part: M.Part): PartSetting {
   const controls = new Map<string, { width: number; values: ReadonlyMap<string, number> }>();
   for (const control of part.def.controls) {
     const fieldName = part.controlFields.get(control.name);
