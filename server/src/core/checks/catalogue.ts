@@ -60,7 +60,7 @@ export const catalogue: CodeInfo[] = [
     code: 'unknown-kind',
     severity: 'error',
     title: 'an unknown part kind, strobe kind, setting or chip',
-    explanation: 'The word after a part or strobe name must be one of the built-in kinds, whose behaviour the simulator knows; settings written `name=value` must be ones the declaration accepts; a chip must be a known part number or DEPTHxWIDTH. The message lists what is accepted.',
+    explanation: 'The word after a part name must be a kind: one from the standard library or one the table declares with `kind`; the word after a strobe name must be a strobe kind; settings written `name=value` must be ones the declaration accepts; a chip must be a known part number or DEPTHxWIDTH. The message lists what is accepted.',
   },
   {
     code: 'wrong-wiring',
