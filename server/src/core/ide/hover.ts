@@ -149,7 +149,8 @@ function strobeHover(machine: Machine, strobe: Strobe): string {
   } else {
     lines.push(part ? `- **part** \`${part.name}\`, kind ${partKindLine(machine, part)}` : '- **part** not wired (see the wiring error)');
     const bus = strobe.bus ? machine.buses.get(strobe.bus) : undefined;
-    const lineText = strobe.lines ? (strobe.lines.hi === strobe.lines.lo ? `line ${strobe.lines.hi} of ${bus?.width} (the others are left to other drivers)` : `lines ${strobe.lines.hi}..${strobe.lines.lo} of ${bus?.width} (the others are left to other drivers)`) : `${bus?.width} lines`;
+    const others = strobe.kind === 'clock' || strobe.kind === 'write' ? 'the others are not loaded' : 'the others are left to other drivers';
+    const lineText = strobe.lines ? (strobe.lines.hi === strobe.lines.lo ? `line ${strobe.lines.hi} of ${bus?.width} (${others})` : `lines ${strobe.lines.hi}..${strobe.lines.lo} of ${bus?.width} (${others})`) : `${bus?.width} lines`;
     if (bus) lines.push(`- **bus** \`${bus.name}\` — ${lineText}, ${bus.keeper ? 'with keepers (holds its last value when undriven)' : 'no keepers (floats when undriven)'}`);
     else lines.push(`- **bus** none — a \`${strobe.kind}\` strobe ${strobe.kind === 'count' ? 'acts on its counter only' : 'acts on its part only'}`);
   }
@@ -275,7 +276,7 @@ function busHover(machine: Machine, bus: Bus): string {
       const strobe = machine.signals.get(n) as Strobe;
       return `\`${n}\`${lineText(strobe)}`;
     };
-    active.push(`- ${describeWritten(w)}${guard ? ` (${guard})` : ''}: ${d.length ? `driven by ${d.map(named).join(', ')}` : 'not driven'}${l.length ? `; loaded by ${l.map((n) => `\`${n}\``).join(', ')}` : ''}`);
+    active.push(`- ${describeWritten(w)}${guard ? ` (${guard})` : ''}: ${d.length ? `driven by ${d.map(named).join(', ')}` : 'not driven'}${l.length ? `; loaded by ${l.map(named).join(', ')}` : ''}`);
   }
   const lineLoads = budgetOf(machine).buses.filter((r) => r.name === bus.name);
   for (const row of lineLoads) lines.push(`- **load per line** driven by \`${row.driver}\`: ${loadText(row)}`);
