@@ -286,6 +286,30 @@ describe('latching an undriven bus', () => {
     );
   });
 
+  it('follows a function set from a decode map through every value the map gives', () => {
+    // Every value of `pass_fn` reads only operand a (left): right is not read, so it need not be driven.
+    const passes = machine(`
+      map pass_fn (funct3) -> alu.fn
+        000 passa   001 passa   010 passa   011 passa   100 passa   101 passa   110 passa   111 passa
+      class OP-IMM opcode=0010011
+        use fetch
+        2: x.rs1.oe, alu.fn=pass_fn, alu.oe, x.rd.ck, done
+    `);
+    expectDiagnostics(passes, ['undriven-latch', 'stale-latch']);
+    // One value that adds reads right too: its keepers' old value would be stored.
+    expectDiagnostics(
+      machine(`
+        map pass_fn (funct3) -> alu.fn
+          000 add   001 passa   010 passa   011 passa   100 passa   101 passa   110 passa   111 passa
+        class OP-IMM opcode=0010011
+          use fetch
+          2: x.rs1.oe, alu.fn=pass_fn, alu.oe, x.rd.ck, done
+        #                                      ^^^^^^^ stale-latch: computed from bus \`right\`
+      `),
+      ['undriven-latch', 'stale-latch'],
+    );
+  });
+
   it('is silent when every load has a driver', () => {
     expectDiagnostics(machine(`
       class BRANCH opcode=1100011

@@ -110,14 +110,17 @@ function readsIn(machine: Machine, alt: StepAlt, part: Part, port: string): stri
     if (!action) known.set(control, field.idle);
     else if (action.value!.kind === 'code') known.set(control, action.value!.code);
   }
-  const reads = new Set(portBusReads(part, port, known));
-  // Controls set from a map: every value the map may give.
-  for (const [control, fieldName] of part.controlFields) {
+  // A control set from a map: the union over every value the map may give (a map of shifts by
+  // one place reads only operand a, so operand b's bus need not be driven). With two or more
+  // controls from maps each stays unknown, which counts every arm.
+  const mapped = [...part.controlFields].flatMap(([control, fieldName]) => {
     const action = alt.actions.find((a) => a.signal === fieldName && a.value?.kind === 'map');
-    if (!action || action.value!.kind !== 'map') continue;
-    for (const row of machine.maps.get(action.value!.map)?.rows ?? []) {
-      for (const bus of portBusReads(part, port, new Map([...known, [control, row.code]]))) reads.add(bus);
-    }
+    return action?.value?.kind === 'map' ? [{ control, map: action.value.map }] : [];
+  });
+  if (mapped.length !== 1) return portBusReads(part, port, known);
+  const reads = new Set<string>();
+  for (const row of machine.maps.get(mapped[0].map)?.rows ?? []) {
+    for (const bus of portBusReads(part, port, new Map([...known, [mapped[0].control, row.code]]))) reads.add(bus);
   }
   return [...reads];
 }
