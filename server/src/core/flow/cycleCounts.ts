@@ -178,7 +178,7 @@ export function cyclesSummary(cycles: ClassCycles): string {
   const all = cycles.instructions.map((i) => i.mnemonic ?? cycles.className);
   const head = cycles.min === undefined ? 'does not end' : `${rangeText(cycles.min, cycles.max)} ${cycles.min === cycles.max && cycles.min === 1 ? 'step' : 'steps'}`;
   const only = groups.length === 1 ? groups[0].cycles : undefined;
-  if (only && only.counts!.length <= 1 && !only.doesNotEnd) return head;
+  if (only && (cycles.min === undefined || (only.counts!.length <= 1 && !only.doesNotEnd))) return head;
   const detail = groups.map((g) => (all.length > 1 ? `${groupNames(g.names, all)}: ${countsText(g.cycles)}` : countsText(g.cycles))).join('; ');
   return `${head} (${detail})`;
 }
