@@ -10,7 +10,7 @@
 // Deliberately not here: reporting a path that runs off the last step without `end` (the
 // class-end check does; this only says "does not end"), guard evaluation of its own (the
 // checks' inputSpace.ts decides which alternatives hold), and loops or jumps (issue 15 item 1).
-import { altEnds } from '../checks/reach';
+import { altEnds, maxWalkInputs } from '../checks/reach';
 import { type Cube, bitsOf, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from '../checks/inputSpace';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 
@@ -44,8 +44,6 @@ export interface ClassCycles {
   tooManyInputs: boolean;
 }
 
-/** Most instruction bits and flags one step's walk enumerates. */
-const maxInputs = 16;
 /** Most distinct condition sets kept per step; beyond, paths lose their conditions (counts stay exact). */
 const maxStates = 64;
 
@@ -78,9 +76,10 @@ export function classCycles(machine: Machine, cls: ClassDef): ClassCycles {
 /** The counts of the instructions in `cube` through `cls` (union over the bits the guards test that `cube` leaves free). */
 export function instructionCycles(machine: Machine, cls: ClassDef, cube: Cube): InstructionCycles {
   const all = [...cls.steps.values()].flat();
-  const { irMask } = guardInputs(all);
+  const { irMask, flags: classFlags } = guardInputs(all);
   const free = bitsOf((irMask & ~cube.mask) >>> 0);
-  if (free.length > maxInputs) return {};
+  // The same bound as the checks' walk (reach.ts): instruction bits and flags together.
+  if (free.length + classFlags.length > maxWalkInputs) return {};
   const lastStep = Math.max(-1, ...cls.steps.keys());
   const ends = new Map<number, Set<string>>();
   const offEnd = new Set<string>();
@@ -90,7 +89,6 @@ export function instructionCycles(machine: Machine, cls: ClassDef, cube: Cube): 
     for (let step = 0; step <= lastStep && running.size; step++) {
       const alts = cls.steps.get(step) ?? [];
       const { flags } = guardInputs(alts);
-      if (flags.length > maxInputs) return {};
       const flagScenarios = [...scenarios(irScenario.ir, [], flags)];
       // What each flag combination does here: ends, goes on, or both (two matching alternatives).
       const outcomes = flagScenarios.map((scenario) => {
