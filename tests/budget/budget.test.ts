@@ -8,6 +8,8 @@ import { dedent } from '../support/annotated';
 import { chainedStoreTable } from '../support/fixtures';
 import { runCommand } from '../../server/src/cli/commands';
 import { memoryIo } from '../../server/src/cli/io';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
 function table(machineLine: string, body: string): string {
@@ -203,6 +205,26 @@ describe('phasewright budget', () => {
     expect(io.stdout).toContain('all LEDs lit: 1117.1 mA of a 3000 mA budget (37%)');
     expect(io.stdout).toContain('Fastest safe step clock: 2564 kHz (period 390 ns), limited by step 3 of class JAL before pc.ck.');
     expect(io.stdout).not.toContain('Missing figures');
+    // The demo plans clock_khz=1000 (1000 ns a step); its classes run straight from fetch to
+    // \`end\` (LUI three steps, JALR five; examples/halyard-32.pwt).
+    expect(io.stdout).toContain("Time per instruction at the planned step clock (1000 kHz, 1000 ns a step; steps counted from each class's control flow, fetch included)");
+    expect(io.stdout).toMatch(/\n {2}LUI +3 +3000 +3 steps\n/);
+    expect(io.stdout).toMatch(/\n {2}JALR +5 +5000 +5 steps\n/);
+  });
+
+  it('gives time per instruction as min..max ns where a class has several counts; steps only with no clock', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'pw-budget-'));
+    const capstan = readFileSync(join(__dirname, '../../examples/capstan-32.pwt'), 'utf8');
+    writeFileSync(join(dir, 'capstan.pwt'), capstan);
+    writeFileSync(join(dir, 'planned.pwt'), capstan.replace(/^machine (.*)$/m, 'machine $1 clock_khz=500'));
+    const rowOf = async (file: string) => {
+      const io = memoryIo(dir);
+      await runCommand(['budget', file], io);
+      return io.stdout.slice(io.stdout.indexOf('Time per instruction')).split('\n').find((l) => l.trimStart().startsWith('BRANCH'));
+    };
+    // Capstan's branch: 4 steps not taken, 8 taken (counted from its steps); 500 kHz is 2000 ns a step.
+    expect(await rowOf('planned.pwt')).toMatch(/^ {2}BRANCH +4\.\.8 +8000\.\.16000 +4–8 steps \(BEQ\.\.BGEU: 4 not taken, 8 taken\)$/);
+    expect(await rowOf('capstan.pwt')).toMatch(/^ {2}BRANCH +4\.\.8 +\? +4–8 steps/);
   });
 
   it('exits 1 and lists the problem when a budget check fails', async () => {

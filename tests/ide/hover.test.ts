@@ -210,6 +210,8 @@ describe('exact hover texts', () => {
         '- **instructions** add, sub, sll, slt, sltu, xor, srl, sra, or, and (10)',
         '- **steps** 3 (0..2), 3 alternatives',
         '- **phases** `fetch` from step 0',
+        '- **steps to end** min 3, max 3 (fetch included)',
+        '  - add, sub, sll, slt, sltu, xor, srl, sra, or, and: min 3, max 3',
       ].join('\n'),
     );
     expect(hoverAt('class SYSTEM', 6)).toContain('- **instructions** ecall, ebreak (2)');

@@ -116,8 +116,10 @@ describe('inlay hints and code lenses', () => {
       'MISC-MEM: 3 steps · instructions: fence',
       'SYSTEM: 3 steps · instructions: ecall, ebreak',
     ]);
-    const custom = analyse('class X opcode=0001011\n  0: done\n');
+    const custom = analyse('strobe done end\nclass X opcode=0001011\n  0: done\n');
     expect(classLenses(custom)[0].title).toBe('1 step · no RV32I instruction (custom opcode)');
+    // Without an end strobe declared, no step ends the instruction (class-end reports it).
+    expect(classLenses(analyse('class X opcode=0001011\n  0: done\n'))[0].title).toBe('does not end · no RV32I instruction (custom opcode)');
   });
 });
 

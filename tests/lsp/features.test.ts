@@ -96,6 +96,8 @@ describe('hover', () => {
         '- **instructions** lb, lh, lw, lbu, lhu (5)',
         '- **steps** 4 (0..3), 4 alternatives',
         '- **phases** `fetch` from step 0',
+        '- **steps to end** min 4, max 4 (fetch included)',
+        '  - lb, lh, lw, lbu, lhu: min 4, max 4',
       ].join('\n'),
     );
   });

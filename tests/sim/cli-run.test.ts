@@ -59,6 +59,8 @@ describe('phasewright run', () => {
     expect(result.stderr).toMatch(/instructions retired: 9 {3}steps: 27 {3}CPI \(steps per instruction\): 3\.000/);
     expect(result.stderr).toMatch(/OP-IMM +6 instructions +18 steps +CPI 3\.000/);
     expect(result.stderr).toMatch(/LUI +1 instructions +3 steps +CPI 3\.000/);
+    // Beside the measured CPI, the steps counted from the class's control flow (the demo's OP-IMM: fetch and one step).
+    expect(result.stderr).toMatch(/OP-IMM +6 instructions +18 steps +CPI 3\.000 {2}\(computed 3\)\n/);
     expect(result.stderr).toMatch(/wall time: \d+\.\d{3} s {3}[\d,]+ instructions per second/);
   });
 

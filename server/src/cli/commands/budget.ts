@@ -5,6 +5,7 @@
 import { resolve } from 'node:path';
 import { analyse, errorCount } from '../../core/analysis';
 import { budgetOf, type LineLoad } from '../../core/budget/budget';
+import { instructionTimes } from '../../core/budget/instructionTime';
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { readSource } from '../readSource';
@@ -65,6 +66,10 @@ export const budgetCommand = defineCommand({
       out.push(`Fastest safe step clock: ${b.maxClockKhz.toFixed(0)} kHz (period ${b.limiting.totalNs.toFixed(0)} ns), limited by step ${b.limiting.step} of ${b.limiting.owner}${b.limiting.guard ? ` (${b.limiting.guard})` : ''} before ${b.limiting.endpoint}. Leave margin.`);
       if (b.plannedKhz !== undefined) out.push(`Planned step clock: ${b.plannedKhz} kHz (period ${(1e6 / b.plannedKhz).toFixed(0)} ns): ${b.plannedKhz <= b.maxClockKhz ? `${((1 - b.plannedKhz / b.maxClockKhz) * 100).toFixed(0)}% slower than the limit` : 'TOO FAST'}.`);
     }
+    const times = instructionTimes(analysis.machine);
+    out.push('');
+    out.push(times.clockKhz !== undefined ? `Time per instruction at the ${times.clockFrom} step clock (${times.clockKhz.toFixed(0)} kHz, ${times.periodNs!.toFixed(0)} ns a step; steps counted from each class's control flow, fetch included)` : 'Time per instruction (no planned clock, clock_khz, and no complete step timing: steps only)');
+    out.push(textTable(['class', 'steps', 'ns', 'counts'], times.rows.map((r) => [r.className, span(r.minSteps, r.maxSteps, 0), span(r.minNs, r.maxNs, 0), r.detail])));
     if (b.missing.length) {
       out.push('');
       out.push('Missing figures (those rows are incomplete):');
@@ -81,6 +86,12 @@ export const budgetCommand = defineCommand({
     return problems.some((d) => d.severity === 'error') ? 1 : 0;
   },
 });
+
+/** `min..max`, or one number when they agree; `?` when unknown. */
+function span(min: number | undefined, max: number | undefined, digits: number): string {
+  if (min === undefined || max === undefined) return '?';
+  return min === max ? min.toFixed(digits) : `${min.toFixed(digits)}..${max.toFixed(digits)}`;
+}
 
 function ma(value: number | undefined): string {
   return value === undefined ? '?' : value.toFixed(2);

@@ -5,6 +5,7 @@
 // notation's keywords. Pure: it reads an analysis and returns text with the span it explains.
 import { type CodeInfo, codeInfo } from '../checks/catalogue';
 import { budgetOf, type LineLoad } from '../budget/budget';
+import { countsText, cycleCountsOf, groupsOf } from '../flow/cycleCounts';
 import type { Analysis } from '../analysis';
 import { kindSource } from '../parts/kinds';
 import { standardLibraryText } from '../parts/library';
@@ -97,7 +98,7 @@ function hoverSymbol(machine: Machine, symbol: SymbolInfo): string | undefined {
     }
     case 'class': {
       const cls = machine.classes.find((c) => c.symbol === symbol);
-      return cls ? classHover(cls) : undefined;
+      return cls ? classHover(machine, cls) : undefined;
     }
     case 'store': {
       const store = machine.stores.find((s) => s.symbol === symbol);
@@ -360,7 +361,7 @@ function phaseHover(machine: Machine, phase: Phase): string {
   return lines.join('\n');
 }
 
-function classHover(cls: ClassDef): string {
+function classHover(machine: Machine, cls: ClassDef): string {
   const lines = [header('class', cls.name, cls.description), ''];
   const major = cls.opcode !== undefined ? majorOpcodeOf(cls.opcode) : undefined;
   if (cls.opcode === undefined) lines.push('- **opcode** none: no instruction selects this class');
@@ -373,7 +374,22 @@ function classHover(cls: ClassDef): string {
   const phases = new Map<string, number>();
   for (const alts of cls.steps.values()) for (const alt of alts) if (alt.phase && !phases.has(alt.phase.name)) phases.set(alt.phase.name, alt.step);
   if (phases.size) lines.push(`- **phases** ${[...phases].map(([name, at]) => `\`${name}\` from step ${at}`).join(', ')}`);
+  lines.push(...cyclesLines(machine, cls));
   return lines.join('\n');
+}
+
+/** Steps to \`end\` per instruction, from the class's control flow (fetch included). */
+function cyclesLines(machine: Machine, cls: ClassDef): string[] {
+  const cycles = cycleCountsOf(machine)[machine.classes.indexOf(cls)];
+  if (!cycles) return [];
+  if (cycles.tooManyInputs) return ['- **steps to end** not counted: its guards test more inputs than a walk enumerates'];
+  const lines = [`- **steps to end** ${cycles.min === undefined ? 'none: no path reaches \`end\`' : `min ${cycles.min}, max ${cycles.max}`} (fetch included)`];
+  // Instructions with the same counts share a line.
+  for (const { names, cycles: i } of groupsOf(cycles)) {
+    if (!i.mnemonic) continue;
+    lines.push(`  - ${names.join(', ')}: ${i.min === undefined ? 'does not end' : `min ${i.min}, max ${i.max}`}${(i.counts?.length ?? 0) > 1 || i.doesNotEnd ? ` (${countsText(i)})` : ''}`);
+  }
+  return lines;
 }
 
 function storeHover(store: Store): string {

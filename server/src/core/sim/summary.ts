@@ -1,9 +1,11 @@
 // The figures of a run: instructions retired, steps, cycles per instruction per class and
 // overall, how often each RV32I instruction retired through the microcode, and (given the wall
 // time by the caller, since the core has no clock) instructions per second. Text for the CLI's
-// summary and the editor's run result.
+// summary and the editor's run result. Beside each class's measured CPI stand the steps its
+// instructions take as counted from the table's control flow (min–max).
 //
 // Deliberately not here: running or comparing (simulator.ts, lockstep.ts).
+import { cycleCountsOf, rangeText } from '../flow/cycleCounts';
 import { RV32I_INSTRUCTIONS, matchInstruction } from '../isa/rv32i';
 import { wordOfMnemonicKey, type BusSimulator } from './simulator';
 
@@ -13,6 +15,8 @@ export interface ClassFigures {
   steps: number;
   /** Steps per instruction of this class. */
   cpi: number;
+  /** The steps its instructions take as counted from the class's control flow (flow/cycleCounts.ts). */
+  computed?: { min?: number; max?: number; doesNotEnd: boolean };
 }
 
 export interface RunFigures {
@@ -29,11 +33,13 @@ export function figuresOf(sim: BusSimulator): RunFigures {
   const machine = sim.plan.machine;
   const classes: ClassFigures[] = [];
   const names = [...machine.classes.map((c) => c.name), '(no class)'];
+  const counted = cycleCountsOf(machine);
   names.forEach((className, i) => {
     const instructions = sim.classInstructions[i];
     if (instructions === 0) return;
     const steps = sim.classSteps[i];
-    classes.push({ className, instructions, steps, cpi: steps / instructions });
+    const c = counted[i];
+    classes.push({ className, instructions, steps, cpi: steps / instructions, ...(c && !c.tooManyInputs ? { computed: { min: c.min, max: c.max, doesNotEnd: c.doesNotEnd } } : {}) });
   });
   const mnemonics = new Map<string, number>(RV32I_INSTRUCTIONS.map((s) => [s.mnemonic, 0]));
   for (let key = 0; key < sim.retiredByKey.length; key++) {
@@ -60,7 +66,8 @@ export function formatFigures(figures: RunFigures, wallMs?: number): string {
     const width = Math.max(...figures.classes.map((c) => c.className.length));
     const stepsWidth = Math.max(...figures.classes.map((c) => grouped(c.steps).length));
     for (const c of figures.classes) {
-      lines.push(`  ${c.className.padEnd(width)}  ${grouped(c.instructions).padStart(14)} instructions  ${grouped(c.steps).padStart(stepsWidth)} steps  CPI ${c.cpi.toFixed(3)}`);
+      const computed = c.computed ? `  (computed ${rangeText(c.computed.min, c.computed.max)}${c.computed.doesNotEnd ? ', or does not end' : ''})` : '';
+      lines.push(`  ${c.className.padEnd(width)}  ${grouped(c.instructions).padStart(14)} instructions  ${grouped(c.steps).padStart(stepsWidth)} steps  CPI ${c.cpi.toFixed(3)}${computed}`);
     }
   }
   if (wallMs !== undefined) {
