@@ -4,7 +4,7 @@ import type * as A from '../syntax/ast';
 import type { Span } from '../text/span';
 import { closest } from '../text/suggest';
 import type { BuildContext } from './build';
-import { parseBits } from './numbers';
+import { parseBits, parseNumber } from './numbers';
 import type * as M from './types';
 import { inputWidth } from './vocabulary';
 
@@ -199,6 +199,11 @@ function buildAction(ctx: BuildContext, action: A.ActionNode): M.Action | undefi
     }
     return { signal: signal.name, span: action.span };
   }
+  if (signal.numeric) return numberAction(ctx, signal, action);
+  if (action.number) {
+    ctx.report('wrong-wiring', action.number.span, `\`${signal.name}\` has named values (${[...signal.values.keys()].join(', ')}), not numbers; only a number field (\`field NAME WIDTH\`, no values) takes a number`);
+    return undefined;
+  }
   if (!action.equals || !action.value) {
     if (!action.equals) {
       ctx.report('wrong-wiring', action.span, `\`${signal.name}\` is a field: give it a value, e.g. \`${signal.name}=${[...signal.values.keys()][0] ?? 'VALUE'}\``);
@@ -231,4 +236,20 @@ function buildAction(ctx: BuildContext, action: A.ActionNode): M.Action | undefi
     guess ? [{ title: `Change to \`${guess}\``, edits: [{ span: action.value.span, newText: guess }], preferred: true }] : undefined,
   );
   return undefined;
+}
+
+/** `next=5` on a number field: the number is the field's code, 0 to 2^width - 1. */
+function numberAction(ctx: BuildContext, field: M.Field, action: A.ActionNode): M.Action | undefined {
+  const max = 2 ** field.width - 1;
+  if (!action.equals || !action.number) {
+    if (action.value) ctx.report('wrong-wiring', action.value.span, `\`${field.name}\` is a number field: give it a number from 0 to ${max}, e.g. \`${field.name}=1\``);
+    else if (!action.equals) ctx.report('wrong-wiring', action.span, `\`${field.name}\` is a number field: give it a number, e.g. \`${field.name}=1\``);
+    return undefined;
+  }
+  const code = parseNumber(action.number.text);
+  if (code === undefined || code > max) {
+    ctx.report('bad-number', action.number.span, code === undefined ? `\`${action.number.text}\` is not a number; write it in decimal, or with 0x (hex) or 0b (binary)` : `\`${field.name}\` has ${field.width} bit(s): a number from 0 to ${max}; ${code} does not fit`);
+    return undefined;
+  }
+  return { signal: field.name, value: { kind: 'code', name: String(code), code }, span: action.span };
 }

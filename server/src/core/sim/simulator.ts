@@ -99,7 +99,7 @@ export interface SimState {
   stopReason: SimStop | null;
   pendingExit: { exitCode: number; status: number } | null;
 }
-const STATE_NUMBERS = 11;
+const STATE_NUMBERS = 13;
 
 /** Most memory writes one instruction's record keeps (RV32I makes at most one). */
 const MAX_RECORDED_WRITES = 16;
@@ -135,6 +135,12 @@ export class BusSimulator implements MachineAccess {
   instructionPc = 0;
   /** The step counter's value in the `end` step of the instruction that retired last, and its word. */
   lastRetireStep = 0;
+  /**
+   * With a sequencer part: the steps the current instruction has run so far (a jump or a loop
+   * makes this differ from the step number), and those of the instruction that retired last.
+   */
+  instructionSteps = 0;
+  lastInstructionSteps = 0;
   lastRetiredWord = 0;
   stopReason: SimStop | null = null;
   /** Called after the buses settle in every step, before the closing edge (traces use it); gets the micro-op's number. */
@@ -503,6 +509,7 @@ export class BusSimulator implements MachineAccess {
     const flags = this.flags;
     const irPart = plan.irPart;
     const pcPart = plan.pcPart;
+    const seqPart = plan.seqPart;
     const nSteps = plan.nSteps;
     const nBuses = busValue.length;
     const classOfOpcode = plan.classOfOpcode;
@@ -654,12 +661,31 @@ export class BusSimulator implements MachineAccess {
         this.refreshStaticParts();
         static0 = this.staticParts[0];
       }
-      // 5. Step counter.
-      if ((header & 2) !== 0) {
+      // 5. Step counter. With a sequencer part the step is its state, just computed at the
+      // closing edge from the values before it (a jump, a hold, a clear); the instruction retires
+      // when it is back at 0. Without one: `end` returns the implicit counter to 0, else it counts.
+      let retire = (header & 2) !== 0;
+      let nextStep = step + 1;
+      if (seqPart >= 0) {
+        nextStep = partValue[seqPart] & (nSteps - 1);
+        retire = nextStep === 0;
+        this.instructionSteps++;
+        // Back at 0 from a fill word (no step of the table wrote it): the instruction did not end,
+        // the sequencer only ran out of steps (an illegal instruction, or a class with no way back).
+        if (retire && this.isFillWord(step)) {
+          this.step = 0;
+          this.steps += stepsRun;
+          this.definedMask = defined;
+          return this.stopWith(this.wrapStop());
+        }
+      }
+      if (retire) {
         const cls = classOfOpcode[retiring & 0x7f];
         const slot = cls < 0 ? noClass : cls;
         this.classInstructions[slot]++;
-        this.classSteps[slot] += step + 1;
+        this.classSteps[slot] += seqPart >= 0 ? this.instructionSteps : step + 1;
+        this.lastInstructionSteps = seqPart >= 0 ? this.instructionSteps : step + 1;
+        this.instructionSteps = 0;
         this.retiredByKey[mnemonicKey(retiring)]++;
         this.lastRetiredWord = retiring >>> 0;
         this.instructionsRetired++;
@@ -674,6 +700,8 @@ export class BusSimulator implements MachineAccess {
           this.definedMask = defined;
           return this.pendingExit === null ? RETIRED : this.takeExit();
         }
+      } else if (seqPart >= 0) {
+        step = nextStep;
       } else if (++step === nSteps) {
         this.step = 0;
         this.steps += stepsRun;
@@ -750,6 +778,8 @@ export class BusSimulator implements MachineAccess {
     n[8] = this.writeCount;
     n[9] = this.instructionLoaded ? 1 : 0;
     n[10] = this.ebreaks;
+    n[11] = this.instructionSteps;
+    n[12] = this.lastInstructionSteps;
     state.stopReason = this.stopReason;
     state.pendingExit = this.pendingExit;
     return state;
@@ -780,6 +810,8 @@ export class BusSimulator implements MachineAccess {
     this.writeCount = n[8];
     this.instructionLoaded = n[9] === 1;
     this.ebreaks = n[10];
+    this.instructionSteps = n[11];
+    this.lastInstructionSteps = n[12];
     this.stopReason = state.stopReason;
     this.pendingExit = state.pendingExit;
     this.checkpointValid = false;
@@ -848,7 +880,7 @@ export class BusSimulator implements MachineAccess {
    */
   replayInstruction(): boolean {
     if (!this.checkpointValid) return false;
-    const counters = { step: this.step, steps: this.steps, retired: this.instructionsRetired, ebreaks: this.ebreaks, lastRetireStep: this.lastRetireStep, lastWriteCount: this.lastWriteCount, writeCount: this.writeCount, stop: this.stopReason, pendingExit: this.pendingExit };
+    const counters = { instructionSteps: this.instructionSteps, lastInstructionSteps: this.lastInstructionSteps, step: this.step, steps: this.steps, retired: this.instructionsRetired, ebreaks: this.ebreaks, lastRetireStep: this.lastRetireStep, lastWriteCount: this.lastWriteCount, writeCount: this.writeCount, stop: this.stopReason, pendingExit: this.pendingExit };
     const classInstructions = this.classInstructions.slice();
     const classSteps = this.classSteps.slice();
     const writes = { address: this.writeAddress.slice(), size: this.writeSize.slice(), value: this.writeValue.slice() };
@@ -870,6 +902,7 @@ export class BusSimulator implements MachineAccess {
     this.instructionPc = saved.instructionPc;
     this.instructionLoaded = saved.instructionLoaded;
     this.step = 0;
+    this.instructionSteps = 0;
     this.stopReason = null;
     this.pendingExit = null;
     this.writeCount = 0;
@@ -880,12 +913,15 @@ export class BusSimulator implements MachineAccess {
     this.env = new LinuxUserEnvironment({ outputLimitBytes: env.outputLimitBytes });
     this.recordBuses = true;
     this.observer = null;
-    const outcome = this.runSteps(this.plan.nSteps + 1, true);
+    // With a sequencer an instruction may loop: replay until it retires or stops, within a bound.
+    const outcome = this.runSteps(this.plan.seqPart >= 0 ? 1 << 20 : this.plan.nSteps + 1, true);
     if (outcome.kind === 'retired' || (outcome.kind === 'stopped' && outcome.retired)) this.retiredByKey[mnemonicKey(this.lastRetiredWord)]--;
     this.env = env;
     this.recordBuses = record;
     this.observer = observer;
     this.step = counters.step;
+    this.instructionSteps = counters.instructionSteps;
+    this.lastInstructionSteps = counters.lastInstructionSteps;
     this.steps = counters.steps;
     this.instructionsRetired = counters.retired;
     this.ebreaks = counters.ebreaks;
@@ -924,6 +960,17 @@ export class BusSimulator implements MachineAccess {
       return { kind: 'ebreak', pc };
     }
     return { kind: 'illegal-instruction', pc, word, why: 'monitor', message: 'the table traps this word, but the monitor serves only ecall (0x00000073) and ebreak (0x00100073)' };
+  }
+
+  /** Whether the word of `step` (as logged in this instruction) is the fill word of every store: no step of the table wrote it. */
+  private isFillWord(step: number): boolean {
+    const plan = this.plan;
+    for (let s = 0; s < this.nStores; s++) {
+      const address = this.logAddress[step * this.nStores + s];
+      const point = plan.stores[s].enc.origin[address];
+      if (point !== undefined && point >= 0) return false;
+    }
+    return true;
   }
 
   private wrapStop(): SimStop {

@@ -1,0 +1,170 @@
+// A sequencer part (`holds step`, issue 15's first slice) replacing the implicit step counter:
+// the demo machine with the library's `sequencer` driven by a field of the word, each `end`
+// replaced by `seqop=clear`, runs programs in lock-step with the RV32I reference interpreter;
+// a variant does SLLI one bit per step in a loop counted down by a `loopcount` part from shamt.
+//
+// The expected results are the RV32I meanings (RISC-V Unprivileged ISA 20191213, chapter 2:
+// ADDI, SLLI shifts by imm[4:0] (2.4), branches (2.5)); every retired instruction is also held
+// against the project's reference interpreter by the lock-step run (`reference: true`).
+import { describe, expect, it } from 'vitest';
+import { analyse } from '../../server/src/core/analysis';
+import { canCompile } from '../../server/src/core/sim/compile';
+import { DEMO_TEXT, assemble, exitWords, ins, planOf, programOf, runToEnd, toLabel } from './support';
+
+/** Text with `from` replaced by `to` (exactly once). */
+function replaceOnce(text: string, from: string, to: string): string {
+  const at = text.indexOf(from);
+  expect(at, `"${from}" occurs`).toBeGreaterThanOrEqual(0);
+  expect(text.indexOf(from, at + 1), `"${from}" occurs once`).toBe(-1);
+  return text.slice(0, at) + to + text.slice(at + from.length);
+}
+
+/**
+ * The demo with a sequencer: the `end` strobe removed, a 3-bit `sequencer` part (the address has
+ * step 0..2) with its op field and a number field for the jump target in a fifth chip.
+ */
+export function sequencerDemo(): string {
+  let text = DEMO_TEXT;
+  text = replaceOnce(text, 'strobe done      end                     active high loads=2 in_ua=1 "Last step: the step counter returns to 0."\n', '');
+  text = replaceOnce(text, '  alu.fn 16..19   imm.fmt 20..22   done 23\n', '  alu.fn 16..19   imm.fmt 20..22\n');
+  text = replaceOnce(text, 'word 32 as 4 x 8 chip=28C64', 'word 40 as 5 x 8 chip=28C64');
+  text = replaceOnce(text, '  mem.size 24..26   sys.trap 27\n', '  mem.size 24..26   sys.trap 27   seqop 28..29   next 32..34\n');
+  text = replaceOnce(
+    text,
+    'part four constant',
+    'part seq  sequencer 3 target=next "The step counter: counts, jumps to `next`, holds or clears."\npart four constant',
+  );
+  text = replaceOnce(text, 'field mem.size', 'field seqop 2 -> seq.op idle=count { count=0 load=1 hold=2 clear=3 } "What the sequencer does at the closing edge."\nfield next 3 "Where a jump goes."\nfield mem.size');
+  const ends = text.split(', done').length - 1;
+  expect(ends).toBeGreaterThan(10);
+  return text.replaceAll(', done', ', seqop=clear');
+}
+
+/**
+ * The sequencer demo with SLLI done one bit per step: acc = rs1; a 5-bit loop counter loads
+ * shamt from the low lines of the result bus; while it is not zero, acc = acc << 1 and it
+ * counts down, jumping back to step 4; at zero rd = acc. The counter's zero flag is address line
+ * 13 (so the store takes 28C256s, 32K x 8).
+ */
+export function shiftLoopDemo(): string {
+  let text = sequencerDemo();
+  text = replaceOnce(text, 'part four constant', 'part acc  register 32 "Shift accumulator."\npart one  constant 32 value=1 "The constant 1: the shift amount of one loop step."\npart sh   loopcount 5 -> shz "Counts the shifts down from shamt."\npart four constant');
+  text = replaceOnce(
+    text,
+    'strobe sys.trap',
+    [
+      'strobe acc.oe    enable acc -> left      active low  "Accumulator drives the left bus."',
+      'strobe acc.ck    clock result -> acc     active high "Accumulator loads the result bus."',
+      'strobe one.oe    enable one -> right     active low  "Constant 1 drives the right bus."',
+      'strobe sh.ld     clock result[4:0] -> sh.load active high "Loop counter loads the shift amount (result lines 4..0)."',
+      'strobe sh.dn     count sh.down           active high "Loop counter counts down."',
+      'strobe sys.trap',
+    ].join('\n'),
+  );
+  text = replaceOnce(text, 'chip=28C64', 'chip=28C256');
+  text = replaceOnce(text, '   next 32..34\n', '   next 32..34\n  acc.oe 35   acc.ck 36   one.oe 37   sh.ld 38   sh.dn 39\n');
+  text = replaceOnce(text, 'address 13\n  step 0..2   taken 3   f7b5 4   funct3 5..7   opcode 8..12', 'address 14\n  step 0..2   taken 3   f7b5 4   funct3 5..7   opcode 8..12   shz 13');
+  text = replaceOnce(
+    text,
+    '  2: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=imm_fn, alu.oe, x.rd.ck, pc.inc, seqop=clear\n',
+    [
+      '  2 if funct3=001: x.rs1.oe, alu.fn=passa, alu.oe, acc.ck',
+      '  2 else: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=imm_fn, alu.oe, x.rd.ck, pc.inc, seqop=clear',
+      '  3: imm.fmt=i, imm.oe, alu.fn=passb, alu.oe, sh.ld',
+      '  4 if !shz: acc.oe, one.oe, alu.fn=sll, alu.oe, acc.ck, sh.dn, seqop=load, next=4',
+      '  4 else: acc.oe, alu.fn=passa, alu.oe, x.rd.ck, pc.inc, seqop=clear',
+      '',
+    ].join('\n'),
+  );
+  return text;
+}
+
+/** A program using every class of the demo: arithmetic, a loop of branches, a store and load, jumps, then exit with a0. */
+function program(): number[] {
+  return assemble([
+    ins('lui', { rd: 5, imm: 0x12345 << 12 }),
+    ins('auipc', { rd: 6, imm: 0 }),
+    ins('addi', { rd: 1, rs1: 0, imm: 5 }),
+    ins('addi', { rd: 2, rs1: 0, imm: 0 }),
+    { label: 'loop' },
+    ins('add', { rd: 2, rs1: 2, rs2: 1 }),
+    ins('addi', { rd: 1, rs1: 1, imm: -1 }),
+    toLabel('bne', 'loop', { rs1: 1, rs2: 0 }),
+    ins('sw', { rs1: 6, rs2: 2, imm: 0x100 }),
+    ins('lw', { rd: 7, rs1: 6, imm: 0x100 }),
+    ins('slli', { rd: 8, rs1: 7, imm: 3 }),
+    ins('srai', { rd: 9, rs1: 5, imm: 4 }),
+    toLabel('jal', 'over', { rd: 1 }),
+    ins('addi', { rd: 7, rs1: 0, imm: 99 }),
+    { label: 'over' },
+    ins('fence'),
+    ins('add', { rd: 10, rs1: 7, rs2: 8 }),
+    ...exitWords(),
+  ]);
+}
+
+describe('the demo with a sequencer part', () => {
+  it('checks clean, and runs on the interpreter (the compiled chains assume the implicit counter)', () => {
+    const text = sequencerDemo();
+    expect(analyse(text).diagnostics).toEqual([]);
+    expect(canCompile(planOf(text))).toBe(false);
+  });
+
+  it('runs a program in lock-step with the reference: 15 (sum 5..1) + 15 << 3 = 135', () => {
+    const plan = planOf(sequencerDemo());
+    const { run, ending } = runToEnd(plan, programOf(program()), { reference: true });
+    expect(ending).toEqual({ kind: 'exit', exitCode: 135, status: 135 });
+    expect(run.sim.regs[9]).toBe(0x12345000 >> 4);
+    // Same steps as the implicit counter would count: OP-IMM is three steps (fetch and one).
+    const opImm = plan.machine.classes.findIndex((c) => c.name === 'OP-IMM');
+    expect(run.sim.classSteps[opImm] / run.sim.classInstructions[opImm]).toBe(3);
+  });
+
+  it('retires at the closing edge after which the step is 0, as the implicit counter does at `end`', () => {
+    const plain = planOf(DEMO_TEXT);
+    const seq = planOf(sequencerDemo());
+    const words = program();
+    const a = runToEnd(plain, programOf(words), { reference: false }, 0).run.sim;
+    const b = runToEnd(seq, programOf(words), { reference: false }, 0).run.sim;
+    for (let i = 0; i < 400 && !a.stopReason && !b.stopReason; i++) {
+      a.run(1);
+      b.run(1);
+      expect(b.step, `step ${i}`).toBe(a.step);
+      expect(b.instructionsRetired, `step ${i}`).toBe(a.instructionsRetired);
+      expect(b.pc).toBe(a.pc);
+    }
+    expect(b.stopReason).toEqual(a.stopReason);
+  });
+});
+
+describe('SLLI as a loop of one-bit shifts counted down by a loop counter', () => {
+  it('checks clean: the walk stops at the loop step, which either jumps back or ends', () => {
+    expect(analyse(shiftLoopDemo()).diagnostics).toEqual([]);
+  });
+
+  it('shifts by 0, 1, 5 and 31 in lock-step with the reference; each shift takes 5 + shamt steps', () => {
+    const plan = planOf(shiftLoopDemo());
+    const words = assemble([
+      ins('addi', { rd: 1, rs1: 0, imm: -3 }), // 0xfffffffd
+      ins('slli', { rd: 2, rs1: 1, imm: 0 }),
+      ins('slli', { rd: 3, rs1: 1, imm: 1 }),
+      ins('slli', { rd: 4, rs1: 1, imm: 5 }),
+      ins('addi', { rd: 5, rs1: 0, imm: 1 }),
+      ins('slli', { rd: 6, rs1: 5, imm: 31 }),
+      ins('srli', { rd: 7, rs1: 6, imm: 28 }), // the other OP-IMM functions still take one step
+      ins('add', { rd: 10, rs1: 7, rs2: 0 }),
+      ...exitWords(),
+    ]);
+    const { run, ending } = runToEnd(plan, programOf(words), { reference: true });
+    expect(ending).toEqual({ kind: 'exit', exitCode: 8, status: 8 });
+    const regs = [...run.sim.regs].map((v) => v >>> 0);
+    expect(regs[2]).toBe(0xfffffffd);
+    expect(regs[3]).toBe(0xfffffffa);
+    expect(regs[4]).toBe(0xffffffa0);
+    expect(regs[6]).toBe(0x80000000);
+    // OP-IMM: addi x3 (3 steps each), srli (3), and the slli: steps 0..3, shamt loop steps, the last step 4.
+    const opImm = plan.machine.classes.findIndex((c) => c.name === 'OP-IMM');
+    expect(run.sim.classInstructions[opImm]).toBe(8);
+    expect(run.sim.classSteps[opImm]).toBe(3 * 4 + (5 + 0) + (5 + 1) + (5 + 5) + (5 + 31));
+  });
+});
