@@ -58,10 +58,23 @@ export function buildPartOfKind(ctx: BuildContext, decl: A.PartDecl, def: KindDe
     inputs.set(input.name, { from: symbol.kind, name: source.text });
   };
   // A `field` input reads a field of the word (a number field, checked once fields are built: model/build.ts).
+  const refused = new Set<string>();
   const wireField = (input: KindDef['inputs'][number], source: A.Name) => {
     const symbol = ctx.lookup('signal', source.text);
-    if (!symbol) return ctx.undefinedName(source, 'field', [...ctx.names.get('signal')?.values() ?? []].filter((s) => s.kind === 'field').map((s) => s.name));
-    if (symbol.kind !== 'field') return wrong(source.span, `input \`${input.name}\` of \`${name}\` takes a number field of the word (\`field ${source.text} WIDTH\`); \`${source.text}\` is a ${symbol.kind}`);
+    const other = symbol ? undefined : ctx.lookup('structure', source.text);
+    if (other) {
+      refused.add(input.name);
+      return wrong(source.span, `input \`${input.name}\` of \`${name}\` takes a number field of the word (\`field NAME WIDTH\`); \`${source.text}\` is a ${other.kind}`);
+    }
+    if (!symbol) {
+      refused.add(input.name);
+      ok = false;
+      return ctx.undefinedName(source, 'field', [...(ctx.names.get('signal')?.values() ?? [])].filter((s) => s.kind === 'field').map((s) => s.name));
+    }
+    if (symbol.kind !== 'field') {
+      refused.add(input.name); // reported here, not again as unwired
+      return wrong(source.span, `input \`${input.name}\` of \`${name}\` takes a number field of the word (\`field ${source.text} WIDTH\`); \`${source.text}\` is a ${symbol.kind}`);
+    }
     ctx.reference(source.span, symbol);
     inputs.set(input.name, { from: 'field', name: source.text, span: source.span });
   };
@@ -123,7 +136,7 @@ export function buildPartOfKind(ctx: BuildContext, decl: A.PartDecl, def: KindDe
       inputs.set(input.name, { from: 'instruction' });
       continue;
     }
-    if (inputs.has(input.name)) continue;
+    if (inputs.has(input.name) || refused.has(input.name)) continue;
     const how = input.wiring === 'keyed' ? `\`${input.name}=SOURCE\`` : input.wiring === 'field' ? `\`${input.name}=FIELD\` (a number field of the word)` : input.wiring === 'after' ? `\`${input.after} SOURCE\`` : 'a bus or part name in order';
     wrong(decl.partKind!.span, `input \`${input.name}\` of \`${name}\` is not wired: write ${how} on the part line`);
   }
