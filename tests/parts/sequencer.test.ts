@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { decodeWord, encodeMachine } from '../../server/src/core/encode/encoder';
 import { parse } from '../../server/src/core/syntax/parser';
-import { dedent, expectDiagnostics } from '../support/annotated';
+import { expectDiagnostics } from '../support/annotated';
 
 /** A small sketch (no `isa`): one register, the library's sequencer with 2 step bits, its fields; lines as given. */
 function sketch(parts: string[], steps: string[], extra: string[] = [], classLine = ['class X opcode=0110011']): string {
