@@ -132,4 +132,28 @@ describe('a sequencer part in the notation', () => {
     // Counting past the last step wraps the 2-bit step to 0: the hardware ends there too.
     expectDiagnostics(sketch(seq, ['  0: r.oe', '  1: r.oe', '  2: r.oe', '  3: r.oe']), ['class-no-end']);
   });
+
+  describe('step sugar: `goto N`, `wait` and `end` set the fields wired to the part holding the step', () => {
+    const wordsOf = (text: string) => {
+      const { machine } = analyse(text);
+      return [...encodeMachine(machine).stores[0].words];
+    };
+
+    it('`goto 3` is `seqop=load, next=3`, `end` is `seqop=clear`, `wait` is `seqop=hold`: the same words', () => {
+      const sugared = sketch(seq, ['  0: r.oe', '  1: goto 3', '  2: wait', '  3: end']);
+      expect(analyse(sugared).diagnostics.map((d) => `${d.code}: ${d.message}`)).toEqual([]);
+      expect(wordsOf(sugared)).toEqual(wordsOf(sketch(seq, ['  0: r.oe', '  1: seqop=load, next=3', '  2: seqop=hold', '  3: seqop=clear'])));
+    });
+
+    it('a `goto` target out of range is a bad number at the number; `goto` without a sequencer is wrong wiring', () => {
+      expectDiagnostics(sketch(seq, ['  0: r.oe, goto 4', '#               ^ bad-number: 4 does not fit', '  1: end']), ['bad-number', 'wrong-wiring']);
+      const plain = ['bus b 8', 'part r register 8', 'strobe r.oe enable r -> b', 'strobe done end', 'word 8 as 8', '  r.oe 0   done 1', 'address 7', '  step 0..1   opcode 2..6', 'class X opcode=0110011', '  0: r.oe, goto 1', '#          ^^^^^^ wrong-wiring: `goto` jumps the sequencer, and this machine has none', '  1: done', ''].join('\n');
+      expectDiagnostics(plain, ['wrong-wiring', 'bad-number', 'undefined-name']);
+    });
+
+    it('a declared strobe named `end` stays a strobe', () => {
+      const plain = ['bus b 8', 'part r register 8', 'strobe r.oe enable r -> b', 'strobe end end', 'word 8 as 8', '  r.oe 0   end 1', 'address 7', '  step 0..1   opcode 2..6', 'class X opcode=0110011', '  0: r.oe', '  1: end', ''].join('\n');
+      expect(analyse(plain).diagnostics).toEqual([]);
+    });
+  });
 });

@@ -137,6 +137,17 @@ describe('the demo with a sequencer part', () => {
   });
 });
 
+describe('a sequencer that runs out of steps', () => {
+  it('an instruction no class decodes runs the fill word back to step 0: an illegal instruction, not a retirement', () => {
+    // Opcode 0001011 (custom-0, RISC-V Unprivileged ISA 20191213, table 24.1) has no class in the demo.
+    const { run, ending } = runToEnd(planOf(sequencerDemo()), programOf([ins('addi', { rd: 1, rs1: 0, imm: 1 }), 0x0000000b, ...exitWords()]), { reference: true });
+    expect(ending?.kind).toBe('stopped');
+    if (ending?.kind !== 'stopped') return;
+    expect(ending.stop).toMatchObject({ kind: 'illegal-instruction', pc: 0x1004, word: 0x0000000b, why: 'no-class' });
+    expect(run.sim.instructionsRetired).toBe(1);
+  });
+});
+
 describe('SLLI as a loop of one-bit shifts counted down by a loop counter', () => {
   it('checks clean: the walk stops at the loop step, which either jumps back or ends', () => {
     expect(analyse(shiftLoopDemo()).diagnostics).toEqual([]);
@@ -166,5 +177,16 @@ describe('SLLI as a loop of one-bit shifts counted down by a loop counter', () =
     const opImm = plan.machine.classes.findIndex((c) => c.name === 'OP-IMM');
     expect(run.sim.classInstructions[opImm]).toBe(8);
     expect(run.sim.classSteps[opImm]).toBe(3 * 4 + (5 + 0) + (5 + 1) + (5 + 5) + (5 + 31));
+  });
+
+  it('written with the step sugar (`goto 4`, `end`) it is the same machine: identical images, same run', () => {
+    const explicit = shiftLoopDemo();
+    const sugared = explicit.replace('seqop=load, next=4', 'goto 4').replaceAll('seqop=clear', 'end');
+    expect(sugared).not.toContain('seqop=');
+    expect(analyse(sugared).diagnostics).toEqual([]);
+    const images = (text: string) => [...planOf(text).encoded.stores[0].words];
+    expect(images(sugared)).toEqual(images(explicit));
+    const words = assemble([ins('addi', { rd: 1, rs1: 0, imm: 7 }), ins('slli', { rd: 10, rs1: 1, imm: 2 }), ...exitWords()]);
+    expect(runToEnd(planOf(sugared), programOf(words), { reference: true }).ending).toEqual({ kind: 'exit', exitCode: 28, status: 28 });
   });
 });

@@ -505,7 +505,7 @@ function finishSequencer(ctx: BuildContext, tree: A.FileNode): void {
   const hint = opField ? `\`${opField[1]}=${[...(seq.controlValues.get(opField[0])?.keys() ?? [])].find((v) => v === 'clear') ?? 'VALUE'}\`` : `a field driving \`${seq.name}\` (e.g. \`${seq.name}.op=clear\`)`;
   for (const decl of tree.decls) {
     if (decl.kind !== 'strobe' || decl.strobeKind?.text !== 'end') continue;
-    ctx.report('wrong-wiring', decl.strobeKind.span, `this machine's step counter is the sequencer \`${seq.name}\`, which an \`end\` strobe does not drive: end an instruction by returning the sequencer to step 0 with ${hint}, and remove this strobe`);
+    ctx.report('wrong-wiring', decl.strobeKind.span, `this machine's step counter is the sequencer \`${seq.name}\`, which an \`end\` strobe does not drive: end an instruction by returning the sequencer to step 0 with ${hint} (the action \`end\` says it for short), and remove this strobe`);
   }
 }
 

@@ -999,6 +999,12 @@ class Parser {
     }
     const target = this.parseRef('a strobe name')!;
     const action: A.ActionNode = { target, span: target.span };
+    // `goto N`: a jump of the sequencer (model/buildSteps.ts expands it).
+    if (target.name.text === 'goto' && !target.index && (this.at(T.Number) || this.at(T.Pattern))) {
+      action.number = this.literal(this.next());
+      action.span = mkSpan(target.span.start, this.prevEnd);
+      return action;
+    }
     const equals = this.eat(T.Equals);
     if (equals) {
       action.equals = mkSpan(equals.start, equals.end);
