@@ -81,6 +81,24 @@ describe('a sequencer that runs out of steps', () => {
   });
 });
 
+describe('a divergence report on a sequencer machine', () => {
+  it('lists the steps the instruction ran: a jump over step 3 leaves it out', () => {
+    // OP jumps from step 2 over a step 3 to step 4, which always adds: SUB then differs from the reference.
+    const text = sequencerDemo().replace(
+      '  2: x.rs1.oe, x.rs2.oe, alu.fn=op_fn, alu.oe, x.rd.ck, pc.inc, seqop=clear\n',
+      '  2: seqop=load, next=4\n  3: pc.inc\n  4: x.rs1.oe, x.rs2.oe, alu.fn=add, alu.oe, x.rd.ck, pc.inc, seqop=clear\n',
+    );
+    expect(text).toContain('next=4');
+    const words = [ins('addi', { rd: 1, rs1: 0, imm: 9 }), ins('add', { rd: 2, rs1: 1, rs2: 1 }), ins('sub', { rd: 3, rs1: 1, rs2: 1 }), ...exitWords()];
+    const { ending } = runToEnd(planOf(text), programOf(words), { reference: true });
+    expect(ending?.kind).toBe('divergence');
+    if (ending?.kind !== 'divergence') return;
+    expect(ending.report.instruction.pc).toBe(0x1008);
+    expect(ending.report.retiredBefore).toBe(2);
+    expect(ending.report.steps.map((s) => s.step)).toEqual([0, 1, 2, 4]);
+  });
+});
+
 describe('SLLI as a loop of one-bit shifts counted down by a loop counter', () => {
   it('checks clean: the walk stops at the loop step, which either jumps back or ends', () => {
     expect(analyse(shiftLoopDemo()).diagnostics).toEqual([]);

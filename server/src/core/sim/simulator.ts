@@ -99,7 +99,7 @@ export interface SimState {
   stopReason: SimStop | null;
   pendingExit: { exitCode: number; status: number } | null;
 }
-const STATE_NUMBERS = 13;
+const STATE_NUMBERS = 14;
 
 /** Most memory writes one instruction's record keeps (RV32I makes at most one). */
 const MAX_RECORDED_WRITES = 16;
@@ -160,6 +160,13 @@ export class BusSimulator implements MachineAccess {
   compiledSteps = 0;
   /** The step log of the current instruction, indexed by step: micro-op number, store addresses. */
   readonly logUop: Int32Array;
+  /**
+   * With a sequencer part: the serial number of the instruction that last ran each step (a jump
+   * skips steps, so the log's other entries may be an earlier instruction's); reports keep the
+   * steps of the instruction they are about.
+   */
+  readonly logSeen: Int32Array;
+  private instructionSerial = 1;
   readonly logAddress: Int32Array;
   /** With recordBuses: every bus value and the definedness mask of each step of the current instruction. */
   readonly logBusValue: Int32Array;
@@ -226,6 +233,7 @@ export class BusSimulator implements MachineAccess {
     this.classInstructions = new Float64Array(nClasses + 1);
     this.classSteps = new Float64Array(nClasses + 1);
     this.logUop = new Int32Array(plan.nSteps);
+    this.logSeen = new Int32Array(plan.nSteps);
     this.logAddress = new Int32Array(plan.nSteps * this.nStores);
     this.logBusValue = new Int32Array(plan.nSteps * nBuses);
     this.logDefined = new Int32Array(plan.nSteps);
@@ -551,6 +559,7 @@ export class BusSimulator implements MachineAccess {
       const header = code[base];
       const uop = code[base + 1];
       logUop[step] = uop;
+      if (seqPart >= 0) this.logSeen[step] = this.instructionSerial;
       if ((header & 1) !== 0) {
         this.step = step;
         this.steps += stepsRun;
@@ -686,6 +695,7 @@ export class BusSimulator implements MachineAccess {
         this.classSteps[slot] += seqPart >= 0 ? this.instructionSteps : step + 1;
         this.lastInstructionSteps = seqPart >= 0 ? this.instructionSteps : step + 1;
         this.instructionSteps = 0;
+        this.instructionSerial++;
         this.retiredByKey[mnemonicKey(retiring)]++;
         this.lastRetiredWord = retiring >>> 0;
         this.instructionsRetired++;
@@ -754,7 +764,7 @@ export class BusSimulator implements MachineAccess {
    * the debugger's history. `into` is reused when given, so a ring of states allocates once.
    */
   captureState(into?: SimState): SimState {
-    const state = into ?? { regs: new Int32Array(this.regs.length), partValue: new Int32Array(this.partValue.length), customState: new Int32Array(this.customState.length), flags: new Uint8Array(this.flags.length), busValue: new Int32Array(this.busValue.length), definedLines: new Int32Array(this.busValue.length), writes: new Int32Array(3 * MAX_RECORDED_WRITES), log: new Int32Array(this.logAddress.length + this.logUop.length), numbers: new Float64Array(STATE_NUMBERS), stopReason: null, pendingExit: null };
+    const state = into ?? { regs: new Int32Array(this.regs.length), partValue: new Int32Array(this.partValue.length), customState: new Int32Array(this.customState.length), flags: new Uint8Array(this.flags.length), busValue: new Int32Array(this.busValue.length), definedLines: new Int32Array(this.busValue.length), writes: new Int32Array(3 * MAX_RECORDED_WRITES), log: new Int32Array(this.logAddress.length + this.logUop.length + this.logSeen.length), numbers: new Float64Array(STATE_NUMBERS), stopReason: null, pendingExit: null };
     copyInto(state.regs, this.regs);
     copyInto(state.partValue, this.partValue);
     copyInto(state.customState, this.customState);
@@ -766,6 +776,7 @@ export class BusSimulator implements MachineAccess {
     state.writes.set(this.writeValue, 2 * MAX_RECORDED_WRITES);
     state.log.set(this.logAddress, 0);
     state.log.set(this.logUop, this.logAddress.length);
+    state.log.set(this.logSeen, this.logAddress.length + this.logUop.length);
     const n = state.numbers;
     n[0] = this.definedMask;
     n[1] = this.step;
@@ -780,6 +791,7 @@ export class BusSimulator implements MachineAccess {
     n[10] = this.ebreaks;
     n[11] = this.instructionSteps;
     n[12] = this.lastInstructionSteps;
+    n[13] = this.instructionSerial;
     state.stopReason = this.stopReason;
     state.pendingExit = this.pendingExit;
     return state;
@@ -797,7 +809,8 @@ export class BusSimulator implements MachineAccess {
     this.writeSize.set(state.writes.subarray(MAX_RECORDED_WRITES, 2 * MAX_RECORDED_WRITES));
     this.writeValue.set(state.writes.subarray(2 * MAX_RECORDED_WRITES));
     this.logAddress.set(state.log.subarray(0, this.logAddress.length));
-    this.logUop.set(state.log.subarray(this.logAddress.length));
+    this.logUop.set(state.log.subarray(this.logAddress.length, this.logAddress.length + this.logUop.length));
+    this.logSeen.set(state.log.subarray(this.logAddress.length + this.logUop.length));
     const n = state.numbers;
     this.definedMask = n[0] | 0;
     this.step = n[1];
@@ -812,6 +825,7 @@ export class BusSimulator implements MachineAccess {
     this.ebreaks = n[10];
     this.instructionSteps = n[11];
     this.lastInstructionSteps = n[12];
+    this.instructionSerial = n[13];
     this.stopReason = state.stopReason;
     this.pendingExit = state.pendingExit;
     this.checkpointValid = false;
@@ -844,6 +858,7 @@ export class BusSimulator implements MachineAccess {
       const code = mo.code.data;
       const uop = code[base + 1];
       this.logUop[this.step] = uop;
+      this.logSeen[this.step] = this.instructionSerial;
       const info = mo.info[uop];
       for (let bus = 0; bus < plan.busNames.length; bus++) if (!info.driven[bus] && !plan.busKeeper[bus]) this.definedMask &= ~(1 << bus);
       for (let k = 0; k < info.drivers.length; k++) {
@@ -903,6 +918,7 @@ export class BusSimulator implements MachineAccess {
     this.instructionLoaded = saved.instructionLoaded;
     this.step = 0;
     this.instructionSteps = 0;
+    this.instructionSerial++; // the replay's steps are the instruction's own
     this.stopReason = null;
     this.pendingExit = null;
     this.writeCount = 0;
