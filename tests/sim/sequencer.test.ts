@@ -76,7 +76,7 @@ describe('a sequencer that runs out of steps', () => {
     const { run, ending } = runToEnd(planOf(sequencerDemo()), programOf([ins('addi', { rd: 1, rs1: 0, imm: 1 }), 0x0000000b, ...exitWords()]), { reference: true });
     expect(ending?.kind).toBe('stopped');
     if (ending?.kind !== 'stopped') return;
-    expect(ending.stop).toMatchObject({ kind: 'illegal-instruction', pc: 0x1004, word: 0x0000000b, why: 'no-class' });
+    expect(ending.stop).toMatchObject({ kind: 'illegal-instruction', pc: 0x1004, word: 0x0000000b, why: 'no-class', message: 'illegal instruction (the table has no class for it): the fill word ran until the sequencer `seq` counted on to step 0' });
     expect(run.sim.instructionsRetired).toBe(1);
   });
 });
@@ -128,6 +128,16 @@ describe('SLLI as a loop of one-bit shifts counted down by a loop counter', () =
     const opImm = plan.machine.classes.findIndex((c) => c.name === 'OP-IMM');
     expect(run.sim.classInstructions[opImm]).toBe(8);
     expect(run.sim.classSteps[opImm]).toBe(3 * 4 + (5 + 0) + (5 + 1) + (5 + 5) + (5 + 31));
+  });
+
+  it('`wait` (hold the step) in place of the jump back to the same step runs the same', () => {
+    const waiting = shiftLoopDemo().replace('seqop=load, next=4', 'wait');
+    expect(analyse(waiting).diagnostics).toEqual([]);
+    const words = assemble([ins('addi', { rd: 1, rs1: 0, imm: 5 }), ins('slli', { rd: 10, rs1: 1, imm: 3 }), ...exitWords()]);
+    const { run, ending } = runToEnd(planOf(waiting), programOf(words), { reference: true });
+    expect(ending).toEqual({ kind: 'exit', exitCode: 40, status: 40 });
+    const opImm = run.plan.machine.classes.findIndex((c) => c.name === 'OP-IMM');
+    expect(run.sim.classSteps[opImm]).toBe(3 * 2 + 5 + 3);
   });
 
   it('written with the step sugar (`goto 4`, `end`) it is the same machine: identical images, same run', () => {

@@ -997,8 +997,10 @@ export class BusSimulator implements MachineAccess {
       return { kind: 'illegal-instruction', pc, word, why: 'no-fetch', message: `the machine never fetched an instruction: from reset (instruction register ${hex(word)}) the table ran all ${steps} steps without \`end\`; the steps at reset must fetch` };
     }
     const cls = this.plan.classOfOpcode[word & 0x7f];
-    if (cls < 0) return { kind: 'illegal-instruction', pc, word, why: 'no-class', message: `illegal instruction (the table has no class for it): the fill word ran for all ${steps} steps of the step counter` };
-    return { kind: 'illegal-instruction', pc, word, why: 'no-end', message: `class ${this.plan.machine.classes[cls].name} ran all ${steps} steps of the step counter without \`end\` for this word` };
+    // With a sequencer part: it counted through the fill word back to step 0 (nothing cleared it).
+    const counter = this.plan.seqPart >= 0 ? `the sequencer \`${this.plan.parts[this.plan.seqPart].name}\`` : 'the step counter';
+    if (cls < 0) return { kind: 'illegal-instruction', pc, word, why: 'no-class', message: this.plan.seqPart >= 0 ? `illegal instruction (the table has no class for it): the fill word ran until ${counter} counted on to step 0` : `illegal instruction (the table has no class for it): the fill word ran for all ${steps} steps of the step counter` };
+    return { kind: 'illegal-instruction', pc, word, why: 'no-end', message: this.plan.seqPart >= 0 ? `class ${this.plan.machine.classes[cls].name} ran into the fill word and ${counter} counted on to step 0 without the table returning it there for this word` : `class ${this.plan.machine.classes[cls].name} ran all ${steps} steps of the step counter without \`end\` for this word` };
   }
 
   /** The value (and whether it is defined) the k-th driver of the micro-op at `base` puts on its bus, from the buses as they are now. */
