@@ -11,6 +11,7 @@ import { storeTruthTable } from '../../server/src/core/encode/storeTable';
 import { storeSafety } from '../../server/src/core/logic/safeCare';
 import { getValue, outputIndexOf, type TruthTable } from '../../server/src/core/logic/truthTable';
 import { dedent } from '../support/annotated';
+import { sequencerDemo } from '../support/sequencer';
 
 const demo = analyse(readFileSync(join(__dirname, '../../examples/halyard-32.pwt'), 'utf8')).machine;
 const encoded = encodeMachine(demo);
@@ -124,5 +125,16 @@ describe('two stores', () => {
     expect(main.sharedBuses.has('result')).toBe(true);
     expect(decode.freeDriver.size).toBe(0);
     expect(main.freeDriver.size).toBe(0);
+  });
+});
+
+describe('a sequencer part acts at every closing edge', () => {
+  it('holds the fields that drive it (its op and its jump target) where no step covers, and leaves other fields free', () => {
+    const machine = analyse(sequencerDemo()).machine;
+    const safety = storeSafety(machine, encodeMachine(machine).stores[0]);
+    const role = (name: string) => safety.bits.find((b) => b.output === name)!;
+    // Floating, they could jump or hold the sequencer at an illegal instruction where the ROM's fill word counts on.
+    for (const name of ['seqop[0]', 'seqop[1]', 'next[0]', 'next[2]']) expect(role(name), name).toMatchObject({ role: 'held', mayFloat: false });
+    expect(role('alu.fn[0]')).toMatchObject({ role: 'free', mayFloat: true });
   });
 });

@@ -1,12 +1,15 @@
 // class-no-end: every RV32I instruction of a class, for every flag value at every step, must
 // reach a step that asserts an end-of-instruction strobe before the step counter runs out.
 // Otherwise the counter wraps and the processor never fetches the next instruction. The walk
-// itself is reach.ts's.
+// itself is reach.ts's. On a machine with a sequencer part an alternative ends by returning it
+// to step 0; the walk does not follow loops yet, so a loop that never exits is not reported here
+// (the control-flow checks, a later slice).
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 import type { Fix } from '../text/diagnostic';
 import { type Check, type CheckContext } from './context';
 import { describeScenario, guardInputs, instructionCube, instructionsOfClass } from './inputSpace';
 import { altEnds, instructionPaths } from './reach';
+import { hasSequencer } from '../model/sequencing';
 
 export const classEnd: Check = {
   codes: ['class-no-end'],
@@ -19,7 +22,9 @@ export const classEnd: Check = {
         ctx.report(
           'class-no-end',
           cls.symbol.span,
-          `class ${cls.name} never asserts an end-of-instruction strobe: the step counter wraps around and the next instruction is never fetched; assert it in the last step`,
+          hasSequencer(ctx.machine)
+            ? `class ${cls.name} never returns the sequencer \`${ctx.machine.sequencer}\` to step 0, so its instructions never end and the next instruction is never fetched; return it to 0 in the last step`
+            : `class ${cls.name} never asserts an end-of-instruction strobe: the step counter wraps around and the next instruction is never fetched; assert it in the last step`,
           undefined,
           addEndFix(ctx, cls),
         );
@@ -32,7 +37,7 @@ export const classEnd: Check = {
         ctx.report(
           'class-no-end',
           lastAlts[lastAlts.length - 1].numberSpan,
-          `class ${cls.name} does not end for ${stuck}: after its last step the counter runs on through fill words and wraps; end every path`,
+          `class ${cls.name} does not end for ${stuck}: after its last step the ${hasSequencer(ctx.machine) ? 'sequencer' : 'counter'} runs on through fill words and wraps; end every path`,
           lastAlts.map((a) => ({ span: a.span, message: 'last step' })),
         );
       }

@@ -10,6 +10,7 @@
 // and the encoded images (this reasons on the table; checks/entryReach.ts on the images).
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 import { type Cube, type Scenario, bitsOf, guardInputs, matchingAlternatives, scenarios } from './inputSpace';
+import { hasSequencer, nextStepOf } from '../model/sequencing';
 
 /** One way through a class: the instruction bits its guards test fixed, and where it stops. */
 export interface InstructionPath {
@@ -40,10 +41,26 @@ export function endStrobes(machine: Machine): ReadonlySet<string> {
   return names;
 }
 
-/** Whether an alternative ends the instruction (asserts an end strobe). */
+/**
+ * Whether an alternative ends the instruction: it asserts an end strobe, or on a machine with a
+ * sequencer part (`holds step`) it returns the sequencer to step 0 (model/sequencing.ts).
+ */
 export function altEnds(machine: Machine, alt: StepAlt): boolean {
+  if (hasSequencer(machine)) return nextStepOf(machine, alt, alt.step) === 0;
   const names = endStrobes(machine);
   return alt.actions.some((a) => names.has(a.signal));
+}
+
+/**
+ * On a sequencer machine, whether the word at `step` (an alternative, or the fill word where
+ * none applies) lets the walk go past `step`: it counts on or jumps forward, or its next step is
+ * not known from the word. One that ends, holds or jumps back keeps the instruction within the
+ * steps already reached. (Whether such a loop ever ends is the control-flow checks' question,
+ * a later slice: this walk only bounds which steps are reached.)
+ */
+function goesPast(machine: Machine, alt: StepAlt | undefined, step: number): boolean {
+  const next = nextStepOf(machine, alt, step);
+  return next === undefined || next > step;
 }
 
 /** Most inputs a walk enumerates (instruction bits plus flags); beyond, callers fall back. */
@@ -73,7 +90,9 @@ function walkPaths(machine: Machine, cls: ClassDef, cube: Cube): InstructionPath
   const free = bitsOf((irMask & ~cube.mask) >>> 0);
   if (free.length + flags.length > maxWalkInputs) return undefined;
   // A step none of whose alternatives ends lets every path on: only the others can stop one.
-  const stopping = [...cls.steps.keys()].sort((a, b) => a - b).filter((step) => cls.steps.get(step)!.some((alt) => altEnds(machine, alt)));
+  // With a sequencer a step that loops back or holds stops the walk too (see goesPast).
+  const sequencer = hasSequencer(machine);
+  const stopping = [...cls.steps.keys()].sort((a, b) => a - b).filter((step) => sequencer || cls.steps.get(step)!.some((alt) => altEnds(machine, alt)));
   const paths: InstructionPath[] = [];
   for (const irScenario of scenarios(cube, free, [])) {
     const flagScenarios = [...scenarios(irScenario.ir, [], flags)];
@@ -82,6 +101,7 @@ function walkPaths(machine: Machine, cls: ClassDef, cube: Cube): InstructionPath
       const alts = cls.steps.get(step)!;
       const goesOn = flagScenarios.some((scenario) => {
         const matching = matchingAlternatives(alts, scenario);
+        if (sequencer) return matching.length === 0 ? goesPast(machine, undefined, step) : matching.some((alt) => goesPast(machine, alt, step));
         return matching.length === 0 || !matching.every((alt) => altEnds(machine, alt));
       });
       if (!goesOn) {

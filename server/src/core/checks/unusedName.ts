@@ -18,6 +18,8 @@ export const unusedName: Check = {
     // classes with their phases expanded plus all phases, without walking the expanded copies.
     for (const { alt } of writtenAlternatives(machine)) for (const a of alt.actions) usedSignals.add(a.signal);
     for (const map of machine.maps.values()) if (map.output && usedSignals.has(map.output)) usedSignals.add(map.output);
+    // A number field wired to a part's `field` input (a sequencer's jump target) is read by that part.
+    for (const part of machine.parts.values()) for (const source of part.inputs.values()) if (source.from === 'field') usedSignals.add(source.name);
     const usedBuses = new Set<string>();
     const usedParts = new Set<string>();
     for (const signal of machine.signals.values()) {

@@ -390,7 +390,10 @@ export class DebugMachine {
     if (refused) return refused;
     const sim = this.sim;
     if (sim.steps === 0) return { reason: 'history-start', oldestStep: 0 };
-    const target = sim.step > 0 ? sim.steps - sim.step : sim.steps - (sim.lastRetireStep + 1);
+    // With a sequencer part an instruction's steps are counted apart (a jump or a loop makes the step number differ).
+    const target = sim.plan.seqPart >= 0
+      ? (sim.instructionSteps > 0 ? sim.steps - sim.instructionSteps : sim.steps - sim.lastInstructionSteps)
+      : sim.step > 0 ? sim.steps - sim.step : sim.steps - (sim.lastRetireStep + 1);
     if (target < this.history.oldestStep || !this.goBackTo(target)) return { reason: 'history-start', oldestStep: this.history.oldestStep };
     return { reason: 'step' };
   }

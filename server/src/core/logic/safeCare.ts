@@ -5,7 +5,8 @@
 // drivers on one bus, write memory or clock a register. So, where no step covers the address:
 //   - a strobe that changes state or ends the cycle (write, clock, count, end, trap) is held at
 //     its idle level, and so is a field that forms another store's address (it picks what that
-//     store does next);
+//     store does next) or that drives a part acting at every closing edge (a sequencer's op and
+//     jump target: they pick the next step);
 //   - of the drivers (enables and memory reads) of one bus, one chosen driver may stay a
 //     don't-care (a driver alone cannot fight); the others are held idle; a bus also driven
 //     from another store gets no free driver, since that store's word is not known here;
@@ -71,6 +72,14 @@ export function storeSafety(machine: Machine, enc: EncodedStore, fitted?: Readon
       const bus = signal?.type === 'strobe' && !here.has(p.signal) ? drivenBus(signal) : undefined;
       if (bus !== undefined) elsewhere.add(bus);
     }
+  }
+  // A part with an edge port that acts at every closing edge (`on next always`: a sequencer)
+  // changes state at every address: the fields driving its controls or read by its inputs pick
+  // what it does next, so they are held like strobes that change state.
+  for (const part of machine.parts.values()) {
+    if (!part.def.edges.some((e) => e.always)) continue;
+    for (const field of part.controlFields.values()) steering.add(field);
+    for (const source of part.inputs.values()) if (source.from === 'field') steering.add(source.name);
   }
   const raw: Omit<WordBit, 'mayFloat'>[] = [];
   for (const p of placements) {

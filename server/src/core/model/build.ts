@@ -16,7 +16,7 @@ import { type FigureHost, figureInfo, figureNamesFor, figureRangeProblem, figure
 import { acceptableCodes, codeInfo } from '../checks/catalogue';
 import { buildKind } from '../parts/kinds';
 import { checkBehaviour, defaultSetting } from '../parts/behaviour';
-import { buildPartOfKind, portFor, partSetting } from './buildPart';
+import { buildPartOfKind, portFor, partSetting, sizeIn } from './buildPart';
 import { liveControls, strobeWiring } from './partFacts';
 import { libraryKind, standardLibrary } from '../parts/library';
 
@@ -197,6 +197,7 @@ export function buildModel(tree: A.FileNode): BuildResult {
   finishParts(ctx, tree);
   checkKindBehaviours(ctx);
   buildStores(ctx, tree);
+  finishSequencer(ctx, tree);
   buildBodies(ctx, tree);
   checkLedVoltages(ctx);
   return { machine: ctx.machine, diagnostics: ctx.diagnostics };
@@ -466,6 +467,49 @@ function finishParts(ctx: BuildContext, tree: A.FileNode): void {
 }
 
 /**
+ * The sequencer (a part whose kind `holds step`): at most one; its step state as wide as the
+ * address layout's `step` lines; no `end` strobe beside it (the instruction ends when the
+ * sequencer returns to step 0). And every `field` input wired to a number field as wide as it.
+ */
+function finishSequencer(ctx: BuildContext, tree: A.FileNode): void {
+  for (const part of ctx.machine.parts.values()) {
+    for (const input of part.def.inputs) {
+      const source = part.inputs.get(input.name);
+      if (input.wiring !== 'field' || source?.from !== 'field') continue;
+      const field = ctx.machine.signals.get(source.name);
+      if (field?.type !== 'field') continue; // refused with its own error
+      if (!field.numeric) {
+        ctx.report('wrong-wiring', source.span, `input \`${input.name}\` of \`${part.name}\` reads a number from the word, but \`${field.name}\` ${field.target ? `controls \`${field.target}\`` : 'has named values'}; declare a number field for it, e.g. \`field ${input.name} ${sizeIn(part, input.width)}\` (no values, no \`->\`)`);
+        continue;
+      }
+      const width = sizeIn(part, input.width);
+      if (field.width !== width) ctx.report('wrong-wiring', source.span, `input \`${input.name}\` of \`${part.name}\` is ${width} bit(s) wide, but the field \`${field.name}\` is ${field.width}; make them equal`, [{ span: field.symbol.span, message: `field \`${field.name}\`` }]);
+    }
+  }
+  const holders = [...ctx.machine.parts.values()].filter((p) => p.def.holds.some((h) => h.role === 'step'));
+  if (holders.length === 0) return;
+  const seq = holders[0];
+  for (const extra of holders.slice(1)) {
+    ctx.report('wrong-wiring', extra.symbol.span, `only one part may hold the step counter; \`${seq.name}\` already does`, [{ span: seq.symbol.span, message: 'the first sequencer' }]);
+  }
+  ctx.machine.sequencer = seq.name;
+  const holds = seq.def.holds.find((h) => h.role === 'step')!;
+  const state = seq.def.states.find((st) => st.name === holds.state);
+  const width = state ? sizeIn(seq, state.width) : 0;
+  const stepBits = ctx.machine.stepBits;
+  if (stepBits !== undefined && width !== stepBits) {
+    ctx.report('wrong-wiring', seq.symbol.span, `${partPhrase(seq)} holds the step in ${width} bit(s), but the address lines read ${stepBits} step bit(s) (\`step 0..${stepBits - 1}\`); make them equal`);
+  }
+  // `end` returns the implicit counter to 0; with a sequencer the table does it.
+  const opField = seq.controlFields.size > 0 ? [...seq.controlFields.entries()][0] : undefined;
+  const hint = opField ? `\`${opField[1]}=${[...(seq.controlValues.get(opField[0])?.keys() ?? [])].find((v) => v === 'clear') ?? 'VALUE'}\`` : `a field driving \`${seq.name}\` (e.g. \`${seq.name}.op=clear\`)`;
+  for (const decl of tree.decls) {
+    if (decl.kind !== 'strobe' || decl.strobeKind?.text !== 'end') continue;
+    ctx.report('wrong-wiring', decl.strobeKind.span, `this machine's step counter is the sequencer \`${seq.name}\`, which an \`end\` strobe does not drive: end an instruction by returning the sequencer to step 0 with ${hint} (the action \`end\` says it for short), and remove this strobe`);
+  }
+}
+
+/**
  * The part's choice settings, as written (`cond=funct3`), when with them its expressions do not
  * read the control but with another value of one of them they do: a field driving it would drive nothing.
  */
@@ -498,6 +542,8 @@ function buildField(ctx: BuildContext, decl: A.FieldDecl): void {
   const width = ctx.number(decl.width, 'a field width', 1, 32);
   if (width === undefined) return;
   const field: M.Field = { type: 'field', name, width, values: new Map(), idle: 0, description: decl.description?.value, symbol: ctx.lookup('signal', name)! };
+  // No value list and no part: a number field (`field next 4`), whose code a step gives as a number.
+  if (!decl.open && !decl.target && decl.options.length === 0) field.numeric = true;
   let vocabulary: readonly string[] | undefined;
   const custom = decl.target ? controlTarget(ctx, decl.target) : undefined;
   if (custom) {

@@ -57,6 +57,27 @@ export function buildPartOfKind(ctx: BuildContext, decl: A.PartDecl, def: KindDe
     ctx.reference(source.span, symbol);
     inputs.set(input.name, { from: symbol.kind, name: source.text });
   };
+  // A `field` input reads a field of the word (a number field, checked once fields are built: model/build.ts).
+  const refused = new Set<string>();
+  const wireField = (input: KindDef['inputs'][number], source: A.Name) => {
+    const symbol = ctx.lookup('signal', source.text);
+    const other = symbol ? undefined : ctx.lookup('structure', source.text);
+    if (other) {
+      refused.add(input.name);
+      return wrong(source.span, `input \`${input.name}\` of \`${name}\` takes a number field of the word (\`field NAME WIDTH\`); \`${source.text}\` is a ${other.kind}`);
+    }
+    if (!symbol) {
+      refused.add(input.name);
+      ok = false;
+      return ctx.undefinedName(source, 'field', [...(ctx.names.get('signal')?.values() ?? [])].filter((s) => s.kind === 'field').map((s) => s.name));
+    }
+    if (symbol.kind !== 'field') {
+      refused.add(input.name); // reported here, not again as unwired
+      return wrong(source.span, `input \`${input.name}\` of \`${name}\` takes a number field of the word (\`field ${source.text} WIDTH\`); \`${source.text}\` is a ${symbol.kind}`);
+    }
+    ctx.reference(source.span, symbol);
+    inputs.set(input.name, { from: 'field', name: source.text, span: source.span });
+  };
   const args = decl.args;
   for (let i = 0; i < args.length; i++) {
     const arg = args[i];
@@ -78,11 +99,13 @@ export function buildPartOfKind(ctx: BuildContext, decl: A.PartDecl, def: KindDe
       const key = arg.option.key.text;
       const setting = def.settings.find((s) => s.name === key);
       const keyed = def.inputs.find((p) => p.name === key && p.wiring === 'keyed');
-      if (setting && arg.option.value) setSetting(setting, arg.option.value);
+      const fieldInput = def.inputs.find((p) => p.name === key && p.wiring === 'field');
+      if (fieldInput && arg.option.value && 'text' in arg.option.value && /^[A-Za-z_]/.test(arg.option.value.text)) wireField(fieldInput, arg.option.value as A.Name);
+      else if (setting && arg.option.value) setSetting(setting, arg.option.value);
       else if (keyed && arg.option.value && 'text' in arg.option.value && /^[A-Za-z_]/.test(arg.option.value.text)) wireInput(keyed, arg.option.value as A.Name);
       else if (figureInfo(key)?.hosts.includes('part')) figureOptions.push(arg.option);
       else {
-        const known = [...def.settings.map((s) => s.name), ...def.inputs.filter((p) => p.wiring === 'keyed').map((p) => p.name)];
+        const known = [...def.settings.map((s) => s.name), ...def.inputs.filter((p) => p.wiring === 'keyed' || p.wiring === 'field').map((p) => p.name)];
         const guess = closest(key, [...known, ...figureNamesFor('part')]);
         ctx.report('unknown-kind', arg.option.key.span, `kind \`${def.name}\` has no setting \`${key}\`` + (guess ? `; did you mean \`${guess}\`?` : known.length ? `; it takes ${known.map((k) => `\`${k}=\``).join(', ')}` : ''));
         ok = false;
@@ -97,7 +120,7 @@ export function buildPartOfKind(ctx: BuildContext, decl: A.PartDecl, def: KindDe
   // the first such input is wired to: an ALU on 8-bit buses is 8 bits wide.
   for (const input of def.inputs) {
     const source = inputs.get(input.name);
-    if (input.width.kind !== 'setting' || settings.has(input.width.name) || !source || source.from === 'instruction') continue;
+    if (input.width.kind !== 'setting' || settings.has(input.width.name) || !source || source.from === 'instruction' || source.from === 'field') continue;
     const setting = def.settings.find((st) => st.type === 'number' && st.name === (input.width as { name: string }).name);
     const sourceWidth = source.from === 'bus' ? ctx.machine.buses.get(source.name)?.width : ctx.machine.parts.get(source.name)?.width;
     if (setting && sourceWidth !== undefined) settings.set(setting.name, sourceWidth);
@@ -113,8 +136,8 @@ export function buildPartOfKind(ctx: BuildContext, decl: A.PartDecl, def: KindDe
       inputs.set(input.name, { from: 'instruction' });
       continue;
     }
-    if (inputs.has(input.name)) continue;
-    const how = input.wiring === 'keyed' ? `\`${input.name}=SOURCE\`` : input.wiring === 'after' ? `\`${input.after} SOURCE\`` : 'a bus or part name in order';
+    if (inputs.has(input.name) || refused.has(input.name)) continue;
+    const how = input.wiring === 'keyed' ? `\`${input.name}=SOURCE\`` : input.wiring === 'field' ? `\`${input.name}=FIELD\` (a number field of the word)` : input.wiring === 'after' ? `\`${input.after} SOURCE\`` : 'a bus or part name in order';
     wrong(decl.partKind!.span, `input \`${input.name}\` of \`${name}\` is not wired: write ${how} on the part line`);
   }
   // Flags the part line did not name keep the kind's names, prefixed by the part (`cnt.zero`).
@@ -174,7 +197,10 @@ export function portFor(part: M.Part, role: M.StrobeKind | 'clock-flag', port: s
   }
   if (role === 'end' || role === 'trap') return { problem: `an ${role} strobe acts on the sequencer, not on a part` };
   const takesBus = role === 'clock' || role === 'write';
-  const fits = (e: KindDef['edges'][number]) => (takesBus ? e.width !== undefined : e.width === undefined);
+  // An `always` edge port acts at every closing edge by itself: no strobe names it.
+  const always = port ? def.edges.find((e) => e.name === port && e.always) : undefined;
+  if (always) return { problem: `\`${part.name}.${port}\` acts at every closing edge by itself (\`on ${port} always\`); no strobe drives it` };
+  const fits = (e: KindDef['edges'][number]) => !e.always && (takesBus ? e.width !== undefined : e.width === undefined);
   const edge = port ? def.edges.find((e) => e.name === port) : def.edges.find((e) => fits(e) && e.param === undefined);
   if (!edge) {
     const fitting = def.edges.filter((e) => fits(e) && e.param === undefined);

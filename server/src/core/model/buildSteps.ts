@@ -4,7 +4,7 @@ import type * as A from '../syntax/ast';
 import type { Span } from '../text/span';
 import { closest } from '../text/suggest';
 import type { BuildContext } from './build';
-import { parseBits } from './numbers';
+import { parseBits, parseNumber } from './numbers';
 import type * as M from './types';
 import { inputWidth } from './vocabulary';
 
@@ -143,8 +143,10 @@ function buildStep(ctx: BuildContext, line: A.StepLine): M.StepAlt | undefined {
   if (line.guard?.elseKeyword) alt.isElse = true;
   else if (line.guard) alt.guard = buildGuard(ctx, line.guard);
   for (const action of line.actions) {
-    const built = buildAction(ctx, action);
-    if (built) alt.actions.push(built);
+    const sugar = sequencerAction(ctx, action);
+    const built = sugar === undefined ? buildAction(ctx, action) : sugar;
+    if (Array.isArray(built)) alt.actions.push(...built);
+    else if (built) alt.actions.push(built);
   }
   return alt;
 }
@@ -181,6 +183,51 @@ function buildGuard(ctx: BuildContext, guard: A.GuardNode): M.GuardLiteral[] {
   return literals;
 }
 
+/**
+ * The step sugar of a machine with a sequencer part (`holds step`): `goto N` sets the
+ * sequencer's op field to `load` and its target field (the `field` input's) to N; `wait` sets
+ * the op to `hold`; `end` sets it to `clear`. The fields are the ones wired to the part holding
+ * the step: the field driving its control that has those values, and the field its `field`
+ * input reads. Returns undefined when the action is not sugar here (a declared strobe or
+ * field of that name, or a machine without a sequencer): then it is an ordinary action.
+ */
+function sequencerAction(ctx: BuildContext, action: A.ActionNode): M.Action[] | null | undefined {
+  const word = action.target.name.text;
+  const sugar = word === 'goto' ? 'load' : word === 'wait' ? 'hold' : word === 'end' ? 'clear' : undefined;
+  if (!sugar || action.target.index || action.equals) return undefined;
+  if (ctx.lookup('signal', word)) return undefined;
+  const seq = ctx.machine.sequencer ? ctx.machine.parts.get(ctx.machine.sequencer) : undefined;
+  if (!seq) {
+    if (word === 'goto') {
+      ctx.report('wrong-wiring', action.span, '`goto` jumps the sequencer, and this machine has none (a part whose kind `holds step`, e.g. `part seq sequencer 4 target=next`)');
+      return null;
+    }
+    return undefined;
+  }
+  const control = seq.def.controls.find((c) => c.values.includes(sugar));
+  const opField = control ? seq.controlFields.get(control.name) : undefined;
+  const op = opField ? ctx.machine.signals.get(opField) : undefined;
+  const code = op?.type === 'field' ? op.values.get(sugar)?.code : undefined;
+  if (!op || code === undefined) {
+    ctx.report('wrong-wiring', action.target.span, `\`${word}\` sets the sequencer \`${seq.name}\`'s op to \`${sugar}\`, but ${op ? `its field \`${op.name}\` has no value \`${sugar}\`` : `no field drives ${control ? `its control \`${control.name}\`` : 'a control of it with that value'}`}; declare one, e.g. \`field seqop 2 -> ${seq.name}${control && seq.def.controls.length > 1 ? `.${control.name}` : ''} { count=0 load=1 hold=2 clear=3 }\``);
+    return null;
+  }
+  const actions: M.Action[] = [{ signal: op.name, value: { kind: 'code', name: sugar, code }, span: action.span }];
+  if (word === 'goto') {
+    const input = seq.def.inputs.find((i) => i.wiring === 'field');
+    const source = input ? seq.inputs.get(input.name) : undefined;
+    const target = source?.from === 'field' ? ctx.machine.signals.get(source.name) : undefined;
+    if (target?.type !== 'field' || !target.numeric) {
+      ctx.report('wrong-wiring', action.target.span, `\`goto\` needs the sequencer \`${seq.name}\`'s target: a number field wired to its \`field\` input`);
+      return null;
+    }
+    const number = numberAction(ctx, target, { ...action, equals: action.span });
+    if (!number) return null;
+    actions.push(number);
+  }
+  return actions;
+}
+
 function buildAction(ctx: BuildContext, action: A.ActionNode): M.Action | undefined {
   const target = action.target.name;
   const sym = ctx.lookup('signal', target.text);
@@ -198,6 +245,11 @@ function buildAction(ctx: BuildContext, action: A.ActionNode): M.Action | undefi
       ]);
     }
     return { signal: signal.name, span: action.span };
+  }
+  if (signal.numeric) return numberAction(ctx, signal, action);
+  if (action.number) {
+    ctx.report('wrong-wiring', action.number.span, `\`${signal.name}\` has named values (${[...signal.values.keys()].join(', ')}), not numbers; only a number field (\`field NAME WIDTH\`, no values) takes a number`);
+    return undefined;
   }
   if (!action.equals || !action.value) {
     if (!action.equals) {
@@ -231,4 +283,21 @@ function buildAction(ctx: BuildContext, action: A.ActionNode): M.Action | undefi
     guess ? [{ title: `Change to \`${guess}\``, edits: [{ span: action.value.span, newText: guess }], preferred: true }] : undefined,
   );
   return undefined;
+}
+
+/** `next=5` on a number field: the number is the field's code, 0 to 2^width - 1. */
+function numberAction(ctx: BuildContext, field: M.Field, action: A.ActionNode): M.Action | undefined {
+  const max = 2 ** field.width - 1;
+  if (!action.equals || !action.number) {
+    if (action.equals && !action.value) return undefined; // the parser reported what is missing
+    if (action.value) ctx.report('wrong-wiring', action.value.span, `\`${field.name}\` is a number field: give it a number from 0 to ${max}, e.g. \`${field.name}=1\``);
+    else if (!action.equals) ctx.report('wrong-wiring', action.span, `\`${field.name}\` is a number field: give it a number, e.g. \`${field.name}=1\``);
+    return undefined;
+  }
+  const code = parseNumber(action.number.text);
+  if (code === undefined || code > max) {
+    ctx.report('bad-number', action.number.span, code === undefined ? `\`${action.number.text}\` is not a number; write it in decimal, or with 0x (hex) or 0b (binary)` : `\`${field.name}\` has ${field.width} bit(s): a number from 0 to ${max}; ${code} does not fit`);
+    return undefined;
+  }
+  return { signal: field.name, value: { kind: 'code', name: String(code), code }, span: action.span };
 }

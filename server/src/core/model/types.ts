@@ -37,8 +37,12 @@ export interface Bus {
   figures: Figures;
 }
 
-/** Where an input of a part comes from: a bus, another part's value, or the instruction register. */
-export type InputSource = { from: 'bus'; name: string } | { from: 'part'; name: string } | { from: 'instruction' };
+/**
+ * Where an input of a part comes from: a bus, another part's value, the instruction register, or
+ * a number field of the word (`input target 4 field`: the field's code in each step, a constant
+ * per control word; `span` is where the part line names it).
+ */
+export type InputSource = { from: 'bus'; name: string } | { from: 'part'; name: string } | { from: 'instruction' } | { from: 'field'; name: string; span: Span };
 
 /**
  * A part: an instance of a part kind (the standard library's or the table's own, `kind`), read
@@ -119,6 +123,8 @@ export interface Field {
   values: Map<string, FieldValue>;
   /** Code the field holds where no step sets it (the fill word's value). */
   idle: number;
+  /** A number field (`field next 4`, no values, no part): a step sets it with a number, which is its code. */
+  numeric?: boolean;
   description?: string;
   symbol: SymbolInfo;
 }
@@ -270,6 +276,11 @@ export interface Machine {
   stepBits?: number;
   /** The instruction register (the part whose kind `holds instruction`), when one is declared. */
   instructionRegister?: string;
+  /**
+   * The sequencer: the part whose kind `holds step` (its state is the step counter the address
+   * lines read). Without one the machine has the implicit counter (`end` returns it to 0).
+   */
+  sequencer?: string;
 }
 
 /** Where a signal sits: the store, its bits, and the chips those bits land in. */

@@ -1,7 +1,7 @@
 // Part kinds as data: a `kind` declaration (docs/notation.md, "Part kinds") read into a
 // KindDef — its settings, the inputs a part line wires, the controls a field may name, its state,
 // the ports strobes use (drive ports for enable and read, edge ports for clock, count and write),
-// its flags and what happens at the closing edge. The standard library's nine kinds and a
+// its flags and what happens at the closing edge. The standard library's kinds and a
 // table's own kinds are read by this one function, so both are held to the same rules.
 //
 // What is checked here is the shape of the definition: names unique within the kind, sizes
@@ -26,7 +26,8 @@ export interface KindSetting {
   span: Span;
 }
 
-export type InputWiring = 'positional' | 'after' | 'instruction' | 'keyed';
+/** `field`: keyed (`NAME=FIELD`), wired to a number field of the word: its code in each step. */
+export type InputWiring = 'positional' | 'after' | 'instruction' | 'keyed' | 'field';
 
 export interface KindInput {
   name: string;
@@ -52,8 +53,12 @@ export interface KindControl {
   span: Span;
 }
 
-/** RV32I architectural roles a kind's state may hold (`holds ROLE STATE`): what the simulator loads and compares. */
-export const HOLDS_ROLES = ['registers', 'instruction', 'pc'] as const;
+/**
+ * Roles a kind's state may hold (`holds ROLE STATE`): the RV32I architectural state the
+ * simulator loads and compares, and `step`, the step counter the address layout's `step` lines
+ * read (a sequencer part; without one the machine has today's implicit counter).
+ */
+export const HOLDS_ROLES = ['registers', 'instruction', 'pc', 'step'] as const;
 export type HoldsRole = (typeof HOLDS_ROLES)[number];
 
 export interface KindHolds {
@@ -102,6 +107,8 @@ export interface KindEdge {
   param?: string;
   /** Width of the bus value (`in`) the strobe brings; none for a count or a latch. */
   width?: Size;
+  /** `on NAME always:` acts at every closing edge, with no strobe (no strobe may name it). */
+  always?: boolean;
   assigns: KindAssign[];
   description?: string;
   span: Span;
@@ -232,7 +239,7 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
           def.leftOut.add(item.name.text);
           break;
         }
-        const wiring: InputWiring = item.after ? 'after' : item.instruction ? 'instruction' : item.keyed ? 'keyed' : 'positional';
+        const wiring: InputWiring = item.after ? 'after' : item.instruction ? 'instruction' : item.keyed ? 'keyed' : item.field ? 'field' : 'positional';
         def.inputs.push({ name: item.name.text, width, wiring, after: item.after?.text, readsInstruction: item.instruction ? true : undefined, description: item.description?.value, span: item.name.span });
         break;
       }
@@ -325,8 +332,12 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
           if (!a.expr) continue;
           assigns.push({ target: a.target.text, targetSpan: a.target.span, index: a.index, expr: a.expr, when: a.when, span: a.span });
         }
+        if (item.always && item.param) {
+          error(item.param.span, 'an `always` edge port acts at every closing edge with no strobe, so no strobe gives it a number: remove `[...]`');
+          break;
+        }
         const param = portParam(item.param, def.edges.some((e) => e.param !== undefined), 'edge');
-        def.edges.push({ name: item.name.text, param, width, assigns, description: item.description?.value, span: item.name.span });
+        def.edges.push({ name: item.name.text, param, width, always: item.always ? true : undefined, assigns, description: item.description?.value, span: item.name.span });
         break;
       }
     }
@@ -343,7 +354,7 @@ export function defaultDrive(kind: KindDef): KindDrive | undefined {
 }
 
 export function defaultEdge(kind: KindDef): KindEdge | undefined {
-  return kind.edges[0];
+  return kind.edges.find((e) => !e.always);
 }
 
 /** The kind's declaration as written, for hover (the source text it came from). */

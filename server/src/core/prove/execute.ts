@@ -105,6 +105,7 @@ export function unsupported(plan: SimPlan): string | undefined {
   if (plan.stores.length !== 1) return `the machine has ${plan.stores.length} control stores; the prover runs machines with one store so far`;
   if (plan.stores[0].fieldSources.length) return 'a field of a store drives address lines; the prover does not follow such stores yet';
   if (plan.regfiles.length !== 1) return 'the prover handles machines with exactly one register file so far';
+  if (plan.seqPart >= 0) return `the step counter is the sequencer part \`${plan.parts[plan.seqPart].name}\` (jumps and loops); the prover follows the implicit step counter only so far`;
   const combinational = plan.custom.combinational.flatMap((c) => c.flagNumbers.map((f) => plan.flagNames[f]));
   if (combinational.length) return `flag ${combinational.map((f) => `\`${f}\``).join(', ')} is combinational (it reads a bus or a control within the step); the prover follows latched flags only so far`;
   return definedParts(plan).problems();

@@ -87,6 +87,10 @@ const MAX_CHAIN_STEPS = 16;
 
 /** Whether the fast path can run this machine at all. */
 export function canCompile(plan: SimPlan): boolean {
+  // A sequencer part (`holds step`) computes the next step at every closing edge: a jump, a
+  // hold or a loop. The chains here assume the step counts up or returns to 0 at `end`, so such
+  // machines run on the interpreter (following jumps in compiled chains is a later slice).
+  if (plan.seqPart >= 0) return false;
   // Strobes that drive some lines of a bus run on the interpreter.
   const partial = [...plan.machine.signals.values()].some((s) => s.type === 'strobe' && s.lines !== undefined);
   // And connections (`connect`), which drive in every step, and combinational flags, whose

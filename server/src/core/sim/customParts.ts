@@ -19,7 +19,7 @@ import type { Part, Field, Machine, Strobe } from '../model/types';
 import type { Memory } from '../isa/memory';
 import { compilePort, liveNames, sizeOf, choiceCodes, parsedExpr, portSource, type PortNumber } from '../parts/behaviour';
 import { formatExpression, type InlineBinding } from '../parts/expr';
-import { edgeInputName, type KindFlag } from '../parts/kinds';
+import { edgeInputName, type KindEdge, type KindFlag } from '../parts/kinds';
 import { combinationalFlags } from '../model/flagFacts';
 import { portBusReads, partSetting } from '../model/buildPart';
 import { definedPortOf, strobePortNumber } from '../model/partFacts';
@@ -310,6 +310,11 @@ export class CustomParts {
       return (m) => m.partValue[p] >>> 0;
     }
     if (input?.from === 'instruction') return (m) => m.ir >>> 0;
+    if (input?.from === 'field') {
+      // A number field of the word: its code in this micro-op, a constant.
+      const code = this.fieldCode(input.name, fields);
+      return () => code;
+    }
     const control = part.def.controls.find((c) => c.name === name);
     if (control) {
       const field = this.controlField(part, name);
@@ -322,6 +327,12 @@ export class CustomParts {
       return () => index;
     }
     throw new Error(`custom part ${part.name}: no value for \`${name}\``);
+  }
+
+  /** The code a field holds in a micro-op (its idle code where the word does not set it). */
+  private fieldCode(name: string, fields: ReadonlyMap<string, number>): number {
+    const field = this.machine.signals.get(name);
+    return fields.get(name) ?? (field?.type === 'field' ? field.idle : 0);
   }
 
   /** Codes of the part's controls in this micro-op (a control no field drives is absent). */
@@ -390,15 +401,32 @@ export class CustomParts {
   /** The closing-edge action of a clock, count or write strobe on an edge port, for one micro-op. */
   edge(strobe: Strobe, fields: ReadonlyMap<string, number>, bus: number): CustomOp {
     const rt = this.byName.get(strobe.part ?? '')!;
+    const edge = rt.part.def.edges.find((e) => e.name === definedPortOf(rt.part, strobe))!;
+    return this.edgePort(rt, edge, fields, bus, strobe.lines, strobePortNumber(edge.param, strobe));
+  }
+
+  /**
+   * The edge ports that act at every closing edge with no strobe (`on next always:`, a
+   * sequencer's next step), for one micro-op: each with the name traces show (`seq.next`).
+   */
+  alwaysEdges(fields: ReadonlyMap<string, number>): { name: string; part: string; op: CustomOp }[] {
+    const out: { name: string; part: string; op: CustomOp }[] = [];
+    for (const rt of this.runtimes) {
+      for (const edge of rt.part.def.edges) {
+        if (edge.always) out.push({ name: `${rt.part.name}.${edge.name}`, part: rt.part.name, op: this.edgePort(rt, edge, fields, -1, undefined, undefined) });
+      }
+    }
+    return out;
+  }
+
+  private edgePort(rt: PartRuntime, edge: KindEdge, fields: ReadonlyMap<string, number>, bus: number, lines: { hi: number; lo: number } | undefined, param: PortNumber | undefined): CustomOp {
     const def = rt.part.def;
-    const edge = def.edges.find((e) => e.name === definedPortOf(rt.part, strobe))!;
     const texts = edge.assigns.flatMap((a) => [{ text: a.expr, width: rt.widths.get(a.target)! }, ...(a.when ? [{ text: a.when, width: 1 }] : []), ...(a.index ? [{ text: a.index }] : [])]);
     const edgeWidth = edge.width ? sizeOf(edge.width, rt.part.settings) : undefined;
-    const param = strobePortNumber(edge.param, strobe);
     const port = compilePort(def, partSetting(this.machine, rt.part), texts, edgeWidth, { element: rt.element }, param);
     const problem = this.unnamedControl(rt, texts, port.inputs, fields);
     if (problem) return { problem };
-    const getters = port.inputs.map((name) => this.getter(rt, name, fields, bus, strobe.lines));
+    const getters = port.inputs.map((name) => this.getter(rt, name, fields, bus, lines));
     const values = new Array<number>(getters.length);
     // For each assignment: where its target is stored, where its value, condition and index
     // stand in the results, and an array's element count.
@@ -460,6 +488,7 @@ export class CustomParts {
         if (input?.from === 'part') return masked(`partValue[${this.partIndex.get(input.name)!}]`, w);
         // After the edge (a latched flag read from the new state) the instruction register may have just loaded.
         if (input?.from === 'instruction') return masked(afterEdge && this.irPart >= 0 ? `partValue[${this.irPart}]` : 'ir', w);
+        if (input?.from === 'field') return String(this.fieldCode(input.name, fields) & (2 ** w - 1));
         throw new Error(`custom part ${part.name}: no value for \`${name}\``);
       },
       element: (array, index, width) => {

@@ -63,6 +63,8 @@ export function collectSteps(sim: BusSimulator, lastStep: number, recorded: bool
   const nStores = plan.stores.length;
   const nBuses = plan.busNames.length;
   for (let step = 0; step <= lastStep; step++) {
+    // With a sequencer a jump may skip steps: those the log holds from another instruction are left out.
+    if (plan.seqPart >= 0 && sim.logSeen[step] !== sim.logSeen[lastStep]) continue;
     const uop = sim.uopAtStep(step);
     const info = plan.microOps.info[uop];
     const addresses = plan.stores.map((s, i) => {

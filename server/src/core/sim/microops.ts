@@ -187,6 +187,12 @@ export class MicroOps {
         if (edge) edges.push(edge);
       }
     }
+    // Edge ports that act at every closing edge (a sequencer's next step): no strobe, in every word.
+    for (const always of plan.custom.alwaysEdges(fields)) {
+      const base = { bus: -1, a: 0, b: 0, c: 0, strobe: always.name, reads: [] as number[] };
+      if ('problem' in always.op) edges.push({ ...base, op: E_FAULT, fault: `${always.op.problem}, while \`${always.name}\` acts at the closing edge` });
+      else edges.push({ ...base, op: E_CUSTOM, a: always.op.index, reads: always.op.reads });
+    }
     const nBuses = plan.busNames.length;
     const driven = new Uint8Array(nBuses);
     for (const d of drivers) driven[d.bus] = 1;

@@ -80,6 +80,12 @@ export class SimPlan {
   /** Part numbers of the program counter and the instruction register. */
   readonly pcPart: number;
   readonly irPart: number;
+  /**
+   * The sequencer's part number (the part whose kind `holds step`), or -1: its state is the step
+   * counter, computed at every closing edge; the instruction retires when it returns to 0.
+   * Without one the simulator keeps the implicit counter (`end` returns it to 0).
+   */
+  readonly seqPart: number;
   readonly stepBits: number;
   readonly nSteps: number;
   /** Stores in evaluation order: a store whose address reads another store's field comes after it. */
@@ -112,6 +118,7 @@ export class SimPlan {
     this.flagNames.forEach((f, i) => this.flagIndex.set(f, i));
     this.pcPart = pcPart;
     this.irPart = irPart;
+    this.seqPart = machine.sequencer !== undefined ? (this.partIndex.get(machine.sequencer) ?? -1) : -1;
     this.stepBits = machine.stepBits ?? 0;
     this.nSteps = 2 ** this.stepBits;
     this.stores = stores;

@@ -99,7 +99,7 @@ export interface SimState {
   stopReason: SimStop | null;
   pendingExit: { exitCode: number; status: number } | null;
 }
-const STATE_NUMBERS = 11;
+const STATE_NUMBERS = 14;
 
 /** Most memory writes one instruction's record keeps (RV32I makes at most one). */
 const MAX_RECORDED_WRITES = 16;
@@ -135,6 +135,12 @@ export class BusSimulator implements MachineAccess {
   instructionPc = 0;
   /** The step counter's value in the `end` step of the instruction that retired last, and its word. */
   lastRetireStep = 0;
+  /**
+   * With a sequencer part: the steps the current instruction has run so far (a jump or a loop
+   * makes this differ from the step number), and those of the instruction that retired last.
+   */
+  instructionSteps = 0;
+  lastInstructionSteps = 0;
   lastRetiredWord = 0;
   stopReason: SimStop | null = null;
   /** Called after the buses settle in every step, before the closing edge (traces use it); gets the micro-op's number. */
@@ -154,6 +160,13 @@ export class BusSimulator implements MachineAccess {
   compiledSteps = 0;
   /** The step log of the current instruction, indexed by step: micro-op number, store addresses. */
   readonly logUop: Int32Array;
+  /**
+   * With a sequencer part: the serial number of the instruction that last ran each step (a jump
+   * skips steps, so the log's other entries may be an earlier instruction's); reports keep the
+   * steps of the instruction they are about.
+   */
+  readonly logSeen: Int32Array;
+  private instructionSerial = 1;
   readonly logAddress: Int32Array;
   /** With recordBuses: every bus value and the definedness mask of each step of the current instruction. */
   readonly logBusValue: Int32Array;
@@ -220,6 +233,7 @@ export class BusSimulator implements MachineAccess {
     this.classInstructions = new Float64Array(nClasses + 1);
     this.classSteps = new Float64Array(nClasses + 1);
     this.logUop = new Int32Array(plan.nSteps);
+    this.logSeen = new Int32Array(plan.nSteps);
     this.logAddress = new Int32Array(plan.nSteps * this.nStores);
     this.logBusValue = new Int32Array(plan.nSteps * nBuses);
     this.logDefined = new Int32Array(plan.nSteps);
@@ -503,6 +517,7 @@ export class BusSimulator implements MachineAccess {
     const flags = this.flags;
     const irPart = plan.irPart;
     const pcPart = plan.pcPart;
+    const seqPart = plan.seqPart;
     const nSteps = plan.nSteps;
     const nBuses = busValue.length;
     const classOfOpcode = plan.classOfOpcode;
@@ -544,6 +559,7 @@ export class BusSimulator implements MachineAccess {
       const header = code[base];
       const uop = code[base + 1];
       logUop[step] = uop;
+      if (seqPart >= 0) this.logSeen[step] = this.instructionSerial;
       if ((header & 1) !== 0) {
         this.step = step;
         this.steps += stepsRun;
@@ -654,12 +670,32 @@ export class BusSimulator implements MachineAccess {
         this.refreshStaticParts();
         static0 = this.staticParts[0];
       }
-      // 5. Step counter.
-      if ((header & 2) !== 0) {
+      // 5. Step counter. With a sequencer part the step is its state, just computed at the
+      // closing edge from the values before it (a jump, a hold, a clear); the instruction retires
+      // when it is back at 0. Without one: `end` returns the implicit counter to 0, else it counts.
+      let retire = (header & 2) !== 0;
+      let nextStep = step + 1;
+      if (seqPart >= 0) {
+        nextStep = partValue[seqPart] & (nSteps - 1);
+        retire = nextStep === 0;
+        this.instructionSteps++;
+        // Back at 0 from a fill word (no step of the table wrote it): the instruction did not end,
+        // the sequencer only ran out of steps (an illegal instruction, or a class with no way back).
+        if (retire && this.isFillWord(step)) {
+          this.step = 0;
+          this.steps += stepsRun;
+          this.definedMask = defined;
+          return this.stopWith(this.wrapStop());
+        }
+      }
+      if (retire) {
         const cls = classOfOpcode[retiring & 0x7f];
         const slot = cls < 0 ? noClass : cls;
         this.classInstructions[slot]++;
-        this.classSteps[slot] += step + 1;
+        this.classSteps[slot] += seqPart >= 0 ? this.instructionSteps : step + 1;
+        this.lastInstructionSteps = seqPart >= 0 ? this.instructionSteps : step + 1;
+        this.instructionSteps = 0;
+        this.instructionSerial++;
         this.retiredByKey[mnemonicKey(retiring)]++;
         this.lastRetiredWord = retiring >>> 0;
         this.instructionsRetired++;
@@ -674,6 +710,8 @@ export class BusSimulator implements MachineAccess {
           this.definedMask = defined;
           return this.pendingExit === null ? RETIRED : this.takeExit();
         }
+      } else if (seqPart >= 0) {
+        step = nextStep;
       } else if (++step === nSteps) {
         this.step = 0;
         this.steps += stepsRun;
@@ -726,7 +764,7 @@ export class BusSimulator implements MachineAccess {
    * the debugger's history. `into` is reused when given, so a ring of states allocates once.
    */
   captureState(into?: SimState): SimState {
-    const state = into ?? { regs: new Int32Array(this.regs.length), partValue: new Int32Array(this.partValue.length), customState: new Int32Array(this.customState.length), flags: new Uint8Array(this.flags.length), busValue: new Int32Array(this.busValue.length), definedLines: new Int32Array(this.busValue.length), writes: new Int32Array(3 * MAX_RECORDED_WRITES), log: new Int32Array(this.logAddress.length + this.logUop.length), numbers: new Float64Array(STATE_NUMBERS), stopReason: null, pendingExit: null };
+    const state = into ?? { regs: new Int32Array(this.regs.length), partValue: new Int32Array(this.partValue.length), customState: new Int32Array(this.customState.length), flags: new Uint8Array(this.flags.length), busValue: new Int32Array(this.busValue.length), definedLines: new Int32Array(this.busValue.length), writes: new Int32Array(3 * MAX_RECORDED_WRITES), log: new Int32Array(this.logAddress.length + this.logUop.length + this.logSeen.length), numbers: new Float64Array(STATE_NUMBERS), stopReason: null, pendingExit: null };
     copyInto(state.regs, this.regs);
     copyInto(state.partValue, this.partValue);
     copyInto(state.customState, this.customState);
@@ -738,6 +776,7 @@ export class BusSimulator implements MachineAccess {
     state.writes.set(this.writeValue, 2 * MAX_RECORDED_WRITES);
     state.log.set(this.logAddress, 0);
     state.log.set(this.logUop, this.logAddress.length);
+    state.log.set(this.logSeen, this.logAddress.length + this.logUop.length);
     const n = state.numbers;
     n[0] = this.definedMask;
     n[1] = this.step;
@@ -750,6 +789,9 @@ export class BusSimulator implements MachineAccess {
     n[8] = this.writeCount;
     n[9] = this.instructionLoaded ? 1 : 0;
     n[10] = this.ebreaks;
+    n[11] = this.instructionSteps;
+    n[12] = this.lastInstructionSteps;
+    n[13] = this.instructionSerial;
     state.stopReason = this.stopReason;
     state.pendingExit = this.pendingExit;
     return state;
@@ -767,7 +809,8 @@ export class BusSimulator implements MachineAccess {
     this.writeSize.set(state.writes.subarray(MAX_RECORDED_WRITES, 2 * MAX_RECORDED_WRITES));
     this.writeValue.set(state.writes.subarray(2 * MAX_RECORDED_WRITES));
     this.logAddress.set(state.log.subarray(0, this.logAddress.length));
-    this.logUop.set(state.log.subarray(this.logAddress.length));
+    this.logUop.set(state.log.subarray(this.logAddress.length, this.logAddress.length + this.logUop.length));
+    this.logSeen.set(state.log.subarray(this.logAddress.length + this.logUop.length));
     const n = state.numbers;
     this.definedMask = n[0] | 0;
     this.step = n[1];
@@ -780,6 +823,9 @@ export class BusSimulator implements MachineAccess {
     this.writeCount = n[8];
     this.instructionLoaded = n[9] === 1;
     this.ebreaks = n[10];
+    this.instructionSteps = n[11];
+    this.lastInstructionSteps = n[12];
+    this.instructionSerial = n[13];
     this.stopReason = state.stopReason;
     this.pendingExit = state.pendingExit;
     this.checkpointValid = false;
@@ -812,6 +858,7 @@ export class BusSimulator implements MachineAccess {
       const code = mo.code.data;
       const uop = code[base + 1];
       this.logUop[this.step] = uop;
+      this.logSeen[this.step] = this.instructionSerial;
       const info = mo.info[uop];
       for (let bus = 0; bus < plan.busNames.length; bus++) if (!info.driven[bus] && !plan.busKeeper[bus]) this.definedMask &= ~(1 << bus);
       for (let k = 0; k < info.drivers.length; k++) {
@@ -848,7 +895,7 @@ export class BusSimulator implements MachineAccess {
    */
   replayInstruction(): boolean {
     if (!this.checkpointValid) return false;
-    const counters = { step: this.step, steps: this.steps, retired: this.instructionsRetired, ebreaks: this.ebreaks, lastRetireStep: this.lastRetireStep, lastWriteCount: this.lastWriteCount, writeCount: this.writeCount, stop: this.stopReason, pendingExit: this.pendingExit };
+    const counters = { instructionSteps: this.instructionSteps, lastInstructionSteps: this.lastInstructionSteps, step: this.step, steps: this.steps, retired: this.instructionsRetired, ebreaks: this.ebreaks, lastRetireStep: this.lastRetireStep, lastWriteCount: this.lastWriteCount, writeCount: this.writeCount, stop: this.stopReason, pendingExit: this.pendingExit };
     const classInstructions = this.classInstructions.slice();
     const classSteps = this.classSteps.slice();
     const writes = { address: this.writeAddress.slice(), size: this.writeSize.slice(), value: this.writeValue.slice() };
@@ -870,6 +917,8 @@ export class BusSimulator implements MachineAccess {
     this.instructionPc = saved.instructionPc;
     this.instructionLoaded = saved.instructionLoaded;
     this.step = 0;
+    this.instructionSteps = 0;
+    this.instructionSerial++; // the replay's steps are the instruction's own
     this.stopReason = null;
     this.pendingExit = null;
     this.writeCount = 0;
@@ -880,12 +929,15 @@ export class BusSimulator implements MachineAccess {
     this.env = new LinuxUserEnvironment({ outputLimitBytes: env.outputLimitBytes });
     this.recordBuses = true;
     this.observer = null;
-    const outcome = this.runSteps(this.plan.nSteps + 1, true);
+    // With a sequencer an instruction may loop: replay until it retires or stops, within a bound.
+    const outcome = this.runSteps(this.plan.seqPart >= 0 ? 1 << 20 : this.plan.nSteps + 1, true);
     if (outcome.kind === 'retired' || (outcome.kind === 'stopped' && outcome.retired)) this.retiredByKey[mnemonicKey(this.lastRetiredWord)]--;
     this.env = env;
     this.recordBuses = record;
     this.observer = observer;
     this.step = counters.step;
+    this.instructionSteps = counters.instructionSteps;
+    this.lastInstructionSteps = counters.lastInstructionSteps;
     this.steps = counters.steps;
     this.instructionsRetired = counters.retired;
     this.ebreaks = counters.ebreaks;
@@ -926,6 +978,17 @@ export class BusSimulator implements MachineAccess {
     return { kind: 'illegal-instruction', pc, word, why: 'monitor', message: 'the table traps this word, but the monitor serves only ecall (0x00000073) and ebreak (0x00100073)' };
   }
 
+  /** Whether the word of `step` (as logged in this instruction) is the fill word of every store: no step of the table wrote it. */
+  private isFillWord(step: number): boolean {
+    const plan = this.plan;
+    for (let s = 0; s < this.nStores; s++) {
+      const address = this.logAddress[step * this.nStores + s];
+      const point = plan.stores[s].enc.origin[address];
+      if (point !== undefined && point >= 0) return false;
+    }
+    return true;
+  }
+
   private wrapStop(): SimStop {
     const word = this.ir;
     const pc = this.instructionPc;
@@ -934,8 +997,10 @@ export class BusSimulator implements MachineAccess {
       return { kind: 'illegal-instruction', pc, word, why: 'no-fetch', message: `the machine never fetched an instruction: from reset (instruction register ${hex(word)}) the table ran all ${steps} steps without \`end\`; the steps at reset must fetch` };
     }
     const cls = this.plan.classOfOpcode[word & 0x7f];
-    if (cls < 0) return { kind: 'illegal-instruction', pc, word, why: 'no-class', message: `illegal instruction (the table has no class for it): the fill word ran for all ${steps} steps of the step counter` };
-    return { kind: 'illegal-instruction', pc, word, why: 'no-end', message: `class ${this.plan.machine.classes[cls].name} ran all ${steps} steps of the step counter without \`end\` for this word` };
+    // With a sequencer part: it counted through the fill word back to step 0 (nothing cleared it).
+    const counter = this.plan.seqPart >= 0 ? `the sequencer \`${this.plan.parts[this.plan.seqPart].name}\`` : 'the step counter';
+    if (cls < 0) return { kind: 'illegal-instruction', pc, word, why: 'no-class', message: this.plan.seqPart >= 0 ? `illegal instruction (the table has no class for it): the fill word ran until ${counter} counted on to step 0` : `illegal instruction (the table has no class for it): the fill word ran for all ${steps} steps of the step counter` };
+    return { kind: 'illegal-instruction', pc, word, why: 'no-end', message: this.plan.seqPart >= 0 ? `class ${this.plan.machine.classes[cls].name} ran into the fill word and ${counter} counted on to step 0 without the table returning it there for this word` : `class ${this.plan.machine.classes[cls].name} ran all ${steps} steps of the step counter without \`end\` for this word` };
   }
 
   /** The value (and whether it is defined) the k-th driver of the micro-op at `base` puts on its bus, from the buses as they are now. */

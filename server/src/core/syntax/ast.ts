@@ -196,6 +196,8 @@ export interface ActionNode {
   equals?: Span;
   /** A value name of the field, or the name of a decode map. */
   value?: Name;
+  /** A number, for a number field (`next=5`). */
+  number?: Literal;
   span: Span;
 }
 
@@ -265,6 +267,8 @@ export interface KindInputLine extends KindLineBase {
   instruction?: Span;
   /** `keyed`: written `NAME=SOURCE` on the part line. */
   keyed?: Span;
+  /** `field`: written `NAME=FIELD` on the part line, FIELD a number field of the word (its code in each step). */
+  field?: Span;
 }
 
 /** `control NAME: A B C`: the value names a field controlling the part may use. */
@@ -320,6 +324,8 @@ export interface KindEdgeLine extends KindLineBase {
   param?: Name;
   /** Width of the bus value the strobe brings (`in`); none for a count or a latch. */
   width?: SizeRef;
+  /** `always`: acts at every closing edge, no strobe (the edge twin of `connect`). */
+  always?: Span;
   assigns: KindAssign[];
 }
 

@@ -296,7 +296,7 @@ class Parser {
     const keyword = this.keywordSpan();
     const decl: A.PartDecl = { kind: 'part', keyword, span: keyword, args: [] };
     decl.name = this.expectName('a part name after `part`, e.g. `part pc counter 32`');
-    if (decl.name) decl.partKind = this.expectName('the kind of part (regfile, register, counter, instruction, immediate, alu, compare, memory, constant)');
+    if (decl.name) decl.partKind = this.expectName('the kind of part (regfile, register, counter, instruction, immediate, alu, compare, memory, constant, sequencer, loopcount)');
     while (decl.partKind && !this.atEol() && !this.at(T.String)) {
       const tok = this.peek();
       if (tok.kind === T.Ident && this.peek(1).kind === T.Equals) {
@@ -455,7 +455,8 @@ class Parser {
           this.next();
         }
       }
-    } else if (decl.width) {
+    } else if (decl.width && (decl.target || decl.options.length > 0 || !(this.atEol() || (this.at(T.String) && this.lineEndsAfter(1))))) {
+      // Without `-> PART` and options the line may end here: a number field (`field next 4`).
       this.unexpected('`{` and the named values, e.g. `{ add=0 sub=8 }`');
     }
     if (!this.atEol() && !this.at(T.String)) {
@@ -717,6 +718,7 @@ class Parser {
           if (this.atWord('instruction')) line.instruction = this.keywordSpan();
         } else if (this.atWord('instruction')) line.instruction = this.keywordSpan();
         else if (this.atWord('keyed')) line.keyed = this.keywordSpan();
+        else if (this.atWord('field')) line.field = this.keywordSpan();
         return done(line);
       }
       case 'holds': {
@@ -758,7 +760,8 @@ class Parser {
       case 'on': {
         const line: A.KindEdgeLine = { item: 'on', keyword, name, assigns: [], span: keyword };
         if (name) line.param = this.portParameter();
-        if (name && !this.at(T.Colon)) line.width = this.parseSize('the width of the bus value or `:`');
+        if (name && this.atWord('always')) line.always = this.keywordSpan();
+        else if (name && !this.at(T.Colon)) line.width = this.parseSize('the width of the bus value, `always` or `:`');
         if (name && !this.eat(T.Colon)) {
           this.unexpected('`:` and what happens at the closing edge, e.g. `on load 32: q <= in`');
           this.skipToEol();
@@ -996,11 +999,18 @@ class Parser {
     }
     const target = this.parseRef('a strobe name')!;
     const action: A.ActionNode = { target, span: target.span };
+    // `goto N`: a jump of the sequencer (model/buildSteps.ts expands it).
+    if (target.name.text === 'goto' && !target.index && (this.at(T.Number) || this.at(T.Pattern))) {
+      action.number = this.literal(this.next());
+      action.span = mkSpan(target.span.start, this.prevEnd);
+      return action;
+    }
     const equals = this.eat(T.Equals);
     if (equals) {
       action.equals = mkSpan(equals.start, equals.end);
       if (this.at(T.Ident)) action.value = this.name(this.next());
-      else this.unexpected(`a value name or a map name after \`${target.name.text}=\``);
+      else if (this.at(T.Number) || this.at(T.Pattern)) action.number = this.literal(this.next());
+      else this.unexpected(`a value name, a map name or (for a number field) a number after \`${target.name.text}=\``);
     }
     action.span = mkSpan(target.span.start, this.prevEnd);
     return action;

@@ -1,4 +1,4 @@
-// The standard library: the nine part kinds every machine may use without declaring them,
+// The standard library: the part kinds every machine may use without declaring them,
 // written in the notation itself (`kind` declarations, docs/notation.md) so that hover shows
 // what a part does, go-to-definition opens it, and a builder can copy one as the start of their
 // own kind. It is read like any table (parse, build, width-check); a test keeps it clean.
@@ -87,4 +87,20 @@ kind constant "constant source: a fixed value"
   setting width number = 32 "bits"
   setting value number "the value it drives"
   drive k width = value "its value"
+
+kind sequencer "microcode sequencer: the step counter; each step it counts, loads a target from the word, holds, or clears"
+  setting width number = 4 "bits of the step"
+  input target width field "the step a jump goes to: a number field of the word"
+  control op: count load hold clear = count
+  state q width = 0
+  holds step q
+  on next always: q <= select op { count: q + 1, load: target, hold: q, clear: 0 } "at every closing edge: the next step"
+
+kind loopcount "loop counter: loads a count from a bus, counts down, says when it is zero"
+  setting width number = 5 "bits"
+  state q width = 0
+  drive out width = q "the count it holds"
+  on load width: q <= in "loads the count from the bus"
+  on down: q <= q - 1 "counts down by one"
+  flag zero = q == 0
 `;
