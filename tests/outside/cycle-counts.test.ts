@@ -61,11 +61,13 @@ describe.skipIf(!toolsPresent).each(EXAMPLES)('computed cycle counts of %s again
       const sim = run.sim;
       let retired = sim.instructionsRetired;
       for (;;) {
+        // The steps one instruction takes: on a sequencer machine a loop repeats steps, so count them.
+        const before = sim.steps;
         const ending = run.advance(10_000_000, true);
         if (sim.instructionsRetired > retired) {
           retired = sim.instructionsRetired;
           const word = sim.lastRetiredWord;
-          const steps = sim.lastRetireStep + 1;
+          const steps = sim.steps - before;
           see(byMnemonic, matchInstruction(word)?.mnemonic ?? '(not RV32I)', steps);
           const cls = analysis.machine.classes.find((c) => c.opcode === (word & 0x7f));
           see(byClass, cls?.name ?? '(no class)', steps);
@@ -91,7 +93,8 @@ describe.skipIf(!toolsPresent).each(EXAMPLES)('computed cycle counts of %s again
         const seen = byMnemonic.get(i.mnemonic!);
         if (!seen) continue;
         compared++;
-        expect([i.mnemonic, seen.min >= i.min!, seen.max <= i.max!]).toEqual([i.mnemonic, true, true]);
+        // A loop (windlass-32's shifts) leaves the most open: n more steps (tests/sim/shift-loop.test.ts pins n).
+        expect([i.mnemonic, seen.min >= i.min!, i.loopSteps !== undefined || seen.max <= i.max!]).toEqual([i.mnemonic, true, true]);
         if (i.min === i.max) expect([i.mnemonic, seen.min, seen.max]).toEqual([i.mnemonic, i.min, i.max]);
       }
     }
@@ -104,11 +107,11 @@ describe.skipIf(!toolsPresent).each(EXAMPLES)('computed cycle counts of %s again
     for (const c of counts) {
       const seen = byClass.get(c.className);
       if (!seen) continue;
-      expect([c.className, seen.min >= c.min!, seen.max <= c.max!]).toEqual([c.className, true, true]);
+      expect([c.className, seen.min >= c.min!, c.loops || seen.max <= c.max!]).toEqual([c.className, true, true]);
       for (const measured of cpi.get(c.className) ?? []) {
         expect(measured).toBeGreaterThanOrEqual(c.min!);
-        expect(measured).toBeLessThanOrEqual(c.max!);
-        if (c.min === c.max) expect([c.className, measured]).toEqual([c.className, c.min]);
+        if (!c.loops) expect(measured).toBeLessThanOrEqual(c.max!);
+        if (c.min === c.max && !c.loops) expect([c.className, measured]).toEqual([c.className, c.min]);
       }
     }
     expect(byClass.has('(no class)')).toBe(false);
@@ -118,12 +121,12 @@ describe.skipIf(!toolsPresent).each(EXAMPLES)('computed cycle counts of %s again
     let several = 0;
     for (const c of counts) {
       for (const i of c.instructions) {
-        if (i.min === i.max) continue;
+        if (i.min === i.max || i.loopSteps) continue;
         several++;
         const seen = byMnemonic.get(i.mnemonic!)!;
         expect([i.mnemonic, seen.min, seen.max]).toEqual([i.mnemonic, i.min, i.max]);
       }
-      if (c.min !== c.max) expect([c.className, byClass.get(c.className)?.min, byClass.get(c.className)?.max]).toEqual([c.className, c.min, c.max]);
+      if (c.min !== c.max && !c.loops) expect([c.className, byClass.get(c.className)?.min, byClass.get(c.className)?.max]).toEqual([c.className, c.min, c.max]);
     }
     // Capstan's six branches take 4 steps not taken and 8 taken (every other example runs each branch in one count).
     if (example === 'capstan-32.pwt') expect(several).toBe(6);

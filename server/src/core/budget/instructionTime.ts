@@ -34,9 +34,10 @@ export function instructionTimes(machine: Machine): InstructionTimes {
   const rows = cycleCountsOf(machine).map((c: ClassCycles) => ({
     className: c.className,
     minSteps: c.min,
-    maxSteps: c.max,
+    // A loop leaves the most open: it is n more steps, n from the datapath (the detail says which steps repeat).
+    maxSteps: c.loops ? undefined : c.max,
     minNs: c.min !== undefined && periodNs !== undefined ? c.min * periodNs : undefined,
-    maxNs: c.max !== undefined && periodNs !== undefined ? c.max * periodNs : undefined,
+    maxNs: !c.loops && c.max !== undefined && periodNs !== undefined ? c.max * periodNs : undefined,
     detail: cyclesSummary(c),
   }));
   return { clockKhz, clockFrom, periodNs, rows };

@@ -7,10 +7,18 @@
 // taken, 4 taken"). Counts are steps: the simulator's step counter value at the end plus one,
 // the fetch steps included.
 //
+// On a machine with a sequencer part (model/sequencing.ts) each step goes where the sequencer's
+// definition sends it with the codes its word gives (on, a jump, a hold, back to 0): the steps
+// form a graph that may loop. Then the fewest steps to the end are counted, and a loop on the
+// way makes the most unbounded: the count reads `4 + n`, n being how often the loop's steps
+// repeat (a shift by n places, a wait of n steps); what n is follows from the datapath, which
+// the simulator measures (tests/sim/shift-loop.test.ts holds them equal for the shift loop).
+//
 // Deliberately not here: reporting a path that runs off the last step without `end` (the
 // class-end check does; this only says "does not end"), guard evaluation of its own (the
-// checks' inputSpace.ts decides which alternatives hold), and loops or jumps (issue 15 item 1).
+// checks' inputSpace.ts decides which alternatives hold), and what bounds a loop.
 import { altEnds, maxWalkInputs } from '../checks/reach';
+import { hasSequencer, nextStepOf } from '../model/sequencing';
 import { type Cube, bitsOf, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from '../checks/inputSpace';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 
@@ -31,6 +39,8 @@ export interface InstructionCycles {
   max?: number;
   /** Some path runs past the class's last step without `end` (the flag conditions, as above). */
   doesNotEnd?: string[];
+  /** On a sequencer machine: steps that repeat on the way to the end, so `max` is unbounded (`min + n`). */
+  loopSteps?: number[];
 }
 
 export interface ClassCycles {
@@ -42,6 +52,8 @@ export interface ClassCycles {
   doesNotEnd: boolean;
   /** The guards test more inputs than a walk enumerates. */
   tooManyInputs: boolean;
+  /** Some instruction runs a loop (a sequencer machine): `max` is then the most of the others. */
+  loops: boolean;
 }
 
 /** Most distinct condition sets kept per step; beyond, paths lose their conditions (counts stay exact). */
@@ -70,6 +82,7 @@ export function classCycles(machine: Machine, cls: ClassDef): ClassCycles {
     max: maxes.length ? Math.max(...maxes) : undefined,
     doesNotEnd: instructions.some((i) => i.doesNotEnd !== undefined),
     tooManyInputs: instructions.some((i) => i.counts === undefined),
+    loops: instructions.some((i) => i.loopSteps !== undefined),
   };
 }
 
@@ -80,6 +93,7 @@ export function instructionCycles(machine: Machine, cls: ClassDef, cube: Cube): 
   const free = bitsOf((irMask & ~cube.mask) >>> 0);
   // The same bound as the checks' walk (reach.ts): instruction bits and flags together.
   if (free.length + classFlags.length > maxWalkInputs) return {};
+  if (hasSequencer(machine)) return sequencedCycles(machine, cls, cube, free);
   const lastStep = Math.max(-1, ...cls.steps.keys());
   const ends = new Map<number, Set<string>>();
   const offEnd = new Set<string>();
@@ -124,6 +138,89 @@ export function instructionCycles(machine: Machine, cls: ClassDef, cube: Cube): 
   return result;
 }
 
+/**
+ * The counts on a sequencer machine: the graph of steps each alternative's next step makes (a
+ * flag unknown, so every alternative some flag value selects), the fewest steps from step 0 to
+ * the end (a next step of 0), and the steps on a cycle that can still reach the end (the max is
+ * then unbounded). A next step the word does not fix (a field from a decode map) is not counted.
+ */
+function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: number[]): InstructionCycles {
+  const stepsOf = new Map<number, Set<number>>(); // step -> next steps (0: the end)
+  const unknownNext = new Set<number>();
+  for (const irScenario of scenarios(cube, free, [])) {
+    const seen = new Set<number>([0]);
+    const queue = [0];
+    while (queue.length) {
+      const step = queue.shift()!;
+      const alts = cls.steps.get(step) ?? [];
+      const { flags } = guardInputs(alts);
+      const next = stepsOf.get(step) ?? stepsOf.set(step, new Set()).get(step)!;
+      for (const scenario of scenarios(irScenario.ir, [], flags)) {
+        const matching = matchingAlternatives(alts, scenario);
+        for (const alt of matching.length ? matching : [undefined]) {
+          const to = nextStepOf(machine, alt, step);
+          if (to === undefined) {
+            unknownNext.add(step);
+            continue;
+          }
+          next.add(to);
+          if (to !== 0 && !seen.has(to)) {
+            seen.add(to);
+            queue.push(to);
+          }
+        }
+      }
+    }
+  }
+  if (unknownNext.size) return {};
+  // Fewest steps to the end: a breadth-first walk, one step per edge, the end after a step whose next is 0.
+  const depth = new Map<number, number>([[0, 1]]);
+  const order = [0];
+  let min: number | undefined;
+  for (let i = 0; i < order.length; i++) {
+    const step = order[i];
+    for (const to of stepsOf.get(step) ?? []) {
+      if (to === 0) min = min === undefined ? depth.get(step)! : Math.min(min, depth.get(step)!);
+      else if (!depth.has(to)) {
+        depth.set(to, depth.get(step)! + 1);
+        order.push(to);
+      }
+    }
+  }
+  // Steps on a cycle that can reach the end: a step that reaches itself and the end.
+  const reaches = (from: number, target: number): boolean => {
+    const seen = new Set<number>();
+    const stack = [...(stepsOf.get(from) ?? [])];
+    while (stack.length) {
+      const s = stack.pop()!;
+      if (s === target) return true;
+      if (s === 0 || seen.has(s)) continue;
+      seen.add(s);
+      stack.push(...(stepsOf.get(s) ?? []));
+    }
+    return false;
+  };
+  const endsFrom = (step: number) => [...(stepsOf.get(step) ?? [])].includes(0) || reaches(step, 0);
+  // Step 0 is never on a loop: going back to it is the end.
+  const loopSteps = [...depth.keys()].filter((step) => step !== 0 && reaches(step, step) && endsFrom(step)).sort((a, b) => a - b);
+  if (min === undefined) return { counts: [], doesNotEnd: [] };
+  // Without a loop the most is the longest path of the (acyclic) graph.
+  let max = min;
+  if (!loopSteps.length) {
+    const longest = new Map<number, number>();
+    const visit = (step: number): number => {
+      if (longest.has(step)) return longest.get(step)!;
+      let best = -Infinity;
+      for (const to of stepsOf.get(step) ?? []) best = Math.max(best, to === 0 ? 1 : 1 + visit(to));
+      longest.set(step, best);
+      return best;
+    };
+    max = visit(0);
+  }
+  const counts: StepCount[] = loopSteps.length || max === min ? [{ steps: min, conditions: [] }] : [{ steps: min, conditions: [] }, { steps: max, conditions: [] }];
+  return { counts, min, max: loopSteps.length ? undefined : max, ...(loopSteps.length && { loopSteps }) };
+}
+
 function addConditions(conditions: string[], added: string[]): string[] {
   const result = [...conditions];
   for (const c of added) if (!result.includes(c)) result.push(c);
@@ -135,14 +232,16 @@ function flagText(flag: string, value: number): string {
 }
 
 /** `3–4`, or `4` when both are the same; `?` when unknown. */
-export function rangeText(min: number | undefined, max: number | undefined): string {
+export function rangeText(min: number | undefined, max: number | undefined, loopSteps?: number[]): string {
+  if (min !== undefined && loopSteps?.length) return `${min} + n`;
   if (min === undefined || max === undefined) return '?';
   return min === max ? String(min) : `${min}–${max}`;
 }
 
 /** The counts of one instruction in words: `3 not taken, 4 taken`, `4`, `4, or does not end (taken)`. */
 export function countsText(cycles: InstructionCycles): string {
-  if (!cycles.counts) return 'not walked (its guards test too many inputs)';
+  if (!cycles.counts) return 'not counted (its guards test too many inputs, or a next step depends on a decode map)';
+  if (cycles.loopSteps?.length) return `${cycles.min} + n (n: repeats of step${cycles.loopSteps.length > 1 ? 's' : ''} ${cycles.loopSteps.join(', ')})`;
   const parts = cycles.counts.map((c) => (cycles.counts!.length > 1 && c.conditions.length ? `${c.steps} ${c.conditions.join(' or ')}` : String(c.steps)));
   if (cycles.counts.length > 1 && cycles.counts.every((c) => !c.conditions.length)) parts.splice(0, parts.length, rangeText(cycles.min, cycles.max));
   if (cycles.doesNotEnd) parts.push(`does not end${cycles.doesNotEnd.length ? ` (${cycles.doesNotEnd.join(' or ')})` : ''}`);
@@ -174,9 +273,9 @@ export function cyclesSummary(cycles: ClassCycles): string {
   if (cycles.tooManyInputs) return 'steps not counted (guards test too many inputs)';
   const groups = groupsOf(cycles);
   const all = cycles.instructions.map((i) => i.mnemonic ?? cycles.className);
-  const head = cycles.min === undefined ? 'does not end' : `${rangeText(cycles.min, cycles.max)} ${cycles.min === cycles.max && cycles.min === 1 ? 'step' : 'steps'}`;
+  const head = cycles.min === undefined ? 'does not end' : cycles.loops ? `${cycles.min} or more steps` : `${rangeText(cycles.min, cycles.max)} ${cycles.min === cycles.max && cycles.min === 1 ? 'step' : 'steps'}`;
   const only = groups.length === 1 ? groups[0].cycles : undefined;
-  if (only && (cycles.min === undefined || (only.counts!.length <= 1 && !only.doesNotEnd))) return head;
+  if (only && !cycles.loops && (cycles.min === undefined || (only.counts!.length <= 1 && !only.doesNotEnd))) return head;
   const detail = groups.map((g) => (all.length > 1 ? `${groupNames(g.names, all)}: ${countsText(g.cycles)}` : countsText(g.cycles))).join('; ');
   return `${head} (${detail})`;
 }

@@ -383,11 +383,11 @@ function cyclesLines(machine: Machine, cls: ClassDef): string[] {
   const cycles = cycleCountsOf(machine)[machine.classes.indexOf(cls)];
   if (!cycles) return [];
   if (cycles.tooManyInputs) return ['- **steps to end** not counted: its guards test more inputs than a walk enumerates'];
-  const lines = [`- **steps to end** ${cycles.min === undefined ? 'none: no path reaches \`end\`' : `min ${cycles.min}, max ${cycles.max}`} (fetch included)`];
+  const lines = [`- **steps to end** ${cycles.min === undefined ? 'none: no path reaches \`end\`' : `min ${cycles.min}, max ${cycles.loops ? 'unbounded (a loop)' : cycles.max}`} (fetch included)`];
   // Instructions with the same counts share a line.
   for (const { names, cycles: i } of groupsOf(cycles)) {
     if (!i.mnemonic) continue;
-    lines.push(`  - ${names.join(', ')}: ${i.min === undefined ? 'does not end' : `min ${i.min}, max ${i.max}`}${(i.counts?.length ?? 0) > 1 || i.doesNotEnd ? ` (${countsText(i)})` : ''}`);
+    lines.push(`  - ${names.join(', ')}: ${i.min === undefined ? 'does not end' : i.loopSteps ? countsText(i) : `min ${i.min}, max ${i.max}`}${!i.loopSteps && ((i.counts?.length ?? 0) > 1 || i.doesNotEnd) ? ` (${countsText(i)})` : ''}`);
   }
   return lines;
 }

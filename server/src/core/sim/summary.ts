@@ -16,7 +16,7 @@ export interface ClassFigures {
   /** Steps per instruction of this class. */
   cpi: number;
   /** The steps its instructions take as counted from the class's control flow (flow/cycleCounts.ts). */
-  computed?: { min?: number; max?: number; doesNotEnd: boolean };
+  computed?: { min?: number; max?: number; doesNotEnd: boolean; loops: boolean };
 }
 
 export interface RunFigures {
@@ -39,7 +39,7 @@ export function figuresOf(sim: BusSimulator): RunFigures {
     if (instructions === 0) return;
     const steps = sim.classSteps[i];
     const c = counted[i];
-    classes.push({ className, instructions, steps, cpi: steps / instructions, ...(c && !c.tooManyInputs ? { computed: { min: c.min, max: c.max, doesNotEnd: c.doesNotEnd } } : {}) });
+    classes.push({ className, instructions, steps, cpi: steps / instructions, ...(c && !c.tooManyInputs ? { computed: { min: c.min, max: c.max, doesNotEnd: c.doesNotEnd, loops: c.loops } } : {}) });
   });
   const mnemonics = new Map<string, number>(RV32I_INSTRUCTIONS.map((s) => [s.mnemonic, 0]));
   for (let key = 0; key < sim.retiredByKey.length; key++) {
@@ -66,7 +66,7 @@ export function formatFigures(figures: RunFigures, wallMs?: number): string {
     const width = Math.max(...figures.classes.map((c) => c.className.length));
     const stepsWidth = Math.max(...figures.classes.map((c) => grouped(c.steps).length));
     for (const c of figures.classes) {
-      const computed = c.computed ? `  (computed ${rangeText(c.computed.min, c.computed.max)}${c.computed.doesNotEnd ? ', or does not end' : ''})` : '';
+      const computed = c.computed ? `  (computed ${c.computed.loops ? `${c.computed.min} or more, a loop` : rangeText(c.computed.min, c.computed.max)}${c.computed.doesNotEnd ? ', or does not end' : ''})` : '';
       lines.push(`  ${c.className.padEnd(width)}  ${grouped(c.instructions).padStart(14)} instructions  ${grouped(c.steps).padStart(stepsWidth)} steps  CPI ${c.cpi.toFixed(3)}${computed}`);
     }
   }
