@@ -87,9 +87,10 @@ export const budgetCommand = defineCommand({
   },
 });
 
-/** `min..max`, or one number when they agree; `?` when unknown. */
+/** `min..max`, or one number when they agree; `min..` when only the least is known (a loop); `?` when unknown. */
 function span(min: number | undefined, max: number | undefined, digits: number): string {
-  if (min === undefined || max === undefined) return '?';
+  if (min === undefined) return '?';
+  if (max === undefined) return `${min.toFixed(digits)}..`;
   return min === max ? min.toFixed(digits) : `${min.toFixed(digits)}..${max.toFixed(digits)}`;
 }
 
