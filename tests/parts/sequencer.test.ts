@@ -156,4 +156,23 @@ describe('a sequencer part in the notation', () => {
       expect(analyse(plain).diagnostics).toEqual([]);
     });
   });
+
+  it('a kind may not set a state both in an `always` port and in another port', () => {
+    expectDiagnostics(
+      [
+        'kind stepper "a step counter"',
+        '  state q 2 = 0',
+        '  holds step q',
+        '  on next always: q <= q + 1',
+        '  on load 2: q <= in',
+        '#            ^ kind-definition: `q` is set at every closing edge by `on next always`',
+        '',
+      ].join('\n'),
+      ['kind-definition'],
+    );
+    expectDiagnostics(
+      ['kind stepper "a step counter"', '  state q 2 = 0', '  drive out 2 = q', '  on next[n] always: q <= q', '#         ^ kind-definition: an `always` edge port acts at every closing edge with no strobe, so no strobe gives it a number', ''].join('\n'),
+      ['kind-definition'],
+    );
+  });
 });
