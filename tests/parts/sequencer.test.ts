@@ -6,6 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { decodeWord, encodeMachine } from '../../server/src/core/encode/encoder';
+import { hover } from '../../server/src/core/ide/hover';
 import { parse } from '../../server/src/core/syntax/parser';
 import { expectDiagnostics } from '../support/annotated';
 
@@ -174,5 +175,11 @@ describe('a sequencer part in the notation', () => {
       ['kind stepper "a step counter"', '  state q 2 = 0', '  drive out 2 = q', '  on next[n] always: q <= q', '#         ^ kind-definition: an `always` edge port acts at every closing edge with no strobe, so no strobe gives it a number', ''].join('\n'),
       ['kind-definition'],
     );
+  });
+
+  it('hover on a number field says so and names the part that reads it', () => {
+    const text = sketch(seq, clean);
+    const shown = hover(analyse(text), text.indexOf('field next') + 7);
+    expect(JSON.stringify(shown)).toContain('a number field (a step sets it with a number, 0 to 3), read by `seq` (input `target`)');
   });
 });
