@@ -6,6 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { decodeWord, encodeMachine } from '../../server/src/core/encode/encoder';
+import { hover } from '../../server/src/core/ide/hover';
 import { parse } from '../../server/src/core/syntax/parser';
 import { expectDiagnostics } from '../support/annotated';
 
@@ -155,5 +156,30 @@ describe('a sequencer part in the notation', () => {
       const plain = ['bus b 8', 'part r register 8', 'strobe r.oe enable r -> b', 'strobe end end', 'word 8 as 8', '  r.oe 0   end 1', 'address 7', '  step 0..1   opcode 2..6', 'class X opcode=0110011', '  0: r.oe', '  1: end', ''].join('\n');
       expect(analyse(plain).diagnostics).toEqual([]);
     });
+  });
+
+  it('a kind may not set a state both in an `always` port and in another port', () => {
+    expectDiagnostics(
+      [
+        'kind stepper "a step counter"',
+        '  state q 2 = 0',
+        '  holds step q',
+        '  on next always: q <= q + 1',
+        '  on load 2: q <= in',
+        '#            ^ kind-definition: `q` is set at every closing edge by `on next always`',
+        '',
+      ].join('\n'),
+      ['kind-definition'],
+    );
+    expectDiagnostics(
+      ['kind stepper "a step counter"', '  state q 2 = 0', '  drive out 2 = q', '  on next[n] always: q <= q', '#         ^ kind-definition: an `always` edge port acts at every closing edge with no strobe, so no strobe gives it a number', ''].join('\n'),
+      ['kind-definition'],
+    );
+  });
+
+  it('hover on a number field says so and names the part that reads it', () => {
+    const text = sketch(seq, clean);
+    const shown = hover(analyse(text), text.indexOf('field next') + 7);
+    expect(JSON.stringify(shown)).toContain('a number field (a step sets it with a number, 0 to 3), read by `seq` (input `target`)');
   });
 });

@@ -215,7 +215,10 @@ function strobeEffect(machine: Machine, strobe: Strobe, part: Part | undefined):
 function fieldHover(machine: Machine, field: Field): string {
   const target = field.target ? machine.parts.get(field.target) : undefined;
   const lines = [header('field', field.name, field.description ?? 'no description'), ''];
-  lines.push(`- **width** ${plural(field.width, 'bit')}` + (target ? `, controls part \`${target.name}\`, kind ${partKindLine(machine, target)}` : ', controls no part'));
+  // A number field is read by the parts whose `field` inputs are wired to it (a sequencer's jump target).
+  const readers = field.numeric ? [...machine.parts.values()].flatMap((p) => [...p.inputs].filter(([, src]) => src.from === 'field' && src.name === field.name).map(([input]) => `\`${p.name}\` (input \`${input}\`)`)) : [];
+  const role = target ? `, controls part \`${target.name}\`, kind ${partKindLine(machine, target)}` : field.numeric ? `, a number field (a step sets it with a number, 0 to ${2 ** field.width - 1}), read by ${readers.length ? readers.join(', ') : 'no part'}` : ', controls no part';
+  lines.push(`- **width** ${plural(field.width, 'bit')}` + role);
   lines.push(placementLine(machine, field.name));
   const idle = [...field.values.values()].find((v) => v.code === field.idle);
   lines.push(`- **idle** ${idle ? `\`${idle.name}\` ` : ''}(code ${field.idle}): the value where no step sets the field`);

@@ -342,6 +342,16 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
       }
     }
   }
+  // A state an `always` port sets changes at every closing edge: another port setting it too
+  // would load it twice at one edge (which wins depends on the chip).
+  const alwaysSet = new Map(def.edges.filter((e) => e.always).flatMap((e) => e.assigns.map((a) => [a.target, e.name] as const)));
+  for (const edge of def.edges) {
+    if (edge.always) continue;
+    for (const a of edge.assigns) {
+      const by = alwaysSet.get(a.target);
+      if (by) error(a.targetSpan, `\`${a.target}\` is set at every closing edge by \`on ${by} always\`; another port setting it would load it twice at one edge: fold this into \`${by}\` (a control choosing what it does)`);
+    }
+  }
   if (def.drives.length === 0 && def.edges.length === 0 && def.flags.length === 0) {
     error(def.span, `kind \`${def.name}\` has no drive port, edge port or flag, so no strobe or address line could ever use it`);
   }
