@@ -145,7 +145,31 @@ export const catalogue: CodeInfo[] = [
     code: 'class-no-end',
     severity: 'error',
     title: 'a class never ends the instruction',
-    explanation: 'No path through the class\'s steps asserts an end-of-instruction strobe before the step counter runs out. The counter wraps around and the processor never fetches the next instruction. Assert the end strobe in the last step (the quick fix adds it).',
+    explanation: 'No path through the class\'s steps asserts an end-of-instruction strobe before the step counter runs out. The counter wraps around and the processor never fetches the next instruction. Assert the end strobe in the last step (the quick fix adds it). On a machine with a sequencer part the same holds for returning the sequencer to step 0: a class none of whose steps returns it there, or a path that counts on past the class\'s last step into fill words.',
+  },
+  {
+    code: 'micro-loop',
+    severity: 'error',
+    title: 'an instruction reaches steps it can never leave',
+    explanation: 'On a machine with a sequencer part, some instruction reaches a set of steps from which no path returns the sequencer to step 0, whatever its flags do: the steps jump, hold or count among themselves for ever. The instruction never ends, the next one is never fetched and the processor hangs in those words. Give the loop a way out: an alternative, guarded by a flag the loop changes, that returns to 0 or goes to a step that does.',
+  },
+  {
+    code: 'loop-exit-unchanged',
+    severity: 'error',
+    title: 'a loop exits only on flags the loop never changes',
+    explanation: 'On a machine with a sequencer part, steps that repeat (a wait holding a step, a jump back) leave only on flags that none of the loop\'s steps can change: a latched flag changes only at a closing edge where its part is clocked or counted (or a part it reads), a combinational one also when a bus it reads is driven. If the loop is entered with those flags set the way that keeps it going, they stay so and the loop never ends. Change the flag inside the loop (count the loop counter down, latch the comparator) or exit on a flag the loop does change.',
+  },
+  {
+    code: 'jump-outside',
+    severity: 'error',
+    title: 'a jump goes to a step the class does not have',
+    explanation: 'On a machine with a sequencer part, a step\'s word loads the sequencer with a step number that the class does not write and no phase places there. The control store holds the fill word at that address (every strobe idle, the sequencer counting on), so the instruction runs fill words until it wraps to step 0, and the simulator stops with an illegal instruction. Jump to a step of the class (or of the phase it uses), or write the step.',
+  },
+  {
+    code: 'step-unreachable',
+    severity: 'warning',
+    title: 'a written step is never reached',
+    explanation: 'On a machine with a sequencer part, no instruction of the class reaches the step from step 0: nothing counts into it and no jump targets it, for any flag value. Its word takes store space and never runs; usually a jump target is mistyped or a loop\'s exit goes elsewhere. Jump to the step where it is meant to run, or remove it.',
   },
   {
     code: 'step-overflow',

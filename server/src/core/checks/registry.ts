@@ -6,6 +6,10 @@ import { bitOverlap } from './bitOverlap';
 import { busContention } from './busContention';
 import { chipCapacity } from './chipCapacity';
 import { classEnd } from './classEnd';
+import { microLoop } from './microLoop';
+import { loopExit } from './loopExit';
+import { jumpOutside } from './jumpOutside';
+import { stepUnreachable } from './stepUnreachable';
 import { classOpcode } from './classOpcode';
 import { clockConflict } from './clockConflict';
 import { fieldConflict } from './fieldConflict';
@@ -41,6 +45,10 @@ export const checks: Check[] = [
   classOpcode,
   instructionCoverage,
   classEnd,
+  microLoop,
+  loopExit,
+  jumpOutside,
+  stepUnreachable,
   stepRange,
   guardCoverage,
   addressLoop,

@@ -18,7 +18,8 @@
 // class-end check does; this only says "does not end"), guard evaluation of its own (the
 // checks' inputSpace.ts decides which alternatives hold), and what bounds a loop.
 import { altEnds, maxWalkInputs } from '../checks/reach';
-import { hasSequencer, nextStepOf } from '../model/sequencing';
+import { hasSequencer } from '../model/sequencing';
+import { stepGraph } from './stepGraph';
 import { type Cube, bitsOf, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from '../checks/inputSpace';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 
@@ -139,8 +140,8 @@ export function instructionCycles(machine: Machine, cls: ClassDef, cube: Cube): 
 }
 
 /**
- * The counts on a sequencer machine: the graph of steps each alternative's next step makes (a
- * flag unknown, so every alternative some flag value selects), the fewest steps from step 0 to
+ * The counts on a sequencer machine: the step graph (stepGraph.ts) of each combination of the
+ * instruction bits, merged, the fewest steps from step 0 to
  * the end (a next step of 0), and the steps on a cycle that can still reach the end (the max is
  * then unbounded). A next step the word does not fix (a field from a decode map) is not counted.
  */
@@ -148,28 +149,11 @@ function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: numb
   const stepsOf = new Map<number, Set<number>>(); // step -> next steps (0: the end)
   const unknownNext = new Set<number>();
   for (const irScenario of scenarios(cube, free, [])) {
-    const seen = new Set<number>([0]);
-    const queue = [0];
-    while (queue.length) {
-      const step = queue.shift()!;
-      const alts = cls.steps.get(step) ?? [];
-      const { flags } = guardInputs(alts);
+    const graph = stepGraph(machine, cls, irScenario.ir);
+    for (const step of graph.unknown) unknownNext.add(step);
+    for (const step of graph.reached) {
       const next = stepsOf.get(step) ?? stepsOf.set(step, new Set()).get(step)!;
-      for (const scenario of scenarios(irScenario.ir, [], flags)) {
-        const matching = matchingAlternatives(alts, scenario);
-        for (const alt of matching.length ? matching : [undefined]) {
-          const to = nextStepOf(machine, alt, step);
-          if (to === undefined) {
-            unknownNext.add(step);
-            continue;
-          }
-          next.add(to);
-          if (to !== 0 && !seen.has(to)) {
-            seen.add(to);
-            queue.push(to);
-          }
-        }
-      }
+      for (const edge of graph.out.get(step) ?? []) next.add(edge.to);
     }
   }
   if (unknownNext.size) return {};
