@@ -5,7 +5,7 @@
 import { type Check } from './context';
 import { altEnds } from './reach';
 import { hasSequencer } from '../model/sequencing';
-import { endingSteps, instructionGraphs, stepsText } from '../flow/stepGraph';
+import { endingSteps, instructionGraphs, loopsOf, stepsText } from '../flow/stepGraph';
 import type { RelatedInfo } from '../text/diagnostic';
 
 export const microLoop: Check = {
@@ -19,7 +19,9 @@ export const microLoop: Check = {
       const reported = new Set<string>();
       for (const { name, graph } of instructionGraphs(machine, cls) ?? []) {
         const ending = endingSteps(graph);
-        const trapped = graph.reached.filter((s) => !ending.has(s)).sort((a, b) => a - b);
+        // The steps that can repeat among those it can never leave: the loop it ends up in (the
+        // steps leading there cannot end either, but they run once).
+        const trapped = loopsOf(graph).filter((loop) => !ending.has(loop[0])).flat().sort((a, b) => a - b);
         const key = trapped.join();
         if (!trapped.length || reported.has(key)) continue;
         reported.add(key);
