@@ -2,8 +2,8 @@
 // reach a step that asserts an end-of-instruction strobe before the step counter runs out.
 // Otherwise the counter wraps and the processor never fetches the next instruction. The walk
 // itself is reach.ts's. On a machine with a sequencer part an alternative ends by returning it
-// to step 0; the walk does not follow loops yet, so a loop that never exits is not reported here
-// (the control-flow checks, a later slice).
+// to step 0; a loop that never exits is micro-loop's or loop-exit-unchanged's (microLoop.ts,
+// loopExit.ts), a jump to a step the class does not write jump-outside's.
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 import type { Fix } from '../text/diagnostic';
 import { type Check, type CheckContext } from './context';

@@ -56,7 +56,7 @@ export function altEnds(machine: Machine, alt: StepAlt): boolean {
  * none applies) lets the walk go past `step`: it counts on or jumps forward, or its next step is
  * not known from the word. One that ends, holds or jumps back keeps the instruction within the
  * steps already reached. (Whether such a loop ever ends is the control-flow checks' question,
- * a later slice: this walk only bounds which steps are reached.)
+ * over flow/stepGraph.ts: this walk only bounds which steps are reached.)
  */
 function goesPast(machine: Machine, alt: StepAlt | undefined, step: number): boolean {
   const next = nextStepOf(machine, alt, step);

@@ -26,8 +26,8 @@ export const stepRange: Check = {
           }
         }
       }
-      // With a sequencer part a step may be jumped over on purpose; whether a gap is ever
-      // counted into needs the control-flow graph (a later slice), so the gap check is silent.
+      // With a sequencer part a step may be jumped over on purpose, so the gap check is silent;
+      // a written step nothing reaches is step-unreachable (stepUnreachable.ts).
       if (ctx.machine.sequencer !== undefined) continue;
       const last = steps[steps.length - 1] ?? 0;
       for (let step = 0; step < last; step++) {

@@ -4,7 +4,7 @@
 // that walk a class (checks/reach.ts, classEnd.ts) ask it which alternatives end the
 // instruction (the next step is 0) and which count on, jump or loop back.
 //
-// Deliberately not here: a control-flow graph, loop bounds or cycle counts (a later slice), and
+// Deliberately not here: the control-flow graph (flow/stepGraph.ts), loop bounds, cycle counts, and
 // any knowledge of a kind by name: only the `holds step` line and the definition are read.
 import { compilePort } from '../parts/behaviour';
 import { partSetting, sizeIn } from './buildPart';
