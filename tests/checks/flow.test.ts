@@ -1,5 +1,5 @@
 // The control-flow checks of a machine with a sequencer part (micro-loop, loop-exit-unchanged,
-// jump-outside, step-unreachable): each fires on its fault example at the exact range and on a
+// jump-outside, step-unreachable) and guard and instruction coverage along the step graph: each fires on its fault example at the exact range and on a
 // broken copy of a real sequencer machine, and none fires on windlass-32 or the sequencer
 // machines of tests/support/sequencer.ts, which run every test program identical to
 // qemu-riscv32 (tests/sim). The sequencer's next step is the standard library's definition
@@ -145,5 +145,32 @@ describe('step-unreachable', () => {
     const text = edit(shiftLoopDemo(), '  3: imm.fmt=i, imm.oe, alu.fn=passb, alu.oe, sh.ld\n', '  3: imm.fmt=i, imm.oe, alu.fn=passb, alu.oe, sh.ld, seqop=load, next=4\n  5: acc.oe, alu.fn=passa, alu.oe, x.rd.ck, pc.inc, seqop=clear\n');
     const d = found(text, 'step-unreachable');
     expect(d.map((x) => x.line)).toEqual(['  5: acc.oe, alu.fn=passa, alu.oe, x.rd.ck, pc.inc, seqop=clear']);
+  });
+});
+
+describe('coverage along the step graph', () => {
+  const slliStep3 = '  3: imm.fmt=i, imm.oe, alu.fn=passb, alu.oe, sh.ld\n';
+
+  it('a step only SLLI reaches need not cover the other OP-IMM instructions (no guard-gap)', () => {
+    const text = edit(shiftLoopDemo(), slliStep3, '  3 if funct3=001: imm.fmt=i, imm.oe, alu.fn=passb, alu.oe, sh.ld\n');
+    expect(codes(text)).toEqual([]);
+  });
+
+  it('guard-gap still fires, naming only SLLI, when the step does not cover the one instruction that reaches it', () => {
+    const text = edit(shiftLoopDemo(), slliStep3, '  3 if funct3=101: imm.fmt=i, imm.oe, alu.fn=passb, alu.oe, sh.ld\n');
+    const d = found(text, 'guard-gap');
+    expect(d).toHaveLength(1);
+    expect(d[0].range).toBe('3');
+    expect(d[0].message).toMatch(/; slli would run the fill word/);
+  });
+
+  it('a decode map on a step reached only by a jump past an ending step needs a row for every instruction that jumps there', () => {
+    // OP jumps from step 2 to step 6 (step 3 is never reached); step 6 uses op_fn, which lacks `and`.
+    let text = edit(sequencerDemo(), '  2: x.rs1.oe, x.rs2.oe, alu.fn=op_fn, alu.oe, x.rd.ck, pc.inc, seqop=clear\n', '  2: seqop=load, next=6\n  3: pc.inc, seqop=clear\n  6: x.rs1.oe, x.rs2.oe, alu.fn=op_fn, alu.oe, x.rd.ck, pc.inc, seqop=clear\n');
+    expect(codes(text)).toEqual(['step-unreachable']);
+    text = edit(text, '   111 0 and', '');
+    const uncovered = found(text, 'instruction-uncovered');
+    expect(uncovered.length).toBeGreaterThan(0);
+    expect(uncovered.map((d) => d.message).join('\n')).toContain('and');
   });
 });

@@ -2,9 +2,13 @@
 // applies to any address) and exhaustive for what RV32I instructions and flags can reach.
 // Where two apply the control word is undefined; where none applies the ROM holds the fill
 // word and the instruction silently does nothing at that step. Gaps that only illegal
-// encodings reach are allowed: they fall to the fill word by design.
+// encodings reach are allowed: they fall to the fill word by design. On a machine with a
+// sequencer part a gap counts only for the instructions whose step graph (flow/stepGraph.ts)
+// reaches the step: a step only one instruction jumps to need not cover the others.
 import type { StepAlt } from '../model/types';
 import { type Check, type CheckContext } from './context';
+import { hasSequencer } from '../model/sequencing';
+import { instructionGraphs } from '../flow/stepGraph';
 import { bitsOf, compiledGuards, compiledHolds, describeScenario, forEachScenario, guardInputs, instructionCube, instructionsOfClass, intersects } from './inputSpace';
 
 export const guardCoverage: Check = {
@@ -13,6 +17,7 @@ export const guardCoverage: Check = {
     const reportedOverlaps = new Set<string>();
     for (const cls of ctx.machine.classes) {
       const legal = instructionsOfClass(cls);
+      const graphs = hasSequencer(ctx.machine) ? instructionGraphs(ctx.machine, cls) : undefined;
       for (const [step, alts] of cls.steps) {
         if (alts.length === 1 && !alts[0].guard?.length && !alts[0].isElse) continue;
         const { irMask, flags } = guardInputs(alts);
@@ -41,7 +46,11 @@ export const guardCoverage: Check = {
             overlap(ctx, reportedOverlaps, first!, second!, `step ${step} of class ${cls.name}: both lines apply when ${describeScenario(scenario, irMask, flags) || 'always'}`);
           }
           if (matching === 0 && elses.length === 0) {
-            const reached = legal.filter((spec) => intersects(instructionCube(spec), scenario.ir));
+            const reached = legal.filter(
+              (spec) =>
+                intersects(instructionCube(spec), scenario.ir) &&
+                (!graphs || graphs.some((g) => g.mnemonic === spec.mnemonic && intersects(g.ir, scenario.ir) && g.graph.reached.includes(step))),
+            );
             if (reached.length === 0) return;
             gapCount++;
             gapExample ??= describeScenario(scenario, irMask, flags);

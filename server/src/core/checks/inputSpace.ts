@@ -64,6 +64,9 @@ export function instructionsOfClass(cls: ClassDef): InstructionSpec[] {
   return cls.opcode === undefined ? [] : RV32I_INSTRUCTIONS.filter((s) => s.opcode === cls.opcode);
 }
 
+/** Most inputs a walk enumerates (instruction bits plus flags); beyond, callers fall back. */
+export const maxWalkInputs = 16;
+
 /** An assignment of some instruction bits and some flags. */
 export interface Scenario {
   ir: Cube;

@@ -4,12 +4,15 @@
 // value lets it (an alternative that does not end, or none that applies, which is the fill
 // word and never ends). Every step before the first one that ends for all flag values is
 // reached; the steps after it are not. The checks that ask "what does this instruction run"
-// (coverage, class end, stored x0 writes) share this one walk.
+// (coverage, class end, stored x0 writes) share this one walk. On a machine with a sequencer
+// part the alternatives an instruction reaches are those of the steps its step graph reaches
+// (flow/stepGraph.ts: jumps and loops followed), where every next step is known.
 //
 // Deliberately not here: what an instruction does in the steps it reaches (the checks decide),
 // and the encoded images (this reasons on the table; checks/entryReach.ts on the images).
 import type { ClassDef, Machine, StepAlt } from '../model/types';
-import { type Cube, type Scenario, bitsOf, guardInputs, matchingAlternatives, scenarios } from './inputSpace';
+import { type Cube, type Scenario, bitsOf, guardInputs, matchingAlternatives, maxWalkInputs, scenarios } from './inputSpace';
+import { stepGraph } from '../flow/stepGraph';
 import { hasSequencer, nextStepOf } from '../model/sequencing';
 
 /** One way through a class: the instruction bits its guards test fixed, and where it stops. */
@@ -63,8 +66,7 @@ function goesPast(machine: Machine, alt: StepAlt | undefined, step: number): boo
   return next === undefined || next > step;
 }
 
-/** Most inputs a walk enumerates (instruction bits plus flags); beyond, callers fall back. */
-export const maxWalkInputs = 16;
+export { maxWalkInputs } from './inputSpace';
 
 /**
  * The paths of the instructions in `cube` through `cls`: one per combination of the
@@ -128,10 +130,15 @@ export function reachedAlternatives(machine: Machine, cls: ClassDef, cube: Cube)
   if (!paths) return undefined;
   const { flags } = guardInputs([...cls.steps.values()].flat());
   const reached: ReachedAlt[] = [];
+  const sequencer = hasSequencer(machine);
   for (const path of paths) {
     const flagScenarios: Scenario[] = [...scenarios(path.ir, [], flags)];
+    // On a sequencer machine the steps the instruction's graph reaches (jumps, loops), unless a
+    // next step is not known from a word: then the walk's bound.
+    const graph = sequencer ? stepGraph(machine, cls, path.ir) : undefined;
+    const graphReached = graph && !graph.unknown.size ? new Set(graph.reached) : undefined;
     for (const [step, alts] of cls.steps) {
-      if (!reaches(path, step)) continue;
+      if (graphReached ? !graphReached.has(step) : !reaches(path, step)) continue;
       const byAlt = new Map<StepAlt, Map<string, number>[]>();
       for (const scenario of flagScenarios) {
         for (const alt of matchingAlternatives(alts, scenario)) {

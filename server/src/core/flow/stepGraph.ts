@@ -4,12 +4,12 @@
 // step 0 is the end of the instruction and is not followed. The instruction's bits are fixed;
 // a flag is unknown at every step (it may change at any closing edge), so every alternative some
 // flag value selects is an edge. The cycle counts (cycleCounts.ts) and the control-flow checks
-// (checks/microLoop.ts, loopExit.ts, jumpOutside.ts, stepUnreachable.ts) share it.
+// (checks/microLoop.ts, loopExit.ts, stepUnreachable.ts) share it, and on a sequencer machine
+// the walk of what an instruction reaches (checks/reach.ts) and guard coverage follow it.
 //
 // Deliberately not here: what a loop's steps do to its flags (checks/loopExit.ts decides), and
 // machines without a sequencer (their steps only count on: checks/reach.ts walks them).
-import { type Cube, bitsOf, describeScenario, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from '../checks/inputSpace';
-import { maxWalkInputs } from '../checks/reach';
+import { type Cube, bitsOf, describeScenario, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, maxWalkInputs, scenarios } from '../checks/inputSpace';
 import { nextStepOf } from '../model/sequencing';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 
@@ -133,6 +133,10 @@ export function stepsText(steps: readonly number[]): string {
 /** One instruction's graph: its name for messages (`sll (funct3=001 f7b5=0)`) and the graph. */
 export interface InstructionGraph {
   name: string;
+  /** The RV32I mnemonic (undefined for a class's opcode when no RV32I instruction has it). */
+  mnemonic?: string;
+  /** The instruction words it stands for: the instruction's cube with every bit the guards test fixed. */
+  ir: Cube;
   graph: StepGraph;
 }
 
@@ -145,10 +149,10 @@ export function instructionGraphs(machine: Machine, cls: ClassDef): InstructionG
   const { irMask, flags } = guardInputs([...cls.steps.values()].flat());
   const specs = instructionsOfClass(cls);
   const cubes = specs.length
-    ? specs.map((s) => ({ name: s.mnemonic, cube: instructionCube(s) }))
-    : [{ name: `class ${cls.name}`, cube: cls.opcode === undefined ? { mask: 0, value: 0 } : { mask: 0x7f, value: cls.opcode } }];
+    ? specs.map((s) => ({ name: s.mnemonic, mnemonic: s.mnemonic as string | undefined, cube: instructionCube(s) }))
+    : [{ name: `class ${cls.name}`, mnemonic: undefined, cube: cls.opcode === undefined ? { mask: 0, value: 0 } : { mask: 0x7f, value: cls.opcode } }];
   const result: InstructionGraph[] = [];
-  for (const { name, cube } of cubes) {
+  for (const { name, mnemonic, cube } of cubes) {
     const freeMask = (irMask & ~cube.mask) >>> 0;
     const free = bitsOf(freeMask);
     if (free.length + flags.length > maxWalkInputs) return undefined;
@@ -156,7 +160,7 @@ export function instructionGraphs(machine: Machine, cls: ClassDef): InstructionG
       const graph = stepGraph(machine, cls, irScenario.ir);
       if (graph.unknown.size) return undefined;
       const detail = describeScenario(irScenario, freeMask, []);
-      result.push({ name: detail ? `${name} (${detail})` : name, graph });
+      result.push({ name: detail ? `${name} (${detail})` : name, mnemonic, ir: irScenario.ir, graph });
     }
   }
   return result;
