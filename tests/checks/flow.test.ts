@@ -95,6 +95,27 @@ describe('loop-exit-unchanged', () => {
     expect(codes(text).filter((c) => flowCodes.includes(c))).toEqual(['loop-exit-unchanged', 'loop-exit-unchanged']);
   });
 
+  it('follows a combinational flag: it changes only where a loop step drives the bus it reads', () => {
+    // A zero detector on a kept bus: `busy` reads `result` within the step (model/flagFacts.ts).
+    const base = edit(
+      edit(
+        edit(read('examples/faults/loop-exit-unchanged.pwt'), 'bus result 8\n', 'kind zdet "zero detector"\n  setting width number = 8 "bits"\n  input a width "the bus it watches"\n  flag nz = a != 0\nbus result 8 keeper\n'),
+        'part seq',
+        'part zd zdet result -> busy\npart seq',
+      ),
+      'address 8\n  step 0..1  z 2  opcode 3..7',
+      'address 9\n  step 0..1  z 2  opcode 3..7  busy 8',
+    );
+    const waiting = edit(edit(base, '  1 if !z: a.oe, b.ck, seqop=hold', '  1 if busy: seqop=hold'), '  1 else: seqop=clear', '  1 else: cnt.dn, seqop=clear');
+    const d = found(waiting, 'loop-exit-unchanged');
+    expect(d).toHaveLength(1);
+    expect(d[0].range).toBe('1');
+    expect(d[0].message).toContain('until `busy` changes, but no step of the loop changes it: entered with busy=1');
+    // Driving the bus in the loop (the same in both words, so the address settles) may change it.
+    const driven = edit(edit(waiting, '  1 if busy: seqop=hold', '  1 if busy: a.oe, b.ck, seqop=hold'), '  1 else: cnt.dn, seqop=clear', '  1 else: a.oe, cnt.dn, seqop=clear');
+    expect(codes(driven)).toEqual([]);
+  });
+
   it('fires on a wait for the comparator that does not latch it again', () => {
     const text = edit(sequencerDemo(), '  3 if taken:', '  3 if !taken: pc.oe, alu.fn=passa, alu.oe, mar.ck, seqop=hold\n  3 if taken:');
     const d = found(text, 'loop-exit-unchanged');

@@ -48,7 +48,7 @@ export const loopExit: Check = {
             ctx.report(
               'loop-exit-unchanged',
               first.phase ? first.phase.useSpan : first.numberSpan,
-              `${stepsText(loop)} of class ${cls.name} ${loop.length > 1 ? 'repeat' : 'repeats'} for ${name} until ${names} change${fixed.length > 1 ? '' : 's'}, but no step of the loop changes ${fixed.length > 1 ? 'them' : 'it'}: entered with ${values} the loop never ends; change the flag in the loop (clock or count its part) or exit on a flag the loop changes`,
+              `${stepsText(loop)} of class ${cls.name} ${loop.length > 1 ? 'repeat' : 'repeats'} for ${name} until ${names} change${fixed.length > 1 ? '' : 's'}, but no step of the loop changes ${fixed.length > 1 ? 'them' : 'it'}: entered with ${values} the loop never ends; change the flag in the loop (clock or count its part, or drive the bus it reads) or exit on a flag the loop changes`,
               loopAlts.map((alt) => ({ span: alt.span, message: `step ${alt.step} of the loop${alt.phase ? ` (phase ${alt.phase.name})` : ''}` })),
             );
             break;
