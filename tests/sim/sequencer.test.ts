@@ -10,7 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { canCompile } from '../../server/src/core/sim/compile';
 import { DEMO_TEXT, assemble, exitWords, ins, planOf, programOf, runToEnd, toLabel } from './support';
-import { sequencerDemo, shiftLoopDemo } from '../support/sequencer';
+import { checkShifts, sequencerDemo, shiftLoopDemo, shiftProgram } from '../support/sequencer';
 
 /** A program using every class of the demo: arithmetic, a loop of branches, a store and load, jumps, then exit with a0. */
 function program(): number[] {
@@ -106,25 +106,10 @@ describe('SLLI as a loop of one-bit shifts counted down by a loop counter', () =
 
   it('shifts by 0, 1, 5 and 31 in lock-step with the reference; each shift takes 5 + shamt steps', () => {
     const plan = planOf(shiftLoopDemo());
-    const words = assemble([
-      ins('addi', { rd: 1, rs1: 0, imm: -3 }), // 0xfffffffd
-      ins('slli', { rd: 2, rs1: 1, imm: 0 }),
-      ins('slli', { rd: 3, rs1: 1, imm: 1 }),
-      ins('slli', { rd: 4, rs1: 1, imm: 5 }),
-      ins('addi', { rd: 5, rs1: 0, imm: 1 }),
-      ins('slli', { rd: 6, rs1: 5, imm: 31 }),
-      ins('srli', { rd: 7, rs1: 6, imm: 28 }), // the other OP-IMM functions still take one step
-      ins('add', { rd: 10, rs1: 7, rs2: 0 }),
-      ...exitWords(),
-    ]);
-    const { run, ending } = runToEnd(plan, programOf(words), { reference: true });
+    const { run, ending } = runToEnd(plan, programOf(shiftProgram()), { reference: true });
     expect(ending).toEqual({ kind: 'exit', exitCode: 8, status: 8 });
-    const regs = [...run.sim.regs].map((v) => v >>> 0);
-    expect(regs[2]).toBe(0xfffffffd);
-    expect(regs[3]).toBe(0xfffffffa);
-    expect(regs[4]).toBe(0xffffffa0);
-    expect(regs[6]).toBe(0x80000000);
-    // OP-IMM: addi x3 (3 steps each), srli (3), and the slli: steps 0..3, shamt loop steps, the last step 4.
+    checkShifts(run.sim.regs);
+    // OP-IMM: four one-step instructions (3 steps each), and each slli: steps 0..3, shamt loop steps, the last step 4.
     const opImm = plan.machine.classes.findIndex((c) => c.name === 'OP-IMM');
     expect(run.sim.classInstructions[opImm]).toBe(8);
     expect(run.sim.classSteps[opImm]).toBe(3 * 4 + (5 + 0) + (5 + 1) + (5 + 5) + (5 + 31));

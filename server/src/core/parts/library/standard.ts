@@ -96,6 +96,15 @@ kind sequencer "microcode sequencer: the step counter; each step it counts, load
   holds step q
   on next always: q <= select op { count: q + 1, load: target, hold: q, clear: 0 } "at every closing edge: the next step"
 
+kind nextstep "next-address sequencer: each word names its next step and another target; a field picks which one the step goes to"
+  setting width number = 4 "bits of the step"
+  input next width field "the step this word goes to: a number field of the word"
+  input other width field "the other target: a number field of the word"
+  control pick: next other = next
+  state q width = 0
+  holds step q
+  on step always: q <= select pick { next: next, other: other } "at every closing edge: the target the pick field chooses"
+
 kind loopcount "loop counter: loads a count from a bus, counts down, says when it is zero"
   setting width number = 5 "bits"
   state q width = 0
