@@ -170,10 +170,10 @@ describe('kind declarations', () => {
 });
 
 describe('the standard library', () => {
-  it('reads clean and defines the twelve built-in kinds', () => {
+  it('reads clean and defines the thirteen built-in kinds', () => {
     const library = standardLibrary();
     expect(library.diagnostics).toEqual([]);
-    expect([...library.kinds.keys()].sort()).toEqual(['alu', 'compare', 'constant', 'counter', 'immediate', 'instruction', 'loopcount', 'memory', 'nextstep', 'regfile', 'register', 'sequencer']);
+    expect([...library.kinds.keys()].sort()).toEqual(['alu', 'compare', 'constant', 'counter', 'immediate', 'instruction', 'loopcount', 'memory', 'nextstep', 'presetcount', 'regfile', 'register', 'sequencer']);
     for (const kind of library.kinds.values()) {
       expect(kind.origin).toBe('library');
       expect(kind.description, kind.name).toBeTruthy();

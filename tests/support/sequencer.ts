@@ -180,3 +180,24 @@ export function checkShifts(regs: ArrayLike<number>): void {
   expect(values[4]).toBe(0xffffffa0);
   expect(values[6]).toBe(0x80000000);
 }
+
+/**
+ * The sequencer demo whose FENCE waits a fixed number of steps, counted by the library's
+ * `presetcount` preset from a number field of the word (no bus): step 2 presets the count
+ * `count`, step 3 holds while the counter is not zero, counting down, and ends at zero. FENCE
+ * then takes 2 + 1 + (count + 1) steps. The counter's zero flag is address line 13.
+ */
+export function fixedLoopDemo(count: number): string {
+  let text = sequencerDemo();
+  text = replaceOnce(text, 'part four constant', 'part w    presetcount 3 count=wcount -> wz "Counts a fixed wait down from the word\'s count."\npart four constant');
+  text = replaceOnce(
+    text,
+    'strobe sys.trap',
+    ['strobe w.set     count w.preset          active high "Wait counter takes the count in the word."', 'strobe w.dn      count w.down            active high "Wait counter counts down."', 'strobe sys.trap'].join('\n'),
+  );
+  text = replaceOnce(text, 'field next 3 "Where a jump goes."\n', 'field next 3 "Where a jump goes."\nfield wcount 3 "How many steps FENCE waits."\n');
+  text = replaceOnce(text, 'chip=28C64', 'chip=28C256');
+  text = replaceOnce(text, '   next 32..34\n', '   next 32..34   wcount 35..37   w.set 38   w.dn 39\n');
+  text = replaceOnce(text, 'address 13\n  step 0..2   taken 3   f7b5 4   funct3 5..7   opcode 8..12', 'address 14\n  step 0..2   taken 3   f7b5 4   funct3 5..7   opcode 8..12   wz 13');
+  return replaceOnce(text, '  2: pc.inc, seqop=clear\n', `  2: w.set, wcount=${count}\n  3 if !wz: w.dn, wait\n  3 else: pc.inc, end\n`);
+}

@@ -296,7 +296,7 @@ class Parser {
     const keyword = this.keywordSpan();
     const decl: A.PartDecl = { kind: 'part', keyword, span: keyword, args: [] };
     decl.name = this.expectName('a part name after `part`, e.g. `part pc counter 32`');
-    if (decl.name) decl.partKind = this.expectName('the kind of part (regfile, register, counter, instruction, immediate, alu, compare, memory, constant, sequencer, nextstep, loopcount)');
+    if (decl.name) decl.partKind = this.expectName('the kind of part (regfile, register, counter, instruction, immediate, alu, compare, memory, constant, sequencer, nextstep, loopcount, presetcount)');
     while (decl.partKind && !this.atEol() && !this.at(T.String)) {
       const tok = this.peek();
       if (tok.kind === T.Ident && this.peek(1).kind === T.Equals) {

@@ -112,4 +112,14 @@ kind loopcount "loop counter: loads a count from a bus, counts down, says when i
   on load width: q <= in "loads the count from the bus"
   on down: q <= q - 1 "counts down by one"
   flag zero = q == 0
+
+kind presetcount "loop counter for a fixed count: presets a count from a number field of the word (or loads one from a bus), counts down, says when it is zero"
+  setting width number = 5 "bits"
+  input count width field "the count a preset loads: a number field of the word"
+  state q width = 0
+  drive out width = q "the count it holds"
+  on load width: q <= in "loads the count from the bus"
+  on down: q <= q - 1 "counts down by one"
+  on preset: q <= count "loads the count the word's field gives"
+  flag zero = q == 0
 `;
