@@ -8,7 +8,10 @@
 // Where the address lines carry another store's field (formedAddress.ts), a word no step's
 // address ever reaches is marked `unreached` instead of being labelled with that step, and a
 // fill address a step does reach is listed on its own line saying which step lands there.
-import type { Machine } from '../model/types';
+// On a machine with a sequencer part each word's line ends with where the step goes next
+// (`-> 3`, `stays`, `-> 0 (ends)`), from the sequencer's definition and the codes in the word.
+import { nextStepOf } from '../model/sequencing';
+import type { Machine, StepAlt } from '../model/types';
 import { toBinary, toHex } from '../model/numbers';
 import { decodeWord, type EncodedMachine, type EncodedStore } from './encoder';
 import { formedAddresses } from './formedAddress';
@@ -120,6 +123,8 @@ export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: E
   push('# Check the images against your chips\' data sheets before programming them.');
   const reach = formedAddresses(machine, encoded, enc);
   if (reach) push('# The address lines carry another store\'s field: a word no step reaches through them is marked unreached, and a fill word a step does reach is named.');
+  const nextNote = nextStepNote(machine, enc);
+  if (nextNote) push(`# Last on a word's line: where the sequencer \`${machine.sequencer}\` goes next with that word's codes: -> N (step N), stays (the same step again), -> 0 (ends) (back to step 0: the instruction ends).`);
   push('#');
   push(`# ${'address'.padEnd(addressDigits + 2)}  ${'inputs'.padEnd(describeAddress(enc, 0).length)}  ${'class'.padEnd(10)} ${chipNames.map((n, i) => n.padEnd(Math.max(n.length, Math.ceil(word.chipWidths[i] / 4)))).join(' ')}  asserted`);
   let fillStart = -1;
@@ -156,6 +161,7 @@ export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: E
     if (tail === undefined) {
       const hex = chipHex(enc, address).map((h, i) => h.padEnd(Math.max(chipNames[i].length, h.length)));
       tail = `${(decoded?.cls?.name ?? '-').padEnd(10)} ${hex.join(' ')}  ${describeWord(machine, enc, address, new Set(decoded?.fieldCodes.keys() ?? []))}`;
+      if (nextNote && decoded?.alt) tail += `  ${nextNote(address, decoded.alt)}`;
       byWord.set(wordKey, tail);
     }
     const reached = !reach || reach.formed[address] === 1;
@@ -171,6 +177,31 @@ export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: E
 }
 
 type Decoded = ReturnType<EncodedMachine['decoder']['decodeShared']>;
+
+/**
+ * Where the step goes after the word at an address, as the listing writes it, on a store that
+ * holds every field the sequencer reads (its control fields and its `field` inputs); undefined
+ * on a machine without a sequencer, or on a store without those fields or without step lines.
+ * The codes are read back from the encoded word, so a field a decode map sets shows the code
+ * burned at that address.
+ */
+function nextStepNote(machine: Machine, enc: EncodedStore): ((address: number, alt: StepAlt) => string) | undefined {
+  const part = machine.sequencer ? machine.parts.get(machine.sequencer) : undefined;
+  const steps = enc.store.address!.sources.find((s) => s.input.kind === 'step');
+  if (!part || !steps) return undefined;
+  const read = [...part.controlFields.values(), ...[...part.inputs.values()].flatMap((i) => (i.from === 'field' ? [i.name] : []))];
+  const placed = new Set(enc.store.word!.placements.map((p) => p.signal));
+  if (read.length === 0 || !read.every((name) => placed.has(name))) return undefined;
+  return (address, alt) => {
+    // The step the address lines carry.
+    const step = Math.floor(address / 2 ** steps.lo) % 2 ** (steps.hi - steps.lo + 1);
+    const { fields } = decodeWord(machine, enc, address);
+    const actions = [...fields].map(([signal, code]) => ({ signal, value: { kind: 'code' as const, name: String(code), code }, span: alt.span }));
+    const next = nextStepOf(machine, { ...alt, actions }, step);
+    if (next === undefined) return '-> ? (the word does not fix it)';
+    return next === 0 ? '-> 0 (ends)' : next === step ? 'stays' : `-> ${next}`;
+  };
+}
 
 /** "step 0 of phase fetch in class OP-IMM", for notes. */
 function stepName(decoded: Decoded): string {
