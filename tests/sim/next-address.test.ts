@@ -10,6 +10,7 @@
 // every retired instruction is also compared with the reference interpreter (`reference: true`).
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
+import { classCycles } from '../../server/src/core/flow/cycleCounts';
 import { nextStepOf } from '../../server/src/core/model/sequencing';
 import { canCompile } from '../../server/src/core/sim/compile';
 import { assemble, exitWords, ins, planOf, programOf, runToEnd, toLabel } from './support';
@@ -89,6 +90,14 @@ describe('the demo as a next-address machine (library kind `nextstep`)', () => {
     expect(run.sim.classSteps[opImm] / run.sim.classInstructions[opImm]).toBe(3);
   });
 
+  it("the cycle counts follow the picks: every branch 5 steps either way, as the run measures", () => {
+    const machine = analyse(nextAddressDemo()).machine;
+    const branch = classCycles(machine, machine.classes.find((c) => c.name === 'BRANCH')!);
+    expect([branch.min, branch.max, branch.loops, branch.doesNotEnd]).toEqual([5, 5, false, false]);
+    const jalr = classCycles(machine, machine.classes.find((c) => c.name === 'JALR')!);
+    expect([jalr.min, jalr.max]).toEqual([5, 5]);
+  });
+
   it('picking the wrong target (taken goes to pc + 4) is seen by the lock-step run at the first taken branch', () => {
     const text = nextAddressDemo().replace('  3 if taken: pick=other, nx=5, alt=4', '  3 if taken: pick=next, nx=5, alt=4');
     expect(text).not.toContain('pick=other');
@@ -124,5 +133,10 @@ describe('SLLI as a loop on the next-address machine: the loop step names itself
     const opImm = classIndex(plan, 'OP-IMM');
     expect(run.sim.classInstructions[opImm]).toBe(8);
     expect(run.sim.classSteps[opImm]).toBe(4 * 3 + (5 + 0) + (5 + 1) + (5 + 5) + (5 + 31));
+    // The counts from the class's steps: SLLI 5 + n (n: repeats of the self-naming step 4), the others 3.
+    const cycles = classCycles(plan.machine, plan.machine.classes[opImm]);
+    const slli = cycles.instructions.find((i) => i.mnemonic === 'slli')!;
+    expect([slli.min, slli.loopSteps]).toEqual([5, [4]]);
+    expect(cycles.instructions.find((i) => i.mnemonic === 'addi')!.max).toBe(3);
   });
 });

@@ -8,6 +8,7 @@
 // 2.7), so the wait is invisible to the reference: only the step counts tell it.
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
+import { classCycles } from '../../server/src/core/flow/cycleCounts';
 import { assemble, exitWords, ins, planOf, programOf, runToEnd } from './support';
 import { fixedLoopDemo } from '../support/sequencer';
 
@@ -40,6 +41,12 @@ describe('a fixed-count loop on a counter preset from the word', () => {
       const opImm = plan.machine.classes.findIndex((c) => c.name === 'OP-IMM');
       expect(run.sim.classSteps[opImm] / run.sim.classInstructions[opImm]).toBe(3);
     }
+  });
+
+  it('the counts from the steps say 4 + n, n the repeats of the wait step (the count in the word is not read yet)', () => {
+    const machine = analyse(fixedLoopDemo(3)).machine;
+    const fence = classCycles(machine, machine.classes.find((c) => c.name === 'MISC-MEM')!);
+    expect(fence.instructions.map((i) => [i.mnemonic, i.min, i.loopSteps])).toEqual([['fence', 4, [3]]]);
   });
 
   it('a count that does not fit the field is a bad number at the number', () => {
