@@ -180,8 +180,8 @@ type Decoded = ReturnType<EncodedMachine['decoder']['decodeShared']>;
 
 /**
  * Where the step goes after the word at an address, as the listing writes it, on a store that
- * holds every field the sequencer reads (its control fields and its `field` inputs); undefined
- * on a machine without a sequencer, or on a store without those fields or without step lines.
+ * holds every field the sequencer reads (its control fields and its `field` inputs, if any);
+ * undefined on a machine without a sequencer, or on a store without those fields or step lines.
  * The codes are read back from the encoded word, so a field a decode map sets shows the code
  * burned at that address.
  */
@@ -191,7 +191,7 @@ function nextStepNote(machine: Machine, enc: EncodedStore): ((address: number, a
   if (!part || !steps) return undefined;
   const read = [...part.controlFields.values(), ...[...part.inputs.values()].flatMap((i) => (i.from === 'field' ? [i.name] : []))];
   const placed = new Set(enc.store.word!.placements.map((p) => p.signal));
-  if (read.length === 0 || !read.every((name) => placed.has(name))) return undefined;
+  if (!read.every((name) => placed.has(name))) return undefined;
   return (address, alt) => {
     // The step the address lines carry.
     const step = Math.floor(address / 2 ** steps.lo) % 2 ** (steps.hi - steps.lo + 1);
