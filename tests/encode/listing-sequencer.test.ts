@@ -52,7 +52,10 @@ describe('the listing of windlass-32 (a sequencer that counts, holds and clears)
 
   it('every word from the table names its next step; fill runs do not', () => {
     const words = lines.filter((l) => l.startsWith('  0x') && !/ fill[ :]/.test(l));
-    expect(words.length).toBe(2536);
+    // As many as the head says come from the table.
+    const head = /^# (\d+) words from the table/.exec(lines.find((l) => l.includes('words from the table'))!)!;
+    expect(words.length).toBe(Number(head[1]));
+    expect(words.length).toBeGreaterThan(2000);
     for (const line of words) expect(line, line).toMatch(/ {2}(-> \d+|-> 0 \(ends\)|stays)$/);
     for (const line of lines.filter((l) => / fill \(/.test(l))) expect(line).not.toMatch(/->|stays/);
   });
