@@ -4,6 +4,8 @@
 // class's opcode selects and their funct3/funct7 bits are the RISC-V Unprivileged ISA 20191213
 // listing (ch. 24), as isa/rv32i.ts holds it; the step counts are this project's own timing
 // model (docs/notation.md: the counter counts up, `end` returns it to 0).
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { classLenses } from '../../server/src/core/ide/codeLens';
@@ -121,5 +123,12 @@ describe('cycle counts along the steps', () => {
     `);
     expect(classes[0].instructions).toEqual([{ counts: [], doesNotEnd: [] }]);
     expect(cyclesSummary(classes[0])).toBe('does not end');
+  });
+
+  it('on a sequencer machine a loop with no way out counts as not ending, and the walk stays finite (examples/faults/micro-loop.pwt)', () => {
+    const text = readFileSync(join(__dirname, '../../examples/faults/micro-loop.pwt'), 'utf8');
+    const classes = cycleCountsOf(analyse(text).machine);
+    expect(classes.some((c) => c.doesNotEnd)).toBe(true);
+    for (const c of classes) expect(typeof cyclesSummary(c)).toBe('string');
   });
 });

@@ -188,21 +188,28 @@ function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: numb
   // Step 0 is never on a loop: going back to it is the end.
   const loopSteps = [...depth.keys()].filter((step) => step !== 0 && reaches(step, step) && endsFrom(step)).sort((a, b) => a - b);
   if (min === undefined) return { counts: [], doesNotEnd: [] };
-  // Without a loop the most is the longest path of the (acyclic) graph.
+  // A reached step from which no path returns to 0 (a micro-loop, the flow checks report it): some path does not end.
+  const stuck = [...depth.keys()].some((step) => !endsFrom(step));
+  // Without a loop that ends the most is the longest path to the end; a cycle that never ends
+  // (a step met again on the path) leads nowhere and counts for nothing.
   let max = min;
   if (!loopSteps.length) {
     const longest = new Map<number, number>();
+    const onPath = new Set<number>();
     const visit = (step: number): number => {
       if (longest.has(step)) return longest.get(step)!;
+      if (onPath.has(step)) return -Infinity;
+      onPath.add(step);
       let best = -Infinity;
       for (const to of stepsOf.get(step) ?? []) best = Math.max(best, to === 0 ? 1 : 1 + visit(to));
+      onPath.delete(step);
       longest.set(step, best);
       return best;
     };
-    max = visit(0);
+    max = Math.max(min, visit(0));
   }
   const counts: StepCount[] = loopSteps.length || max === min ? [{ steps: min, conditions: [] }] : [{ steps: min, conditions: [] }, { steps: max, conditions: [] }];
-  return { counts, min, max: loopSteps.length ? undefined : max, ...(loopSteps.length && { loopSteps }) };
+  return { counts, min, max: loopSteps.length ? undefined : max, ...(loopSteps.length && { loopSteps }), ...(stuck && { doesNotEnd: [] }) };
 }
 
 function addConditions(conditions: string[], added: string[]): string[] {
