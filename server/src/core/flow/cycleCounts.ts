@@ -19,7 +19,7 @@
 // checks' inputSpace.ts decides which alternatives hold), and what bounds a loop.
 import { altEnds, maxWalkInputs } from '../checks/reach';
 import { hasSequencer } from '../model/sequencing';
-import { stepGraph } from './stepGraph';
+import { type StepGraph, endingSteps, loopsOf, stepGraph } from './stepGraph';
 import { type Cube, bitsOf, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from '../checks/inputSpace';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 
@@ -146,24 +146,29 @@ export function instructionCycles(machine: Machine, cls: ClassDef, cube: Cube): 
  * then unbounded). A next step the word does not fix (a field from a decode map) is not counted.
  */
 function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: number[]): InstructionCycles {
-  const stepsOf = new Map<number, Set<number>>(); // step -> next steps (0: the end)
-  const unknownNext = new Set<number>();
+  // One graph over every combination of the free instruction bits (their edges together).
+  const merged: StepGraph = { reached: [], out: new Map(), unknown: new Set() };
   for (const irScenario of scenarios(cube, free, [])) {
     const graph = stepGraph(machine, cls, irScenario.ir);
-    for (const step of graph.unknown) unknownNext.add(step);
+    for (const step of graph.unknown) merged.unknown.add(step);
     for (const step of graph.reached) {
-      const next = stepsOf.get(step) ?? stepsOf.set(step, new Set()).get(step)!;
-      for (const edge of graph.out.get(step) ?? []) next.add(edge.to);
+      let edges = merged.out.get(step);
+      if (!edges) {
+        merged.reached.push(step);
+        merged.out.set(step, (edges = []));
+      }
+      for (const edge of graph.out.get(step) ?? []) if (!edges.some((e) => e.to === edge.to)) edges.push(edge);
     }
   }
-  if (unknownNext.size) return {};
+  if (merged.unknown.size) return {};
+  const nextOf = (step: number) => (merged.out.get(step) ?? []).map((e) => e.to);
   // Fewest steps to the end: a breadth-first walk, one step per edge, the end after a step whose next is 0.
   const depth = new Map<number, number>([[0, 1]]);
   const order = [0];
   let min: number | undefined;
   for (let i = 0; i < order.length; i++) {
     const step = order[i];
-    for (const to of stepsOf.get(step) ?? []) {
+    for (const to of nextOf(step)) {
       if (to === 0) min = min === undefined ? depth.get(step)! : Math.min(min, depth.get(step)!);
       else if (!depth.has(to)) {
         depth.set(to, depth.get(step)! + 1);
@@ -171,25 +176,15 @@ function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: numb
       }
     }
   }
-  // Steps on a cycle that can reach the end: a step that reaches itself and the end.
-  const reaches = (from: number, target: number): boolean => {
-    const seen = new Set<number>();
-    const stack = [...(stepsOf.get(from) ?? [])];
-    while (stack.length) {
-      const s = stack.pop()!;
-      if (s === target) return true;
-      if (s === 0 || seen.has(s)) continue;
-      seen.add(s);
-      stack.push(...(stepsOf.get(s) ?? []));
-    }
-    return false;
-  };
-  const endsFrom = (step: number) => [...(stepsOf.get(step) ?? [])].includes(0) || reaches(step, 0);
-  // Step 0 is never on a loop: going back to it is the end.
-  const loopSteps = [...depth.keys()].filter((step) => step !== 0 && reaches(step, step) && endsFrom(step)).sort((a, b) => a - b);
   if (min === undefined) return { counts: [], doesNotEnd: [] };
+  const ending = endingSteps(merged);
+  // The loops on the way to the end (a loop one of whose steps ends ends from all of them).
+  const loopSteps = loopsOf(merged)
+    .filter((loop) => loop.some((step) => ending.has(step)))
+    .flat()
+    .sort((a, b) => a - b);
   // A reached step from which no path returns to 0 (a micro-loop, the flow checks report it): some path does not end.
-  const stuck = [...depth.keys()].some((step) => !endsFrom(step));
+  const stuck = merged.reached.some((step) => !ending.has(step));
   // Without a loop that ends the most is the longest path to the end; a cycle that never ends
   // (a step met again on the path) leads nowhere and counts for nothing.
   let max = min;
@@ -201,7 +196,7 @@ function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: numb
       if (onPath.has(step)) return -Infinity;
       onPath.add(step);
       let best = -Infinity;
-      for (const to of stepsOf.get(step) ?? []) best = Math.max(best, to === 0 ? 1 : 1 + visit(to));
+      for (const to of nextOf(step)) best = Math.max(best, to === 0 ? 1 : 1 + visit(to));
       onPath.delete(step);
       longest.set(step, best);
       return best;
