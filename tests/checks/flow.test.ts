@@ -8,7 +8,7 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { analyse } from '../../server/src/core/analysis';
+import { codes, edit, found } from '../support/findings';
 import { sequencerDemo, shiftLoopDemo } from '../support/sequencer';
 
 const root = join(__dirname, '../..');
@@ -16,20 +16,6 @@ const read = (path: string) => readFileSync(join(root, path), 'utf8');
 const windlass = read('examples/windlass-32.pwt');
 const flowCodes = ['micro-loop', 'loop-exit-unchanged', 'jump-outside', 'step-unreachable', 'class-no-end'];
 
-/** Replaces `from` (occurring once) by `to`. */
-function edit(text: string, from: string, to: string): string {
-  expect(text.split(from).length - 1, `"${from}" occurs once`).toBe(1);
-  return text.replace(from, to);
-}
-
-/** The diagnostics of a code with the text of their range and of the line they stand on. */
-function found(text: string, code: string) {
-  const a = analyse(text);
-  return a.diagnostics
-    .filter((d) => d.code === code)
-    .map((d) => ({ range: a.text.slice(d.span.start, d.span.end), line: a.text.split('\n')[a.lines.position(d.span.start).line], message: d.message, related: d.related?.map((r) => a.text.slice(r.span.start, r.span.end)) }));
-}
-const codes = (text: string) => analyse(text).diagnostics.map((d) => d.code);
 
 describe('control-flow checks stay silent on correct sequencer machines', () => {
   it.each([

@@ -72,7 +72,7 @@ describe('completion contexts', () => {
   });
 
   it('part kinds after a new part name, settings after the kind', () => {
-    expect(labelsAt(base + 'part c $0')).toEqual(['regfile', 'register', 'counter', 'instruction', 'immediate', 'alu', 'compare', 'memory', 'constant', 'sequencer', 'nextstep', 'loopcount', 'presetcount']);
+    expect(labelsAt(base + 'part c $0')).toEqual(['regfile', 'register', 'counter', 'instruction', 'immediate', 'alu', 'compare', 'memory', 'constant', 'sequencer', 'callseq', 'nextstep', 'loopcount', 'presetcount']);
     expect(labelsAt(base + 'part pc counter 32 $0')).toEqual(['inc=', 'bit0=', 'reset=']);
     expect(labelsAt(base + 'part y regfile 32 x0=$0')).toEqual(['hardwired', 'stored', 'guarded']);
     // Parts holding a value (registers, the instruction register among them), then buses.

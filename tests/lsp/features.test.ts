@@ -167,7 +167,7 @@ describe('completion', () => {
   it('offers part kinds after a new part name and buses after `->` in a strobe', async () => {
     const uri = 'file:///features/complete3.pwt';
     const text = demo.replace('part four constant 32 value=4', 'part four constant 32 value=4\npart extra \nstrobe e.oe enable four -> ');
-    expect(await labels(uri, text, pos(text, 'part extra ', 11))).toEqual(['regfile', 'register', 'counter', 'instruction', 'immediate', 'alu', 'compare', 'memory', 'constant', 'sequencer', 'nextstep', 'loopcount', 'presetcount']);
+    expect(await labels(uri, text, pos(text, 'part extra ', 11))).toEqual(['regfile', 'register', 'counter', 'instruction', 'immediate', 'alu', 'compare', 'memory', 'constant', 'sequencer', 'callseq', 'nextstep', 'loopcount', 'presetcount']);
     expect(await labels(uri, text, pos(text, 'enable four -> ', 15))).toEqual(['left', 'right', 'result']);
   });
 });

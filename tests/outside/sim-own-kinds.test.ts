@@ -24,7 +24,7 @@ import { expectSameAsQemu, retiredMnemonics } from '../support/programRuns';
 const toolsPresent = haveTools(['riscv64-unknown-elf-gcc'], 'gcc-riscv64-unknown-elf') && haveTools([QEMU], 'qemu-user');
 
 /** Every example that declares kinds of its own, and variants with partial-width drives and loads. */
-const EXAMPLES = ['gantry-32.pwt', 'gantry-32-halves.pwt', 'gantry-32-connected.pwt', 'gantry-32-lanes.pwt', 'trestle-32.pwt', 'capstan-32.pwt', 'windlass-32.pwt'];
+const EXAMPLES = ['gantry-32.pwt', 'gantry-32-halves.pwt', 'gantry-32-connected.pwt', 'gantry-32-lanes.pwt', 'trestle-32.pwt', 'capstan-32.pwt', 'windlass-32.pwt', 'winch-32.pwt'];
 
 /** The text of an example, or of a variant written under tests/.tmp (its name ends in the variant). */
 function exampleText(example: string): string {

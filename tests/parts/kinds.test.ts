@@ -170,10 +170,10 @@ describe('kind declarations', () => {
 });
 
 describe('the standard library', () => {
-  it('reads clean and defines the thirteen built-in kinds', () => {
+  it('reads clean and defines the fourteen built-in kinds', () => {
     const library = standardLibrary();
     expect(library.diagnostics).toEqual([]);
-    expect([...library.kinds.keys()].sort()).toEqual(['alu', 'compare', 'constant', 'counter', 'immediate', 'instruction', 'loopcount', 'memory', 'nextstep', 'presetcount', 'regfile', 'register', 'sequencer']);
+    expect([...library.kinds.keys()].sort()).toEqual(['alu', 'callseq', 'compare', 'constant', 'counter', 'immediate', 'instruction', 'loopcount', 'memory', 'nextstep', 'presetcount', 'regfile', 'register', 'sequencer']);
     for (const kind of library.kinds.values()) {
       expect(kind.origin).toBe('library');
       expect(kind.description, kind.name).toBeTruthy();
@@ -220,6 +220,22 @@ describe('the standard library', () => {
     const inputs = (ir: number) => rd.inputs.map((n) => (n === 'ir' ? ir : n === 'in' ? 0xdeadbeef : 0));
     expect(rd.run(inputs(addi(3, 0)))).toEqual([0xdeadbeef, 1]);
     expect(rd.run(inputs(addi(0, 3)))).toEqual([0xdeadbeef, 0]);
+  });
+
+  it('compiles a port of a kind whose own names look like internal ones (states r0, r1)', () => {
+    // Found with a two-deep return stack: a kind's state `r0` clashed with the name compilePort
+    // gave its first result, and the sequencer's next step was silently lost.
+    const kinds = analyse(dedent(`
+      kind pair "two registers that swap"
+        setting width number = 4 "bits"
+        state r0 width = 1
+        state r1 width = 2
+        on swap always: r0 <= r1
+        on back always: r1 <= r0
+    `)).machine.kinds;
+    const pair = kinds.get('pair')!;
+    const port = compilePort(pair, settingOf(pair), pair.edges.flatMap((e) => e.assigns).map((a) => ({ text: a.expr, width: 4 })));
+    expect(port.run(port.inputs.map((n) => (n === 'r0' ? 1 : 2)))).toEqual([2, 1]);
   });
 
   it('the demo still checks clean with library kinds resolved for its parts', () => {

@@ -154,6 +154,24 @@ export const catalogue: CodeInfo[] = [
     explanation: 'On a machine with a sequencer part, some instruction reaches a set of steps from which no path returns the sequencer to step 0, whatever its flags do: the steps jump, hold or count among themselves for ever. The instruction never ends, the next one is never fetched and the processor hangs in those words. Give the loop a way out: an alternative, guarded by a flag the loop changes, that returns to 0 or goes to a step that does.',
   },
   {
+    code: 'call-without-return',
+    severity: 'error',
+    title: 'a routine is called but ends the instruction without returning',
+    explanation: 'On a machine whose sequencer has a return register, a step calls a routine (the sequencer keeps the step after the call to come back to), but some path through the routine returns the sequencer to step 0 before any return: the instruction ends inside the routine and the steps after the call never run, so whatever they were to do (write the result, step the pc) is lost. End the routine with `return`; a shared routine that is meant to end the instruction is entered with `goto`, not `call`.',
+  },
+  {
+    code: 'return-without-call',
+    severity: 'error',
+    title: 'a return with no step saved by a call',
+    explanation: 'On a machine whose sequencer has a return register, a step returns (its next step is read from the return register), but on the path that reaches it no call of the same instruction saved a step there, or the saved step was already returned to. The register still holds what an earlier instruction left, so the sequencer goes on at a step nobody chose and the instruction runs words of the table at random. Reach the returning step only through a call, or jump (`goto`) to the step meant.',
+  },
+  {
+    code: 'return-depth',
+    severity: 'error',
+    title: 'calls nest deeper than the return registers',
+    explanation: 'On a machine whose sequencer has return registers, a routine calls another while as many calls are open as the sequencer has return registers (`holds return r` is one; `holds return r0 r1` two). The new call overwrites the step an open call saved, so when the outer routine returns it goes back to the wrong step. Nest calls no deeper than the registers, or use a sequencer kind with more of them.',
+  },
+  {
     code: 'loop-exit-unchanged',
     severity: 'error',
     title: 'a loop exits only on flags the loop never changes',

@@ -49,7 +49,7 @@ export const guardCoverage: Check = {
             const reached = legal.filter(
               (spec) =>
                 intersects(instructionCube(spec), scenario.ir) &&
-                (!graphs || graphs.some((g) => g.mnemonic === spec.mnemonic && intersects(g.ir, scenario.ir) && g.graph.reached.includes(step))),
+                (!graphs || graphs.some((g) => g.mnemonic === spec.mnemonic && intersects(g.ir, scenario.ir) && g.graph.steps.includes(step))),
             );
             if (reached.length === 0) return;
             gapCount++;

@@ -11,7 +11,7 @@ import { guardInputs, scenarios } from './inputSpace';
 import { hasSequencer } from '../model/sequencing';
 import { flagFacts } from '../model/flagFacts';
 import { driverNamed } from '../model/busDrivers';
-import { type StepEdge, endingSteps, instructionGraphs, loopsOf, reachableFrom, stepsText } from '../flow/stepGraph';
+import { type StepEdge, endingSteps, instructionGraphs, loopsOf, reachableFrom, stepsOfNodes, stepsText } from '../flow/stepGraph';
 import type { Machine, StepAlt } from '../model/types';
 
 export const loopExit: Check = {
@@ -26,7 +26,8 @@ export const loopExit: Check = {
         for (const loop of loopsOf(graph)) {
           if (!ending.has(loop[0])) continue; // no way out at all: micro-loop
           const inLoop = new Set(loop);
-          const loopAlts = loop.flatMap((s) => cls.steps.get(s) ?? []);
+          const loopSteps = stepsOfNodes(graph, loop);
+          const loopAlts = loopSteps.flatMap((s) => cls.steps.get(s) ?? []);
           const fixed = guardInputs(loopAlts).flags.filter((flag) => !changedIn(machine, flag, loopAlts));
           if (!fixed.length) continue;
           const entries = loop.filter((s) => graph.reached.some((from) => !inLoop.has(from) && graph.out.get(from)!.some((e) => e.to === s)));
@@ -38,17 +39,17 @@ export const loopExit: Check = {
             for (const entry of entries) for (const s of [entry, ...reachableFrom(graph, entry, keep, inLoop)]) inside.add(s);
             const stuck = [...inside].filter((s) => !exits(s) && ![...reachableFrom(graph, s, keep, inLoop)].some(exits));
             if (!stuck.length) continue;
-            const key = `${loop.join()}|${fixed.join()}`;
+            const key = `${loopSteps.join()}|${fixed.join()}`;
             if (reported.has(key)) break;
             reported.add(key);
-            const first = cls.steps.get(loop.find((s) => cls.steps.has(s)) ?? -1)?.[0];
+            const first = cls.steps.get(loopSteps.find((s) => cls.steps.has(s)) ?? -1)?.[0];
             if (!first) break;
             const values = fixed.map((n) => `${n}=${held.get(n)}`).join(' ');
             const names = fixed.map((n) => `\`${n}\``).join(', ');
             ctx.report(
               'loop-exit-unchanged',
               first.phase ? first.phase.useSpan : first.numberSpan,
-              `${stepsText(loop)} of class ${cls.name} ${loop.length > 1 ? 'repeat' : 'repeats'} for ${name} until ${names} change${fixed.length > 1 ? '' : 's'}, but no step of the loop changes ${fixed.length > 1 ? 'them' : 'it'}: entered with ${values} the loop never ends; change the flag in the loop (clock or count its part, or drive the bus it reads) or exit on a flag the loop changes`,
+              `${stepsText(loopSteps)} of class ${cls.name} ${loopSteps.length > 1 ? 'repeat' : 'repeats'} for ${name} until ${names} change${fixed.length > 1 ? '' : 's'}, but no step of the loop changes ${fixed.length > 1 ? 'them' : 'it'}: entered with ${values} the loop never ends; change the flag in the loop (clock or count its part, or drive the bus it reads) or exit on a flag the loop changes`,
               loopAlts.map((alt) => ({ span: alt.span, message: `step ${alt.step} of the loop${alt.phase ? ` (phase ${alt.phase.name})` : ''}` })),
             );
             break;

@@ -5,7 +5,7 @@
 import { type Check } from './context';
 import { altEnds } from './reach';
 import { hasSequencer } from '../model/sequencing';
-import { endingSteps, instructionGraphs, loopsOf, stepsText } from '../flow/stepGraph';
+import { endingSteps, instructionGraphs, loopsOf, stepsOfNodes, stepsText } from '../flow/stepGraph';
 import type { RelatedInfo } from '../text/diagnostic';
 
 export const microLoop: Check = {
@@ -21,7 +21,7 @@ export const microLoop: Check = {
         const ending = endingSteps(graph);
         // The steps that can repeat among those it can never leave: the loop it ends up in (the
         // steps leading there cannot end either, but they run once).
-        const trapped = loopsOf(graph).filter((loop) => !ending.has(loop[0])).flat().sort((a, b) => a - b);
+        const trapped = stepsOfNodes(graph, loopsOf(graph).filter((loop) => !ending.has(loop[0])).flat());
         const key = trapped.join();
         if (!trapped.length || reported.has(key)) continue;
         reported.add(key);

@@ -136,7 +136,7 @@ export function reachedAlternatives(machine: Machine, cls: ClassDef, cube: Cube)
     // On a sequencer machine the steps the instruction's graph reaches (jumps, loops), unless a
     // next step is not known from a word: then the walk's bound.
     const graph = sequencer ? stepGraph(machine, cls, path.ir) : undefined;
-    const graphReached = graph && !graph.unknown.size ? new Set(graph.reached) : undefined;
+    const graphReached = graph && !graph.unknown.size ? new Set(graph.steps) : undefined;
     for (const [step, alts] of cls.steps) {
       if (graphReached ? !graphReached.has(step) : !reaches(path, step)) continue;
       const byAlt = new Map<StepAlt, Map<string, number>[]>();

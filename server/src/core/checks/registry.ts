@@ -10,6 +10,8 @@ import { microLoop } from './microLoop';
 import { loopExit } from './loopExit';
 import { jumpOutside } from './jumpOutside';
 import { stepUnreachable } from './stepUnreachable';
+import { callReturn } from './callReturn';
+import { returnDepth } from './returnDepth';
 import { classOpcode } from './classOpcode';
 import { clockConflict } from './clockConflict';
 import { fieldConflict } from './fieldConflict';
@@ -49,6 +51,8 @@ export const checks: Check[] = [
   loopExit,
   jumpOutside,
   stepUnreachable,
+  callReturn,
+  returnDepth,
   stepRange,
   guardCoverage,
   addressLoop,

@@ -5,7 +5,8 @@
 // steps only count on and step-gap / class-no-end cover the table. Steps placed by a phase are
 // left to the classes that need them.
 import { type Check } from './context';
-import { hasSequencer } from '../model/sequencing';
+import { hasSequencer, sequencerMove } from '../model/sequencing';
+import { callAlt } from './callReturn';
 import { instructionGraphs } from '../flow/stepGraph';
 
 export const stepUnreachable: Check = {
@@ -16,7 +17,17 @@ export const stepUnreachable: Check = {
     for (const cls of machine.classes) {
       const graphs = instructionGraphs(machine, cls);
       if (!graphs) continue;
-      const reached = new Set(graphs.flatMap((g) => g.graph.reached));
+      const reached = new Set(graphs.flatMap((g) => g.graph.steps));
+      // The step a call saves is reached when its routine returns: where a call never comes
+      // back (call-without-return, return-depth say so), that step is not reported again.
+      for (const { graph } of graphs) {
+        for (const p of graph.callProblems) {
+          if (p.kind === 'return-without-call') continue;
+          const call = callAlt(machine, cls, p.call!);
+          const saved = call ? sequencerMove(machine, call, p.call!)?.context.values[0] : undefined;
+          if (saved !== undefined) reached.add(saved);
+        }
+      }
       for (const [step, alts] of cls.steps) {
         if (reached.has(step)) continue;
         for (const alt of alts) {

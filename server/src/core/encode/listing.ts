@@ -10,7 +10,7 @@
 // fill address a step does reach is listed on its own line saying which step lands there.
 // On a machine with a sequencer part each word's line ends with where the step goes next
 // (`-> 3`, `stays`, `-> 0 (ends)`), from the sequencer's definition and the codes in the word.
-import { nextStepOf } from '../model/sequencing';
+import { returnRegisters, sequencerMove } from '../model/sequencing';
 import type { Machine, StepAlt } from '../model/types';
 import { toBinary, toHex } from '../model/numbers';
 import { decodeWord, type EncodedMachine, type EncodedStore } from './encoder';
@@ -124,7 +124,7 @@ export function* listingChunks(machine: Machine, encoded: EncodedMachine, enc: E
   const reach = formedAddresses(machine, encoded, enc);
   if (reach) push('# The address lines carry another store\'s field: a word no step reaches through them is marked unreached, and a fill word a step does reach is named.');
   const nextNote = nextStepNote(machine, enc);
-  if (nextNote) push(`# Last on a word's line: where the sequencer \`${machine.sequencer}\` goes next with that word's codes: -> N (step N), stays (the same step again), -> 0 (ends) (back to step 0: the instruction ends).`);
+  if (nextNote) push(`# Last on a word's line: where the sequencer \`${machine.sequencer}\` goes next with that word's codes: -> N (step N), stays (the same step again), -> 0 (ends) (back to step 0: the instruction ends)${returnRegisters(machine).length ? ', -> N (call, back to M) (a call: the return register keeps step M), -> return (to the step the last open call kept)' : ''}.`);
   push('#');
   push(`# ${'address'.padEnd(addressDigits + 2)}  ${'inputs'.padEnd(describeAddress(enc, 0).length)}  ${'class'.padEnd(10)} ${chipNames.map((n, i) => n.padEnd(Math.max(n.length, Math.ceil(word.chipWidths[i] / 4)))).join(' ')}  asserted`);
   let fillStart = -1;
@@ -197,8 +197,11 @@ function nextStepNote(machine: Machine, enc: EncodedStore): ((address: number, a
     const step = Math.floor(address / 2 ** steps.lo) % 2 ** (steps.hi - steps.lo + 1);
     const { fields } = decodeWord(machine, enc, address);
     const actions = [...fields].map(([signal, code]) => ({ signal, value: { kind: 'code' as const, name: String(code), code }, span: alt.span }));
-    const next = nextStepOf(machine, { ...alt, actions }, step);
+    const move = sequencerMove(machine, { ...alt, actions }, step);
+    if (move?.returnOf !== undefined) return '-> return';
+    const next = move?.to;
     if (next === undefined) return '-> ? (the word does not fix it)';
+    if (move?.calls) return `-> ${next} (call, back to ${move.context.values.find((v) => v !== undefined) ?? '?'})`;
     return next === 0 ? '-> 0 (ends)' : next === step ? 'stays' : `-> ${next}`;
   };
 }

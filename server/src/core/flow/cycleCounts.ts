@@ -19,7 +19,7 @@
 // checks' inputSpace.ts decides which alternatives hold), and what bounds a loop.
 import { altEnds, maxWalkInputs } from '../checks/reach';
 import { hasSequencer } from '../model/sequencing';
-import { type StepGraph, endingSteps, loopsOf, stepGraph } from './stepGraph';
+import { endingSteps, loopsOf, mergeGraphs, stepGraph, stepsOfNodes } from './stepGraph';
 import { type Cube, bitsOf, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from '../checks/inputSpace';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 
@@ -147,19 +147,7 @@ export function instructionCycles(machine: Machine, cls: ClassDef, cube: Cube): 
  */
 function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: number[]): InstructionCycles {
   // One graph over every combination of the free instruction bits (their edges together).
-  const merged: StepGraph = { reached: [], out: new Map(), unknown: new Set() };
-  for (const irScenario of scenarios(cube, free, [])) {
-    const graph = stepGraph(machine, cls, irScenario.ir);
-    for (const step of graph.unknown) merged.unknown.add(step);
-    for (const step of graph.reached) {
-      let edges = merged.out.get(step);
-      if (!edges) {
-        merged.reached.push(step);
-        merged.out.set(step, (edges = []));
-      }
-      for (const edge of graph.out.get(step) ?? []) if (!edges.some((e) => e.to === edge.to)) edges.push(edge);
-    }
-  }
+  const merged = mergeGraphs([...scenarios(cube, free, [])].map((irScenario) => stepGraph(machine, cls, irScenario.ir)));
   if (merged.unknown.size) return {};
   const nextOf = (step: number) => (merged.out.get(step) ?? []).map((e) => e.to);
   // Fewest steps to the end: a breadth-first walk, one step per edge, the end after a step whose next is 0.
@@ -179,10 +167,12 @@ function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: numb
   if (min === undefined) return { counts: [], doesNotEnd: [] };
   const ending = endingSteps(merged);
   // The loops on the way to the end (a loop one of whose steps ends ends from all of them).
-  const loopSteps = loopsOf(merged)
-    .filter((loop) => loop.some((step) => ending.has(step)))
-    .flat()
-    .sort((a, b) => a - b);
+  const loopSteps = stepsOfNodes(
+    merged,
+    loopsOf(merged)
+      .filter((loop) => loop.some((node) => ending.has(node)))
+      .flat(),
+  );
   // A reached step from which no path returns to 0 (a micro-loop, the flow checks report it): some path does not end.
   const stuck = merged.reached.some((step) => !ending.has(step));
   // Without a loop that ends the most is the longest path to the end; a cycle that never ends

@@ -4,17 +4,25 @@
 // step 0 is the end of the instruction and is not followed. The instruction's bits are fixed;
 // a flag is unknown at every step (it may change at any closing edge), so every alternative some
 // flag value selects is an edge. The cycle counts (cycleCounts.ts) and the control-flow checks
-// (checks/microLoop.ts, loopExit.ts, stepUnreachable.ts) share it, and on a sequencer machine
-// the walk of what an instruction reaches (checks/reach.ts) and guard coverage follow it.
+// (checks/microLoop.ts, loopExit.ts, stepUnreachable.ts, callReturn.ts, returnDepth.ts) share
+// it, and on a sequencer machine the walk of what an instruction reaches (checks/reach.ts) and
+// guard coverage follow it.
+//
+// A node of the graph is the sequencer's state: the step and, on a sequencer with return
+// registers, what they hold and which calls are open (model/sequencing.ts ReturnContext). A
+// routine called from two places is then two paths that return each to its own caller, never
+// a loop between them. Without return registers (or before any call) a node's number is its
+// step; other nodes get numbers from `firstContextNode` on, and `stepOf` says their step.
 //
 // Deliberately not here: what a loop's steps do to its flags (checks/loopExit.ts decides), and
 // machines without a sequencer (their steps only count on: checks/reach.ts walks them).
 import { type Cube, bitsOf, describeScenario, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, maxWalkInputs, scenarios } from '../checks/inputSpace';
-import { nextStepOf } from '../model/sequencing';
+import { type ReturnContext, contextKey, sequencerMove, startContext } from '../model/sequencing';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 
 /** One way out of a step: the alternative (undefined: the fill word), where it goes, and under which flag values. */
 export interface StepEdge {
+  /** The node it leaves and the node it goes to (0: the end of the instruction). */
   from: number;
   to: number;
   alt?: StepAlt;
@@ -22,13 +30,70 @@ export interface StepEdge {
   flags: Map<string, number>[];
 }
 
+/** A call or return that goes wrong on some path (checks/callReturn.ts, returnDepth.ts report them). */
+export interface CallProblem {
+  /**
+   * `no-return`: the instruction ends while the call at `call` is still open; `return-without-call`:
+   * a return reads a register no call of this instruction set (or one already returned to);
+   * `depth`: a call overwrote the step saved by the open call at `call` (more nested calls than registers).
+   */
+  kind: 'no-return' | 'return-without-call' | 'depth';
+  /** The step whose word does it (the end, the return, the nested call). */
+  step: number;
+  alt?: StepAlt;
+  /** The call it concerns (for `no-return` and `depth`). */
+  call?: number;
+}
+
 export interface StepGraph {
-  /** The steps reached from step 0, in breadth-first order (step 0 first). */
+  /** The nodes reached from step 0, in breadth-first order (node 0, step 0, first). */
   reached: number[];
-  /** The edges out of each reached step. */
+  /** The distinct steps of the reached nodes, in the same order. */
+  steps: number[];
+  /** The edges out of each reached node. */
   out: Map<number, StepEdge[]>;
-  /** Reached steps whose next step the word does not fix (a field from a decode map): the graph is incomplete. */
+  /** Reached nodes whose next step the word does not fix (a field from a decode map): the graph is incomplete. */
   unknown: Set<number>;
+  /** Calls and returns that go wrong (none on a sequencer without return registers). */
+  callProblems: CallProblem[];
+  /** The step of a node. */
+  stepOf: (node: number) => number;
+}
+
+/** Node numbers from here on stand for a step with return registers that hold something. */
+export const firstContextNode = 2 ** 24;
+
+interface NodeTable {
+  ids: Map<string, number>;
+  steps: number[];
+  contexts: ReturnContext[];
+}
+
+const nodeTables = new WeakMap<Machine, NodeTable>();
+
+/** The node of a step with return registers `context`, numbered once per model so that graphs of one class can be merged. */
+function nodeOf(machine: Machine, step: number, context: ReturnContext): number {
+  const key = contextKey(context);
+  if (key === '') return step;
+  let table = nodeTables.get(machine);
+  if (!table) nodeTables.set(machine, (table = { ids: new Map(), steps: [], contexts: [] }));
+  const full = `${step}|${key}`;
+  let id = table.ids.get(full);
+  if (id === undefined) {
+    id = firstContextNode + table.steps.length;
+    table.ids.set(full, id);
+    table.steps.push(step);
+    table.contexts.push(context);
+  }
+  return id;
+}
+
+function stepOfNode(machine: Machine, node: number): number {
+  return node < firstContextNode ? node : nodeTables.get(machine)!.steps[node - firstContextNode];
+}
+
+function contextOfNode(machine: Machine, node: number): ReturnContext {
+  return node < firstContextNode ? startContext(machine) : nodeTables.get(machine)!.contexts[node - firstContextNode];
 }
 
 const cache = new WeakMap<ClassDef, Map<string, StepGraph>>();
@@ -48,23 +113,42 @@ function buildGraph(machine: Machine, cls: ClassDef, ir: Cube): StepGraph {
   const seen = new Set<number>([0]);
   const out = new Map<number, StepEdge[]>();
   const unknown = new Set<number>();
+  const callProblems: CallProblem[] = [];
+  const problemKeys = new Set<string>();
+  const problem = (p: CallProblem) => {
+    const key = `${p.kind}:${p.step}:${p.call}:${p.alt?.span.start}`;
+    if (problemKeys.has(key)) return;
+    problemKeys.add(key);
+    callProblems.push(p);
+  };
   for (let i = 0; i < reached.length; i++) {
-    const step = reached[i];
+    const node = reached[i];
+    const step = stepOfNode(machine, node);
+    const context = contextOfNode(machine, node);
     const alts = cls.steps.get(step) ?? [];
     const { flags } = guardInputs(alts);
     const edges: StepEdge[] = [];
-    out.set(step, edges);
+    out.set(node, edges);
     for (const scenario of scenarios(ir, [], flags)) {
       const matching = matchingAlternatives(alts, scenario);
       for (const alt of matching.length ? matching : [undefined]) {
-        const to = nextStepOf(machine, alt, step);
-        if (to === undefined) {
-          unknown.add(step);
+        const move = sequencerMove(machine, alt, step, context);
+        for (const call of move?.lost ?? []) problem({ kind: 'depth', step, alt, call });
+        if (move?.returnOf === null) {
+          // A return to a step no call of this instruction saved: not followed. After a call
+          // overwrote an open one (reported as such) it is a consequence, not a second problem.
+          if (!context.overflowed) problem({ kind: 'return-without-call', step, alt });
           continue;
         }
+        if (move?.to === undefined) {
+          unknown.add(node);
+          continue;
+        }
+        if (move.to === 0) for (const call of new Set(move.context.calls)) if (call !== undefined) problem({ kind: 'no-return', step, alt, call });
+        const to = move.to === 0 ? 0 : nodeOf(machine, move.to, move.context);
         const edge = edges.find((e) => e.alt === alt && e.to === to);
         if (edge) edge.flags.push(scenario.flags);
-        else edges.push({ from: step, to, alt, flags: [scenario.flags] });
+        else edges.push({ from: node, to, alt, flags: [scenario.flags] });
         if (to !== 0 && !seen.has(to)) {
           seen.add(to);
           reached.push(to);
@@ -72,10 +156,39 @@ function buildGraph(machine: Machine, cls: ClassDef, ir: Cube): StepGraph {
       }
     }
   }
-  return { reached, out, unknown };
+  const stepOf = (node: number) => stepOfNode(machine, node);
+  return { reached, steps: [...new Set(reached.map(stepOf))], out, unknown, callProblems, stepOf };
 }
 
-/** The steps of `within` (default: every reached step) reachable from `from` along edges that `keep` lets through, not through step 0. */
+/**
+ * One graph over several (the instruction's graphs for every combination of its free bits):
+ * their nodes and edges together. Node numbers are shared within a model, so the same node in
+ * two graphs is the same sequencer state.
+ */
+export function mergeGraphs(graphs: readonly StepGraph[]): StepGraph {
+  const merged: StepGraph = { reached: [], steps: [], out: new Map(), unknown: new Set(), callProblems: [], stepOf: graphs[0]?.stepOf ?? ((n) => n) };
+  for (const graph of graphs) {
+    for (const node of graph.unknown) merged.unknown.add(node);
+    merged.callProblems.push(...graph.callProblems);
+    for (const node of graph.reached) {
+      let edges = merged.out.get(node);
+      if (!edges) {
+        merged.reached.push(node);
+        merged.out.set(node, (edges = []));
+      }
+      for (const edge of graph.out.get(node) ?? []) if (!edges.some((e) => e.to === edge.to)) edges.push(edge);
+    }
+  }
+  merged.steps = [...new Set(merged.reached.map(merged.stepOf))];
+  return merged;
+}
+
+/** The distinct steps of some nodes, sorted. */
+export function stepsOfNodes(graph: StepGraph, nodes: Iterable<number>): number[] {
+  return [...new Set([...nodes].map(graph.stepOf))].sort((a, b) => a - b);
+}
+
+/** The nodes of `within` (default: every reached node) reachable from `from` along edges that `keep` lets through, not through step 0. */
 export function reachableFrom(graph: StepGraph, from: number, keep: (edge: StepEdge) => boolean = () => true, within?: ReadonlySet<number>): Set<number> {
   const found = new Set<number>();
   const stack = [from];
@@ -90,7 +203,7 @@ export function reachableFrom(graph: StepGraph, from: number, keep: (edge: StepE
   return found;
 }
 
-/** The reached steps from which some path returns to step 0 (ends the instruction). */
+/** The reached nodes from which some path returns to step 0 (ends the instruction). */
 export function endingSteps(graph: StepGraph): Set<number> {
   const ending = new Set<number>();
   let changed = true;
@@ -108,8 +221,8 @@ export function endingSteps(graph: StepGraph): Set<number> {
 }
 
 /**
- * The loops of the graph: its strongly connected sets of reached steps that can repeat (more
- * than one step, or one with an edge to itself), each sorted. Step 0 is never on one: going
+ * The loops of the graph: its strongly connected sets of reached nodes that can repeat (more
+ * than one node, or one with an edge to itself), each sorted. Step 0 is never on one: going
  * back to it is the end.
  */
 export function loopsOf(graph: StepGraph): number[][] {
@@ -143,9 +256,10 @@ export interface InstructionGraph {
 /**
  * The graphs of every RV32I instruction of a class (of its opcode when none is RV32I), one per
  * combination of the instruction bits its guards test. Undefined when they test more inputs
- * than a walk enumerates (reach.ts's bound), or when a next step is not known from a word.
+ * than a walk enumerates (reach.ts's bound), or (unless `incomplete`) when a next step is not
+ * known from a word.
  */
-export function instructionGraphs(machine: Machine, cls: ClassDef): InstructionGraph[] | undefined {
+export function instructionGraphs(machine: Machine, cls: ClassDef, incomplete = false): InstructionGraph[] | undefined {
   const { irMask, flags } = guardInputs([...cls.steps.values()].flat());
   const specs = instructionsOfClass(cls);
   const cubes = specs.length
@@ -158,7 +272,7 @@ export function instructionGraphs(machine: Machine, cls: ClassDef): InstructionG
     if (free.length + flags.length > maxWalkInputs) return undefined;
     for (const irScenario of scenarios(cube, free, [])) {
       const graph = stepGraph(machine, cls, irScenario.ir);
-      if (graph.unknown.size) return undefined;
+      if (graph.unknown.size && !incomplete) return undefined;
       const detail = describeScenario(irScenario, freeMask, []);
       result.push({ name: detail ? `${name} (${detail})` : name, mnemonic, ir: irScenario.ir, graph });
     }

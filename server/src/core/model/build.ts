@@ -486,6 +486,12 @@ function finishSequencer(ctx: BuildContext, tree: A.FileNode): void {
       if (field.width !== width) ctx.report('wrong-wiring', source.span, `input \`${input.name}\` of \`${part.name}\` is ${width} bit(s) wide, but the field \`${field.name}\` is ${field.width}; make them equal`, [{ span: field.symbol.span, message: `field \`${field.name}\`` }]);
     }
   }
+  for (const part of ctx.machine.parts.values()) {
+    const ret = part.def.holds.find((h) => h.role === 'return');
+    if (ret && !part.def.holds.some((h) => h.role === 'step')) {
+      ctx.report('wrong-wiring', part.symbol.span, `${partPhrase(part)} holds return registers but not the step: a return register belongs to the sequencer (the part whose kind \`holds step\`), which calls and returns`);
+    }
+  }
   const holders = [...ctx.machine.parts.values()].filter((p) => p.def.holds.some((h) => h.role === 'step'));
   if (holders.length === 0) return;
   const seq = holders[0];
@@ -499,6 +505,12 @@ function finishSequencer(ctx: BuildContext, tree: A.FileNode): void {
   const stepBits = ctx.machine.stepBits;
   if (stepBits !== undefined && width !== stepBits) {
     ctx.report('wrong-wiring', seq.symbol.span, `${partPhrase(seq)} holds the step in ${width} bit(s), but the address lines read ${stepBits} step bit(s) (\`step 0..${stepBits - 1}\`); make them equal`);
+  }
+  // A return register holds a step number: as wide as the step.
+  for (const name of seq.def.holds.find((h) => h.role === 'return')?.stack ?? []) {
+    const ret = seq.def.states.find((st) => st.name === name);
+    const retWidth = ret ? sizeIn(seq, ret.width) : width;
+    if (retWidth !== width) ctx.report('wrong-wiring', seq.symbol.span, `${partPhrase(seq)} holds the step in ${width} bit(s) but its return register \`${name}\` in ${retWidth}: a return register holds a step, so make them equal`);
   }
   // `end` returns the implicit counter to 0; with a sequencer the table does it.
   const opField = seq.controlFields.size > 0 ? [...seq.controlFields.entries()][0] : undefined;

@@ -183,23 +183,28 @@ function buildGuard(ctx: BuildContext, guard: A.GuardNode): M.GuardLiteral[] {
   return literals;
 }
 
+/** The step sugar's words and the sequencer op value each stands for. */
+const SEQUENCER_SUGAR: Record<string, string> = { goto: 'load', wait: 'hold', end: 'clear', call: 'call', return: 'return' };
+
 /**
  * The step sugar of a machine with a sequencer part (`holds step`): `goto N` sets the
  * sequencer's op field to `load` and its target field (the `field` input's) to N; `wait` sets
- * the op to `hold`; `end` sets it to `clear`. The fields are the ones wired to the part holding
+ * the op to `hold`; `end` sets it to `clear`; `call N` sets it to `call` and the target to N;
+ * `return` sets it to `return`. The fields are the ones wired to the part holding
  * the step: the field driving its control that has those values, and the field its `field`
  * input reads. Returns undefined when the action is not sugar here (a declared strobe or
  * field of that name, or a machine without a sequencer): then it is an ordinary action.
  */
 function sequencerAction(ctx: BuildContext, action: A.ActionNode): M.Action[] | null | undefined {
   const word = action.target.name.text;
-  const sugar = word === 'goto' ? 'load' : word === 'wait' ? 'hold' : word === 'end' ? 'clear' : undefined;
+  const sugar = Object.hasOwn(SEQUENCER_SUGAR, word) ? SEQUENCER_SUGAR[word] : undefined;
   if (!sugar || action.target.index || action.equals) return undefined;
+  const jumps = word === 'goto' || word === 'call';
   if (ctx.lookup('signal', word)) return undefined;
   const seq = ctx.machine.sequencer ? ctx.machine.parts.get(ctx.machine.sequencer) : undefined;
   if (!seq) {
-    if (word === 'goto') {
-      ctx.report('wrong-wiring', action.span, '`goto` jumps the sequencer, and this machine has none (a part whose kind `holds step`, e.g. `part seq sequencer 4 target=next`)');
+    if (jumps || word === 'return') {
+      ctx.report('wrong-wiring', action.span, `\`${word}\` ${word === 'goto' ? 'jumps' : word === 'call' ? 'calls a routine with' : 'returns with'} the sequencer, and this machine has none (a part whose kind \`holds step\`, e.g. \`part seq ${word === 'goto' ? 'sequencer' : 'callseq'} 4 target=next\`)`);
       return null;
     }
     return undefined;
@@ -213,12 +218,12 @@ function sequencerAction(ctx: BuildContext, action: A.ActionNode): M.Action[] | 
     return null;
   }
   const actions: M.Action[] = [{ signal: op.name, value: { kind: 'code', name: sugar, code }, span: action.span }];
-  if (word === 'goto') {
+  if (jumps) {
     const input = seq.def.inputs.find((i) => i.wiring === 'field');
     const source = input ? seq.inputs.get(input.name) : undefined;
     const target = source?.from === 'field' ? ctx.machine.signals.get(source.name) : undefined;
     if (target?.type !== 'field' || !target.numeric) {
-      ctx.report('wrong-wiring', action.target.span, `\`goto\` needs the sequencer \`${seq.name}\`'s target: a number field wired to its \`field\` input`);
+      ctx.report('wrong-wiring', action.target.span, `\`${word}\` needs the sequencer \`${seq.name}\`'s target: a number field wired to its \`field\` input`);
       return null;
     }
     const number = numberAction(ctx, target, { ...action, equals: action.span });

@@ -201,7 +201,8 @@ export function compilePort(
   param?: PortNumber,
 ): CompiledPort {
   const { scope, exprs: placed } = portExpressions(def, setting, texts, edgeWidth, param);
-  const exprs = placed.map((e, k) => ({ name: `r${k}`, ...e }));
+  // The results' names must not be names of the kind (a state `r0` is one): no notation name has a NUL.
+  const exprs = placed.map((e, k) => ({ name: `\u0000result${k}`, ...e }));
   const inputs = [...new Set(exprs.flatMap((e) => namesUsed(e.expr)))].filter((name) => scope.get(name)?.elements === undefined);
   const run = compileExpressions(exprs, inputs, (name) => scope.get(name)!.width, { ...arrays, values: (name) => scope.get(name)?.values, elements: (name) => scope.get(name)?.elements });
   return { inputs, run };

@@ -55,15 +55,22 @@ export interface KindControl {
 
 /**
  * Roles a kind's state may hold (`holds ROLE STATE`): the RV32I architectural state the
- * simulator loads and compares, and `step`, the step counter the address layout's `step` lines
- * read (a sequencer part; without one the machine has today's implicit counter).
+ * simulator loads and compares, `step`, the step counter the address layout's `step` lines
+ * read (a sequencer part; without one the machine has today's implicit counter), and `return`,
+ * a sequencer's return registers (one state, or a stack of them, top first), which the control-flow
+ * walk follows through calls and returns (model/sequencing.ts).
  */
-export const HOLDS_ROLES = ['registers', 'instruction', 'pc', 'step'] as const;
+export const HOLDS_ROLES = ['registers', 'instruction', 'pc', 'step', 'return'] as const;
 export type HoldsRole = (typeof HOLDS_ROLES)[number];
 
 export interface KindHolds {
   role: HoldsRole;
   state: string;
+  /**
+   * For `return` (a sequencer's return registers, `holds return r0 r1`): every state of the
+   * stack, the top first; its length is how deep calls may nest. `state` is the first.
+   */
+  stack?: string[];
   span: Span;
 }
 
@@ -271,6 +278,22 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
           error(item.state.span, `\`${item.state.text}\` is not state of kind \`${def.name}\` declared above (\`state NAME WIDTH\`)`);
           break;
         }
+        if (item.more?.length && role !== 'return') {
+          error(item.more[0].span, `the ${role} is one state; only \`holds return\` lists several (a stack of return registers, the top first)`);
+          break;
+        }
+        const stack = [state.name];
+        let stackOk = true;
+        for (const name of item.more ?? []) {
+          const more = def.states.find((s) => s.name === name.text);
+          if (!more || more.count !== undefined || stack.includes(more.name)) {
+            error(name.span, !more ? `\`${name.text}\` is not state of kind \`${def.name}\` declared above (\`state NAME WIDTH\`)` : stack.includes(more.name) ? `\`${name.text}\` is listed twice` : `a return register is one register, not an array: \`${more.name}\` must be declared without \`x COUNT\``);
+            stackOk = false;
+            break;
+          }
+          stack.push(more.name);
+        }
+        if (!stackOk) break;
         const array = role === 'registers';
         if (array !== (state.count !== undefined && state.count !== 'memory')) {
           error(item.state.span, array ? `the registers x0..x31 are an array of 32: declare \`state ${state.name} 32 x 32\`` : `the ${role} is one register, not an array: \`${state.name}\` must be declared without \`x COUNT\``);
@@ -280,7 +303,7 @@ export function buildKind(decl: A.KindDecl, origin: KindDef['origin'], report: (
           error(item.state.span, `the registers x0..x31 are 32; \`${state.name}\` holds ${state.count.value}`);
           break;
         }
-        def.holds.push({ role, state: state.name, span: item.name.span });
+        def.holds.push({ role, state: state.name, ...(role === 'return' && { stack }), span: item.name.span });
         break;
       }
       case 'state': {

@@ -158,7 +158,7 @@ export class CustomParts {
       // The part's value (what traces show, what a part wired to it reads, the program counter and
       // instruction register the simulator reads): the state holding the pc or the instruction,
       // else the first single register.
-      const valueState = part.def.holds.find((h) => h.role !== 'registers')?.state ?? part.def.states.find((st) => !st.count)?.name;
+      const valueState = part.def.holds.find((h) => h.role !== 'registers' && h.role !== 'return')?.state ?? part.def.states.find((st) => !st.count)?.name;
       for (const state of part.def.states) {
         rt.widths.set(state.name, sizeOf(state.width, part.settings));
         if (state.count === 'memory') {

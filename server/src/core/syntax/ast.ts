@@ -283,6 +283,8 @@ export interface KindControlLine extends KindLineBase {
 export interface KindHoldsLine extends KindLineBase {
   item: 'holds';
   state?: Name;
+  /** Further states after the first (`holds return r0 r1`: a stack of return registers, top first). */
+  more?: Name[];
 }
 
 /** `state NAME WIDTH [x COUNT] [= RESET]`. */

@@ -724,6 +724,8 @@ class Parser {
       case 'holds': {
         const line: A.KindHoldsLine = { item: 'holds', keyword, name, span: keyword };
         if (name) line.state = this.expectName('the state that holds it, e.g. `holds registers r`');
+        // `holds return r0 r1`: several states, the top of the stack first (kinds.ts says which roles may).
+        while (line.state && this.at(T.Ident)) (line.more ??= []).push(this.name(this.next()));
         return done(line);
       }
       case 'control': {
@@ -999,8 +1001,8 @@ class Parser {
     }
     const target = this.parseRef('a strobe name')!;
     const action: A.ActionNode = { target, span: target.span };
-    // `goto N`: a jump of the sequencer (model/buildSteps.ts expands it).
-    if (target.name.text === 'goto' && !target.index && (this.at(T.Number) || this.at(T.Pattern))) {
+    // `goto N`, `call N`: a jump or a call of the sequencer (model/buildSteps.ts expands them).
+    if ((target.name.text === 'goto' || target.name.text === 'call') && !target.index && (this.at(T.Number) || this.at(T.Pattern))) {
       action.number = this.literal(this.next());
       action.span = mkSpan(target.span.start, this.prevEnd);
       return action;

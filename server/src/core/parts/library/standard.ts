@@ -96,6 +96,17 @@ kind sequencer "microcode sequencer: the step counter; each step it counts, load
   holds step q
   on next always: q <= select op { count: q + 1, load: target, hold: q, clear: 0 } "at every closing edge: the next step"
 
+kind callseq "microcode sequencer with a return register: counts, jumps, calls a routine (keeping the step after the call), returns there, holds, or clears"
+  setting width number = 4 "bits of the step"
+  input target width field "the step a jump or a call goes to: a number field of the word"
+  control op: count load hold clear call return = count
+  state q width = 0
+  state r width = 0
+  holds step q
+  holds return r
+  on next always: q <= select op { count: q + 1, load: target, hold: q, clear: 0, call: target, return: r } "at every closing edge: the next step"
+  on save always: r <= select op { call: q + 1, else: r } "at every closing edge: a call keeps the step after it, for the return"
+
 kind nextstep "next-address sequencer: each word names its next step and another target; a field picks which one the step goes to"
   setting width number = 4 "bits of the step"
   input next width field "the step this word goes to: a number field of the word"
