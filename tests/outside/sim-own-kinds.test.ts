@@ -20,23 +20,26 @@ import { buildPrograms, type BuiltProgram } from '../programs/build.mjs';
 import { CLI, REPO, ensureCli, planOf } from '../sim/support';
 import { gantryWithByteLanes, gantryWithConnection, gantryWithHalves } from '../support/ownKinds';
 import { expectSameAsQemu, retiredMnemonics } from '../support/programRuns';
+import { dispatchDemo } from '../support/sequencer';
 
 const toolsPresent = haveTools(['riscv64-unknown-elf-gcc'], 'gcc-riscv64-unknown-elf') && haveTools([QEMU], 'qemu-user');
 
 /** Every example that declares kinds of its own, and variants with partial-width drives and loads. */
-const EXAMPLES = ['gantry-32.pwt', 'gantry-32-halves.pwt', 'gantry-32-connected.pwt', 'gantry-32-lanes.pwt', 'trestle-32.pwt', 'capstan-32.pwt', 'windlass-32.pwt', 'winch-32.pwt'];
+const EXAMPLES = ['gantry-32.pwt', 'gantry-32-halves.pwt', 'gantry-32-connected.pwt', 'gantry-32-lanes.pwt', 'trestle-32.pwt', 'capstan-32.pwt', 'windlass-32.pwt', 'windlass-32-dispatch.pwt', 'winch-32.pwt'];
 
 /** The text of an example, or of a variant written under tests/.tmp (its name ends in the variant). */
 function exampleText(example: string): string {
   if (example === 'gantry-32-halves.pwt') return gantryWithHalves(readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8'));
   if (example === 'gantry-32-connected.pwt') return gantryWithConnection(readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8'));
   // Byte-lane loads of JALR's holding register, fed by the two half adders (loads and drives of some lines together).
+  // OP-IMM dispatched by a jump table (a decode map giving the sequencer's next step).
+  if (example === 'windlass-32-dispatch.pwt') return dispatchDemo();
   if (example === 'gantry-32-lanes.pwt') return gantryWithByteLanes(gantryWithHalves(readFileSync(new URL('../../examples/gantry-32.pwt', import.meta.url), 'utf8')));
   return readFileSync(new URL(`../../examples/${example}`, import.meta.url), 'utf8');
 }
 
 function examplePath(example: string): string {
-  if (!example.endsWith('-halves.pwt') && !example.endsWith('-connected.pwt') && !example.endsWith('-lanes.pwt')) return `examples/${example}`;
+  if (!example.endsWith('-halves.pwt') && !example.endsWith('-connected.pwt') && !example.endsWith('-lanes.pwt') && !example.endsWith('-dispatch.pwt')) return `examples/${example}`;
   mkdirSync(join(REPO, 'tests/.tmp/own-kinds'), { recursive: true });
   const path = `tests/.tmp/own-kinds/${example}`;
   writeFileSync(join(REPO, path), exampleText(example));

@@ -95,8 +95,8 @@ export const CLI = join(REPO, 'dist', 'cli.js');
 
 /** Builds dist/cli.js (scripts/build.mjs) when it is missing or older than the simulator's sources. */
 export function ensureCli(): void {
-  const simDir = join(REPO, 'server/src/core/sim');
-  const sources = [join(REPO, 'server/src/cli/commands/run.ts'), ...readdirSync(simDir).map((f) => join(simDir, f))];
+  // Any source the CLI bundles (the model, the checks and the library as well as the simulator).
+  const sources = readdirSync(join(REPO, 'server/src'), { recursive: true, encoding: 'utf8' }).filter((f) => f.endsWith('.ts')).map((f) => join(REPO, 'server/src', f));
   const newest = Math.max(...sources.map((f) => statSync(f).mtimeMs));
   if (existsSync(CLI) && statSync(CLI).mtimeMs >= newest) return;
   execFileSync(process.execPath, [join(REPO, 'scripts', 'build.mjs')], { cwd: REPO, stdio: 'pipe' });

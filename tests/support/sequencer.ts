@@ -1,6 +1,7 @@
 // The demo machine with a sequencer part in place of the implicit step counter, and a variant
 // doing SLLI as a loop of one-bit shifts counted down by a loop counter (tests/sim/sequencer.test.ts
 // runs them; tests/logic/safeCare.test.ts classifies their word bits). Not a test file itself.
+import { readFileSync } from 'node:fs';
 import { expect } from 'vitest';
 import { DEMO_TEXT, assemble, exitWords, ins } from '../sim/support';
 
@@ -200,4 +201,19 @@ export function fixedLoopDemo(count: number): string {
   text = replaceOnce(text, '   next 32..34\n', '   next 32..34   wcount 35..37   w.set 38   w.dn 39\n');
   text = replaceOnce(text, 'address 13\n  step 0..2   taken 3   f7b5 4   funct3 5..7   opcode 8..12', 'address 14\n  step 0..2   taken 3   f7b5 4   funct3 5..7   opcode 8..12   wz 13');
   return replaceOnce(text, '  2: pc.inc, seqop=clear\n', `  2: w.set, wcount=${count}\n  3 if !wz: w.dn, wait\n  3 else: pc.inc, end\n`);
+}
+
+/**
+ * examples/windlass-32.pwt with OP-IMM dispatched by a jump table: step 2 loads the sequencer
+ * with the step a decode map on funct3 gives (the shifts' loop at step 3, the others' ALU step
+ * at 4), in place of a guard on funct3. ADDI..ANDI take 4 steps, the shifts 4 + shamt.
+ */
+export function dispatchDemo(): string {
+  let text = readFileSync(new URL('../../examples/windlass-32.pwt', import.meta.url), 'utf8');
+  text = replaceOnce(
+    text,
+    '  2 if funct3=-01: x.rs1.oe, alu.fn=passa, alu.oe, t.ck, imm.fmt=i, imm.oe, cnt.ld\n  2 else: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=imm_fn, alu.oe, x.rd.ck, pc.inc, seqop=clear\n  use shift at 3\n',
+    '  2: x.rs1.oe, alu.fn=passa, alu.oe, t.ck, imm.fmt=i, imm.oe, cnt.ld, seqop=load, next=imm_next\n  use shift at 3\n  4: x.rs1.oe, imm.fmt=i, imm.oe, alu.fn=imm_fn, alu.oe, x.rd.ck, pc.inc, seqop=clear\n',
+  );
+  return replaceOnce(text, 'map load_size', 'map imm_next (funct3) -> next "OP-IMM: the shifts go to the loop at step 3, the others to step 4."\n  000 4   001 3   010 4   011 4   100 4   101 3   110 4   111 4\n\nmap load_size');
 }

@@ -172,6 +172,12 @@ export const catalogue: CodeInfo[] = [
     explanation: 'On a machine whose sequencer has return registers, a routine calls another while as many calls are open as the sequencer has return registers (`holds return r` is one; `holds return r0 r1` two). The new call overwrites the step an open call saved, so when the outer routine returns it goes back to the wrong step. Nest calls no deeper than the registers, or use a sequencer kind with more of them.',
   },
   {
+    code: 'next-step-unknown',
+    severity: 'error',
+    title: 'the table does not fix where a step goes next',
+    explanation: 'On a machine with a sequencer part, the next step after some step is read from something the table does not fix: an input of the sequencer wired to a bus or another part, not to a number field of the word or a decode map on the instruction\'s bits. The hardware may well be right, but Phasewright cannot follow the instruction past that step, so the control-flow checks, the coverage along the control flow and the cycle counts for it are not computed. Rather than let the table look checked, this is an error: give the sequencer its targets from number fields of the word, or from decode maps (a jump table on funct3: `map jumps (funct3) -> next` with a step number per row).',
+  },
+  {
     code: 'loop-exit-unchanged',
     severity: 'error',
     title: 'a loop exits only on flags the loop never changes',

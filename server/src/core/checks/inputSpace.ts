@@ -2,7 +2,8 @@
 // instruction bits), the cube of each RV32I instruction, and guard matching under a partial
 // assignment of instruction bits and flags. Used by the coverage and guard checks.
 import { RV32I_INSTRUCTIONS, type InstructionSpec } from '../isa/rv32i';
-import type { ClassDef, GuardLiteral, StepAlt } from '../model/types';
+import type { ClassDef, DecodeMap, GuardLiteral, StepAlt } from '../model/types';
+import { matchesBits } from '../model/numbers';
 
 /** A set of instruction words: those with (word & mask) === value. */
 export interface Cube {
@@ -238,4 +239,19 @@ export function describeScenario(scenario: Scenario, irMask: number, flags: stri
   for (const bit of bitsOf(remaining).reverse()) parts.push(`ir[${bit}]=${(scenario.ir.value >>> bit) & 1}`);
   for (const flag of flags) parts.push(`${flag}=${scenario.flags.get(flag)}`);
   return parts.join(' ');
+}
+
+/** Whether a decode map's row matches a scenario (an input the scenario does not fix matches). */
+export function rowMatches(map: DecodeMap, patterns: string[], scenario: Scenario): boolean {
+  return map.inputs.every((input, i) => {
+    const pattern = patterns[i];
+    if (input.input.kind === 'flag') {
+      const v = scenario.flags.get(input.input.name);
+      return pattern === '-' || v === undefined || String(v) === pattern;
+    }
+    if (input.input.kind !== 'ir') return true;
+    const width = input.input.hi - input.input.lo + 1;
+    const value = (scenario.ir.value >>> input.input.lo) & ((1 << width) - 1);
+    return matchesBits(pattern, value);
+  });
 }

@@ -3,10 +3,10 @@
 // row in each decode map that step's line uses. Otherwise its control-store addresses hold the
 // fill word and the processor silently does nothing for it.
 import { MAJOR_OPCODES, RV32I_INSTRUCTIONS } from '../isa/rv32i';
-import { matchesBits, toBinary } from '../model/numbers';
+import { toBinary } from '../model/numbers';
 import type { ClassDef, DecodeMap, StepAlt } from '../model/types';
 import { type Check } from './context';
-import { type Cube, type Scenario, bitsOf, cubeOfBits, instructionCube, intersect, scenarios } from './inputSpace';
+import { type Cube, type Scenario, bitsOf, cubeOfBits, instructionCube, intersect, rowMatches, scenarios } from './inputSpace';
 import { type ReachedAlt, reachedAlternatives } from './reach';
 
 export const instructionCoverage: Check = {
@@ -112,16 +112,3 @@ function inputValue(map: DecodeMap, index: number, scenario: Scenario): string {
   return bits;
 }
 
-export function rowMatches(map: DecodeMap, patterns: string[], scenario: Scenario): boolean {
-  return map.inputs.every((input, i) => {
-    const pattern = patterns[i];
-    if (input.input.kind === 'flag') {
-      const v = scenario.flags.get(input.input.name);
-      return pattern === '-' || v === undefined || String(v) === pattern;
-    }
-    if (input.input.kind !== 'ir') return true;
-    const width = input.input.hi - input.input.lo + 1;
-    const value = (scenario.ir.value >>> input.input.lo) & ((1 << width) - 1);
-    return matchesBits(pattern, value);
-  });
-}

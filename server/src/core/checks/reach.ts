@@ -12,7 +12,7 @@
 // and the encoded images (this reasons on the table; checks/entryReach.ts on the images).
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 import { type Cube, type Scenario, bitsOf, guardInputs, matchingAlternatives, maxWalkInputs, scenarios } from './inputSpace';
-import { stepGraph } from '../flow/stepGraph';
+import { sequencerMapMask, stepGraph } from '../flow/stepGraph';
 import { hasSequencer, nextStepOf } from '../model/sequencing';
 
 /** One way through a class: the instruction bits its guards test fixed, and where it stops. */
@@ -88,7 +88,9 @@ const pathCache = new WeakMap<ClassDef, Map<string, InstructionPath[] | undefine
 
 function walkPaths(machine: Machine, cls: ClassDef, cube: Cube): InstructionPath[] | undefined {
   const all = [...cls.steps.values()].flat();
-  const { irMask, flags } = guardInputs(all);
+  const { irMask: guardMask, flags } = guardInputs(all);
+  // On a sequencer machine the bits a dispatch map reads decide where the instruction goes too.
+  const irMask = hasSequencer(machine) ? (guardMask | sequencerMapMask(machine, cls)) >>> 0 : guardMask;
   const free = bitsOf((irMask & ~cube.mask) >>> 0);
   if (free.length + flags.length > maxWalkInputs) return undefined;
   // A step none of whose alternatives ends lets every path on: only the others can stop one.

@@ -12,6 +12,7 @@ import { jumpOutside } from './jumpOutside';
 import { stepUnreachable } from './stepUnreachable';
 import { callReturn } from './callReturn';
 import { returnDepth } from './returnDepth';
+import { nextStepUnknown } from './nextStepUnknown';
 import { classOpcode } from './classOpcode';
 import { clockConflict } from './clockConflict';
 import { fieldConflict } from './fieldConflict';
@@ -53,6 +54,7 @@ export const checks: Check[] = [
   stepUnreachable,
   callReturn,
   returnDepth,
+  nextStepUnknown,
   stepRange,
   guardCoverage,
   addressLoop,

@@ -19,7 +19,7 @@
 // checks' inputSpace.ts decides which alternatives hold), and what bounds a loop.
 import { altEnds, maxWalkInputs } from '../checks/reach';
 import { hasSequencer } from '../model/sequencing';
-import { endingSteps, loopsOf, mergeGraphs, stepGraph, stepsOfNodes } from './stepGraph';
+import { endingSteps, loopsOf, mergeGraphs, sequencerMapMask, stepGraph, stepsOfNodes } from './stepGraph';
 import { type Cube, bitsOf, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from '../checks/inputSpace';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 
@@ -90,7 +90,9 @@ export function classCycles(machine: Machine, cls: ClassDef): ClassCycles {
 /** The counts of the instructions in `cube` through `cls` (union over the bits the guards test that `cube` leaves free). */
 export function instructionCycles(machine: Machine, cls: ClassDef, cube: Cube): InstructionCycles {
   const all = [...cls.steps.values()].flat();
-  const { irMask, flags: classFlags } = guardInputs(all);
+  const { irMask: guardMask, flags: classFlags } = guardInputs(all);
+  // On a sequencer machine the bits a dispatch map reads decide the next step too.
+  const irMask = hasSequencer(machine) ? (guardMask | sequencerMapMask(machine, cls)) >>> 0 : guardMask;
   const free = bitsOf((irMask & ~cube.mask) >>> 0);
   // The same bound as the checks' walk (reach.ts): instruction bits and flags together.
   if (free.length + classFlags.length > maxWalkInputs) return {};
@@ -143,7 +145,7 @@ export function instructionCycles(machine: Machine, cls: ClassDef, cube: Cube): 
  * The counts on a sequencer machine: the step graph (stepGraph.ts) of each combination of the
  * instruction bits, merged, the fewest steps from step 0 to
  * the end (a next step of 0), and the steps on a cycle that can still reach the end (the max is
- * then unbounded). A next step the word does not fix (a field from a decode map) is not counted.
+ * then unbounded). A next step the word does not fix (a sequencer input from a bus) is not counted.
  */
 function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: number[]): InstructionCycles {
   // One graph over every combination of the free instruction bits (their edges together).
@@ -216,7 +218,7 @@ export function rangeText(min: number | undefined, max: number | undefined, loop
 
 /** The counts of one instruction in words: `3 not taken, 4 taken`, `4`, `4, or does not end (taken)`. */
 export function countsText(cycles: InstructionCycles): string {
-  if (!cycles.counts) return 'not counted (its guards test too many inputs, or a next step depends on a decode map)';
+  if (!cycles.counts) return 'not counted (its guards test too many inputs, or a next step the table does not fix)';
   if (cycles.loopSteps?.length) return `${cycles.min} + n (n: repeats of step${cycles.loopSteps.length > 1 ? 's' : ''} ${cycles.loopSteps.join(', ')})`;
   const parts = cycles.counts.map((c) => (cycles.counts!.length > 1 && c.conditions.length ? `${c.steps} ${c.conditions.join(' or ')}` : String(c.steps)));
   if (cycles.counts.length > 1 && cycles.counts.every((c) => !c.conditions.length)) parts.splice(0, parts.length, rangeText(cycles.min, cycles.max));

@@ -16,9 +16,9 @@
 //
 // Deliberately not here: what a loop's steps do to its flags (checks/loopExit.ts decides), and
 // machines without a sequencer (their steps only count on: checks/reach.ts walks them).
-import { type Cube, bitsOf, describeScenario, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, maxWalkInputs, scenarios } from '../checks/inputSpace';
-import { type ReturnContext, contextKey, sequencerMove, startContext } from '../model/sequencing';
-import type { ClassDef, Machine, StepAlt } from '../model/types';
+import { type Cube, bitsOf, rowMatches, describeScenario, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, maxWalkInputs, scenarios } from '../checks/inputSpace';
+import { type ReturnContext, contextKey, sequencerFields, sequencerMove, startContext } from '../model/sequencing';
+import type { ClassDef, DecodeMap, Machine, StepAlt } from '../model/types';
 
 /** One way out of a step: the alternative (undefined: the fill word), where it goes, and under which flag values. */
 export interface StepEdge {
@@ -52,7 +52,7 @@ export interface StepGraph {
   steps: number[];
   /** The edges out of each reached node. */
   out: Map<number, StepEdge[]>;
-  /** Reached nodes whose next step the word does not fix (a field from a decode map): the graph is incomplete. */
+  /** Reached nodes whose next step the word does not fix (a sequencer input from a bus: next-step-unknown reports it): the graph is incomplete. */
   unknown: Set<number>;
   /** Calls and returns that go wrong (none on a sequencer without return registers). */
   callProblems: CallProblem[];
@@ -126,13 +126,19 @@ function buildGraph(machine: Machine, cls: ClassDef, ir: Cube): StepGraph {
     const step = stepOfNode(machine, node);
     const context = contextOfNode(machine, node);
     const alts = cls.steps.get(step) ?? [];
-    const { flags } = guardInputs(alts);
+    const { flags: guardFlags } = guardInputs(alts);
+    // A next step from a decode map (a dispatch on the instruction's bits): the map's inputs
+    // are enumerated with the flags, so each edge has the code its row gives.
+    const maps = sequencerMaps(machine, alts);
+    const mapInputs = inputsOfMaps(maps);
+    const flags = [...new Set([...guardFlags, ...mapInputs.flags])];
     const edges: StepEdge[] = [];
     out.set(node, edges);
-    for (const scenario of scenarios(ir, [], flags)) {
+    for (const scenario of scenarios(ir, bitsOf((mapInputs.irMask & ~ir.mask) >>> 0), flags)) {
       const matching = matchingAlternatives(alts, scenario);
+      const mapCode = (name: string) => mapCodeIn(machine, machine.maps.get(name), scenario);
       for (const alt of matching.length ? matching : [undefined]) {
-        const move = sequencerMove(machine, alt, step, context);
+        const move = sequencerMove(machine, alt, step, context, mapCode);
         for (const call of move?.lost ?? []) problem({ kind: 'depth', step, alt, call });
         if (move?.returnOf === null) {
           // A return to a step no call of this instruction saved: not followed. After a call
@@ -158,6 +164,45 @@ function buildGraph(machine: Machine, cls: ClassDef, ir: Cube): StepGraph {
   }
   const stepOf = (node: number) => stepOfNode(machine, node);
   return { reached, steps: [...new Set(reached.map(stepOf))], out, unknown, callProblems, stepOf };
+}
+
+/** The decode maps the alternatives set a field of the sequencer from. */
+function sequencerMaps(machine: Machine, alts: readonly StepAlt[]): DecodeMap[] {
+  const fields = sequencerFields(machine);
+  const names = new Set(alts.flatMap((alt) => alt.actions.flatMap((a) => (a.value?.kind === 'map' && fields.has(a.signal) ? [a.value.map] : []))));
+  return [...names].flatMap((name) => machine.maps.get(name) ?? []);
+}
+
+/** The instruction bits and flags some decode maps read. */
+function inputsOfMaps(maps: readonly DecodeMap[]): { irMask: number; flags: string[] } {
+  let irMask = 0;
+  const flags = new Set<string>();
+  for (const map of maps) {
+    for (const { input } of map.inputs) {
+      if (input.kind === 'ir') for (let b = input.lo; b <= input.hi; b++) irMask = (irMask | (1 << b)) >>> 0;
+      else if (input.kind === 'flag') flags.add(input.name);
+    }
+  }
+  return { irMask, flags: [...flags] };
+}
+
+/**
+ * The code a decode map gives where the scenario fixes every input it reads: its first matching
+ * row's, or the output field's idle code where no row matches (as the encoder lays it).
+ */
+function mapCodeIn(machine: Machine, map: DecodeMap | undefined, scenario: { ir: Cube; flags: Map<string, number> }): number | undefined {
+  if (!map) return undefined;
+  const { irMask, flags } = inputsOfMaps([map]);
+  if ((irMask & ~scenario.ir.mask) >>> 0 || flags.some((f) => !scenario.flags.has(f))) return undefined;
+  const row = map.rows.find((r) => rowMatches(map, r.patterns, scenario));
+  if (row) return row.code;
+  const out = map.output ? machine.signals.get(map.output) : undefined;
+  return out?.type === 'field' ? out.idle : undefined;
+}
+
+/** The instruction bits the decode maps read that set a field of the sequencer in the class (a dispatch). */
+export function sequencerMapMask(machine: Machine, cls: ClassDef): number {
+  return inputsOfMaps(sequencerMaps(machine, [...cls.steps.values()].flat())).irMask;
 }
 
 /**
@@ -260,7 +305,9 @@ export interface InstructionGraph {
  * known from a word.
  */
 export function instructionGraphs(machine: Machine, cls: ClassDef, incomplete = false): InstructionGraph[] | undefined {
-  const { irMask, flags } = guardInputs([...cls.steps.values()].flat());
+  const { irMask: guardMask, flags } = guardInputs([...cls.steps.values()].flat());
+  // The bits a dispatch map reads are fixed too, so each instruction's graph has its own targets.
+  const irMask = (guardMask | sequencerMapMask(machine, cls)) >>> 0;
   const specs = instructionsOfClass(cls);
   const cubes = specs.length
     ? specs.map((s) => ({ name: s.mnemonic, mnemonic: s.mnemonic as string | undefined, cube: instructionCube(s) }))

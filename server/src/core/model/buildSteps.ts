@@ -61,7 +61,24 @@ function buildMap(ctx: BuildContext, decl: A.MapDecl): void {
         }
         patterns.push(expanded);
       });
-      if (!ok || !row.value || !field) continue;
+      if (!ok || !field) continue;
+      if (field.numeric || row.number) {
+        // A number field's map gives numbers (a jump table of step numbers).
+        const max = 2 ** field.width - 1;
+        if (!field.numeric || !row.number) {
+          const at = row.number ?? row.value!;
+          ctx.report('wrong-wiring', at.span, field.numeric ? `\`${field.name}\` is a number field: give the row a number from 0 to ${max}` : `\`${field.name}\` has named values: give the row one of them (${[...field.values.keys()].join(', ')})`);
+          continue;
+        }
+        const code = parseNumber(row.number.text);
+        if (code === undefined || code > max) {
+          ctx.report('bad-number', row.number.span, code === undefined ? `\`${row.number.text}\` is not a number; write it in decimal, or with 0x (hex) or 0b (binary)` : `\`${field.name}\` has ${field.width} bit(s): a number from 0 to ${max}; ${code} does not fit`);
+          continue;
+        }
+        map.rows.push({ patterns, value: String(code), code, span: row.span });
+        continue;
+      }
+      if (!row.value) continue;
       const value = field.values.get(row.value.text);
       if (!value) {
         ctx.undefinedName(row.value, `value of \`${field.name}\``, [...field.values.keys()]);
@@ -293,6 +310,17 @@ function buildAction(ctx: BuildContext, action: A.ActionNode): M.Action | undefi
 /** `next=5` on a number field: the number is the field's code, 0 to 2^width - 1. */
 function numberAction(ctx: BuildContext, field: M.Field, action: A.ActionNode): M.Action | undefined {
   const max = 2 ** field.width - 1;
+  // `next=jumps`: a map that sets this number field (a jump table on the instruction's bits).
+  const mapSym = action.value ? ctx.lookup('map', action.value.text) : undefined;
+  if (action.value && mapSym) {
+    ctx.reference(action.value.span, mapSym);
+    const map = ctx.machine.maps.get(action.value.text);
+    if (map?.output && map.output !== field.name) {
+      ctx.report('wrong-wiring', action.value.span, `the map \`${action.value.text}\` sets \`${map.output}\`, not \`${field.name}\``);
+      return undefined;
+    }
+    return { signal: field.name, value: { kind: 'map', map: action.value.text }, span: action.span };
+  }
   if (!action.equals || !action.number) {
     if (action.equals && !action.value) return undefined; // the parser reported what is missing
     if (action.value) ctx.report('wrong-wiring', action.value.span, `\`${field.name}\` is a number field: give it a number from 0 to ${max}, e.g. \`${field.name}=1\``);

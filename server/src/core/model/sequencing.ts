@@ -64,19 +64,23 @@ function sequencerPlan(machine: Machine): SequencerPlan | undefined {
         const result = current as number[];
         // No assignment: the states keep their values.
         if (compiled) {
-          const inputs: number[] = [];
-          for (const name of compiled.inputs) {
-            const v = values(name);
-            if (v === undefined) return undefined;
-            inputs.push(v);
-          }
-          const out = compiled.run(inputs).map((v) => Number(v));
-          let k = 0;
-          for (const a of assigns) {
-            const value = out[k++];
-            const when = a.when ? out[k++] : 1;
-            if (when !== 0) result[targets.indexOf(a.target)] = value & stepMask;
-          }
+          // A name whose value is not known here (an input from a bus) matters only if the
+          // result changes with it: run with it all zeros and all ones, and compare.
+          const known = compiled.inputs.map((name) => values(name));
+          const runWith = (fill: number) => {
+            const out = compiled.run(known.map((v) => v ?? fill)).map((v) => Number(v));
+            const next = [...result];
+            let k = 0;
+            for (const a of assigns) {
+              const value = out[k++];
+              const when = a.when ? out[k++] : 1;
+              if (when !== 0) next[targets.indexOf(a.target)] = value & stepMask;
+            }
+            return next;
+          };
+          const low = runWith(0);
+          if (known.some((v) => v === undefined) && runWith(0xffffffff).some((v, i) => v !== low[i])) return undefined;
+          result.splice(0, result.length, ...low);
         }
         return { step: result[0] & stepMask, returns: result.slice(1) };
       },
@@ -122,7 +126,7 @@ export function contextKey(context: ReturnContext): string {
 
 /** One move of the sequencer at a closing edge: the next step and what it does to the return registers. */
 export interface SequencerMove {
-  /** The next step; undefined when the word does not fix it (a field from a decode map) or it is read from a return register no call of this instruction set. */
+  /** The next step; undefined when the word does not fix it (a sequencer input from a bus, a decode map no code is given for) or it is read from a return register no call of this instruction set. */
   to: number | undefined;
   /** The return registers after the edge. */
   context: ReturnContext;
@@ -134,18 +138,26 @@ export interface SequencerMove {
   lost: number[];
 }
 
+/** The fields of the word the sequencer reads: those driving its controls and those its `field` inputs read. */
+export function sequencerFields(machine: Machine): ReadonlySet<string> {
+  const part = sequencerPlan(machine)?.part;
+  if (!part) return new Set();
+  return new Set([...part.controlFields.values(), ...[...part.inputs.values()].flatMap((i) => (i.from === 'field' ? [i.name] : []))]);
+}
+
 /**
  * The sequencer's move after `alt` (at step `step`; undefined: the fill word), from the return
- * registers `context` (default: as at step 0). Undefined on a machine without a sequencer.
+ * registers `context` (default: as at step 0). A field the word sets from a decode map has the
+ * code `mapCode` gives (undefined: not known). Undefined on a machine without a sequencer.
  */
-export function sequencerMove(machine: Machine, alt: StepAlt | undefined, step: number, context?: ReturnContext): SequencerMove | undefined {
+export function sequencerMove(machine: Machine, alt: StepAlt | undefined, step: number, context?: ReturnContext, mapCode?: (map: string) => number | undefined): SequencerMove | undefined {
   const plan = sequencerPlan(machine);
   if (!plan) return undefined;
   const ctx = context ?? startContext(machine);
   const part = plan.part;
   const codeOf = (field: string): number | undefined => {
     const action = alt?.actions.find((a) => a.signal === field);
-    if (action?.value?.kind === 'map') return undefined;
+    if (action?.value?.kind === 'map') return mapCode?.(action.value.map);
     if (action?.value?.kind === 'code') return action.value.code;
     const signal = machine.signals.get(field);
     return signal?.type === 'field' ? signal.idle : undefined;

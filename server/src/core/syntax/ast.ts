@@ -165,6 +165,8 @@ export interface AddressDecl extends DeclBase {
 export interface MapRow {
   patterns: Literal[];
   value?: Name;
+  /** The row's number, for a map that sets a number field (a jump table: `001 3`). */
+  number?: Literal;
   span: Span;
 }
 

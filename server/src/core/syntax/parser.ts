@@ -645,10 +645,11 @@ class Parser {
         }
         const row: A.MapRow = { patterns, span: mkSpan(start, this.prevEnd) };
         if (this.at(T.Ident)) row.value = this.name(this.next());
-        else this.unexpected('the value name for this row');
+        else if (this.at(T.Number)) row.number = this.literal(this.next());
+        else this.unexpected('the value name for this row (or, for a number field, a number)');
         row.span = mkSpan(start, this.prevEnd);
         decl.rows.push(row);
-        if (!row.value) {
+        if (!row.value && !row.number) {
           this.skipToEol();
           return;
         }
