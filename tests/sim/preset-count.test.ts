@@ -43,10 +43,14 @@ describe('a fixed-count loop on a counter preset from the word', () => {
     }
   });
 
-  it('the counts from the steps say 4 + n, n the repeats of the wait step (the count in the word is not read yet)', () => {
-    const machine = analyse(fixedLoopDemo(3)).machine;
-    const fence = classCycles(machine, machine.classes.find((c) => c.name === 'MISC-MEM')!);
-    expect(fence.instructions.map((i) => [i.mnemonic, i.min, i.loopSteps])).toEqual([['fence', 4, [3]]]);
+  it('the counts from the steps read the count in the word: 4 + count, the steps each FENCE measured above', () => {
+    for (const count of [0, 1, 3, 7]) {
+      const machine = analyse(fixedLoopDemo(count)).machine;
+      const fence = classCycles(machine, machine.classes.find((c) => c.name === 'MISC-MEM')!);
+      // The fewest along the steps stays 4 (the graph does not read the count); the loop's formula does.
+      expect(fence.instructions.map((i) => [i.mnemonic, i.min, i.loopSteps])).toEqual([['fence', 4, [3]]]);
+      expect(fence.instructions[0].loopCount, `count ${count}`).toMatchObject({ formula: `4 + ${count}`, least: 4 + count, most: 4 + count });
+    }
   });
 
   it('a count that does not fit the field is a bad number at the number', () => {

@@ -50,11 +50,11 @@ describe('the shift loop of windlass-32', () => {
     expect(measured.filter((_, k) => amounts[k] !== undefined)).toHaveLength(32 * 6);
   });
 
-  it('computes the shifts\' counts from the class flow as min + n, n the repeats of the loop step: the measured 4 + n', () => {
+  it('computes the shifts\' counts from the class flow as 4 + the shift amount: the measured 4 + n', () => {
     const classes = cycleCountsOf(planOf(TEXT).machine);
-    for (const [className, mnemonics] of [['OP-IMM', ['slli', 'srli', 'srai']], ['OP', ['sll', 'srl', 'sra']]] as const) {
+    for (const [className, mnemonics, formula] of [['OP-IMM', ['slli', 'srli', 'srai'], '4 + shamt'], ['OP', ['sll', 'srl', 'sra'], '4 + x[rs2][4:0]']] as const) {
       const cls = classes.find((c) => c.className === className)!;
-      for (const m of mnemonics) expect(cls.instructions.find((i) => i.mnemonic === m), m).toMatchObject({ min: 4, loopSteps: [3] });
+      for (const m of mnemonics) expect(cls.instructions.find((i) => i.mnemonic === m), m).toMatchObject({ min: 4, loopSteps: [3], loopCount: { formula } });
       // The other instructions of the class do not loop: 3 steps.
       for (const i of cls.instructions.filter((i) => !(mnemonics as readonly string[]).includes(i.mnemonic!))) expect(i, i.mnemonic).toMatchObject({ min: 3, max: 3 });
       expect(cls.loops).toBe(true);

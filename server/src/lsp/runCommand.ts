@@ -127,7 +127,7 @@ export async function runProgram(args: unknown[], context: Pick<CommandContext, 
   const wallMs = performance.now() - started;
   const stdout = clip(run.sim.environment.stdoutText());
   const stderr = clip(run.sim.environment.stderrText());
-  const figures = figuresOf(run.sim);
+  const figures = figuresOf(run.sim, run.loopChecks);
   const answer: RunAnswer = {
     ok: true,
     exitCode: exitCodeOf(ending),

@@ -191,7 +191,7 @@ export const runCommand = defineCommand({
         code = EXIT_REFUSED;
       }
     }
-    io.err(lines.join('\n') + '\n' + formatFigures(figuresOf(sim), wallMs));
+    io.err(lines.join('\n') + '\n' + formatFigures(figuresOf(sim, run.loopChecks), wallMs));
     return code;
   },
 });

@@ -11,15 +11,17 @@
 // definition sends it with the codes its word gives (on, a jump, a hold, back to 0): the steps
 // form a graph that may loop. Then the fewest steps to the end are counted, and a loop on the
 // way makes the most unbounded: the count reads `4 + n`, n being how often the loop's steps
-// repeat (a shift by n places, a wait of n steps); what n is follows from the datapath, which
-// the simulator measures (tests/sim/shift-loop.test.ts holds them equal for the shift loop).
+// repeat (a shift by n places, a wait of n steps). Where loopBounds.ts derives the count from
+// the loop counter's definition and what loads it, it reads as a formula of the operand
+// (`4 + shamt`, `4 + x[rs2][4:0]`); min and max keep their meaning.
 //
 // Deliberately not here: reporting a path that runs off the last step without `end` (the
 // class-end check does; this only says "does not end"), guard evaluation of its own (the
-// checks' inputSpace.ts decides which alternatives hold), and what bounds a loop.
+// checks' inputSpace.ts decides which alternatives hold), and what bounds a loop (loopBounds.ts).
 import { altEnds, maxWalkInputs } from '../checks/reach';
 import { hasSequencer } from '../model/sequencing';
 import { endingSteps, loopsOf, mergeGraphs, sequencerMapMask, stepGraph, stepsOfNodes } from './stepGraph';
+import { type LoopCount, loopCountOf } from './loopBounds';
 import { type Cube, bitsOf, guardInputs, instructionCube, instructionsOfClass, matchingAlternatives, scenarios } from '../checks/inputSpace';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
 
@@ -42,6 +44,11 @@ export interface InstructionCycles {
   doesNotEnd?: string[];
   /** On a sequencer machine: steps that repeat on the way to the end, so `max` is unbounded (`min + n`). */
   loopSteps?: number[];
+  /**
+   * With `loopSteps`: the steps as a formula of the operand where it is derived (loopBounds.ts:
+   * `4 + shamt`). `min` and `max` keep their meaning (the fewest along the steps; no most).
+   */
+  loopCount?: LoopCount;
 }
 
 export interface ClassCycles {
@@ -196,7 +203,8 @@ function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: numb
     max = Math.max(min, visit(0));
   }
   const counts: StepCount[] = loopSteps.length || max === min ? [{ steps: min, conditions: [] }] : [{ steps: min, conditions: [] }, { steps: max, conditions: [] }];
-  return { counts, min, max: loopSteps.length ? undefined : max, ...(loopSteps.length && { loopSteps }), ...(stuck && { doesNotEnd: [] }) };
+  const loopCount = loopSteps.length && !stuck ? loopCountOf(machine, cls, cube, free, loopSteps) : undefined;
+  return { counts, min, max: loopSteps.length ? undefined : max, ...(loopSteps.length && { loopSteps }), ...(loopCount && { loopCount }), ...(stuck && { doesNotEnd: [] }) };
 }
 
 function addConditions(conditions: string[], added: string[]): string[] {
@@ -209,8 +217,9 @@ function flagText(flag: string, value: number): string {
   return value ? flag : `not ${flag}`;
 }
 
-/** `3–4`, or `4` when both are the same; `?` when unknown. */
-export function rangeText(min: number | undefined, max: number | undefined, loopSteps?: number[]): string {
+/** `3–4`, or `4` when both are the same; `?` when unknown; with a loop `4 + n`, or its formula (`4 + shamt`). */
+export function rangeText(min: number | undefined, max: number | undefined, loopSteps?: number[], loopCount?: LoopCount): string {
+  if (loopCount) return loopCount.operand.kind === 'constant' ? String(loopCount.least) : loopCount.formula;
   if (min !== undefined && loopSteps?.length) return `${min} + n`;
   if (min === undefined || max === undefined) return '?';
   return min === max ? String(min) : `${min}–${max}`;
@@ -219,11 +228,17 @@ export function rangeText(min: number | undefined, max: number | undefined, loop
 /** The counts of one instruction in words: `3 not taken, 4 taken`, `4`, `4, or does not end (taken)`. */
 export function countsText(cycles: InstructionCycles): string {
   if (!cycles.counts) return 'not counted (its guards test too many inputs, or a next step the table does not fix)';
+  if (cycles.loopCount) return loopCountText(cycles.loopCount);
   if (cycles.loopSteps?.length) return `${cycles.min} + n (n: repeats of step${cycles.loopSteps.length > 1 ? 's' : ''} ${cycles.loopSteps.join(', ')})`;
   const parts = cycles.counts.map((c) => (cycles.counts!.length > 1 && c.conditions.length ? `${c.steps} ${c.conditions.join(' or ')}` : String(c.steps)));
   if (cycles.counts.length > 1 && cycles.counts.every((c) => !c.conditions.length)) parts.splice(0, parts.length, rangeText(cycles.min, cycles.max));
   if (cycles.doesNotEnd) parts.push(`does not end${cycles.doesNotEnd.length ? ` (${cycles.doesNotEnd.join(' or ')})` : ''}`);
   return parts.join(', ') || 'does not end';
+}
+
+/** A loop's count in words: `4 + shamt`; a count the word fixes, `7 (4 + 3: a fixed count)`. */
+export function loopCountText(count: LoopCount): string {
+  return count.operand.kind === 'constant' ? `${count.least} (${count.formula}: a fixed count)` : count.formula;
 }
 
 /** Instructions with the same counts, in the class's order: the groups a lens or a hover lists. */

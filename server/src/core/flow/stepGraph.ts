@@ -136,7 +136,7 @@ function buildGraph(machine: Machine, cls: ClassDef, ir: Cube): StepGraph {
     out.set(node, edges);
     for (const scenario of scenarios(ir, bitsOf((mapInputs.irMask & ~ir.mask) >>> 0), flags)) {
       const matching = matchingAlternatives(alts, scenario);
-      const mapCode = (name: string) => mapCodeIn(machine, machine.maps.get(name), scenario);
+      const mapCode = (name: string) => mapCodeFor(machine, name, scenario);
       for (const alt of matching.length ? matching : [undefined]) {
         const move = sequencerMove(machine, alt, step, context, mapCode);
         for (const call of move?.lost ?? []) problem({ kind: 'depth', step, alt, call });
@@ -198,6 +198,11 @@ function mapCodeIn(machine: Machine, map: DecodeMap | undefined, scenario: { ir:
   if (row) return row.code;
   const out = map.output ? machine.signals.get(map.output) : undefined;
   return out?.type === 'field' ? out.idle : undefined;
+}
+
+/** The code the decode map `name` gives where the scenario fixes its inputs (a jump table's row), else undefined. */
+export function mapCodeFor(machine: Machine, name: string, scenario: { ir: Cube; flags: Map<string, number> }): number | undefined {
+  return mapCodeIn(machine, machine.maps.get(name), scenario);
 }
 
 /** The instruction bits the decode maps read that set a field of the sequencer in the class (a dispatch). */

@@ -390,7 +390,9 @@ function cyclesLines(machine: Machine, cls: ClassDef): string[] {
   // Instructions with the same counts share a line.
   for (const { names, cycles: i } of groupsOf(cycles)) {
     if (!i.mnemonic) continue;
-    lines.push(`  - ${names.join(', ')}: ${i.min === undefined ? 'does not end' : i.loopSteps ? countsText(i) : `min ${i.min}, max ${i.max}`}${!i.loopSteps && ((i.counts?.length ?? 0) > 1 || i.doesNotEnd) ? ` (${countsText(i)})` : ''}`);
+    // A loop's formula says its range too: `4 + shamt (4 to 35)`.
+    const range = i.loopCount && i.loopCount.operand.kind !== 'constant' && i.loopCount.least !== i.loopCount.most ? ` (${i.loopCount.least} to ${i.loopCount.most})` : '';
+    lines.push(`  - ${names.join(', ')}: ${i.min === undefined ? 'does not end' : i.loopSteps ? `${countsText(i)}${range}` : `min ${i.min}, max ${i.max}`}${!i.loopSteps && ((i.counts?.length ?? 0) > 1 || i.doesNotEnd) ? ` (${countsText(i)})` : ''}`);
   }
   return lines;
 }

@@ -25,6 +25,7 @@ import { collectSteps, faultText, formatStep, hex, instructionText, sourcePlace,
 import type { SimPlan } from './plan';
 import type { LoadedProgram } from './program';
 import { BusSimulator, type MachineFault, type SimStop } from './simulator';
+import { LoopChecks } from './loopChecks';
 
 export interface Difference {
   what: 'pc' | 'register' | 'memory' | 'ending';
@@ -72,12 +73,16 @@ export interface ProgramRunOptions {
   format?: FormatOptions;
   /** Run the interpreter only (no compiled stepper); for tests that compare the two. */
   compiled?: boolean;
+  /** With the reference: hold every retired instruction's steps to its loop formula, if the table has one (`loopChecks`). */
+  loopFormulas?: boolean;
 }
 
 /** A program running on a table's machine (and on the reference beside it). */
 export class ProgramRun {
   readonly sim: BusSimulator;
   readonly reference: Rv32iReference | null;
+  /** The retired instructions' steps beside their loop formulas (with the reference and `loopFormulas`, on a table that has one). */
+  readonly loopChecks: LoopChecks | null;
   ending: RunEnding | null = null;
   private readonly format: FormatOptions;
 
@@ -102,6 +107,7 @@ export class ProgramRun {
     } else {
       this.reference = null;
     }
+    this.loopChecks = withReference && options.loopFormulas && LoopChecks.wanted(plan.machine) ? new LoopChecks(plan.machine) : null;
   }
 
   /**
@@ -139,6 +145,8 @@ export class ProgramRun {
     const reference = this.reference;
     if (!reference) return null;
     const sim = this.sim;
+    // Before the reference executes it, its registers are those the instruction started with.
+    this.loopChecks?.observe(sim.lastRetiredWord, pcBefore, reference.x, sim.lastInstructionSteps);
     const result = reference.step();
     // The common case first, without building anything: everything agrees.
     if (result.retired && sim.pc === reference.pc >>> 0 && sameRegisters(reference.x, sim.regs) && sameWrites(result.memoryWrites, sim) && !(result.stop?.kind === 'exit' && sim.stopReason?.kind === 'exit' && result.stop.exitCode !== sim.stopReason.exitCode)) {

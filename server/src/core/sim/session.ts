@@ -75,7 +75,7 @@ export function prepareRun(request: RunRequest): PreparedRun {
   const prepared = prepareTable(request);
   if (!prepared.ok) return prepared;
   const { plan, program, analysis, warnings, untrusted } = prepared;
-  const run = new ProgramRun(plan, program, { reference: request.reference ?? true, format: { lines: analysis.lines, file: request.sourceName } });
+  const run = new ProgramRun(plan, program, { reference: request.reference ?? true, loopFormulas: true, format: { lines: analysis.lines, file: request.sourceName } });
   return { ok: true, run, analysis, warnings, untrusted };
 }
 
