@@ -1,5 +1,6 @@
 // The loop formulas of examples/windlass-32.pwt (flow/loopBounds.ts: SLLI, SRLI, SRAI take
-// 4 + shamt steps, SLL, SRL, SRA 4 + x[rs2][4:0]) against runs of a program built by Debian's
+// 4 + shamt steps, SLL, SRL, SRA 4 + x[rs2][4:0]), of the same with a jump table, and of
+// examples/winch-32.pwt, whose loop is a routine (5 + shamt, 6 + x[rs2][4:0]) against runs of a program built by Debian's
 // riscv64-unknown-elf-gcc (package gcc-riscv64-unknown-elf): every shift form by every amount
 // 0..31, the register forms with amounts whose upper bits are set too and with rs2 = x0. The
 // assembler encodes each instruction (shamt into inst[24:20], rs2 into inst[24:20]), so the
@@ -25,9 +26,18 @@ import { haveTools } from '../support/tools';
 import { QEMU, qemuStatus, runQemu, scratchDir } from '../isa/support/riscv-tools';
 import { COMMON_FLAGS, GCC, PROGRAMS_SOURCE_DIR } from '../programs/build.mjs';
 import { planOf } from '../sim/support';
+import { dispatchDemo } from '../support/sequencer';
 
 const toolsPresent = haveTools([GCC], 'gcc-riscv64-unknown-elf') && haveTools([QEMU], 'qemu-user');
-const TEXT = readFileSync(join(__dirname, '../../examples/windlass-32.pwt'), 'utf8');
+/**
+ * The machines: windlass-32; the same with OP-IMM dispatched by a jump table; winch-32, whose
+ * loop is a routine called from step 2 of OP-IMM (5 + n) and from step 3 of OP (6 + n).
+ */
+const MACHINES: [string, string, { imm: number; reg: number }][] = [
+  ['windlass-32', readFileSync(join(__dirname, '../../examples/windlass-32.pwt'), 'utf8'), { imm: 4, reg: 4 }],
+  ['windlass-32 with a jump table', dispatchDemo(), { imm: 4, reg: 4 }],
+  ['winch-32 (the loop as a routine)', readFileSync(join(__dirname, '../../examples/winch-32.pwt'), 'utf8'), { imm: 5, reg: 6 }],
+];
 const SHIFTS = ['slli', 'srli', 'srai', 'sll', 'srl', 'sra'];
 
 /** One shift of the program: what it is and the amount it was written with (the spec's shift amount). */
@@ -73,15 +83,16 @@ function program(): { source: string; written: Written[] } {
   return { source: lines.join('\n'), written };
 }
 
-describe.skipIf(!toolsPresent)('windlass-32\'s loop formulas against a gcc-built program of every shift by every amount', () => {
+describe.skipIf(!toolsPresent).each(MACHINES)('%s: loop formulas against a gcc-built program of every shift by every amount', (_name, TEXT, base) => {
   const { source, written } = program();
+  const baseOf = (mnemonic: string) => (mnemonic.endsWith('i') ? base.imm : base.reg);
   let elfPath = '';
   const plan = planOf(TEXT);
   const counts = cycleCountsOf(plan.machine);
   const formulaOf = (mnemonic: string) => counts.flatMap((c) => c.instructions).find((i) => i.mnemonic === mnemonic)?.loopCount;
 
   beforeAll(() => {
-    const dir = scratchDir('loop-formula');
+    const dir = scratchDir(`loop-formula-${base.imm}${base.reg}${TEXT.length}`);
     const sourcePath = join(dir, 'shifts.S');
     elfPath = join(dir, 'shifts.elf');
     writeFileSync(sourcePath, source);
@@ -90,10 +101,10 @@ describe.skipIf(!toolsPresent)('windlass-32\'s loop formulas against a gcc-built
 
   it('the table checks clean and every shift has a formula', () => {
     expect(analyse(TEXT).diagnostics).toEqual([]);
-    for (const m of SHIFTS) expect(formulaOf(m)?.formula, m).toBe(m.endsWith('i') ? '4 + shamt' : '4 + x[rs2][4:0]');
+    for (const m of SHIFTS) expect(formulaOf(m)?.formula, m).toBe(m.endsWith('i') ? `${base.imm} + shamt` : `${base.reg} + x[rs2][4:0]`);
   });
 
-  it('each retired shift takes the steps its formula gives at its operand, which is 4 + the amount it was written with', () => {
+  it('each retired shift takes the steps its formula gives at its operand, which is the base + the amount it was written with', () => {
     const loaded = loadProgram(new Uint8Array(readFileSync(elfPath)));
     if (!loaded.ok) throw new Error(loaded.error);
     const run = new ProgramRun(plan, loaded.program, { reference: true, loopFormulas: true });
@@ -113,7 +124,7 @@ describe.skipIf(!toolsPresent)('windlass-32\'s loop formulas against a gcc-built
     expect(seen.map((s) => s.mnemonic)).toEqual(written.map((w) => w.mnemonic));
     for (let k = 0; k < seen.length; k++) {
       expect([k, seen[k].mnemonic, seen[k].measured], `shift ${k}`).toEqual([k, written[k].mnemonic, seen[k].formula]);
-      expect([k, seen[k].formula]).toEqual([k, 4 + written[k].amount]);
+      expect([k, seen[k].formula]).toEqual([k, baseOf(written[k].mnemonic) + written[k].amount]);
     }
     // Every form by every amount 0..31 is among them.
     for (const m of SHIFTS) expect(new Set(written.filter((w) => w.mnemonic === m).map((w) => w.amount)).size, m).toBe(32);
@@ -123,7 +134,7 @@ describe.skipIf(!toolsPresent)('windlass-32\'s loop formulas against a gcc-built
     expect(checked.map((c) => c.className)).toEqual(['OP-IMM', 'OP']);
     expect(checked.reduce((n, c) => n + c.loopCheck!.instructions, 0)).toBe(seen.length);
     for (const c of checked) expect([c.className, c.loopCheck!.differing, c.loopCheck!.formulaSteps]).toEqual([c.className, 0, c.loopCheck!.measuredSteps]);
-    expect(formatFigures(figures)).toContain('SLLI..SRAI: 4 + shamt; by the formula ');
+    expect(formatFigures(figures)).toContain(`SLLI..SRAI: ${base.imm} + shamt; by the formula `);
   }, 300_000);
 
   it('exits with qemu-riscv32\'s checksum of the shifted values', () => {
