@@ -122,6 +122,12 @@ interface PortSpec {
 
 export class CustomParts {
   readonly runtimes: PartRuntime[] = [];
+
+  /** Where a part's own state (not its value, not the registers) lives in `customState`, for traces; undefined elsewhere. */
+  stateSlot(partName: string, state: string): number | undefined {
+    const storage = this.runtimes.find((rt) => rt.part.name === partName)?.storage.get(state);
+    return storage?.in === IN_STATE ? storage.base : undefined;
+  }
   private readonly byName = new Map<string, PartRuntime>();
   /** Number of scalar state slots of all parts. */
   stateCount = 0;

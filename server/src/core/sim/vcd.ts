@@ -17,6 +17,7 @@
 // line comes from the caller.
 import type { BusSimulator } from './simulator';
 import { heldValue } from '../model/partFacts';
+import { returnRegisters } from '../model/sequencing';
 
 interface TracedSignal {
   id: string;
@@ -68,6 +69,7 @@ export class VcdTrace {
   private readonly addressSignals: TracedSignal[] = [];
   private readonly partSignals: { signal: TracedSignal; part: number }[] = [];
   private readonly flagSignals: TracedSignal[] = [];
+  private readonly stateSignals: { signal: TracedSignal; slot: number }[] = [];
 
   constructor(
     sim: BusSimulator,
@@ -125,6 +127,11 @@ export class VcdTrace {
       if (heldValue(machine, part)) this.partSignals.push({ signal: declare(part.name, Math.min(32, part.width)), part: i });
     });
     plan.flagNames.forEach((flag) => this.flagSignals.push(declare(flag, 1)));
+    // The sequencer's return registers (a call's saved step), where it has them.
+    for (const name of returnRegisters(machine)) {
+      const slot = plan.custom.stateSlot(machine.sequencer!, name);
+      if (slot !== undefined) this.stateSignals.push({ signal: declare(`${machine.sequencer}.${name}`, Math.max(1, plan.stepBits)), slot });
+    }
     h.push('$upscope $end', '$upscope $end', '$enddefinitions $end');
   }
 
@@ -167,6 +174,7 @@ export class VcdTrace {
     this.addressSignals.forEach((signal, s) => put(signal, binary(addresses[s], signal.width)));
     for (const p of this.partSignals) put(p.signal, binary(sim.partValue[p.part], p.signal.width));
     this.flagSignals.forEach((signal, f) => put(signal, String(sim.flags[f] & 1)));
+    for (const st of this.stateSignals) put(st.signal, binary(sim.customState[st.slot], st.signal.width));
     if (this.steps === 0) this.chunks.push('#0', '$dumpvars', ...changes, '$end');
     else if (changes.length) this.chunks.push(`#${this.steps}`, ...changes);
     this.steps++;
