@@ -47,8 +47,8 @@ describe('a fixed-count loop on a counter preset from the word', () => {
     for (const count of [0, 1, 3, 7]) {
       const machine = analyse(fixedLoopDemo(count)).machine;
       const fence = classCycles(machine, machine.classes.find((c) => c.name === 'MISC-MEM')!);
-      // The fewest along the steps stays 4 (the graph does not read the count); the loop's formula does.
-      expect(fence.instructions.map((i) => [i.mnemonic, i.min, i.loopSteps])).toEqual([['fence', 4, [3]]]);
+      // The loop's formula reads the count: fewest and most are both 4 + count (the graph alone would say 4 + n).
+      expect(fence.instructions.map((i) => [i.mnemonic, i.min, i.max, i.loopSteps])).toEqual([['fence', 4 + count, 4 + count, [3]]]);
       expect(fence.instructions[0].loopCount, `count ${count}`).toMatchObject({ formula: `4 + ${count}`, least: 4 + count, most: 4 + count });
     }
   });

@@ -42,11 +42,11 @@ export interface InstructionCycles {
   max?: number;
   /** Some path runs past the class's last step without `end` (the flag conditions, as above). */
   doesNotEnd?: string[];
-  /** On a sequencer machine: steps that repeat on the way to the end, so `max` is unbounded (`min + n`). */
+  /** On a sequencer machine: steps that repeat on the way to the end, so `max` is unbounded (`min + n`) unless `loopCount` bounds it. */
   loopSteps?: number[];
   /**
    * With `loopSteps`: the steps as a formula of the operand where it is derived (loopBounds.ts:
-   * `4 + shamt`). `min` and `max` keep their meaning (the fewest along the steps; no most).
+   * `4 + shamt`). `min` and `max` are then the formula's fewest and most over the operand's values.
    */
   loopCount?: LoopCount;
 }
@@ -60,7 +60,7 @@ export interface ClassCycles {
   doesNotEnd: boolean;
   /** The guards test more inputs than a walk enumerates. */
   tooManyInputs: boolean;
-  /** Some instruction runs a loop (a sequencer machine): `max` is then the most of the others. */
+  /** Some instruction runs a loop whose count is not derived (a sequencer machine): `max` is then the most of the others. */
   loops: boolean;
 }
 
@@ -90,7 +90,7 @@ export function classCycles(machine: Machine, cls: ClassDef): ClassCycles {
     max: maxes.length ? Math.max(...maxes) : undefined,
     doesNotEnd: instructions.some((i) => i.doesNotEnd !== undefined),
     tooManyInputs: instructions.some((i) => i.counts === undefined),
-    loops: instructions.some((i) => i.loopSteps !== undefined),
+    loops: instructions.some((i) => i.loopSteps !== undefined && i.loopCount === undefined),
   };
 }
 
@@ -204,7 +204,8 @@ function sequencedCycles(machine: Machine, cls: ClassDef, cube: Cube, free: numb
   }
   const counts: StepCount[] = loopSteps.length || max === min ? [{ steps: min, conditions: [] }] : [{ steps: min, conditions: [] }, { steps: max, conditions: [] }];
   const loopCount = loopSteps.length && !stuck ? loopCountOf(machine, cls, cube, free, loopSteps) : undefined;
-  return { counts, min, max: loopSteps.length ? undefined : max, ...(loopSteps.length && { loopSteps }), ...(loopCount && { loopCount }), ...(stuck && { doesNotEnd: [] }) };
+  // A loop whose count is a formula of the operand is bounded: its most steps are the formula's at the operand's widest value.
+  return { counts, min: loopCount ? loopCount.least : min, max: loopSteps.length ? loopCount?.most : max, ...(loopSteps.length && { loopSteps }), ...(loopCount && { loopCount }), ...(stuck && { doesNotEnd: [] }) };
 }
 
 function addConditions(conditions: string[], added: string[]): string[] {
