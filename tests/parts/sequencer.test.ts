@@ -9,6 +9,8 @@ import { decodeWord, encodeMachine } from '../../server/src/core/encode/encoder'
 import { hover } from '../../server/src/core/ide/hover';
 import { parse } from '../../server/src/core/syntax/parser';
 import { expectDiagnostics } from '../support/annotated';
+import { planBuild } from '../../server/src/core/encode/plan';
+import { nextAddressShiftDemo } from '../support/sequencer';
 
 /** A small sketch (no `isa`): one register, the library's sequencer with 2 step bits, its fields; lines as given. */
 function sketch(parts: string[], steps: string[], extra: string[] = [], classLine = ['class X opcode=0110011']): string {
@@ -185,5 +187,37 @@ describe('a sequencer part in the notation', () => {
     const text = sketch(seq, clean);
     const shown = hover(analyse(text), text.indexOf('field next') + 7);
     expect(JSON.stringify(shown)).toContain('a number field (a step sets it with a number, 0 to 3), read by `seq` (input `target`)');
+  });
+});
+
+describe('step sugar on a next-address sequencer (the library nextstep)', () => {
+  // The sugar stands for the number field whose code alone is the next step (docs/notation.md,
+  // "Sequencing"): the images must be the very words the fields give when written out.
+  const images = (text: string, clean = true) => {
+    const analysis = analyse(text);
+    if (clean) expect(analysis.diagnostics.filter((d) => d.severity === 'error').map((d) => d.message)).toEqual([]);
+    const plan = planBuild(analysis.machine, { stem: 't', source: 't.pwt', formats: ['memh'] });
+    return plan.files.map((f) => (f.kind === 'text' ? [...f.chunks()].join('') : Buffer.from(f.image.words.buffer).toString('hex')));
+  };
+
+  it('`end`, `goto N` and `wait` give the words of `nx=0`, `nx=N` and `nx=<the step>`', () => {
+    const written = nextAddressShiftDemo();
+    const sugared = written
+      .replaceAll(', nx=0', ', end')
+      .replace('  3: imm.fmt=i, imm.oe, alu.fn=passb, alu.oe, sh.ld, nx=4', '  3: imm.fmt=i, imm.oe, alu.fn=passb, alu.oe, sh.ld, goto 4')
+      .replace('  4 if !shz: acc.oe, one.oe, alu.fn=sll, alu.oe, acc.ck, sh.dn, nx=4', '  4 if !shz: acc.oe, one.oe, alu.fn=sll, alu.oe, acc.ck, sh.dn, wait');
+    expect(sugared).toContain('wait');
+    expect(sugared).not.toContain(', nx=0');
+    expect(images(written).join('').length, 'the images are compared as text').toBeGreaterThan(10_000);
+    expect(images(sugared)).toEqual(images(written));
+    // Not vacuous: a wait in another step gives other words.
+    expect(images(sugared.replace('sh.ld, goto 4', 'sh.ld, goto 5'), false)).not.toEqual(images(written));
+  });
+
+  it('`wait` in a phase is an error at the word: the step it stands at moves with `use`', () => {
+    const text = nextAddressShiftDemo().replace(/phase fetch "[^"]*"\n {2}0: ([^\n]*), nx=1/, (m, actions) => m.replace(`${actions}, nx=1`, `${actions}, wait`));
+    expect(text).toContain(', wait');
+    const d = analyse(text).diagnostics.filter((x) => x.code === 'wrong-wiring');
+    expect(d.map((x) => x.message)[0]).toContain('a phase does not know');
   });
 });

@@ -5,6 +5,7 @@ import type { Span } from '../text/span';
 import { closest } from '../text/suggest';
 import type { BuildContext } from './build';
 import { parseBits, parseNumber } from './numbers';
+import { sequencerMove } from './sequencing';
 import type * as M from './types';
 import { inputWidth } from './vocabulary';
 
@@ -96,7 +97,7 @@ function buildPhase(ctx: BuildContext, decl: A.PhaseDecl): void {
   const phase: M.Phase = { name: decl.name!.text, description: decl.description?.value, steps: [], symbol: ctx.lookup('phase', decl.name!.text)! };
   for (const item of decl.body) {
     if (item.kind === 'step') {
-      const alt = buildStep(ctx, item);
+      const alt = buildStep(ctx, item, true);
       if (alt) phase.steps.push(alt);
     }
   }
@@ -144,7 +145,7 @@ function buildClass(ctx: BuildContext, decl: A.ClassDecl): void {
       }
       nextStep = Math.max(nextStep, last + 1);
     } else {
-      const alt = buildStep(ctx, item);
+      const alt = buildStep(ctx, item, false);
       if (!alt) continue;
       add(alt);
       nextStep = Math.max(nextStep, alt.step + 1);
@@ -153,14 +154,14 @@ function buildClass(ctx: BuildContext, decl: A.ClassDecl): void {
   ctx.machine.classes.push(cls);
 }
 
-function buildStep(ctx: BuildContext, line: A.StepLine): M.StepAlt | undefined {
+function buildStep(ctx: BuildContext, line: A.StepLine, inPhase: boolean): M.StepAlt | undefined {
   const step = ctx.number(line.number, 'a step number', 0, 1023);
   if (step === undefined) return undefined;
   const alt: M.StepAlt = { step, guard: null, isElse: false, actions: [], span: line.span, numberSpan: line.number.span };
   if (line.guard?.elseKeyword) alt.isElse = true;
   else if (line.guard) alt.guard = buildGuard(ctx, line.guard);
   for (const action of line.actions) {
-    const sugar = sequencerAction(ctx, action);
+    const sugar = sequencerAction(ctx, action, inPhase ? undefined : step);
     const built = sugar === undefined ? buildAction(ctx, action) : sugar;
     if (Array.isArray(built)) alt.actions.push(...built);
     else if (built) alt.actions.push(built);
@@ -212,7 +213,7 @@ const SEQUENCER_SUGAR: Record<string, string> = { goto: 'load', wait: 'hold', en
  * input reads. Returns undefined when the action is not sugar here (a declared strobe or
  * field of that name, or a machine without a sequencer): then it is an ordinary action.
  */
-function sequencerAction(ctx: BuildContext, action: A.ActionNode): M.Action[] | null | undefined {
+function sequencerAction(ctx: BuildContext, action: A.ActionNode, step: number | undefined): M.Action[] | null | undefined {
   const word = action.target.name.text;
   const sugar = Object.hasOwn(SEQUENCER_SUGAR, word) ? SEQUENCER_SUGAR[word] : undefined;
   if (!sugar || action.target.index || action.equals) return undefined;
@@ -227,6 +228,8 @@ function sequencerAction(ctx: BuildContext, action: A.ActionNode): M.Action[] | 
     return undefined;
   }
   const control = seq.def.controls.find((c) => c.values.includes(sugar));
+  // A next-address sequencer has no op to set: the step is the number a field gives.
+  if (!control && word !== 'call' && word !== 'return') return nextFieldAction(ctx, seq, action, word, step);
   const opField = control ? seq.controlFields.get(control.name) : undefined;
   const op = opField ? ctx.machine.signals.get(opField) : undefined;
   const code = op?.type === 'field' ? op.values.get(sugar)?.code : undefined;
@@ -248,6 +251,34 @@ function sequencerAction(ctx: BuildContext, action: A.ActionNode): M.Action[] | 
     actions.push(number);
   }
   return actions;
+}
+
+/**
+ * The step sugar on a sequencer with no control for it (a next-address one, the library's
+ * `nextstep`): the number field whose code is the next step when the word sets nothing else,
+ * as its definition computes (tried with two numbers), set to N (`goto N`), 0 (`end`) or the
+ * step's own number (`wait`, in a class's own step; a phase's step numbers move with `use`).
+ */
+function nextFieldAction(ctx: BuildContext, seq: M.Part, action: A.ActionNode, word: string, step: number | undefined): M.Action[] | null {
+  const machine = ctx.machine;
+  const fields = [...seq.inputs.values()].flatMap((i) => (i.from === 'field' ? [machine.signals.get(i.name)] : [])).filter((f): f is M.Field => f?.type === 'field' && f.numeric === true);
+  const gives = (field: M.Field) =>
+    [1, 2].every((n) => sequencerMove(machine, { step: 0, guard: null, isElse: false, actions: [{ signal: field.name, value: { kind: 'code', name: String(n), code: n }, span: action.span }], span: action.span, numberSpan: action.span }, 0)?.to === n);
+  const field = fields.find(gives);
+  if (!field) {
+    ctx.report('wrong-wiring', action.target.span, `\`${word}\` needs a way to set the sequencer \`${seq.name}\`'s next step: an op control with the value \`${SEQUENCER_SUGAR[word]}\`, or a number field that alone gives the next step; write the fields instead`);
+    return null;
+  }
+  if (word === 'wait' && step === undefined) {
+    ctx.report('wrong-wiring', action.target.span, `\`wait\` on the next-address sequencer \`${seq.name}\` sets \`${field.name}\` to the step's own number, which a phase does not know (\`use\` moves it); write \`${field.name}=N\` in the phase, or the wait in the class`);
+    return null;
+  }
+  if (word === 'goto') {
+    const number = numberAction(ctx, field, { ...action, equals: action.span });
+    return number ? [number] : null;
+  }
+  const code = word === 'end' ? 0 : step!;
+  return [{ signal: field.name, value: { kind: 'code', name: String(code), code }, span: action.span }];
 }
 
 function buildAction(ctx: BuildContext, action: A.ActionNode): M.Action | undefined {
