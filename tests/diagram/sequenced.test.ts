@@ -236,7 +236,7 @@ describe('other loop shapes', () => {
 });
 
 describe('machines without a sequencer', () => {
-  // SHA-256 of the SVG text, recorded on 2026-12-09 by drawing with commit d17128e (before the
+  // SHA-256 of the SVG text, recorded on 2026-12-04 by drawing with commit d17128e (before the
   // columns followed a sequencer). They must not change: such machines' steps count up in number order.
   const pinned: [string, string, string, boolean, 'light' | 'auto', string][] = [
     ['halyard-32.pwt', 'BRANCH', 'taken=1', false, 'light', '383f8f52f3495acc70668c4aaad49dd159668c1e08a6bc5c8d7cf485b78ef756'],
