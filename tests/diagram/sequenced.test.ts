@@ -235,6 +235,29 @@ describe('other loop shapes', () => {
   });
 });
 
+describe('partial and broken sequencer tables', () => {
+  it('draw every class of every prefix of windlass-32 (cut every 61 characters) and of the sequencer fault examples, within the bound', () => {
+    const texts = [...Array(Math.ceil(WINDLASS.length / 61)).keys()].map((k) => WINDLASS.slice(0, k * 61));
+    for (const name of ['micro-loop', 'loop-exit-unchanged', 'jump-outside', 'step-unreachable']) texts.push(readFileSync(join(REPO, 'examples', 'faults', `${name}.pwt`), 'utf8'));
+    let drawn = 0;
+    for (const text of texts) {
+      const machine = analyse(text).machine;
+      for (const cls of machine.classes) {
+        for (const loopCount of [0, 3]) {
+          const { svg, model: m } = timingDiagram(machine, cls, choiceOf(machine, ''), { loopCount });
+          expect(svg.startsWith('<svg ')).toBe(true);
+          expect(m.columns.length).toBeLessThanOrEqual(maxSequencedColumns);
+          if (m.sequence) {
+            expect(m.columns[0]?.step ?? 0).toBe(0);
+            drawn++;
+          }
+        }
+      }
+    }
+    expect(drawn).toBeGreaterThan(100);
+  });
+});
+
 describe('machines without a sequencer', () => {
   // SHA-256 of the SVG text, recorded on 2026-12-04 by drawing with commit d17128e (before the
   // columns followed a sequencer). They must not change: such machines' steps count up in number order.
