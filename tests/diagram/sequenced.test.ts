@@ -16,7 +16,7 @@ import { analyse } from '../../server/src/core/analysis';
 import { parseGuardChoice } from '../../server/src/core/diagram/guardChoice';
 import { maxSequencedColumns } from '../../server/src/core/diagram/sequencedPath';
 import { timingDiagram } from '../../server/src/core/diagram/timing';
-import { findClass, timingModel } from '../../server/src/core/diagram/timingModel';
+import { findClass, loopText, timingModel } from '../../server/src/core/diagram/timingModel';
 import { encodeMachine } from '../../server/src/core/encode/encoder';
 import { chipHexOfWord } from '../../server/src/core/encode/listing';
 import type { Machine } from '../../server/src/core/model/types';
@@ -109,7 +109,7 @@ describe('the diagram of a shift on windlass-32 follows the sequencer', () => {
     expect(exit.alt?.isElse).toBe(true);
     expect(exit.alt?.actions.map((a) => a.signal)).toEqual(expect.arrayContaining(['t.oe', 'x.rd.ck']));
     // shz is the loop's, not the choice's: 0 while it repeats, 1 on the way out.
-    expect(m.sequence?.loops).toEqual([{ steps: [3], first: 3, last: 6, entry: 3, repeats: 3, flags: [{ name: 'shz', round: 0, out: 1 }], forEver: false }]);
+    expect(m.sequence?.loops).toEqual([{ steps: [3], first: 3, last: 6, entry: 3, repeats: 3, flags: [{ name: 'shz', round: 0, out: 1 }], forEver: false, cut: false }]);
     expect(m.notes.join('\n')).toContain('the loop count (3) sets shz: shz=0 while it repeats, shz=1 on the way out');
     // The strobes follow the columns: x.rd.ck only in the way out, t.left in the three repeats.
     expect(m.strobes.find((s) => s.name === 'x.rd.ck')!.asserted).toEqual([false, false, false, false, false, false, true]);
@@ -181,6 +181,8 @@ describe('the diagram of a shift on windlass-32 follows the sequencer', () => {
     expect(m.columns).toHaveLength(maxSequencedColumns);
     expect(m.sequence?.cut).toEqual({ kind: 'bound', columns: maxSequencedColumns, canEnd: true });
     expect(m.notes.join('\n')).toContain(`The path is longer than ${maxSequencedColumns} columns`);
+    expect(m.sequence?.loops).toMatchObject([{ steps: [3], repeats: maxSequencedColumns - 4, cut: true }]);
+    expect(loopText(m.sequence!.loops[0])).toBe(`step 3 repeats ${maxSequencedColumns - 4} times (shz=0): cut before its way out`);
   });
 });
 

@@ -62,6 +62,8 @@ export interface PathLoop {
   flags: { name: string; round?: number; out?: number }[];
   /** True when no path from the loop returns to step 0: the run is cut. */
   forEver: boolean;
+  /** True when the drawing stops within the run (before the loop's way out). */
+  cut: boolean;
 }
 
 export type PathCut =
@@ -141,6 +143,7 @@ export function sequencedPath(machine: Machine, cls: ClassDef, decoder: PointDec
     step = chosen.next;
   }
   const loops = drawnLoops(columns, loopsOf(graph), ending);
+  for (const loop of loops) loop.cut = cut !== undefined && loop.last === columns.length - 1;
   for (const loop of loops) holdLoopFlags(machine, cls, decoder, columns, loop);
   return { columns, loops, cut };
 }
@@ -250,7 +253,7 @@ function drawnLoops(columns: PathColumn[], loops: number[][], ending: Set<number
       }
       return { name, round: round.size === 1 ? [...round][0] : undefined, out: out.size === 1 ? [...out][0] : undefined };
     });
-    drawn.push({ steps: loop, first: i, last, entry, repeats, flags, forEver: !loop.some((s) => ending.has(s)) });
+    drawn.push({ steps: loop, first: i, last, entry, repeats, flags, forEver: !loop.some((s) => ending.has(s)), cut: false });
     i = last + 1;
   }
   return drawn;

@@ -342,6 +342,7 @@ export function loopText(loop: PathLoop): string {
   const single = loop.steps.length === 1;
   if (loop.forEver) return `${single ? `step ${loop.entry} repeats` : `${stepsText(loop.steps)} loop`} for ever: no way out (cut)`;
   const what = single ? `step ${loop.entry} repeats ${timesText(loop.repeats)}` : `${stepsText(loop.steps)} loop, back to step ${loop.entry} ${timesText(loop.repeats)}`;
+  if (loop.cut) return `${what}${round ? ` (${round})` : ''}: cut before its way out`;
   return `${what}${round ? ` (${round})` : ''}, then ${single ? 'leaves' : 'out'}${out ? ` (${out})` : ''}`;
 }
 
