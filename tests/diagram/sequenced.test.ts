@@ -22,6 +22,7 @@ import { chipHexOfWord } from '../../server/src/core/encode/listing';
 import type { Machine } from '../../server/src/core/model/types';
 import { ProgramRun } from '../../server/src/core/sim/lockstep';
 import { REPO, assemble, exitWords, ins, planOf, programOf } from '../sim/support';
+import { dispatchDemo } from '../support/sequencer';
 
 const WINDLASS = readFileSync(join(REPO, 'examples', 'windlass-32.pwt'), 'utf8');
 
@@ -222,6 +223,33 @@ describe('other loop shapes', () => {
     // Step 3 runs with the flag as the test before it left it; the last pass's step 3 with
     // shz=0 still, its count down making the test after it see 1.
     expectSimulated(analysis.machine, m, simulated);
+  });
+
+  it('follows a call to a routine and its return (examples/winch-32.pwt) as the simulator runs it', () => {
+    // OP calls the shift routine at step 8 from step 3 and returns to step 4: 6 + n steps (the table's header).
+    const text = readFileSync(join(REPO, 'examples', 'winch-32.pwt'), 'utf8');
+    const machine = analyse(text).machine;
+    const simulated = simulatedShift(text, 'sll', 3);
+    expect(simulated).toHaveLength(6 + 3);
+    const m = model(machine, 'OP', 'funct3=001,shz=1', 3);
+    expect(m.columns.map((c) => c.step)).toEqual([0, 1, 2, 3, 8, 8, 8, 8, 4]);
+    expectSimulated(machine, m, simulated);
+    // The call and the return are jumps, not loops: only the routine's hold goes round.
+    expect(m.columns.map((c) => c.goesRound)).toEqual([false, false, false, false, true, true, true, false, false]);
+    expect(m.sequence?.loops).toMatchObject([{ steps: [8], first: 4, last: 7, repeats: 3 }]);
+  });
+
+  it('follows a jump table\'s row (windlass-32 with OP-IMM dispatched on funct3) as the simulator runs it', () => {
+    const text = dispatchDemo();
+    const machine = analyse(text).machine;
+    // Here every OP-IMM loads the counter at step 2, so the instruction before (addi x6 = 3) left
+    // it at 3: shz is 0 when the next one starts, as the choice says.
+    for (const [mnemonic, guard, steps] of [['slli', 'funct3=001,shz=0', [0, 1, 2, 3, 3, 3, 3]], ['addi', 'funct3=000,shz=0', [0, 1, 2, 4]]] as const) {
+      const simulated = simulatedShift(text, mnemonic, 3);
+      const m = model(machine, 'OP-IMM', guard, 3);
+      expect(m.columns.map((c) => c.step), mnemonic).toEqual([...steps]);
+      expectSimulated(machine, m, simulated, mnemonic);
+    }
   });
 
   it('cuts a loop with no way out after the loop count, naming the step (examples/faults/micro-loop.pwt)', () => {

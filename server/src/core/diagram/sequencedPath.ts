@@ -1,11 +1,12 @@
 // The steps a timing diagram shows on a machine with a sequencer part, in the order the
 // sequencer takes them: from step 0, each column's word (the encoder's point decoder picks it
-// with the guard choice's bits and flags) sends the sequencer where model/sequencing.ts says,
-// until it returns to step 0. A loop is drawn for a chosen loop count: where a step's
+// with the guard choice's bits and flags) sends the sequencer along the instruction's step
+// graph (flow/stepGraph.ts: jumps, holds, a jump table's row, calls and returns, each node the
+// step with what the return registers hold), until it returns to step 0. A loop is drawn for a chosen loop count: where a step's
 // alternatives part ways between going round again and going on (the flags its guards test
 // decide which), the first `loopCount` visits go round and the next one goes on, whatever the
 // guard choice says of those flags. Going round is either staying at the step (a hold, or a
-// jump to itself) or going to a step from which the walk can come back (flow/stepGraph.ts's
+// jump to itself) or going to a node from which the walk can come back (the graph's
 // reachability); a step with both and a way on first repeats itself, then goes round the larger
 // loop, so nested loops are drawn each for the count. A path that never returns to step 0 is
 // cut: at a bound of columns, or once a step no path leads back to 0 from has been drawn the
@@ -22,9 +23,8 @@ import { guardInputs } from '../checks/inputSpace';
 import { flagChangedIn } from '../checks/loopExit';
 import type { PointDecode, PointDecoder } from '../encode/decodePoint';
 import type { PointInputs } from '../encode/universe';
-import { endingSteps, loopsOf, reachableFrom, stepGraph } from '../flow/stepGraph';
-import { nextStepOf } from '../model/sequencing';
-import type { ClassDef, Machine } from '../model/types';
+import { type StepGraph, endingSteps, loopsOf, reachableFrom, stepGraph, stepsOfNodes } from '../flow/stepGraph';
+import type { ClassDef, Machine, StepAlt } from '../model/types';
 
 /** The loop count a diagram draws when none is asked for. */
 export const defaultLoopCount = 2;
@@ -41,6 +41,12 @@ export function loopCountProblem(count: unknown): string | undefined {
 
 export interface PathColumn {
   step: number;
+  /** The step graph's node: the step, and what the return registers hold. */
+  node: number;
+  /** The node the sequencer goes to (0: the end); undefined when the word does not fix it. */
+  nextNode?: number;
+  /** True when the next node comes back to this one: a loop goes round (a hold, a jump back). */
+  goesRound: boolean;
   point: PointInputs;
   decoded: PointDecode;
   /** The step the sequencer goes to after this column; undefined when the word does not fix it. */
@@ -69,7 +75,8 @@ export interface PathLoop {
 export type PathCut =
   | { kind: 'bound'; columns: number; canEnd: boolean }
   | { kind: 'for-ever'; step: number; times: number }
-  | { kind: 'unknown-next'; step: number };
+  | { kind: 'unknown-next'; step: number }
+  | { kind: 'not-followed'; step: number };
 
 export interface SequencedPath {
   columns: PathColumn[];
@@ -92,6 +99,7 @@ interface Option {
 export function sequencedPath(machine: Machine, cls: ClassDef, decoder: PointDecoder, base: PointInputs, loopCount: number): SequencedPath {
   const graph = stepGraph(machine, cls, { mask: 0xffffffff, value: base.ir >>> 0 });
   const ending = endingSteps(graph);
+  const stepOf = (node: number) => (node === 0 ? 0 : graph.stepOf(node));
   const comesBack = new Map<number, Set<number>>();
   const reach = (from: number) => {
     let found = comesBack.get(from);
@@ -102,10 +110,11 @@ export function sequencedPath(machine: Machine, cls: ClassDef, decoder: PointDec
   const visits = new Map<number, number>();
   const columns: PathColumn[] = [];
   let cut: PathCut | undefined;
-  let step = 0;
+  let node = 0;
   for (;;) {
+    const step = stepOf(node);
     if (columns.length >= maxSequencedColumns) {
-      cut = { kind: 'bound', columns: columns.length, canEnd: ending.has(step) };
+      cut = { kind: 'bound', columns: columns.length, canEnd: ending.has(node) };
       break;
     }
     const alts = cls.steps.get(step) ?? [];
@@ -115,8 +124,8 @@ export function sequencedPath(machine: Machine, cls: ClassDef, decoder: PointDec
       const flags = new Map(base.flags);
       tested.forEach((f, i) => flags.set(f, (combo >> i) & 1));
       const decoded = decoder.decode({ ...base, step, flags });
-      const next = nextStepOf(machine, decoded.cls === cls ? decoded.alt : undefined, step);
-      const level = next === undefined ? undefined : next === 0 ? 2 : next === step ? 0 : reach(next).has(step) ? 1 : 2;
+      const next = nextNode(graph, node, decoded.cls === cls ? decoded.alt : undefined, flags);
+      const level = next === undefined ? undefined : next === 0 ? 2 : next === node ? 0 : reach(next).has(node) ? 1 : 2;
       options.push({ flags, decoded, next, level });
     }
     const chosenIndex = options.findIndex((o) => tested.every((f) => o.flags.get(f) === base.flags.get(f)));
@@ -124,25 +133,36 @@ export function sequencedPath(machine: Machine, cls: ClassDef, decoder: PointDec
     let loopFlags: string[] = [];
     const levels = [...new Set(options.map((o) => o.level).filter((l): l is number => l !== undefined))].sort((a, b) => a - b);
     if (levels.length > 1 && options.every((o) => o.level !== undefined)) {
-      const wanted = pickLevel(levels, counters, step, loopCount);
+      const wanted = pickLevel(levels, counters, node, loopCount);
       chosen = closest(options.filter((o) => o.level === wanted), base.flags, tested);
       loopFlags = decidingFlags(options, tested);
     }
-    columns.push({ step, point: { ...base, step, flags: chosen.flags }, decoded: chosen.decoded, next: chosen.next, loopFlags });
-    visits.set(step, (visits.get(step) ?? 0) + 1);
-    if (chosen.next === undefined) {
-      cut = { kind: 'unknown-next', step };
+    const to = chosen.next;
+    columns.push({
+      step,
+      node,
+      nextNode: to,
+      goesRound: chosen.level !== undefined && chosen.level < 2,
+      point: { ...base, step, flags: chosen.flags },
+      decoded: chosen.decoded,
+      next: to === undefined ? undefined : stepOf(to),
+      loopFlags,
+    });
+    visits.set(node, (visits.get(node) ?? 0) + 1);
+    if (to === undefined) {
+      // A next step read from a bus (the graph marks it), or a return no call of the instruction saved.
+      cut = graph.unknown.has(node) ? { kind: 'unknown-next', step } : { kind: 'not-followed', step };
       break;
     }
-    if (chosen.next === 0) break;
+    if (to === 0) break;
     const times = Math.max(loopCount, 1);
-    if (!ending.has(chosen.next) && (visits.get(chosen.next) ?? 0) >= times) {
-      cut = { kind: 'for-ever', step: chosen.next, times };
+    if (!ending.has(to) && (visits.get(to) ?? 0) >= times) {
+      cut = { kind: 'for-ever', step: stepOf(to), times };
       break;
     }
-    step = chosen.next;
+    node = to;
   }
-  const loops = drawnLoops(columns, loopsOf(graph), ending);
+  const loops = drawnLoops(graph, columns, loopsOf(graph), ending);
   for (const loop of loops) loop.cut = cut !== undefined && loop.last === columns.length - 1;
   for (const loop of loops) holdLoopFlags(machine, cls, decoder, columns, loop);
   return { columns, loops, cut };
@@ -186,14 +206,21 @@ function holdLoopFlags(machine: Machine, cls: ClassDef, decoder: PointDecoder, c
   }
 }
 
+/** The node the edge of `alt` out of `node` goes to under the flag values (0: the end), if the graph has one. */
+function nextNode(graph: StepGraph, node: number, alt: StepAlt | undefined, flags: Map<string, number>): number | undefined {
+  const edges = (graph.out.get(node) ?? []).filter((e) => e.alt === alt);
+  const taken = edges.find((e) => e.flags.some((f) => [...f].every(([name, value]) => flags.get(name) === value)));
+  return (taken ?? (edges.length === 1 ? edges[0] : undefined))?.to;
+}
+
 /**
  * Which way a step that parts ways goes on this visit: the lowest level present that has gone
  * round fewer than `loopCount` times since the step last went a higher way (each such turn
  * resets the counts below it), else the highest level, which resets them all.
  */
-function pickLevel(levels: number[], counters: Map<number, [number, number]>, step: number, loopCount: number): number {
-  let count = counters.get(step);
-  if (!count) counters.set(step, (count = [0, 0]));
+function pickLevel(levels: number[], counters: Map<number, [number, number]>, node: number, loopCount: number): number {
+  let count = counters.get(node);
+  if (!count) counters.set(node, (count = [0, 0]));
   const top = levels[levels.length - 1];
   for (const level of levels) {
     if (level === top) break;
@@ -227,21 +254,21 @@ function decidingFlags(options: Option[], tested: string[]): string[] {
   return tested.filter((_, i) => options.some((o, combo) => options[combo ^ (1 << i)].level !== o.level));
 }
 
-/** Runs of neighbouring columns whose steps are on one loop of the graph, as drawn. */
-function drawnLoops(columns: PathColumn[], loops: number[][], ending: Set<number>): PathLoop[] {
-  const loopOf = (step: number) => loops.find((l) => l.includes(step));
+/** Runs of neighbouring columns whose nodes are on one loop of the graph, as drawn. */
+function drawnLoops(graph: StepGraph, columns: PathColumn[], loops: number[][], ending: Set<number>): PathLoop[] {
+  const loopOf = (node: number) => loops.find((l) => l.includes(node));
   const drawn: PathLoop[] = [];
   for (let i = 0; i < columns.length; ) {
-    const loop = loopOf(columns[i].step);
+    const loop = loopOf(columns[i].node);
     if (!loop) {
       i++;
       continue;
     }
     let last = i;
-    while (last + 1 < columns.length && loop.includes(columns[last + 1].step)) last++;
-    const entry = columns[i].step;
+    while (last + 1 < columns.length && loop.includes(columns[last + 1].node)) last++;
+    const entry = columns[i].node;
     let repeats = 0;
-    for (let k = i + 1; k <= last; k++) if (columns[k].step === entry) repeats++;
+    for (let k = i + 1; k <= last; k++) if (columns[k].node === entry) repeats++;
     const names = [...new Set(columns.slice(i, last + 1).flatMap((c) => c.loopFlags))];
     const flags = names.map((name) => {
       const round = new Set<number>();
@@ -249,11 +276,11 @@ function drawnLoops(columns: PathColumn[], loops: number[][], ending: Set<number
       for (let k = i; k <= last; k++) {
         const c = columns[k];
         if (!c.loopFlags.includes(name)) continue;
-        (c.next !== undefined && c.next !== 0 && loop.includes(c.next) ? round : out).add(c.point.flags.get(name)!);
+        (c.nextNode !== undefined && c.nextNode !== 0 && loop.includes(c.nextNode) ? round : out).add(c.point.flags.get(name)!);
       }
       return { name, round: round.size === 1 ? [...round][0] : undefined, out: out.size === 1 ? [...out][0] : undefined };
     });
-    drawn.push({ steps: loop, first: i, last, entry, repeats, flags, forEver: !loop.some((s) => ending.has(s)), cut: false });
+    drawn.push({ steps: stepsOfNodes(graph, loop), first: i, last, entry: columns[i].step, repeats, flags, forEver: !loop.some((n) => ending.has(n)), cut: false });
     i = last + 1;
   }
   return drawn;

@@ -66,21 +66,19 @@ function columnLabels(model: TimingModel, i: number): { step: string; guard: str
   return { step: `step ${c.step}${c.visit ? ` (${ordinal(c.visit)})` : ''}`, guard: c.guard ?? '', note, next: model.sequence ? nextLabel(model, i) : '' };
 }
 
-/** Where the sequencer goes at a column's closing edge: `→ 4`, `→ 6 jump`, `↩ 3 stays`, `↩ 2 back`, `→ 0 ends`. */
+/** Where the sequencer goes at a column's closing edge: `→ 4`, `→ 6 jump`, `↩ 3 stays`, `↩ 2 back` (round a loop), `→ 0 ends`. */
 function nextLabel(model: TimingModel, i: number): string {
   const c = model.columns[i];
   const cut = i === model.columns.length - 1 && model.sequence?.cut ? ' (cut)' : '';
   if (c.next === undefined) return `→ ?${cut}`;
   if (c.next === 0) return '→ 0 ends';
-  if (c.next === c.step) return `↩ ${c.next} stays${cut}`;
-  if (c.next < c.step) return `↩ ${c.next} back${cut}`;
+  if (c.goesRound) return `↩ ${c.next} ${c.next === c.step ? 'stays' : 'back'}${cut}`;
   return `→ ${c.next}${c.next === c.step + 1 ? '' : ' jump'}${cut}`;
 }
 
-/** True where the sequencer goes back to an earlier step, or stays, at the column's closing edge. */
+/** True where the sequencer goes round a loop at the column's closing edge: it stays, or goes back to a step that comes here again. */
 function goesBack(model: TimingModel, i: number): boolean {
-  const c = model.columns[i];
-  return c.next !== undefined && c.next !== 0 && c.next <= c.step;
+  return model.columns[i].goesRound === true;
 }
 
 function busLabel(cell: { drivers: string[] }, keeper: boolean): string {
@@ -145,7 +143,7 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
   ];
   if (sequence) {
     legend.push('Columns follow the sequencer from step 0 until it returns there; under each header, where it goes next.');
-    legend.push('Solid verticals (↩): it goes back to an earlier step or stays. Brackets span the loops, drawn for the loop count.');
+    legend.push('Solid verticals (↩): it goes round a loop (stays, or goes back). Brackets span the loops, drawn for the loop count.');
   }
   const headLines: { content: string; px: number; cls: string; weight?: 'bold' }[] = [
     { content: title, px: size.title, cls: 'fg', weight: 'bold' },

@@ -37,6 +37,8 @@ export interface TimingColumn {
   visit?: number;
   /** On a sequencer machine: the step the sequencer goes to at the closing edge (undefined where the word does not fix it). */
   next?: number;
+  /** On a sequencer machine: true when that step comes back to this one (a loop goes round: a hold, a jump back). */
+  goesRound?: boolean;
   /** On a sequencer machine: the flags of the step's guards that the loop count set here, not the guard choice. */
   loopFlags?: string[];
 }
@@ -231,6 +233,7 @@ export function timingModel(machine: Machine, cls: ClassDef, choice: GuardChoice
         alt,
         visit: times.get(c.step)! > 1 ? seen.get(c.step) : undefined,
         next: c.next,
+        goesRound: c.goesRound,
         loopFlags: c.loopFlags,
       });
       decodes.push(alt ? c.decoded : undefined);
@@ -367,7 +370,9 @@ function sequenceNotes(sequence: TimingSequence, choice: GuardChoice): string[] 
   } else if (cut?.kind === 'for-ever') {
     notes.push(`No path from step ${cut.step} returns to step 0 (micro-loop): the sequencer would go round for ever; drawn ${timesText(cut.times)}, then cut.`);
   } else if (cut?.kind === 'unknown-next') {
-    notes.push(`The step after step ${cut.step} is not fixed by its word (a decode map or a bus gives it): the drawing stops there.`);
+    notes.push(`The step after step ${cut.step} is not fixed by its word (a bus gives it): the drawing stops there.`);
+  } else if (cut?.kind === 'not-followed') {
+    notes.push(`The step after step ${cut.step} is not followed (a return to a step no call of this instruction saved): the drawing stops there.`);
   }
   if (sequence.notDrawn.length) notes.push(`S${stepsText(sequence.notDrawn).slice(1)} of the class ${sequence.notDrawn.length > 1 ? 'are' : 'is'} not on this path (another guard choice takes ${sequence.notDrawn.length > 1 ? 'them' : 'it'}).`);
   return notes;
