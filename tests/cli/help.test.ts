@@ -61,7 +61,7 @@ describe('help', () => {
 
   it('shows every option of diagram, fit and run in their usage lines', async () => {
     const overview = (await run('help')).out;
-    expect(overview).toContain('phasewright diagram FILE --class NAME [--guard IN=BITS,...] [--all] [--theme light|dark|auto] -o FILE.svg');
+    expect(overview).toContain('phasewright diagram FILE --class NAME [--guard IN=BITS,...] [--loop-count N] [--all] [--theme light|dark|auto] -o FILE.svg');
     expect(overview).toMatch(/phasewright fit FILE --device gal16v8\|gal22v10 .*\[--keep-fill\] \[--vectors N\] \[--mode MODE\]/);
     expect(overview).toMatch(/phasewright run FILE PROGRAM .*\[--force\] \[--config FILE\]/);
   });

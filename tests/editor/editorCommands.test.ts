@@ -16,8 +16,10 @@ const tmp = join(root, 'tests/.tmp/editor-commands');
 const demoUri = 'file:///work/examples/halyard-32.pwt';
 const faultUri = 'file:///work/examples/faults/bus-contention.pwt';
 const demoText = readFileSync(join(root, 'examples/halyard-32.pwt'), 'utf8');
+const windlassUri = 'file:///work/examples/windlass-32.pwt';
 const open = new Map<string, Analysis>([
   [demoUri, analyse(demoText)],
+  [windlassUri, analyse(readFileSync(join(root, 'examples/windlass-32.pwt'), 'utf8'))],
   [faultUri, analyse(readFileSync(join(root, 'examples/faults/bus-contention.pwt'), 'utf8'))],
 ]);
 // The repository is the workspace: the build may write into tests/.tmp inside it.
@@ -117,6 +119,20 @@ describe('phasewright.diagram', () => {
     expect(answer.inputs.map((i) => `${i.name}=${i.bits}`)).toEqual(['funct3=000', 'f7b5=1']);
     expect(answer.svg).toContain('var(--vscode-editor-foreground');
     expect(runDiagram([{ uri: demoUri, className: 'OP', guard: 'funct3=9' }], context)).toMatchObject({ ok: false });
+  });
+
+  it('draws a sequencer machine\'s loop going round loopCount times (2 when not given), and refuses a bad count', () => {
+    // windlass-32's shift loop holds step 3 while shz is 0: a shift by n runs 4 + n steps.
+    const three = runDiagram([{ uri: windlassUri, className: 'OP', guard: 'funct3=001', loopCount: 3 }], context);
+    expect(three).toMatchObject({ ok: true, instruction: 'sll', steps: 7, loopCount: 3 });
+    if (!three.ok) throw new Error(three.reason);
+    expect([...three.svg.matchAll(/data-step="(\d+)"/g)].map((m) => Number(m[1]))).toEqual([0, 1, 2, 3, 3, 3, 3]);
+    expect(runDiagram([{ uri: windlassUri, className: 'OP', guard: 'funct3=001' }], context)).toMatchObject({ ok: true, steps: 6, loopCount: 2 });
+    for (const loopCount of [-1, 65, 1.5, '3']) {
+      expect(runDiagram([{ uri: windlassUri, className: 'OP', loopCount }], context), String(loopCount)).toMatchObject({ ok: false, reason: expect.stringContaining('whole number from 0 to 64') });
+    }
+    // Without a sequencer the steps count up in number order; the answer has no loop count.
+    expect(runDiagram([{ uri: demoUri, className: 'OP', loopCount: 3 }], context)).not.toHaveProperty('loopCount');
   });
 });
 

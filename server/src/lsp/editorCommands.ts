@@ -12,6 +12,7 @@ import { parseGuardChoice } from '../core/diagram/guardChoice';
 import { type DiagramTheme, diagramThemes } from '../core/diagram/palette';
 import { timingDiagram } from '../core/diagram/timing';
 import { classAtOffset, findClass } from '../core/diagram/timingModel';
+import { loopCountProblem } from '../core/diagram/sequencedPath';
 import { buildFormats, planBuild, type BuildFormat } from '../core/encode/plan';
 import { buildImages, describeBuild } from '../cli/buildImages';
 import { pathFromFileUri } from '../cli/fsPath';
@@ -54,6 +55,8 @@ export interface DiagramAnswer {
   inputs: { name: string; width: number; bits: string; given: boolean; onAddress: boolean }[];
   instruction?: string;
   steps: number;
+  /** On a machine with a sequencer part: the loop count the loops were drawn with. */
+  loopCount?: number;
   errors: number;
 }
 
@@ -170,9 +173,10 @@ function boundedText(chunks: Iterable<string>, name: string): string {
 }
 
 /**
- * `phasewright.diagram {uri, offset?, className?, guard? | guards?, all?, theme?}`: the SVG of one
- * class. `guards` maps class names to choice texts, so the caller need not know which class the
- * cursor stands in.
+ * `phasewright.diagram {uri, offset?, className?, guard? | guards?, loopCount?, all?, theme?}`: the
+ * SVG of one class. `guards` maps class names to choice texts, so the caller need not know which
+ * class the cursor stands in. `loopCount` (0 to 64, default 2) is how many times each loop goes
+ * round on a machine with a sequencer part.
  */
 export function runDiagram(args: unknown[], context: Pick<CommandContext, 'analysisOf'>): DiagramAnswer | Refusal {
   const a = firstArgument(args);
@@ -193,7 +197,9 @@ export function runDiagram(args: unknown[], context: Pick<CommandContext, 'analy
   const choice = parseGuardChoice(machine, guardText);
   if (!choice.ok) return { ok: false, reason: choice.reason };
   const theme = typeof a.theme === 'string' && diagramThemes.includes(a.theme as DiagramTheme) ? (a.theme as DiagramTheme) : 'host';
-  const diagram = timingDiagram(machine, cls, choice.choice, { all: a.all === true, theme });
+  const loopProblem = a.loopCount === undefined ? undefined : loopCountProblem(a.loopCount);
+  if (loopProblem) return { ok: false, reason: loopProblem };
+  const diagram = timingDiagram(machine, cls, choice.choice, { all: a.all === true, theme, loopCount: a.loopCount as number | undefined });
   const m = diagram.model;
   return {
     ok: true,
@@ -204,6 +210,7 @@ export function runDiagram(args: unknown[], context: Pick<CommandContext, 'analy
     inputs: m.inputs.map((i) => ({ name: i.name, width: i.width, bits: i.bits, given: i.given, onAddress: i.onAddress })),
     instruction: m.instruction,
     steps: m.columns.length,
+    ...(m.sequence ? { loopCount: m.sequence.loopCount } : {}),
     errors: errorsOf(analysis),
   };
 }

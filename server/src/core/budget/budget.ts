@@ -1,7 +1,9 @@
 // The electrical and timing budget of a table, from the figures the user entered: the load on
 // every control line and bus line against its driver's rating, the LED current (each
 // indicator and all lit at once) against the supply budget, and for every step the longest
-// path from the control word changing to the closing clock edge, which bounds the step clock.
+// path from the control word changing to the closing clock edge, which bounds the step clock
+// (on a machine with a sequencer part its next step is one of the loads: the word's fields
+// that drive it must reach its state input before its setup).
 // These are estimates from entered figures; real boards need margin and measurement.
 import { portBusReads } from '../model/buildPart';
 import { combinationalFlags, type FlagFact } from '../model/flagFacts';
@@ -376,6 +378,27 @@ function longestPath(machine: Machine, alt: StepAlt, access: SignalArrival, miss
     const setup = need(part, 'tsu_ns');
     const total = { ns: arrival.ns + setup, segments: [...arrival.segments, { what: `${s.name} setup`, ns: setup }] };
     if (!worst || total.ns > worst.arrival.ns) worst = { arrival: total, endpoint: s.name };
+  }
+  // The sequencer (a part whose kind holds the step) computes the next step at every closing
+  // edge from the codes of the fields that drive it (its op control, its target) and what its
+  // other inputs read: those are valid after the store's access (and a bus after its drivers),
+  // then through its next-state logic (its tpd_ns where the table gives one) to its state,
+  // which must be there its tsu_ns before the edge.
+  const sequencer = machine.sequencer ? machine.parts.get(machine.sequencer) : undefined;
+  if (sequencer) {
+    const inputs: Arrival[] = [...sequencer.controlFields.values()].map((f) => access(f));
+    for (const source of sequencer.inputs.values()) {
+      const arrival = source.from === 'field' ? access(source.name) : source.from === 'bus' ? arrivalOnBus(source.name) : undefined;
+      if (arrival) inputs.push(arrival);
+    }
+    if (inputs.length) {
+      let arrival = inputs.reduce(later);
+      const tpd = fig(sequencer.figures, 'tpd_ns');
+      if (tpd !== undefined) arrival = { ns: arrival.ns + tpd, segments: [...arrival.segments, { what: `${sequencer.name} next-step logic`, ns: tpd }] };
+      const setup = need(sequencer, 'tsu_ns');
+      const total = { ns: arrival.ns + setup, segments: [...arrival.segments, { what: `${sequencer.name} setup`, ns: setup }] };
+      if (!worst || total.ns > worst.arrival.ns) worst = { arrival: total, endpoint: `${sequencer.name} (next step)` };
+    }
   }
   const own = worst ? { endpoint: worst.endpoint, segments: worst.arrival.segments, totalNs: worst.arrival.ns } : { endpoint: '(nothing loaded)', segments: start.segments, totalNs: start.ns };
   // A combinational flag the step's guards test: the word must settle twice within the step.

@@ -28,7 +28,7 @@ export const loopExit: Check = {
           const inLoop = new Set(loop);
           const loopSteps = stepsOfNodes(graph, loop);
           const loopAlts = loopSteps.flatMap((s) => cls.steps.get(s) ?? []);
-          const fixed = guardInputs(loopAlts).flags.filter((flag) => !changedIn(machine, flag, loopAlts));
+          const fixed = guardInputs(loopAlts).flags.filter((flag) => !flagChangedIn(machine, flag, loopAlts));
           if (!fixed.length) continue;
           const entries = loop.filter((s) => graph.reached.some((from) => !inLoop.has(from) && graph.out.get(from)!.some((e) => e.to === s)));
           for (const { flags: held } of scenarios({ mask: 0, value: 0 }, [], fixed)) {
@@ -60,8 +60,8 @@ export const loopExit: Check = {
   },
 };
 
-/** Whether some step of a loop (its alternatives `alts`) can change `flag`. */
-function changedIn(machine: Machine, flag: string, alts: readonly StepAlt[]): boolean {
+/** Whether some step of a loop (its alternatives `alts`) can change `flag` (the timing diagram asks it of one step). */
+export function flagChangedIn(machine: Machine, flag: string, alts: readonly StepAlt[]): boolean {
   const fact = flagFacts(machine).get(flag);
   if (!fact) return true;
   // The parts whose state it reads: its own, and those it reads through inputs.

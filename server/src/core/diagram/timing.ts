@@ -2,13 +2,16 @@
 // one row per strobe showing its control-store output level step by step, field values and
 // bus ownership as labelled segments, and under each column the word every store holds at
 // that step's address, per chip in hex. Text is measured by character count in a monospace
-// font, so columns and the label column are always wide enough for their text. It computes
-// nothing about the machine itself: timingModel.ts does.
+// font, so columns and the label column are always wide enough for their text. On a machine
+// with a sequencer part the columns follow the sequencer: each says its step and visit, a line
+// under the headers says where the sequencer goes next, a closing edge that goes back to an
+// earlier step (or stays) is drawn solid, and a bracket over the headers spans each loop drawn.
+// It computes nothing about the machine itself: timingModel.ts does.
 import type { ClassDef, Machine } from '../model/types';
 import { type GuardChoice, choiceText, emptyChoice } from './guardChoice';
 import { type DiagramTheme, paletteCss } from './palette';
 import { esc, font, num, size, text, textWidth } from './svgText';
-import { type TimingModel, type TimingOptions, actsAtClosingEdge, opcodeText, timingModel } from './timingModel';
+import { type TimingModel, type TimingOptions, actsAtClosingEdge, loopText, opcodeText, ordinal, timingModel } from './timingModel';
 
 export interface TimingDiagram {
   svg: string;
@@ -47,20 +50,35 @@ function segment(x0: number, x1: number, top: number, bottom: number, cls: strin
   return `<polygon class="${cls}" points="${points.map(([x, y]) => `${num(x)},${num(y)}`).join(' ')}"/>`;
 }
 
-/** Runs of equal neighbouring cells, as [first, last] column indexes. */
-function runs<T>(cells: readonly T[], same: (a: T, b: T) => boolean): [number, number][] {
+/** Runs of equal neighbouring cells, as [first, last] column indexes; a run also ends before a column `startsAnew` says. */
+function runs<T>(cells: readonly T[], same: (a: T, b: T) => boolean, startsAnew: (i: number) => boolean = () => false): [number, number][] {
   const out: [number, number][] = [];
   for (let i = 0; i < cells.length; i++) {
-    if (out.length && same(cells[out[out.length - 1][1]], cells[i])) out[out.length - 1][1] = i;
+    if (out.length && !startsAnew(i) && same(cells[out[out.length - 1][1]], cells[i])) out[out.length - 1][1] = i;
     else out.push([i, i]);
   }
   return out;
 }
 
-function columnLabels(model: TimingModel, i: number): { step: string; guard: string; note: string } {
+function columnLabels(model: TimingModel, i: number): { step: string; guard: string; note: string; next: string } {
   const c = model.columns[i];
   const note = !c.reached ? 'not reached' : c.alt ? (c.phase ? `from ${c.phase}` : '') : 'fill word';
-  return { step: `step ${c.step}`, guard: c.guard ?? '', note };
+  return { step: `step ${c.step}${c.visit ? ` (${ordinal(c.visit)})` : ''}`, guard: c.guard ?? '', note, next: model.sequence ? nextLabel(model, i) : '' };
+}
+
+/** Where the sequencer goes at a column's closing edge: `→ 4`, `→ 6 jump`, `↩ 3 stays`, `↩ 2 back` (round a loop), `→ 0 ends`. */
+function nextLabel(model: TimingModel, i: number): string {
+  const c = model.columns[i];
+  const cut = i === model.columns.length - 1 && model.sequence?.cut ? ' (cut)' : '';
+  if (c.next === undefined) return `→ ?${cut}`;
+  if (c.next === 0) return '→ 0 ends';
+  if (c.goesRound) return `↩ ${c.next} ${c.next === c.step ? 'stays' : 'back'}${cut}`;
+  return `→ ${c.next}${c.next === c.step + 1 ? '' : ' jump'}${cut}`;
+}
+
+/** True where the sequencer goes round a loop at the column's closing edge: it stays, or goes back to a step that comes here again. */
+function goesBack(model: TimingModel, i: number): boolean {
+  return model.columns[i].goesRound === true;
 }
 
 function busLabel(cell: { drivers: string[] }, keeper: boolean): string {
@@ -99,6 +117,7 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
   for (let i = 0; i < nCols; i++) {
     const h = columnLabels(model, i);
     cellTexts.push(textWidth(h.step, size.text), textWidth(h.guard, size.small), textWidth(h.note, size.small));
+    if (h.next) cellTexts.push(textWidth(h.next, size.small));
     for (const f of model.fields) cellTexts.push(textWidth(fieldLabel(f.cells[i])) + 6);
     for (const b of model.buses) cellTexts.push(textWidth(busLabel(b.cells[i], b.keeper)) + 6, textWidth(loadLabel(b.cells[i]), size.small) + 6);
     for (const w of model.words) cellTexts.push(textWidth(w.cells[i].addressHex), ...w.cells[i].chipHex.map((h) => textWidth(h)));
@@ -114,12 +133,18 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
   if (model.opcode !== undefined) facts.push(`opcode ${opcodeText(model)}`);
   if (model.inputs.length) facts.push(model.inputs.map((i) => `${i.name}=${i.bits}${i.given ? '' : '*'}`).join(' '));
   facts.push(model.instruction ? `instruction ${model.instruction}` : model.opcode !== undefined ? 'no single RV32I instruction' : '');
+  const sequence = model.sequence;
+  if (sequence?.loops.length) facts.push(`loop count ${sequence.loopCount}${sequence.loopCountGiven ? '' : ' (default)'}`);
   const subtitle = facts.filter(Boolean).join('  ·  ');
   const legend = [
     'Lines: control-store output level, up = 1 (high), down = 0 (low). Shaded = asserted;',
     'an active-low strobe is asserted while its line is low. ▲ = acts at the closing edge.',
     `Dashed verticals: closing edges. Fields in (parentheses) hold their idle code.${model.inputs.some((i) => !i.given) ? ' * = not chosen, 0 assumed.' : ''}`,
   ];
+  if (sequence) {
+    legend.push('Columns follow the sequencer from step 0 until it returns there; under each header, where it goes next.');
+    legend.push('Solid verticals (↩): it goes round a loop (stays, or goes back). Brackets span the loops, drawn for the loop count.');
+  }
   const headLines: { content: string; px: number; cls: string; weight?: 'bold' }[] = [
     { content: title, px: size.title, cls: 'fg', weight: 'bold' },
     { content: subtitle, px: size.text, cls: 'fg' },
@@ -132,6 +157,7 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
     gridLeft + gridWidth - pad,
     ...headLines.map((l) => textWidth(l.content, l.px)),
     ...notes.map((n) => textWidth(n, size.small)),
+    ...(sequence?.loops ?? []).map((l) => colX(l.first) + 4 + textWidth(loopText(l), size.small) - pad),
   );
   const width = Math.ceil(contentWidth + 2 * pad);
 
@@ -143,16 +169,43 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
   }
   y += 10;
 
+  // A segment does not run on across a closing edge that goes back: each repetition has its own.
+  const repeatStarts = (i: number) => !!sequence && i > 0 && goesBack(model, i - 1);
+
+  // Loop brackets over the column headers (a sequencer machine only).
+  const loopMarks: string[] = [];
+  if (sequence?.loops.length) {
+    for (const loop of sequence.loops) {
+      const x0 = colX(loop.first) + 4;
+      const x1 = colX(loop.last + 1) - 4;
+      const label = loopText(loop);
+      const fits = textWidth(label, size.small) <= x1 - x0;
+      loopMarks.push(
+        `<g class="loop" data-loop="${loop.steps.join(',')}" data-first="${loop.first}" data-last="${loop.last}" data-repeats="${loop.repeats}">` +
+          `<path class="bracket" d="M${num(x0)},${num(y + 22)}V${num(y + 16)}H${num(x1)}V${num(y + 22)}"/>` +
+          text(fits ? (x0 + x1) / 2 : x0, y + 11, label, { cls: loop.forEver ? 'bad' : 'fg', px: size.small, anchor: fits ? 'middle' : 'start', weight: 'bold' }) +
+          '</g>',
+      );
+    }
+    y += 24;
+  }
+  out.push(...loopMarks);
+
   // Column headers.
   const headerTop = y;
   for (let i = 0; i < nCols; i++) {
     const h = columnLabels(model, i);
     const cx = colX(i) + colWidth / 2;
-    out.push(text(cx, y + 15, h.step, { cls: 'fg', anchor: 'middle', weight: 'bold', attrs: `data-col="${i}" data-step="${model.columns[i].step}"` }));
+    out.push(text(cx, y + 15, h.step, { cls: 'fg', anchor: 'middle', weight: 'bold', attrs: `data-col="${i}" data-step="${model.columns[i].step}"${model.columns[i].visit ? ` data-visit="${model.columns[i].visit}"` : ''}` }));
     if (h.guard) out.push(text(cx, y + 30, h.guard, { cls: 'fg', px: size.small, anchor: 'middle' }));
     if (h.note) out.push(text(cx, y + 44, h.note, { cls: model.columns[i].reached ? 'muted' : 'bad', px: size.small, anchor: 'middle' }));
+    if (h.next) {
+      const c = model.columns[i];
+      const cls = i === nCols - 1 && sequence?.cut ? 'bad' : goesBack(model, i) ? 'back' : 'muted';
+      out.push(text(cx, y + 58, h.next, { cls, px: size.small, anchor: 'middle', weight: cls === 'muted' ? undefined : 'bold', attrs: `data-next="${c.next ?? '?'}" data-col="${i}"` }));
+    }
   }
-  y += rowHeight.header;
+  y += rowHeight.header + (sequence ? 14 : 0);
   const rowsTop = y;
 
   // Section titles run across the whole width in a band the closing-edge lines leave out.
@@ -204,7 +257,7 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
       const top = y;
       rowLabel(top, rowHeight.field, row.name, fieldSub(row));
       const parts: string[] = [];
-      for (const [a, b] of runs(row.cells, (p, q) => p.code === q.code && p.set === q.set && p.map === q.map)) {
+      for (const [a, b] of runs(row.cells, (p, q) => p.code === q.code && p.set === q.set && p.map === q.map, repeatStarts)) {
         const cell = row.cells[a];
         parts.push(segment(colX(a) + 2, colX(b) + colWidth - 2, top + 5, top + rowHeight.field - 5, cell.set ? 'seg field' : 'seg idle'));
         parts.push(text((colX(a) + colX(b) + colWidth) / 2, top + rowHeight.field / 2 + 4, fieldLabel(cell), { cls: cell.set ? 'fg' : 'muted', anchor: 'middle' }));
@@ -222,7 +275,7 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
       rowLabel(top, rowHeight.bus, row.name, busSub(row));
       const parts: string[] = [];
       const key = (c: { drivers: string[]; loaders: string[] }) => `${c.drivers.join('+')}>${c.loaders.join(' ')}`;
-      for (const [a, b] of runs(row.cells, (p, q) => key(p) === key(q))) {
+      for (const [a, b] of runs(row.cells, (p, q) => key(p) === key(q), repeatStarts)) {
         const cell = row.cells[a];
         const cls = cell.contention ? 'seg bad' : cell.drivers.length >= 1 ? 'seg bus' : 'seg idle';
         const cx = (colX(a) + colX(b) + colWidth) / 2;
@@ -272,7 +325,8 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
   if (y > from) spans.push([from, y]);
   for (let i = 0; i <= nCols; i++) {
     const x = colX(i);
-    for (const [y1, y2] of spans) grid.push(`<line class="${i === 0 ? 'grid solid' : 'grid'}" x1="${num(x)}" y1="${num(y1)}" x2="${num(x)}" y2="${num(y2)}"/>`);
+    const back = sequence && i > 0 && goesBack(model, i - 1);
+    for (const [y1, y2] of spans) grid.push(`<line class="${i === 0 ? 'grid solid' : back ? 'grid back' : 'grid'}" x1="${num(x)}" y1="${num(y1)}" x2="${num(x)}" y2="${num(y2)}"/>`);
   }
   model.columns.forEach((c, i) => {
     if (!c.reached) grid.push(`<rect class="unreached" x="${num(colX(i))}" y="${num(rowsTop)}" width="${num(colWidth)}" height="${num(Math.max(0, rowsBottom - rowsTop))}"/>`);
@@ -305,8 +359,14 @@ export function renderTiming(model: TimingModel, options: RenderOptions = {}): T
     `.${rootClass} .seg.bad{stroke:var(--pw-bad);fill:var(--pw-bad);fill-opacity:.2}` +
     `.${rootClass} .seg.idle{stroke:var(--pw-muted);fill:none;stroke-dasharray:4 3}` +
     `.${rootClass} .unreached{fill:url(#pw-hatch)}` +
-    `.${rootClass} .hatch{stroke:var(--pw-muted);stroke-width:1;stroke-opacity:.45}`;
-  const label = `Timing diagram of class ${model.className}${model.inputs.length ? ` with ${choiceText(model.inputs)}` : ''}`;
+    `.${rootClass} .hatch{stroke:var(--pw-muted);stroke-width:1;stroke-opacity:.45}` +
+    (sequence
+      ? `.${rootClass} .grid.back{stroke:var(--pw-signal);stroke-width:1.6;stroke-dasharray:none;stroke-opacity:.6}` +
+        `.${rootClass} text.back{fill:var(--pw-signal)}` +
+        `.${rootClass} .bracket{fill:none;stroke:var(--pw-signal);stroke-width:1.5}`
+      : '');
+  const loopLabel = sequence?.loops.length ? `, loop count ${sequence.loopCount}` : '';
+  const label = `Timing diagram of class ${model.className}${model.inputs.length ? ` with ${choiceText(model.inputs)}` : ''}${loopLabel}`;
   const svg =
     `<svg xmlns="http://www.w3.org/2000/svg" class="${rootClass}" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" role="img" aria-label="${esc(label)}" data-class="${esc(model.className)}" data-theme="${theme}">\n` +
     `<title>${esc(label)}</title>\n` +

@@ -2,8 +2,11 @@
 // alternative that applies in each step (picked by the encoder's own point decoder), every
 // strobe's line level per step by its polarity, the field values, who drives and who loads
 // each bus, and the word each store holds at that step's address (laid by the encoder's
-// `wordForAlternative`, so it equals the ROM images and the listing). It draws nothing; the
-// SVG renderer in timing.ts does.
+// `wordForAlternative`, so it equals the ROM images and the listing). Without a sequencer part
+// the columns are the class's steps in number order; with one they are the steps in the order
+// the sequencer takes them, a loop drawn for a loop count (sequencedPath.ts), each column's
+// word and address formed with the flags that column runs with. It draws nothing; the SVG
+// renderer in timing.ts does.
 import { chipHexOfWord } from '../encode/listing';
 import { PointDecoder, type PointDecode } from '../encode/decodePoint';
 import { addressOf, fillWordOf, wordForAlternative } from '../encode/encoder';
@@ -13,7 +16,10 @@ import { contendedBuses } from '../model/busDrivers';
 import type { ClassDef, InputVar, Level, Machine, StepAlt, Store, Strobe, StrobeKind } from '../model/types';
 import { RV32I_INSTRUCTIONS } from '../isa/rv32i';
 import { guardText } from '../ide/usage';
+import { hasSequencer } from '../model/sequencing';
+import { stepsText } from '../flow/stepGraph';
 import { type ChoiceInput, type GuardChoice, choiceInputsOf } from './guardChoice';
+import { type PathCut, type PathLoop, defaultLoopCount, sequencedPath } from './sequencedPath';
 
 export interface TimingColumn {
   step: number;
@@ -27,6 +33,25 @@ export interface TimingColumn {
   reached: boolean;
   /** The alternative that applies, if any. */
   alt?: StepAlt;
+  /** On a sequencer machine, where the path visits the step more than once: which visit this is (1 = the first). */
+  visit?: number;
+  /** On a sequencer machine: the step the sequencer goes to at the closing edge (undefined where the word does not fix it). */
+  next?: number;
+  /** On a sequencer machine: true when that step comes back to this one (a loop goes round: a hold, a jump back). */
+  goesRound?: boolean;
+  /** On a sequencer machine: the flags of the step's guards that the loop count set here, not the guard choice. */
+  loopFlags?: string[];
+}
+
+/** How a sequencer machine's columns were laid: the loop count, the loops drawn, where the path was cut. */
+export interface TimingSequence {
+  loopCount: number;
+  /** False when the loop count is the default one. */
+  loopCountGiven: boolean;
+  loops: PathLoop[];
+  cut?: PathCut;
+  /** Steps the class writes that this path does not take. */
+  notDrawn: number[];
 }
 
 export interface StrobeRow {
@@ -93,11 +118,15 @@ export interface TimingModel {
   words: StoreWordRow[];
   /** Sentences worth reading next to the picture (inputs the stores cannot see, and so on). */
   notes: string[];
+  /** Set on a machine with a sequencer part: the columns follow the sequencer. */
+  sequence?: TimingSequence;
 }
 
 export interface TimingOptions {
   /** Show every strobe, field and bus of the machine, not only those the class uses. */
   all?: boolean;
+  /** On a sequencer machine: how many times each loop goes round before its way out (default 2). */
+  loopCount?: number;
 }
 
 const closingEdgeKinds: ReadonlySet<StrobeKind> = new Set(['clock', 'count', 'write', 'end', 'trap']);
@@ -182,8 +211,39 @@ export function timingModel(machine: Machine, cls: ClassDef, choice: GuardChoice
   const columns: TimingColumn[] = [];
   const decodes: (PointDecode | undefined)[] = [];
   const pointInputs: PointInputs[] = [];
+  let sequence: TimingSequence | undefined;
   let ended = false;
-  for (const step of stepNumbers) {
+  if (hasSequencer(machine)) {
+    const loopCount = options.loopCount ?? defaultLoopCount;
+    const path = sequencedPath(machine, cls, decoder, { step: 0, ir: (irFull & irMask) >>> 0, irMask, flags }, loopCount);
+    const times = new Map<number, number>();
+    for (const c of path.columns) times.set(c.step, (times.get(c.step) ?? 0) + 1);
+    const seen = new Map<number, number>();
+    for (const c of path.columns) {
+      const alts = cls.steps.get(c.step) ?? [];
+      const alt = c.decoded.cls === cls ? c.decoded.alt : undefined;
+      const guard = alt && alts.length > 1 ? guardText(alt) : undefined;
+      seen.set(c.step, (seen.get(c.step) ?? 0) + 1);
+      columns.push({
+        step: c.step,
+        guard: guard === undefined ? undefined : guard === 'else' ? 'else' : `if ${guard}`,
+        phase: alt?.phase?.name,
+        fillReason: alt ? undefined : c.decoded.fillReason ?? 'no-class',
+        reached: true,
+        alt,
+        visit: times.get(c.step)! > 1 ? seen.get(c.step) : undefined,
+        next: c.next,
+        goesRound: c.goesRound,
+        loopFlags: c.loopFlags,
+      });
+      decodes.push(alt ? c.decoded : undefined);
+      pointInputs.push(c.point);
+    }
+    const notDrawn = stepNumbers.filter((s) => !times.has(s));
+    sequence = { loopCount, loopCountGiven: options.loopCount !== undefined, loops: path.loops, cut: path.cut, notDrawn };
+    notes.push(...sequenceNotes(sequence, choice));
+  }
+  for (const step of sequence ? [] : stepNumbers) {
     const point: PointInputs = { step, ir: (irFull & irMask) >>> 0, irMask, flags };
     const decoded = decoder.decode(point);
     const alts = cls.steps.get(step) ?? [];
@@ -262,7 +322,60 @@ export function timingModel(machine: Machine, cls: ClassDef, choice: GuardChoice
     buses,
     words,
     notes,
+    ...(sequence ? { sequence } : {}),
   };
+}
+
+/** `3rd`, `11th`, `22nd`. */
+export function ordinal(n: number): string {
+  const teen = n % 100 >= 11 && n % 100 <= 13;
+  const suffix = teen ? 'th' : ['th', 'st', 'nd', 'rd'][n % 10] ?? 'th';
+  return `${n}${suffix}`;
+}
+
+/** `2 times`, `once`. */
+function timesText(n: number): string {
+  return n === 1 ? 'once' : `${n} times`;
+}
+
+/** What a drawn loop does, for its bracket: `step 3 repeats 3 times (shz=0), then leaves (shz=1)`. */
+export function loopText(loop: PathLoop): string {
+  const round = loop.flags.filter((f) => f.round !== undefined).map((f) => `${f.name}=${f.round}`).join(' ');
+  const out = loop.flags.filter((f) => f.out !== undefined).map((f) => `${f.name}=${f.out}`).join(' ');
+  const single = loop.steps.length === 1;
+  if (loop.forEver) return `${single ? `step ${loop.entry} repeats` : `${stepsText(loop.steps)} loop`} for ever: no way out (cut)`;
+  const what = single ? `step ${loop.entry} repeats ${timesText(loop.repeats)}` : `${stepsText(loop.steps)} loop, back to step ${loop.entry} ${timesText(loop.repeats)}`;
+  if (loop.cut) return `${what}${round ? ` (${round})` : ''}: cut before its way out`;
+  return `${what}${round ? ` (${round})` : ''}, then ${single ? 'leaves' : 'out'}${out ? ` (${out})` : ''}`;
+}
+
+/** Sentences on how the columns follow the sequencer: who set the loop flags, where the path was cut, the steps not drawn. */
+function sequenceNotes(sequence: TimingSequence, choice: GuardChoice): string[] {
+  const notes: string[] = [];
+  for (const loop of sequence.loops) {
+    if (loop.forEver || loop.flags.length === 0) continue;
+    const names = loop.flags.map((f) => f.name);
+    const given = names.filter((n) => choice.flags.has(n));
+    const values = loop.flags
+      .filter((f) => f.round !== undefined || f.out !== undefined)
+      .map((f) => [f.round !== undefined ? `${f.name}=${f.round} while it repeats` : '', f.out !== undefined ? `${f.name}=${f.out} on the way out` : ''].filter(Boolean).join(', '));
+    notes.push(
+      `In the loop of ${stepsText(loop.steps)} the loop count (${sequence.loopCount}) sets ${names.join(', ')}${values.length ? `: ${values.join('; ')}` : ''}` +
+        `${given.length ? `; the guard choice's ${given.map((n) => `${n}=${choice.flags.get(n)}`).join(' ')} holds only outside the loop` : ''}.`,
+    );
+  }
+  const cut = sequence.cut;
+  if (cut?.kind === 'bound') {
+    notes.push(cut.canEnd ? `The path is longer than ${cut.columns} columns: the drawing stops there (a smaller loop count shortens it).` : `The path does not return to step 0 within ${cut.columns} columns: the drawing stops there.`);
+  } else if (cut?.kind === 'for-ever') {
+    notes.push(`No path from step ${cut.step} returns to step 0 (micro-loop): the sequencer would go round for ever; drawn ${timesText(cut.times)}, then cut.`);
+  } else if (cut?.kind === 'unknown-next') {
+    notes.push(`The step after step ${cut.step} is not fixed by its word (a bus gives it): the drawing stops there.`);
+  } else if (cut?.kind === 'not-followed') {
+    notes.push(`The step after step ${cut.step} is not followed (a return to a step no call of this instruction saved): the drawing stops there.`);
+  }
+  if (sequence.notDrawn.length) notes.push(`S${stepsText(sequence.notDrawn).slice(1)} of the class ${sequence.notDrawn.length > 1 ? 'are' : 'is'} not on this path (another guard choice takes ${sequence.notDrawn.length > 1 ? 'them' : 'it'}).`);
+  return notes;
 }
 
 function storeWords(machine: Machine, store: Store, universe: ReturnType<typeof universeOf>, columns: TimingColumn[], decodes: (PointDecode | undefined)[], points: PointInputs[]): StoreWordRow {
