@@ -20,6 +20,8 @@ export interface DiagramRequest {
   /** Choice texts by class name; the server uses the one of the class it draws. */
   guards?: Record<string, string>;
   all?: boolean;
+  /** On a machine with a sequencer part: how many times each loop goes round (0 to 64; default 2). */
+  loopCount?: number;
   theme?: 'light' | 'dark' | 'auto' | 'host';
 }
 

@@ -21,6 +21,8 @@ export class TimingPanel implements vscode.Disposable {
   /** The guard choice per class, as `name -> bits`. */
   private readonly guards = new Map<string, Map<string, string>>();
   private all = false;
+  /** The loop count chosen in the panel (undefined: the server's default). */
+  private loopCount: number | undefined;
   private timer: ReturnType<typeof setTimeout> | undefined;
   private generation = 0;
   private ready = false;
@@ -87,7 +89,7 @@ export class TimingPanel implements vscode.Disposable {
     const offset = this.pendingOffset;
     this.pendingOffset = undefined;
     // The server draws the class under the cursor when it stands in one, else the current class.
-    const request = () => this.server.diagram({ uri: this.document.uri.toString(), offset, className: this.className, guards: this.guardTexts(), all: this.all, theme: 'host' });
+    const request = () => this.server.diagram({ uri: this.document.uri.toString(), offset, className: this.className, guards: this.guardTexts(), all: this.all, loopCount: this.loopCount, theme: 'host' });
     // The first picture shows progress; redraws that follow the cursor stay quiet.
     const result = this.drawn ? await request() : await withProgressNotification('drawing the timing diagram', request);
     this.drawn = true;
@@ -115,6 +117,7 @@ export class TimingPanel implements vscode.Disposable {
       inputs: answer.inputs,
       instruction: answer.instruction,
       all: this.all,
+      loopCount: answer.loopCount,
       errors: answer.errors,
       source: vscode.workspace.asRelativePath(this.document.uri),
     });
@@ -146,6 +149,10 @@ export class TimingPanel implements vscode.Disposable {
         this.all = message.value;
         this.schedule(0);
         return;
+      case 'loopCount':
+        this.loopCount = message.value;
+        this.schedule(0);
+        return;
       case 'save':
         await this.save();
         return;
@@ -155,7 +162,7 @@ export class TimingPanel implements vscode.Disposable {
   private async save(): Promise<void> {
     if (!this.className) return;
     const answer = await withProgressNotification('drawing the diagram to save', () =>
-      this.server.diagram({ uri: this.document.uri.toString(), className: this.className!, guards: this.guardTexts(), all: this.all, theme: 'auto' }),
+      this.server.diagram({ uri: this.document.uri.toString(), className: this.className!, guards: this.guardTexts(), all: this.all, loopCount: this.loopCount, theme: 'auto' }),
     );
     if (!answer.ok) {
       void vscode.window.showErrorMessage(`Phasewright: ${answer.reason}`);

@@ -12,6 +12,7 @@ export type FromPage =
   | { type: 'class'; name: string }
   | { type: 'guard'; name: string; bits: string }
   | { type: 'all'; value: boolean }
+  | { type: 'loopCount'; value: number }
   | { type: 'save' };
 
 /** Messages the extension sends to the page. */
@@ -24,6 +25,8 @@ export type ToPage =
       inputs: { name: string; width: number; bits: string; given: boolean; onAddress: boolean }[];
       instruction?: string;
       all: boolean;
+      /** On a machine with a sequencer part: how many times each loop is drawn going round. */
+      loopCount?: number;
       errors: number;
       source: string;
     }
@@ -40,6 +43,7 @@ export function timingHtml(cspSource: string, nonce: string): string {
   <label>Class <select id="class" aria-label="Class"></select></label>
   <span id="inputs"></span>
   <label><input type="checkbox" id="all"> all strobes</label>
+  <label id="loops" hidden title="How many times each loop goes round before its way out">loop count <input type="number" id="loopCount" min="0" max="64" step="1" style="width: 4em"></label>
   <button id="save" title="Save the picture as a standalone SVG file">Save as SVG…</button>
   <span id="status" class="muted"></span>
 </div>
@@ -52,6 +56,10 @@ export function timingHtml(cspSource: string, nonce: string): string {
   const send = (message) => vscode.postMessage(message);
   $('class').addEventListener('change', (e) => send({ type: 'class', name: e.target.value }));
   $('all').addEventListener('change', (e) => send({ type: 'all', value: e.target.checked }));
+  $('loopCount').addEventListener('change', (e) => {
+    const n = Math.round(Number(e.target.value));
+    if (Number.isFinite(n) && n >= 0 && n <= 64) send({ type: 'loopCount', value: n });
+  });
   $('save').addEventListener('click', () => send({ type: 'save' }));
 
   function option(value, label, selected) {
@@ -107,6 +115,8 @@ export function timingHtml(cspSource: string, nonce: string): string {
     select.replaceChildren(...m.classes.map((c) => option(c, c, c === m.className)));
     $('inputs').replaceChildren(...m.inputs.map(inputControl));
     $('all').checked = m.all;
+    $('loops').hidden = m.loopCount === undefined;
+    if (m.loopCount !== undefined) $('loopCount').value = String(m.loopCount);
     const parts = [m.source];
     if (m.instruction) parts.push('instruction ' + m.instruction);
     if (m.errors) parts.push(m.errors + ' error' + (m.errors > 1 ? 's' : '') + ' in the table');

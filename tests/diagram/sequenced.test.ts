@@ -237,6 +237,11 @@ describe('other loop shapes', () => {
     // The call and the return are jumps, not loops: only the routine's hold goes round.
     expect(m.columns.map((c) => c.goesRound)).toEqual([false, false, false, false, true, true, true, false, false]);
     expect(m.sequence?.loops).toMatchObject([{ steps: [8], first: 4, last: 7, repeats: 3 }]);
+    // The headers say which move is the call and which the return.
+    expect(m.columns.map((c) => c.call)).toEqual([undefined, undefined, undefined, 'call', undefined, undefined, undefined, 'return', undefined]);
+    const { svg } = timingDiagram(machine, findClass(machine, 'OP')!, choiceOf(machine, 'funct3=001,shz=1'), { loopCount: 3, theme: 'light' });
+    expect(svg).toContain('→ 8 call');
+    expect(svg).toContain('→ 4 return');
   });
 
   it('follows a jump table\'s row (windlass-32 with OP-IMM dispatched on funct3) as the simulator runs it', () => {

@@ -25,6 +25,7 @@ import type { PointDecode, PointDecoder } from '../encode/decodePoint';
 import type { PointInputs } from '../encode/universe';
 import { type StepGraph, endingSteps, loopsOf, reachableFrom, stepGraph, stepsOfNodes } from '../flow/stepGraph';
 import type { ClassDef, Machine, StepAlt } from '../model/types';
+import { sequencerMove } from '../model/sequencing';
 
 /** The loop count a diagram draws when none is asked for. */
 export const defaultLoopCount = 2;
@@ -53,6 +54,8 @@ export interface PathColumn {
   next?: number;
   /** The flags of the step's guards that the loop count set here (not the guard choice). */
   loopFlags: string[];
+  /** The move is a call (it keeps a return step) or a return (its next step is a return register's). */
+  call?: 'call' | 'return';
 }
 
 export interface PathLoop {
@@ -138,6 +141,7 @@ export function sequencedPath(machine: Machine, cls: ClassDef, decoder: PointDec
       loopFlags = decidingFlags(options, tested);
     }
     const to = chosen.next;
+    const move = chosen.decoded.cls === cls ? sequencerMove(machine, chosen.decoded.alt, step) : undefined;
     columns.push({
       step,
       node,
@@ -147,6 +151,7 @@ export function sequencedPath(machine: Machine, cls: ClassDef, decoder: PointDec
       decoded: chosen.decoded,
       next: to === undefined ? undefined : stepOf(to),
       loopFlags,
+      ...(move?.calls ? { call: 'call' as const } : move?.returnOf !== undefined ? { call: 'return' as const } : {}),
     });
     visits.set(node, (visits.get(node) ?? 0) + 1);
     if (to === undefined) {

@@ -66,13 +66,14 @@ function columnLabels(model: TimingModel, i: number): { step: string; guard: str
   return { step: `step ${c.step}${c.visit ? ` (${ordinal(c.visit)})` : ''}`, guard: c.guard ?? '', note, next: model.sequence ? nextLabel(model, i) : '' };
 }
 
-/** Where the sequencer goes at a column's closing edge: `→ 4`, `→ 6 jump`, `↩ 3 stays`, `↩ 2 back` (round a loop), `→ 0 ends`. */
+/** Where the sequencer goes at a column's closing edge: `→ 4`, `→ 6 jump`, `→ 8 call`, `→ 3 return`, `↩ 3 stays`, `↩ 2 back` (round a loop), `→ 0 ends`. */
 function nextLabel(model: TimingModel, i: number): string {
   const c = model.columns[i];
   const cut = i === model.columns.length - 1 && model.sequence?.cut ? ' (cut)' : '';
   if (c.next === undefined) return `→ ?${cut}`;
   if (c.next === 0) return '→ 0 ends';
   if (c.goesRound) return `↩ ${c.next} ${c.next === c.step ? 'stays' : 'back'}${cut}`;
+  if (c.call) return `→ ${c.next} ${c.call}${cut}`;
   return `→ ${c.next}${c.next === c.step + 1 ? '' : ' jump'}${cut}`;
 }
 

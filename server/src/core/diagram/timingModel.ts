@@ -41,6 +41,8 @@ export interface TimingColumn {
   goesRound?: boolean;
   /** On a sequencer machine: the flags of the step's guards that the loop count set here, not the guard choice. */
   loopFlags?: string[];
+  /** On a sequencer with return registers: the move at the closing edge is a call or a return. */
+  call?: 'call' | 'return';
 }
 
 /** How a sequencer machine's columns were laid: the loop count, the loops drawn, where the path was cut. */
@@ -235,6 +237,7 @@ export function timingModel(machine: Machine, cls: ClassDef, choice: GuardChoice
         next: c.next,
         goesRound: c.goesRound,
         loopFlags: c.loopFlags,
+        ...(c.call && { call: c.call }),
       });
       decodes.push(alt ? c.decoded : undefined);
       pointInputs.push(c.point);
