@@ -13,6 +13,7 @@ import { analyse } from '../../server/src/core/analysis';
 import { codes, edit, found } from '../support/findings';
 import { classCycles } from '../../server/src/core/flow/cycleCounts';
 import { planBuild } from '../../server/src/core/encode/plan';
+import { hover } from '../../server/src/core/ide/hover';
 
 const root = join(__dirname, '../..');
 const read = (path: string) => readFileSync(join(root, path), 'utf8');
@@ -151,5 +152,22 @@ describe('the sugar and the kind lines', () => {
     const wired = (holds: string) => `${kind(holds)}bus b 8\npart seq k 3\naddress 8\n  step 0..2 opcode 3..7\n`;
     expect(found(wired('  holds step q\n  holds return s'), 'wrong-wiring').map((x) => x.message)[0]).toContain('return register `s` in 2');
     expect(found(`${kind('  holds return r')}part p k 3\n`, 'wrong-wiring').map((x) => x.message)[0]).toContain('holds return registers but not the step');
+  });
+});
+
+describe('hover on a call machine (examples/winch-32.pwt)', () => {
+  const text = read('examples/winch-32.pwt');
+  const analysis = analyse(text);
+  const at = (probe: string, shift = 0) => hover(analysis, text.indexOf(probe) + shift)?.markdown ?? '';
+
+  it('says what the sugar sets and where the sequencer goes', () => {
+    expect(at('call 8')).toBe('**`call`** — step sugar: sets `seqop=call`, `next=8`; at the closing edge the sequencer `seq` goes to step 8 and keeps step 3 in the return register, to come back to.');
+    expect(at(', return', 2)).toContain('goes to the step the return register holds');
+  });
+
+  it('says the sequencer\'s ports act at every closing edge with no strobe', () => {
+    const part = at('part seq', 5);
+    expect(part).toContain('`next`: acts at every closing edge, no strobe needed: the next step');
+    expect(part).not.toContain('count strobe');
   });
 });

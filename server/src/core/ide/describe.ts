@@ -154,7 +154,11 @@ export function portLine(machine: Machine, part: Part, port: PortFact): string {
   const settings = settingsReadBy(machine, part, port);
   // A long expression is left to the kind's hover, which shows the whole definition.
   const shown = [...(computes.length <= maxShownExpression ? [`\`${computes}\``] : []), ...settings];
-  return `\`${port.name}\`: ${roleTexts[port.role]}${port.description ? `: ${port.description}` : ''}${shown.length ? ` (${shown.join(', ')})` : ''}`;
+  // An `always` port (a sequencer's next step) needs no strobe; its description usually says so already.
+  const always = port.edge?.always === true;
+  const role = always ? 'acts at every closing edge, no strobe needed' : roleTexts[port.role];
+  const description = always ? port.description?.replace(/^at every closing edge:\s*/, '') : port.description;
+  return `\`${port.name}\`: ${role}${description ? `: ${description}` : ''}${shown.length ? ` (${shown.join(', ')})` : ''}`;
 }
 
 /** The ports of a part, for hovers: name, direction and what it carries, from its kind's definition. */

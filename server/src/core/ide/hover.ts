@@ -3,6 +3,7 @@
 // step lines (the words they put in the ROMs), classes (the RV32I instructions they run),
 // buses (who drives and loads them, step by step), parts, flags, maps, phases, stores, and the
 // notation's keywords. Pure: it reads an analysis and returns text with the span it explains.
+import { sequencerMove } from '../model/sequencing';
 import { type CodeInfo, codeInfo } from '../checks/catalogue';
 import { budgetOf, type LineLoad } from '../budget/budget';
 import { countsText, cycleCountsOf, groupsOf } from '../flow/cycleCounts';
@@ -485,9 +486,33 @@ function wordHover(analysis: Analysis, word: string, start: number): string | un
     const description = partPorts(machine, part).find((p) => p.startsWith(`\`${port}\`:`));
     if (description) return `**port \`${port}\` of \`${part.name}\`** — ${description.slice(port.length + 4)}`;
   }
+  const sugar = sequencerSugarHover(machine, word, start);
+  if (sugar) return sugar;
   if (word in keywordTexts) return `**\`${word}\`** — ${keywordTexts[word]}`;
   const accepted = acceptedCodeAt(analysis, start);
   if (accepted) return `**diagnostic \`${accepted.code}\`** (accepted on this line) — ${accepted.title}. ${accepted.explanation}`;
+  return undefined;
+}
+
+/** The step sugar of a sequencer machine (`goto 4`, `wait`, `end`, `call 8`, `return`) at `start`: the fields it sets and where the sequencer goes. */
+function sequencerSugarHover(machine: Machine, word: string, start: number): string | undefined {
+  if (!machine.sequencer || !['goto', 'wait', 'end', 'call', 'return'].includes(word)) return undefined;
+  for (const w of usageOf(machine).written) {
+    if (w.alt.span.start > start) break;
+    if (start >= w.alt.span.end) continue;
+    const set = w.alt.actions.filter((a) => a.span.start === start && a.value?.kind === 'code');
+    if (!set.length) continue;
+    const move = sequencerMove(machine, w.alt, w.alt.step);
+    const where =
+      move?.returnOf !== undefined ? 'goes to the step the return register holds (the one the open call kept)'
+      : move?.to === undefined ? 'goes to a step the word does not fix'
+      : move.calls ? `goes to step ${move.to} and keeps step ${move.context.values.find((v) => v !== undefined) ?? '?'} in the return register, to come back to`
+      : move.to === 0 ? 'goes back to step 0: the instruction ends'
+      : move.to === w.alt.step ? 'stays at this step (the same word runs again)'
+      : `goes to step ${move.to}`;
+    const fields = set.map((a) => `\`${a.signal}=${a.value!.kind === 'code' ? a.value!.name : ''}\``).join(', ');
+    return `**\`${word}\`** — step sugar: sets ${fields}; at the closing edge the sequencer \`${machine.sequencer}\` ${where}.`;
+  }
   return undefined;
 }
 
