@@ -1,6 +1,6 @@
 // `phasewright prove FILE [--json] [--instruction NAME]`: proves that the table's encoded control
 // store implements each RV32I instruction for all operand values (server/src/core/prove), with
-// Debian's z3 deciding each obligation (../z3Solver.ts). One line per instruction (verdict,
+// z3 deciding each obligation: the z3 program or its WebAssembly build from npm (../solvers.ts). One line per instruction (verdict,
 // time); a refutation is followed by its counterexample in full.
 import { basename, resolve } from 'node:path';
 import { analyse } from '../../core/analysis';
@@ -13,7 +13,7 @@ import { ManifestError } from '../output/manifest';
 import { writeOutputSet } from '../output/outputSet';
 import { OutputError } from '../output/safeWriter';
 import { VERSION } from '../version';
-import { z3Solver } from '../z3Solver';
+import { SOLVER_CHOICES, type SolverChoice, solverFor } from '../solvers';
 
 /** What a proof covers and what it does not (issue: scope stated in the docs, the hover and here). */
 const PROOF_SCOPE = 'the table over the datapath as described, for RV32I in user mode (pc aligned, no misaligned-address exceptions); not the wiring, the timing or electrical faults of the board';
@@ -26,6 +26,7 @@ export const proveCommand = defineCommand({
     { name: 'json', help: 'print the verdicts as JSON data (per instruction: verdict, milliseconds, counterexample or reason)' },
     { name: 'instruction', value: 'NAME', help: 'prove only this instruction (an RV32I mnemonic such as addi); may be given once' },
     { name: 'smt', value: 'DIR', help: 'also write every obligation as an SMT-LIB 2 (QF_BV) script into DIR, for any solver to decide again' },
+    { name: 'solver', value: 'auto|z3|wasm', help: 'z3: the z3 program (Debian package z3); wasm: Z3 built to WebAssembly (npm z3-solver, carried by the extension); auto (default): z3 when it runs, else wasm' },
   ],
   exitCodes: [
     [0, 'every instruction proved'],
@@ -44,6 +45,11 @@ export const proveCommand = defineCommand({
     const only = typeof name === 'string' ? [name.toLowerCase()] : undefined;
     if (only && !instructionByMnemonic(only[0])) {
       io.err(`phasewright prove: \`${name}\` is not an RV32I instruction (give a mnemonic such as addi or beq)\n`);
+      return 2;
+    }
+    const solverOption = parsed.options.get('solver') ?? 'auto';
+    if (typeof solverOption !== 'string' || !(SOLVER_CHOICES as readonly string[]).includes(solverOption)) {
+      io.err(`phasewright prove: --solver takes ${SOLVER_CHOICES.join(', ')}\n`);
       return 2;
     }
     const source = readSource(resolve(io.cwd, file));
@@ -81,9 +87,10 @@ export const proveCommand = defineCommand({
         throw err;
       }
     }
-    const results = await proveMachine(built.plan, z3Solver(), { only });
+    const solver = solverFor(solverOption as SolverChoice);
+    const results = await proveMachine(built.plan, solver, { only });
     if (parsed.options.has('json')) {
-      io.out(JSON.stringify({ file, solver: 'z3', scope: PROOF_SCOPE, results }, null, 2) + '\n');
+      io.out(JSON.stringify({ file, solver: solver.name, scope: PROOF_SCOPE, results }, null, 2) + '\n');
     } else {
       for (const r of results) {
         const v = r.verdict;
@@ -94,6 +101,7 @@ export const proveCommand = defineCommand({
       const count = (k: string) => results.filter((r) => r.verdict.kind === k).length;
       io.out(`${file}: ${count('proved')} proved, ${count('refuted')} refuted, ${count('unknown')} unknown of ${results.length}\n`);
       io.out(`scope: ${PROOF_SCOPE}\n`);
+      io.out(`solver: ${solver.name}\n`);
     }
     if (results.some((r) => r.verdict.kind === 'refuted')) return 1;
     return results.some((r) => r.verdict.kind === 'unknown') ? 3 : 0;
