@@ -5,13 +5,16 @@
 // A fixed-register strobe `x[n]` runs through the register file's numbered ports (`xout[n]`,
 // `xin[n]`) like any other port. Which instructions are RV32I: the
 // RISC-V Unprivileged ISA 20191213, chapter 24 listing, via isa/rv32i.ts. The verdicts
-// themselves are decided by Debian's z3 in tests/outside/prove-z3.test.ts.
+// themselves are decided by Debian's z3 in tests/outside/prove-z3.test.ts. On the sequencer
+// machines (windlass-32, winch-32) the step is the sequencer's state: a shift loop is one path per
+// shift amount (RV32I shifts by a 5-bit amount, spec 2.4: 32 values), and the walk's bounds of
+// steps and paths leave what they cut off undecided, never proved.
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { RV32I_INSTRUCTIONS, instructionByMnemonic } from '../../server/src/core/isa/rv32i';
-import { cannotProve, obligationsOf, proofPlan } from '../../server/src/core/prove';
+import { WALK_LIMITS, cannotProve, obligationsOf, proofPlan } from '../../server/src/core/prove';
 import { REPO, demoWith } from '../sim/support';
 
 function planOf(text: string) {
@@ -22,7 +25,7 @@ function planOf(text: string) {
   return built.plan;
 }
 
-const EXAMPLES = ['halyard-32', 'gantry-32', 'trestle-32', 'capstan-32'];
+const EXAMPLES = ['halyard-32', 'gantry-32', 'trestle-32', 'capstan-32', 'windlass-32', 'winch-32'];
 
 describe('the symbolic executor over part definitions', () => {
   for (const name of EXAMPLES) {
@@ -75,6 +78,46 @@ describe('the symbolic executor over part definitions', () => {
     expect(jal.obligations.length).toBeGreaterThan(0);
     // The instructions that do not use it are decided as before.
     expect(obligationsOf(plan, instructionByMnemonic('lui')!).settled).toBeUndefined();
+  });
+
+  it('follows windlass-32\'s shift loop one path per shift amount: 32 paths, none cut off by the bounds', () => {
+    const plan = planOf(readFileSync(join(REPO, 'examples', 'windlass-32.pwt'), 'utf8'));
+    for (const mnemonic of ['slli', 'sll']) {
+      const r = obligationsOf(plan, instructionByMnemonic(mnemonic)!);
+      expect(r.settled).toBeUndefined();
+      expect(r.bounded).toEqual([]);
+      expect(r.obligations.map((o) => o.paths)).toEqual([32]);
+      expect(r.unrolled).toEqual({ step: 3, times: 32 });
+      // The longest path holds step 3 for 31 turns (amount 31); the shortest (amount 0) leaves the loop at once.
+      expect(r.obligations[0].description).toMatch(/32 paths \(steps 0,1,2,3x32; \.\.\.; steps 0,1,2,3\)/);
+    }
+    // An instruction without the loop has one path, as on the implicit step counter.
+    expect(obligationsOf(plan, instructionByMnemonic('add')!).obligations.map((o) => o.paths)).toEqual([1]);
+  });
+
+  it('leaves what the bounds cut off undecided: a path longer than the steps bound, an instruction with more paths than the paths bound', () => {
+    const plan = planOf(readFileSync(join(REPO, 'examples', 'windlass-32.pwt'), 'utf8'));
+    const slli = instructionByMnemonic('slli')!;
+    // 20 steps: the fetch, the load and 16 turns of the loop; the path that goes on is stopped, for the solver to judge.
+    const short = obligationsOf(plan, slli, undefined, { ...WALK_LIMITS, maxSteps: 20 });
+    expect(short.settled).toBeUndefined();
+    expect(short.bounded).toHaveLength(1);
+    expect(short.bounded[0].why).toMatch(/did not end within 20 steps \(the prover's bound of steps per path; step 3 ran 17 times\)/);
+    expect(short.bounded[0].script).toContain('(set-logic QF_BV)');
+    const few = obligationsOf(plan, slli, undefined, { ...WALK_LIMITS, maxPaths: 8 });
+    expect(few.settled?.kind).toBe('unknown');
+    if (few.settled?.kind === 'unknown') expect(few.settled.reason).toMatch(/more than 8 paths/);
+  });
+
+  it('does not prove a return no call of the instruction saved: winch-32\'s OP-IMM jumping to its routine', () => {
+    const text = readFileSync(join(REPO, 'examples', 'winch-32.pwt'), 'utf8').replace('imm.oe, cnt.ld, call 8', 'imm.oe, cnt.ld, goto 8');
+    const analysis = analyse(text);
+    expect(analysis.diagnostics.map((d) => d.code)).toContain('return-without-call');
+    const built = proofPlan(analysis.machine);
+    if (!built.ok) throw new Error(built.errors.join('\n'));
+    const r = obligationsOf(built.plan, instructionByMnemonic('srli')!);
+    expect(r.settled?.kind).toBe('unknown');
+    if (r.settled?.kind === 'unknown') expect(r.settled.reason).toMatch(/step 8 returns to the step the return register `seq\.r` holds, which no call of this instruction saved/);
   });
 
   it('keeps the prover free of kind names: prove/ asks the definitions, not the library by name', () => {

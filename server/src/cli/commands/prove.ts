@@ -1,7 +1,8 @@
 // `phasewright prove FILE [--json] [--instruction NAME]`: proves that the table's encoded control
 // store implements each RV32I instruction for all operand values (server/src/core/prove), with
-// z3 deciding each obligation: the z3 program or its WebAssembly build from npm (../solvers.ts). One line per instruction (verdict,
-// time); a refutation is followed by its counterexample in full.
+// z3 deciding each obligation: the z3 program or its WebAssembly build from npm (../solvers.ts).
+// One line per instruction (verdict, time, and on a machine with loops how far the walk
+// unrolled the longest); a refutation is followed by its counterexample in full.
 import { basename, resolve } from 'node:path';
 import { analyse } from '../../core/analysis';
 import { RV32I_INSTRUCTIONS, instructionByMnemonic } from '../../core/isa/rv32i';
@@ -74,7 +75,10 @@ export const proveCommand = defineCommand({
       const files: { name: string; format: string; bytes: Buffer }[] = [];
       for (const spec of RV32I_INSTRUCTIONS) {
         if (only && !only.includes(spec.mnemonic)) continue;
-        obligationsOf(built.plan, spec).obligations.forEach((o, i) => files.push({ name: `${spec.mnemonic}-${i + 1}.smt2`, format: 'smt-lib', bytes: Buffer.from(o.script, 'utf8') }));
+        const { obligations, bounded } = obligationsOf(built.plan, spec);
+        obligations.forEach((o, i) => files.push({ name: `${spec.mnemonic}-${i + 1}.smt2`, format: 'smt-lib', bytes: Buffer.from(o.script, 'utf8') }));
+        // A path stopped at the walk's bound: unsat says no values take it.
+        bounded.forEach((b, i) => files.push({ name: `${spec.mnemonic}-bounded-${i + 1}.smt2`, format: 'smt-lib', bytes: Buffer.from(b.script, 'utf8') }));
       }
       try {
         const report = writeOutputSet({ folder: resolve(io.cwd, smtOption), command: 'prove', sourceFile: basename(file), version: VERSION, files });
@@ -94,7 +98,9 @@ export const proveCommand = defineCommand({
     } else {
       for (const r of results) {
         const v = r.verdict;
-        const detail = v.kind === 'proved' ? (v.obligations ? `${v.obligations} obligation${v.obligations > 1 ? 's' : ''}` : 'traps to the environment on every path') : v.kind === 'unknown' ? v.reason : v.description;
+        const paths = v.kind === 'proved' && v.paths ? ` over ${v.paths} paths` : '';
+        const loop = v.kind === 'proved' && v.unrolled ? `; loop unrolled up to ${v.unrolled.times} times (step ${v.unrolled.step})` : '';
+        const detail = v.kind === 'proved' ? (v.obligations ? `${v.obligations} obligation${v.obligations > 1 ? 's' : ''}${paths}${loop}` : 'traps to the environment on every path') : v.kind === 'unknown' ? v.reason : v.description;
         io.out(`${r.mnemonic.padEnd(6)} ${v.kind.padEnd(8)} ${String(r.milliseconds).padStart(6)} ms  ${detail}\n`);
         if (v.kind === 'refuted') io.out(describeCounterexample(v.counterexample).join('\n') + '\n');
       }

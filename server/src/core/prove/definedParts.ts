@@ -15,7 +15,7 @@ import { definedPortOf, strobePortNumber } from '../model/partFacts';
 import type { Part, Field, Machine, Strobe } from '../model/types';
 import { parsedExpr, portExpressions, sizeOf, type PartSetting } from '../parts/behaviour';
 import { bitsFor, resolveExpression, scopeOf, type Expr, type NameInfo, type Resolution } from '../parts/expr';
-import { edgeInputName } from '../parts/kinds';
+import { edgeInputName, type KindEdge } from '../parts/kinds';
 import type { SimPlan } from '../sim/plan';
 import { symbolicResolved } from './symbolicExpr';
 import type { Term, Terms } from './term';
@@ -77,6 +77,8 @@ interface PortPlan {
   readonly scope: Map<string, NameInfo>;
   /** Codes of the part's controls in this micro-op. */
   readonly controls: ReadonlyMap<string, number>;
+  /** Codes of the number fields its `field` inputs read in this micro-op (the idle code where the word sets none). */
+  readonly fieldInputs: ReadonlyMap<string, number>;
 }
 
 /** Fits a term to `w` bits: the low bits, or zero-extended (as the simulator masks an input to its width). */
@@ -177,10 +179,17 @@ export class DefinedParts {
     const controls = new Map<string, number>();
     for (const control of model.part.def.controls) {
       const field = this.controlField(model.part, control.name);
-      // A control no field drives reads code 0, as the simulator gives it.
-      controls.set(control.name, field ? (fields.get(field.name) ?? field.idle) : 0);
+      // A control no field drives holds its default value (the first where it names none), as the simulator gives it.
+      controls.set(control.name, field ? (fields.get(field.name) ?? field.idle) : Math.max(0, control.values.indexOf(control.default ?? '')));
     }
-    return { model, scope, controls };
+    // A `field` input reads the code of a number field of the word, as the simulator gives it (sim/customParts.ts).
+    const fieldInputs = new Map<string, number>();
+    for (const [name, input] of model.part.inputs) {
+      if (input.from !== 'field') continue;
+      const field = this.machine.signals.get(input.name);
+      fieldInputs.set(name, fields.get(input.name) ?? (field?.type === 'field' ? field.idle : 0));
+    }
+    return { model, scope, controls, fieldInputs };
   }
 
   private resolve(expr: Expr, scope: Map<string, NameInfo>, width: number | undefined, what: string): Compiled {
@@ -200,20 +209,50 @@ export class DefinedParts {
       entry = { plan: this.portPlan(model, fields, placed.scope), compiled: this.resolve(placed.exprs[0].expr, placed.scope, width, `\`${model.part.name}.${port}\``) };
       this.drives.set(key, entry);
     }
-    return this.evaluate(T, view, entry.plan, entry.compiled, -1);
+    return this.evaluate(T, view, entry.plan, entry.compiled, undefined);
   }
 
   /** What an edge port assigns at the closing edge in the micro-op `key`, from the values before it; `bus` is the bus the strobe loads (-1 none). */
   edge(T: Terms, view: MachineView, key: string, strobe: Strobe, fields: ReadonlyMap<string, number>, bus: number): EdgeAssignment[] {
+    return this.edgeAssignments(T, view, key, fields, bus, strobe.lines, () => {
+      const { model, port } = this.portOf(strobe);
+      return { model, port, param: (p) => strobePortNumber(p, strobe) };
+    });
+  }
+
+  /**
+   * What an edge port that acts at every closing edge with no strobe (`on next always:`, a
+   * sequencer's next step) assigns in the micro-op `key`: part `part`'s port `port`, with the
+   * codes of the word's fields (its controls and its `field` inputs).
+   */
+  always(T: Terms, view: MachineView, key: string, part: string, port: string, fields: ReadonlyMap<string, number>): EdgeAssignment[] {
+    return this.edgeAssignments(T, view, `always:${key}`, fields, -1, undefined, () => {
+      const m = this.model(part);
+      if ('problem' in m) throw new ProverLimit(`\`${part}.${port}\` acts at every closing edge, and the prover cannot read \`${part}\` as a definition: ${m.problem}`);
+      return { model: m, port, param: () => undefined };
+    });
+  }
+
+  private edgeAssignments(
+    T: Terms,
+    view: MachineView,
+    key: string,
+    fields: ReadonlyMap<string, number>,
+    bus: number,
+    lines: { hi: number; lo: number } | undefined,
+    port: () => { model: DefinedPart; port: string; param: (param: KindEdge['param']) => ReturnType<typeof strobePortNumber> },
+  ): EdgeAssignment[] {
     let entry = this.edges.get(key);
     if (!entry) {
-      const { model, port } = this.portOf(strobe);
+      const found = port();
+      const model = found.model;
       const def = model.part.def;
-      const edge = def.edges.find((e) => e.name === port)!;
+      const edge = def.edges.find((e) => e.name === found.port);
+      if (!edge) throw new ProverLimit(`\`${model.part.name}\` has no closing-edge port \`${found.port}\``);
       const edgeWidth = edge.width ? sizeOf(edge.width, model.part.settings) : undefined;
       const texts = edge.assigns.flatMap((a) => [{ text: a.expr, width: sizeOf(def.states.find((s) => s.name === a.target)!.width, model.part.settings) }, ...(a.when ? [{ text: a.when, width: 1 }] : []), ...(a.index ? [{ text: a.index }] : [])]);
-      const placed = portExpressions(def, model.setting, texts, edgeWidth, strobePortNumber(edge.param, strobe));
-      const what = `\`${model.part.name}.${port}\``;
+      const placed = portExpressions(def, model.setting, texts, edgeWidth, found.param(edge.param));
+      const what = `\`${model.part.name}.${found.port}\``;
       let k = 0;
       const assigns = edge.assigns.map((a) => {
         const value = this.resolve(placed.exprs[k].expr, placed.scope, placed.exprs[k++].width, what);
@@ -226,12 +265,13 @@ export class DefinedParts {
       this.edges.set(key, entry);
     }
     const { plan, assigns } = entry;
+    const edgeBus = bus < 0 ? undefined : { bus, lines };
     return assigns.map((a) => {
-      const value = this.evaluate(T, view, plan, a.value, bus);
-      let when = a.when ? this.evaluate(T, view, plan, a.when, bus) : T.true;
+      const value = this.evaluate(T, view, plan, a.value, edgeBus);
+      let when = a.when ? this.evaluate(T, view, plan, a.when, edgeBus) : T.true;
       let index: Term | undefined;
       if (a.index) {
-        const raw = this.evaluate(T, view, plan, a.index, bus);
+        const raw = this.evaluate(T, view, plan, a.index, edgeBus);
         const home = a.home;
         if (home.in === 'memory') index = fit(T, raw, 32);
         else if (home.in === 'registers' || home.in === 'array') {
@@ -260,23 +300,29 @@ export class DefinedParts {
         this.flagPlans.push({ plan: this.portPlan(m, new Map(), placed.scope), flags });
       }
     }
-    return this.flagPlans.flatMap(({ plan, flags }) => flags.map(({ flag, compiled }) => ({ flag, value: this.evaluate(T, view, plan, compiled, -1) })));
+    return this.flagPlans.flatMap(({ plan, flags }) => flags.map(({ flag, compiled }) => ({ flag, value: this.evaluate(T, view, plan, compiled, undefined) })));
   }
 
   /** One resolved expression of a port over the machine's terms. */
-  private evaluate(T: Terms, view: MachineView, plan: PortPlan, compiled: Compiled, edgeBus: number): Term {
+  private evaluate(T: Terms, view: MachineView, plan: PortPlan, compiled: Compiled, edgeBus: { bus: number; lines?: { hi: number; lo: number } } | undefined): Term {
     const part = plan.model.part;
     const homes = plan.model.homes;
     const name = (n: string): Term => {
       const w = plan.scope.get(n)?.width;
       if (w === undefined) throw new ProverLimit(`\`${part.name}\` reads \`${n}\`, which is not in its scope`);
-      if (n === edgeInputName && edgeBus >= 0) return fit(T, view.bus(edgeBus), w);
+      if (n === edgeInputName && edgeBus) {
+        // A strobe that names some lines (`clock right[4:0] -> cnt`) brings those lines, from the lowest (sim/customParts.ts).
+        const value = view.bus(edgeBus.bus);
+        const lines = edgeBus.lines;
+        return fit(T, lines ? T.extract(value, Math.min(lines.hi, value.w - 1), lines.lo) : value, w);
+      }
       const home = homes.get(n);
       if (home?.in === 'slot') return view.slot(home.key, home.width);
       const input = part.inputs.get(n);
       if (input?.from === 'bus') return fit(T, view.bus(this.plan.busIndex.get(input.name)!), w);
       if (input?.from === 'part') return fit(T, view.partValue(this.plan.partIndex.get(input.name)!), w);
       if (input?.from === 'instruction') return fit(T, view.partValue(this.plan.irPart), w);
+      if (input?.from === 'field') return T.const(w, plan.fieldInputs.get(n) ?? 0);
       const control = plan.controls.get(n);
       if (control !== undefined) return T.const(w, control);
       const setting = part.def.settings.find((s) => s.name === n);

@@ -8,8 +8,11 @@
 //   - the memory afterwards, at every address (a free 32-bit `probe.m`: a store's bytes, nothing else).
 // Assumed: the path's condition, the pc is four-byte aligned, and the instruction does not raise
 // instruction-address-misaligned (then it does not retire, spec 2.2; the lock-step reference
-// reports that itself). The negation is one QF_BV script; a solver's unsat proves the path for
-// all values, sat refutes it with a model turned into concrete values.
+// reports that itself). The negation is one QF_BV script per case (value of the free bits),
+// holding every path of the case: some path's condition holds and its effect differs. A solver's
+// unsat proves the paths for all values, sat refutes one with a model turned into concrete values
+// on the path the model takes. A path the walk stopped at its bound of steps leaves the
+// instruction unknown unless the solver finds its condition cannot hold (unsat).
 // ECALL and EBREAK hand control to the environment (spec 2.8): every path must trap, and the
 // walk decides that without a solver. A path that faults refutes the instruction whenever its
 // condition can hold.
@@ -17,7 +20,7 @@ import { effectOf, SEMANTICS_INPUTS, DEFINED_NAMES, type Effect } from '../isa/s
 import { RV32I_INSTRUCTIONS, type InstructionSpec } from '../isa/rv32i';
 import { scopeOf, type NameInfo } from '../parts/expr';
 import type { SimPlan } from '../sim/plan';
-import { executeInstruction, fixedBits, instructionTerm, previousInstructionPatterns, startState, unsupported, type MachinePath, type Start } from './execute';
+import { WALK_LIMITS, executeInstruction, fixedBits, mostRepeated, instructionTerm, previousInstructionPatterns, startState, unsupported, type MachinePath, type Start, type WalkLimits } from './execute';
 import { smtScript, type Solver } from './smtlib';
 import type { ArrayWrite } from './symbolicArray';
 import { symbolic } from './symbolicExpr';
@@ -31,6 +34,10 @@ export interface Obligation {
   readonly script: string;
   /** Turns a solver's model into the counterexample. */
   readonly explain: (model: ReadonlyMap<string, bigint>) => Counterexample;
+  /** How many paths of the machine it holds (one script decides every path of its case). */
+  readonly paths: number;
+  /** The case the model takes, in words (one of the paths, when the obligation holds several). */
+  readonly describe: (model: ReadonlyMap<string, bigint>) => string;
 }
 
 export interface Counterexample {
@@ -46,8 +53,22 @@ export interface Counterexample {
   readonly steps: string[];
 }
 
+/** The longest loop the walk unrolled on the instruction's paths: a step ran `times` times on one path. */
+export interface Unrolled {
+  readonly step: number;
+  readonly times: number;
+}
+
+/** A path the walk stopped at its bound of steps: it leaves the instruction undecided unless its condition cannot hold. */
+export interface BoundedPath {
+  readonly description: string;
+  readonly why: string;
+  /** The path's condition with the start's assumptions: a solver's unsat says no values take this path. */
+  readonly script: string;
+}
+
 export type Verdict =
-  | { readonly kind: 'proved'; readonly obligations: number }
+  | { readonly kind: 'proved'; readonly obligations: number; readonly paths?: number; readonly unrolled?: Unrolled }
   | { readonly kind: 'refuted'; readonly counterexample: Counterexample; readonly description: string }
   | { readonly kind: 'unknown'; readonly reason: string };
 
@@ -64,12 +85,31 @@ export function cannotProve(plan: SimPlan): string | undefined {
   return unsupported(plan);
 }
 
-/** The obligations of one instruction, or a verdict reached without a solver (ECALL/EBREAK, a construct given up). */
-export function obligationsOf(plan: SimPlan, spec: InstructionSpec, previous = previousInstructionPatterns(plan)): { obligations: Obligation[]; settled?: Verdict } {
+/** Steps (or addresses) as a list, a run of one repeated as `3x32`. */
+function runs(values: readonly number[]): string {
+  const out: string[] = [];
+  for (let i = 0; i < values.length; ) {
+    let j = i;
+    while (j + 1 < values.length && values[j + 1] === values[i]) j++;
+    out.push(j > i ? `${values[i]}x${j - i + 1}` : String(values[i]));
+    i = j + 1;
+  }
+  return out.join(',');
+}
+
+/**
+ * The obligations of one instruction, or a verdict reached without a solver (ECALL/EBREAK, a
+ * construct given up); `bounded` lists the paths stopped at the walk's bound of steps, which the
+ * solver must show cannot happen; `unrolled` the longest loop on the paths that became obligations.
+ */
+export function obligationsOf(plan: SimPlan, spec: InstructionSpec, previous = previousInstructionPatterns(plan), limits: WalkLimits = WALK_LIMITS): { obligations: Obligation[]; settled?: Verdict; bounded: BoundedPath[]; unrolled?: Unrolled } {
   const effect = effectOf(spec.mnemonic);
   const { value, mask } = fixedBits(spec);
   const free = plan.encoded.universe.irBits.filter((b) => !((mask >>> b) & 1));
   const obligations: Obligation[] = [];
+  const bounded: BoundedPath[] = [];
+  const budget = { paths: 0 };
+  let unrolled: Unrolled | undefined;
   for (let n = 0; n < 2 ** free.length; n++) {
     let v = value;
     let m = mask;
@@ -80,24 +120,36 @@ export function obligationsOf(plan: SimPlan, spec: InstructionSpec, previous = p
     const bitsText = free.length ? `instruction bits ${free.map((b, i) => `${b}=${(n >>> i) & 1}`).join(' ')}` : 'all address bits fixed';
     const T = new Terms();
     const start = startState(T, instructionTerm(T, v >>> 0, m >>> 0));
-    const paths = executeInstruction(T, plan, start, previous);
+    const paths = executeInstruction(T, plan, start, previous, limits, budget);
+    const checks: PathCheck[] = [];
     for (const path of paths) {
-      const description = `${bitsText}; steps ${path.steps.map((s) => s.step).join(',')} (addresses ${path.steps.map((s) => s.address).join(',')})`;
-      if (path.ending.kind === 'given-up') return { obligations, settled: { kind: 'unknown', reason: `${description}: ${path.ending.why}` } };
+      const description = `${bitsText}; steps ${runs(path.steps.map((s) => s.step))} (addresses ${runs(path.steps.map((s) => s.address))})`;
+      if (path.ending.kind === 'given-up') {
+        if (path.ending.limit === 'steps') {
+          // The path may be one no values take (a loop counter that is none of its values): the solver says.
+          bounded.push({ description, why: path.ending.why, script: obligationOf(T, spec, start, [faultCheck(T, spec, start, path, description, path.ending.why)]).script });
+          continue;
+        }
+        return { obligations, bounded, settled: { kind: 'unknown', reason: `${description}: ${path.ending.why}` } };
+      }
+      const most = mostRepeated(path.steps);
+      if (most.times > 1 && (!unrolled || most.times > unrolled.times)) unrolled = most;
       if (effect.special === 'environment-call' || effect.special === 'breakpoint') {
         if (path.ending.kind === 'trap') continue;
-        obligations.push(faultObligation(T, spec, start, path, description, path.ending.kind === 'fault' ? path.ending.why : 'the machine does not trap; ECALL and EBREAK hand control to the environment (spec 2.8)'));
+        checks.push(faultCheck(T, spec, start, path, description, path.ending.kind === 'fault' ? path.ending.why : 'the machine does not trap; ECALL and EBREAK hand control to the environment (spec 2.8)'));
         continue;
       }
       if (path.ending.kind !== 'end') {
-        obligations.push(faultObligation(T, spec, start, path, description, path.ending.kind === 'fault' ? path.ending.why : 'the machine traps; this instruction must retire'));
+        checks.push(faultCheck(T, spec, start, path, description, path.ending.kind === 'fault' ? path.ending.why : 'the machine traps; this instruction must retire'));
         continue;
       }
-      obligations.push(effectObligation(T, spec, effect, start, path, description));
+      checks.push(effectCheck(T, effect, start, path, description));
     }
+    // The paths of one case share the start and most of their terms: one script decides them all.
+    if (checks.length) obligations.push(obligationOf(T, spec, start, checks));
   }
-  if (obligations.length === 0 && (effect.special === 'environment-call' || effect.special === 'breakpoint')) return { obligations, settled: { kind: 'proved', obligations: 0 } };
-  return { obligations };
+  if (obligations.length === 0 && bounded.length === 0 && (effect.special === 'environment-call' || effect.special === 'breakpoint')) return { obligations, bounded, settled: { kind: 'proved', obligations: 0 } };
+  return { obligations, bounded, ...(unrolled && { unrolled }) };
 }
 
 /** The specification's terms over the start state. */
@@ -133,11 +185,44 @@ function consistency(start: Start): Term[] {
   return [...start.registers.consistency(), ...start.memory.consistency(), ...[...start.arrays.values()].flatMap((a) => a.consistency())];
 }
 
-function assumptions(T: Terms, start: Start, path: MachinePath, misaligned: Term): Term[] {
-  return [...path.condition, T.eq(T.extract(start.pc, 1, 0), T.const(2, 0)), T.not(misaligned)];
+/** One path of a case: what makes it wrong (beside its condition), and how a model shows it. */
+interface PathCheck {
+  readonly path: MachinePath;
+  readonly description: string;
+  /** One bit: the path does something the specification does not (a fault path: always). */
+  readonly wrong: Term;
+  /** What the script's comment says refutes the table on this path. */
+  readonly why: string;
+  readonly explain: (model: ReadonlyMap<string, bigint>) => Counterexample;
 }
 
-function effectObligation(T: Terms, spec: InstructionSpec, effect: Effect, start: Start, path: MachinePath, description: string): Obligation {
+/**
+ * The obligation of one case: the start's assumptions, and that one of its paths can be taken
+ * (its condition holds) and is wrong. With one path its facts are the path's condition and its
+ * wrong effect; with several, their disjunction, and a model is read back on the path it takes.
+ */
+function obligationOf(T: Terms, spec: InstructionSpec, start: Start, checks: readonly PathCheck[]): Obligation {
+  const misaligned = specification(T, effectOf(spec.mnemonic), start).misaligned;
+  const common = [T.eq(T.extract(start.pc, 1, 0), T.const(2, 0)), T.not(misaligned)];
+  const taken = (c: PathCheck) => T.andAll([...c.path.condition, c.wrong]);
+  const facts =
+    checks.length === 1
+      ? [...checks[0].path.condition, ...common, ...(checks[0].wrong === T.true ? [] : [checks[0].wrong])]
+      : [...common, checks.map(taken).reduce((a, b) => T.or(a, b), T.false)];
+  facts.push(...consistency(start));
+  const pick = (model: ReadonlyMap<string, bigint>): PathCheck => {
+    if (checks.length === 1) return checks[0];
+    const memo = new Map<number, bigint>();
+    return checks.find((c) => evalTerm(taken(c), model, memo) === 1n) ?? checks[0];
+  };
+  const stepsOf = (c: PathCheck) => c.description.slice(c.description.indexOf(';') + 2).replace(/ \(addresses [^)]*\)/, '');
+  const listed = checks.length <= 4 ? checks.map(stepsOf).join('; ') : `${stepsOf(checks[0])}; ...; ${stepsOf(checks[checks.length - 1])}`;
+  const description = checks.length === 1 ? checks[0].description : `${checks[0].description.split(';')[0]}; ${checks.length} paths (${listed})`;
+  const comment = checks.length === 1 ? [`${spec.mnemonic}: ${description}`, `sat refutes the table: ${checks[0].why}`] : [`${spec.mnemonic}: ${description}`, 'sat refutes the table: on one of these paths the machine differs from the RV32I semantics'];
+  return { mnemonic: spec.mnemonic, description, paths: checks.length, script: smtScript(facts, comment), explain: (model) => pick(model).explain(model), describe: (model) => pick(model).description };
+}
+
+function effectCheck(T: Terms, effect: Effect, start: Start, path: MachinePath, description: string): PathCheck {
   const want = specification(T, effect, start);
   const probeX = T.variable('probe.x', 5);
   const probeM = T.variable('probe.m', 32);
@@ -148,8 +233,6 @@ function effectObligation(T: Terms, spec: InstructionSpec, effect: Effect, start
   const mGot = start.memory.readAfter(path.memoryWrites, probeM);
   const mWant = start.memory.readAfter(want.memoryWrites, probeM);
   const holds = T.andAll([T.eq(pcGot, pcWant), T.eq(xGot, xWant), T.eq(mGot, mWant)]);
-  const facts = [...assumptions(T, start, path, want.misaligned), T.not(holds)];
-  facts.push(...consistency(start));
   const explain = (model: ReadonlyMap<string, bigint>): Counterexample => {
     const memo = new Map<number, bigint>();
     const ev = (t: Term) => evalTerm(t, model, memo);
@@ -168,18 +251,16 @@ function effectObligation(T: Terms, spec: InstructionSpec, effect: Effect, start
     }
     return concreteStart(start, path, ev, differences);
   };
-  return { mnemonic: spec.mnemonic, description, script: smtScript(facts, [`${spec.mnemonic}: ${description}`, 'sat refutes the table: machine effect differs from the RV32I semantics']), explain };
+  return { path, description, wrong: T.not(holds), why: 'machine effect differs from the RV32I semantics', explain };
 }
 
-function faultObligation(T: Terms, spec: InstructionSpec, start: Start, path: MachinePath, description: string, why: string): Obligation {
+function faultCheck(T: Terms, spec: InstructionSpec, start: Start, path: MachinePath, description: string, why: string): PathCheck {
   const effect = effectOf(spec.mnemonic);
-  const want = specification(T, effect, start);
-  const facts = [...assumptions(T, start, path, want.misaligned), ...consistency(start)];
   const explain = (model: ReadonlyMap<string, bigint>): Counterexample => {
     const memo = new Map<number, bigint>();
     return concreteStart(start, path, (t) => evalTerm(t, model, memo), [{ what: 'fault', expected: effect.special ? 'a trap to the environment' : 'the instruction retires', obtained: why }]);
   };
-  return { mnemonic: spec.mnemonic, description, script: smtScript(facts, [`${spec.mnemonic}: ${description}`, `sat refutes the table: ${why}`]), explain };
+  return { path, description, wrong: T.true, why, explain };
 }
 
 function concreteStart(start: Start, path: MachinePath, ev: (t: Term) => bigint, differences: Counterexample['differences'][number][]): Counterexample {
@@ -207,14 +288,22 @@ function concreteStart(start: Start, path: MachinePath, ev: (t: Term) => bigint,
 
 /** Decides every obligation of one instruction with `solver`. */
 export async function proveInstruction(plan: SimPlan, spec: InstructionSpec, solver: Solver, previous = previousInstructionPatterns(plan)): Promise<Verdict> {
-  const { obligations, settled } = obligationsOf(plan, spec, previous);
+  const { obligations, settled, bounded, unrolled } = obligationsOf(plan, spec, previous);
   if (settled && settled.kind !== 'proved') return settled;
+  // A path stopped at the bound is "not proved" unless no values take it.
+  for (const b of bounded) {
+    const reply = await solver.decide(b.script);
+    if (reply.status === 'sat') return { kind: 'unknown', reason: `${b.description}: ${b.why}` };
+    if (reply.status === 'unknown') return { kind: 'unknown', reason: `${b.description}: ${b.why}; ${solver.name} could not say whether the path can happen: ${reply.reason}` };
+  }
   for (const o of obligations) {
     const reply = await solver.decide(o.script);
-    if (reply.status === 'sat') return { kind: 'refuted', counterexample: o.explain(reply.model), description: o.description };
+    if (reply.status === 'sat') return { kind: 'refuted', counterexample: o.explain(reply.model), description: o.describe(reply.model) };
     if (reply.status === 'unknown') return { kind: 'unknown', reason: `${o.description}: ${solver.name}: ${reply.reason}` };
   }
-  return { kind: 'proved', obligations: obligations.length };
+  if (settled) return settled;
+  const paths = obligations.reduce((n, o) => n + o.paths, 0);
+  return { kind: 'proved', obligations: obligations.length, ...(paths > obligations.length && { paths }), ...(unrolled && { unrolled }) };
 }
 
 /** Proves each instruction (all 40, or those named), in the order of rv32i.ts. */
