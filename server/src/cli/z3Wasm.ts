@@ -24,13 +24,29 @@ interface Z3LowLevel {
 
 let loading: Promise<Z3LowLevel> | undefined;
 
+/** Where the package's Node entry is: next to the bundle, else in node_modules; undefined when neither is there. */
+function entry(): string | undefined {
+  const bundled = join(__dirname, 'z3', 'solver.js');
+  if (existsSync(bundled)) return bundled;
+  try {
+    return require.resolve(['z3', 'solver'].join('-'));
+  } catch {
+    return undefined;
+  }
+}
+
+/** Whether the WebAssembly z3 is there to load (it is not started). */
+export function z3WasmAvailable(): boolean {
+  return entry() !== undefined;
+}
+
 /** The WebAssembly Z3, started once per process. */
 function z3(): Promise<Z3LowLevel> {
   loading ??= (async () => {
-    const bundled = join(__dirname, 'z3', 'solver.js');
-    // A computed name, so that bundlers leave the require to run time.
-    const load = (name: string) => require(name) as { init(): Promise<{ Z3: Z3LowLevel }> };
-    const module = existsSync(bundled) ? load(bundled) : load(['z3', 'solver'].join('-'));
+    const path = entry();
+    if (!path) throw new Error('the package is not installed (npm z3-solver) and dist/z3 is missing');
+    // A path computed at run time, so that bundlers leave the require alone.
+    const module = require(path) as { init(): Promise<{ Z3: Z3LowLevel }> };
     const { Z3 } = await module.init();
     return Z3;
   })();

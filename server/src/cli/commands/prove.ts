@@ -27,7 +27,7 @@ export const proveCommand = defineCommand({
     { name: 'json', help: 'print the verdicts as JSON data (per instruction: verdict, milliseconds, counterexample or reason)' },
     { name: 'instruction', value: 'NAME', help: 'prove only this instruction (an RV32I mnemonic such as addi); may be given once' },
     { name: 'smt', value: 'DIR', help: 'also write every obligation as an SMT-LIB 2 (QF_BV) script into DIR, for any solver to decide again' },
-    { name: 'solver', value: 'auto|z3|wasm', help: 'z3: the z3 program (Debian package z3); wasm: Z3 built to WebAssembly (npm z3-solver, carried by the extension); auto (default): z3 when it runs, else wasm' },
+    { name: 'solver', value: 'auto|z3|wasm', help: 'wasm: Z3 built to WebAssembly (npm z3-solver, carried with Phasewright); z3: the z3 program (Debian package z3); auto (default): wasm when it loads, else z3' },
   ],
   exitCodes: [
     [0, 'every instruction proved'],
