@@ -10,12 +10,11 @@ import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/core/analysis';
 import { instructionByMnemonic } from '../../server/src/core/isa/rv32i';
 import { obligationsOf, proofPlan, proveInstruction } from '../../server/src/core/prove';
-import { SparseMemory } from '../../server/src/core/isa/memory';
-import { ProgramRun } from '../../server/src/core/sim/lockstep';
 import type { SimPlan } from '../../server/src/core/sim/plan';
 import { z3Solver } from '../../server/src/cli/z3Solver';
 import { z3WasmSolver } from '../../server/src/cli/z3Wasm';
 import { haveTools } from '../support/tools';
+import { replay } from '../support/replay';
 import { runCommand } from '../../server/src/cli/commands';
 import { memoryIo } from '../../server/src/cli/io';
 import { REPO } from '../sim/support';
@@ -62,16 +61,7 @@ describe.skipIf(!haveZ3)('the WebAssembly z3 against Debian\'s z3', () => {
     const verdict = await proveInstruction(plan, instructionByMnemonic('xor')!, wasm);
     expect(verdict.kind).toBe('refuted');
     if (verdict.kind !== 'refuted') return;
-    const c = verdict.counterexample;
-    const memory = new SparseMemory();
-    memory.store32(c.pc, c.instruction);
-    const run = new ProgramRun(plan, { memory, entry: c.pc, warnings: [] });
-    for (let r = 1; r < 32; r++) {
-      const v = c.registers.find((x) => x.index === r)?.value ?? 0;
-      run.sim.regs[r] = v | 0;
-      run.reference!.x[r] = v | 0;
-    }
-    expect(run.advance(10_000)).toMatchObject({ kind: 'divergence' });
+    expect(replay(plan, verdict.counterexample)).toMatchObject({ kind: 'divergence' });
     expect(await proveInstruction(planOf(DEMO), instructionByMnemonic('xor')!, wasm)).toMatchObject({ kind: 'proved' });
   }, 120_000);
 

@@ -17,16 +17,15 @@ import { execFileSync } from 'node:child_process';
 import { mkdirSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { instructionByMnemonic } from '../../server/src/core/isa/rv32i';
-import { SparseMemory } from '../../server/src/core/isa/memory';
 import { analyse } from '../../server/src/core/analysis';
 import { obligationsOf, proofPlan, proveMachine, readSolverOutput, type Counterexample } from '../../server/src/core/prove';
-import { ProgramRun } from '../../server/src/core/sim/lockstep';
 import type { SimPlan } from '../../server/src/core/sim/plan';
 import { z3Solver } from '../../server/src/cli/z3Solver';
 import { runCommand } from '../../server/src/cli/commands';
 import { memoryIo } from '../../server/src/cli/io';
 import { haveTools } from '../support/tools';
 import { DEMO_TEXT, REPO, demoWith } from '../sim/support';
+import { replay } from '../support/replay';
 import { dispatchDemo, fixedLoopDemo, nextAddressDemo, nextAddressShiftDemo, shiftLoopDemo } from '../support/sequencer';
 
 const haveZ3 = haveTools(['z3'], 'z3');
@@ -50,19 +49,6 @@ function exampleWith(name: string, from: string, to: string): string {
 }
 const solver = z3Solver();
 
-/** The counterexample as a program: the instruction at pc, the bytes it reads, the registers set in both machines. */
-function replay(plan: SimPlan, c: Counterexample) {
-  const memory = new SparseMemory();
-  for (const m of c.memory) memory.writeBytes(m.address, Uint8Array.of(m.value));
-  memory.store32(c.pc, c.instruction);
-  const run = new ProgramRun(plan, { memory, entry: c.pc, warnings: [] });
-  for (let r = 1; r < 32; r++) {
-    const v = c.registers.find((x) => x.index === r)?.value ?? 0;
-    run.sim.regs[r] = v | 0;
-    run.reference!.x[r] = v | 0;
-  }
-  return run.advance(10_000);
-}
 
 const FAULTS: { name: string; from: string; to: string; mnemonic: string }[] = [
   { name: 'a wrong ALU code in one op_fn row (xor computes or)', from: '100 0 xor   101 0 srl', to: '100 0 or    101 0 srl', mnemonic: 'xor' },
