@@ -17,7 +17,7 @@ import {
   writeFileSafely,
   type FileSystemOps,
 } from '../../server/src/cli/output/safeWriter';
-import { readIntelHex, type ChipImage } from '../../server/src/core/encode/formats/index';
+import { imageFormats, readIntelHex, type ChipImage } from '../../server/src/core/encode/formats/index';
 
 const scratch = fs.mkdtempSync(join(tmpdir(), 'phasewright-output-'));
 afterAll(() => fs.rmSync(scratch, { recursive: true, force: true }));
@@ -225,6 +225,22 @@ describe('writeOutputSet and the manifest', () => {
       ...extra,
     });
   const manifestOnDisk = (): Manifest => JSON.parse(read(join(folder, manifestFileName))) as Manifest;
+
+  it('parses each image back from the bytes the disk gives back, and writes nothing when they are not the image meant', () => {
+    // A writer that gets one word wrong (a bug in a format writer): the bytes on disk are the
+    // ones written, so only parsing them back can tell.
+    const format = imageFormats.ihex;
+    const original = format.write;
+    format.write = (img, options) => original({ ...img, words: Uint8Array.from(img.words, (w, i) => (i === 5 ? w ^ 1 : w)) }, options);
+    try {
+      const error = thrown(() => build([spec('rom0.hex', 0, 1)]));
+      expect(error.message).toMatch(/the image read back from the disk is not the image meant .*nothing was written/);
+      expect(listing(folder)).toEqual([]);
+    } finally {
+      format.write = original;
+    }
+    expect(build([spec('rom0.hex', 0, 1)]).files).toHaveLength(1);
+  });
 
   it('writes the files and then a manifest describing them', () => {
     const report = build([spec('rom0.hex', 0, 1), spec('rom1.hex', 1, 2)]);

@@ -248,9 +248,14 @@ function writeStaged(request: OutputSetRequest, fs: FileSystemOps, folder: strin
       // Sub-folders are made now; they are harmless if the run fails later.
       const target = resolveOutputTarget(folder, spec.name, { fs });
       const { content, entry } = prepare(folder, spec, request);
+      // A chip image is parsed back from the bytes the disk gives back, once (not from memory).
+      const verify = 'image' in spec ? (bytes: Uint8Array) => {
+        const check = verifyReadBack(spec.format, bytes, spec.image);
+        return check.ok ? undefined : `the image read back from the disk is not the image meant (${check.error.message}); nothing was written`;
+      } : undefined;
       let temp: TempFile;
       try {
-        temp = writeTemporary(fs, temporaryPath(work), content, (bytes) => request.progress?.(index, total, `${spec.name} ${(bytes / 1024 / 1024).toFixed(0)} MB`));
+        temp = writeTemporary(fs, temporaryPath(work), content, (bytes) => request.progress?.(index, total, `${spec.name} ${(bytes / 1024 / 1024).toFixed(0)} MB`), verify);
       } catch (error) {
         throw new OutputError(target.displayPath, `${describeError(error)}${target.exists ? '; the folder keeps its previous files' : '; nothing was changed in the folder'}`);
       }
@@ -311,8 +316,6 @@ function prepare(folder: string, spec: OutputSpec, request: OutputSetRequest): {
       if (error instanceof ImageFormatError) throw new OutputError(displayPath, error.message);
       throw error;
     }
-    const check = verifyReadBack(spec.format, bytes, spec.image);
-    if (!check.ok) throw new OutputError(displayPath, `internal check failed, nothing was written: ${check.error.message}`);
     return {
       content: bytes,
       entry: {

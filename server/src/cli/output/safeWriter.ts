@@ -245,10 +245,13 @@ const progressEveryBytes = 8 * 1024 * 1024;
 /**
  * Writes `content` to a new temporary file at `tempPath` ('wx': nothing may already have the
  * name, not even a planted link), hashing it on the way, flushes it, and reads it back in
- * chunks: the read-back must give the same SHA-256 and size. On any failure the temporary file
- * is removed and the error rethrown. `onBytes` hears the bytes written so far.
+ * chunks: the read-back must give the same SHA-256 and size. With `verify` (a chip image: a few
+ * megabytes at most) the file is read back whole instead and `verify` judges those very bytes,
+ * as read from the disk (it returns what is wrong, or undefined): one read checks both. On any
+ * failure the temporary file is removed and the error rethrown. `onBytes` hears the bytes
+ * written so far.
  */
-export function writeTemporary(fs: FileSystemOps, tempPath: string, content: FileContent, onBytes?: (bytes: number) => void): TempFile {
+export function writeTemporary(fs: FileSystemOps, tempPath: string, content: FileContent, onBytes?: (bytes: number) => void, verify?: (bytes: Uint8Array) => string | undefined): TempFile {
   let fd: number | null = null;
   let created = false;
   try {
@@ -279,10 +282,13 @@ export function writeTemporary(fs: FileSystemOps, tempPath: string, content: Fil
     fs.closeSync(fd);
     fd = null;
     const written: ContentFigures = { sizeBytes: size, sha256: hash.digest('hex'), sum16: sum };
-    const readBack = figuresOfFile(fs, tempPath);
+    const back = verify ? readWhole(fs, tempPath) : undefined;
+    const readBack = back ? { sizeBytes: back.length, sha256: createHash('sha256').update(back).digest('hex') } : figuresOfFile(fs, tempPath);
     if (readBack.sizeBytes !== written.sizeBytes || readBack.sha256 !== written.sha256) {
       throw new OutputError(tempPath, 'the temporary copy reads back different from what was written; the disk may be faulty');
     }
+    const wrong = back && verify ? verify(back) : undefined;
+    if (wrong) throw new OutputError(tempPath, wrong);
     return { path: tempPath, ...written };
   } catch (error) {
     if (fd !== null) {
@@ -294,6 +300,28 @@ export function writeTemporary(fs: FileSystemOps, tempPath: string, content: Fil
     }
     if (created) removeQuietly(fs, tempPath);
     throw error;
+  }
+}
+
+/** The whole of a regular file we just wrote (a chip image), read through the same checks as figuresOfFile. */
+function readWhole(fs: FileSystemOps, file: string): Uint8Array {
+  const fd = fs.openSync(file, nodeFs.constants.O_RDONLY | (nodeFs.constants.O_NONBLOCK ?? 0));
+  try {
+    const stat = fs.fstatSync(fd);
+    const refusal = refuseKind(stat, file);
+    if (refusal) throw new OutputError(file, refusal, 'read back');
+    const pieces: Buffer[] = [];
+    let size = 0;
+    for (;;) {
+      const piece = Buffer.allocUnsafe(Math.max(64 * 1024, Number(stat.size) - size + 1));
+      const n = fs.readSync(fd, piece, 0, piece.length, null);
+      if (n === 0) break;
+      pieces.push(piece.subarray(0, n));
+      size += n;
+    }
+    return pieces.length === 1 ? pieces[0] : Buffer.concat(pieces);
+  } finally {
+    fs.closeSync(fd);
   }
 }
 
