@@ -42,6 +42,12 @@ export interface FastState {
   writeCount: number;
   instructionLoaded: boolean;
   readonly pendingExitSet: boolean;
+  /**
+   * Called by the compiled loop after an instruction retires, where the caller asked to hear of
+   * retirements, with the state written back (step 0 of the next instruction): true goes on
+   * running, false stops with FAST_RETIRED. Lock-step compares there without leaving the loop.
+   */
+  readonly retireHook: (() => boolean) | null;
   readonly busValue: Int32Array;
   readonly partValue: Int32Array;
   readonly regs: Int32Array;
@@ -170,7 +176,7 @@ export function compileStepper(plan: SimPlan, state: FastState): FastStepper | n
   const loop = [
     '"use strict";',
     'return function fastSteps(maxSteps, stopAtRetire) {',
-    `  let step = state.step, ir = partValue[${irPart}], n = 0, status = ${FAST_BUDGET};`,
+    `  let step = state.step, ir = partValue[${irPart}], n = 0, synced = 0, status = ${FAST_BUDGET};`,
     `  let sp = ${staticExpression};`,
     `  io[${IO_DEFINED}] = state.definedMask;`,
     '  while (n < maxSteps) {',
@@ -183,10 +189,20 @@ export function compileStepper(plan: SimPlan, state: FastState): FastStepper | n
     `    step = io[${IO_STEP}];`,
     `    if (r === ${CHAIN_DONE}) continue;`,
     `    if (r === ${CHAIN_INPUTS}) { ir = partValue[${irPart}]; sp = ${staticExpression}; continue; }`,
+    // A retirement the hook takes (not one with an exit pending: that goes back to the caller).
+    `    if (r === ${CHAIN_RETIRED} && state.retireHook !== null && !state.pendingExitSet) {`,
+    `      state.step = step; state.definedMask = io[${IO_DEFINED}]; state.steps += n - synced; synced = n;`,
+    '      if (state.retireHook()) {',
+    `        io[${IO_DEFINED}] = state.definedMask; ir = partValue[${irPart}]; sp = ${staticExpression};`,
+    '        continue;',
+    '      }',
+    `      status = ${FAST_RETIRED};`,
+    '      break;',
+    '    }',
     `    status = r === ${CHAIN_RETIRED} ? ${FAST_RETIRED} : r === ${CHAIN_SLOW} ? ${FAST_SLOW_STEP} : ${FAST_WRAP};`,
     '    break;',
     '  }',
-    `  state.step = step; state.definedMask = io[${IO_DEFINED}]; state.steps += n;`,
+    `  state.step = step; state.definedMask = io[${IO_DEFINED}]; state.steps += n - synced;`,
     '  return status;',
     '};',
   ];

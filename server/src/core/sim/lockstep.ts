@@ -119,13 +119,19 @@ export class ProgramRun {
     if (this.ending) return this.ending;
     const sim = this.sim;
     let budget = maxSteps;
+    // In lock-step the compiled loop compares each retired instruction itself, through the hook,
+    // and goes on: no return to this loop per instruction (the debugger, which stops at every
+    // retirement, takes them here).
+    sim.retireHook = this.reference && !untilRetired ? this.compareInLoop : null;
     while (budget > 0) {
       const before = sim.steps;
-      const pcBefore = sim.instructionPc;
+      this.pcBefore = sim.instructionPc;
       if (this.reference && sim.step === 0) sim.checkpoint();
       const outcome = sim.run(budget, this.reference !== null || untilRetired);
       budget -= sim.steps - before;
+      if (this.hookEnding) return (this.ending = this.hookEnding);
       if (outcome.kind === 'budget') return null;
+      const pcBefore = this.pcBefore;
       if (outcome.kind === 'retired' || (outcome.kind === 'stopped' && outcome.retired)) {
         const report = this.compareRetired(pcBefore);
         if (report) return (this.ending = { kind: 'divergence', report });
@@ -140,6 +146,23 @@ export class ProgramRun {
   }
 
   // ---- Comparison after a retirement.
+
+  /** The pc the instruction being run started at. */
+  private pcBefore = 0;
+  /** A divergence the compiled loop's hook found (it stopped the loop). */
+  private hookEnding: RunEnding | null = null;
+
+  /** The retire hook: compares the instruction just retired; on agreement checkpoints the next one and goes on. */
+  private readonly compareInLoop = (): boolean => {
+    const report = this.compareRetired(this.pcBefore);
+    if (report) {
+      this.hookEnding = { kind: 'divergence', report };
+      return false;
+    }
+    this.pcBefore = this.sim.instructionPc;
+    this.sim.checkpoint();
+    return true;
+  };
 
   private compareRetired(pcBefore: number): ProblemReport | null {
     const reference = this.reference;

@@ -183,6 +183,8 @@ export class BusSimulator implements MachineAccess {
   instructionLoaded = false;
   /** Lock-step support: keep the state at each instruction's start so the instruction can be replayed with its bus values recorded. */
   checkpointing = false;
+  /** Heard by the compiled loop at each retirement it would otherwise return for (compile.ts FastState); lock-step sets it. */
+  retireHook: (() => boolean) | null = null;
   private checkpointValid = false;
   private readonly saved: { regs: Int32Array; partValue: Int32Array; flags: Uint8Array; busValue: Int32Array; customState: Int32Array; definedMask: number; definedLines: Int32Array; instructionPc: number; instructionLoaded: boolean };
   /** State of the parts of the table's own kinds (plan.custom's slots), what their ports read, and their staged edge values. */
