@@ -47,7 +47,7 @@ describe.skipIf(!haveZ3)('the WebAssembly z3 against Debian\'s z3', () => {
     for (const mnemonic of MNEMONICS) {
       for (const o of obligationsOf(plan, instructionByMnemonic(mnemonic)!).obligations) {
         const [a, b] = [await wasm.decide(o.script), await binary.decide(o.script)];
-        expect([mnemonic, o.description, a.status], o.script.slice(0, 200)).toEqual([mnemonic, o.description, b.status]);
+        expect([mnemonic, o.description, a.status], `${a.status === 'unknown' ? a.reason : ''} ${o.script.slice(0, 200)}`).toEqual([mnemonic, o.description, b.status]);
         answers.push(a.status);
       }
     }
@@ -62,7 +62,8 @@ describe.skipIf(!haveZ3)('the WebAssembly z3 against Debian\'s z3', () => {
     expect(verdict.kind).toBe('refuted');
     if (verdict.kind !== 'refuted') return;
     expect(replay(plan, verdict.counterexample)).toMatchObject({ kind: 'divergence' });
-    expect(await proveInstruction(planOf(DEMO), instructionByMnemonic('xor')!, wasm)).toMatchObject({ kind: 'proved' });
+    const fixed = await proveInstruction(planOf(DEMO), instructionByMnemonic('xor')!, wasm);
+    expect(fixed.kind, fixed.kind === 'unknown' ? fixed.reason : '').toBe('proved');
   }, 120_000);
 
   it('`prove --solver` picks either; both give the same verdicts, and a bad name is a usage error', async () => {

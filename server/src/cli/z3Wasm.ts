@@ -66,16 +66,24 @@ export function z3WasmSolver(options: { timeoutMs?: number } = {}): Solver {
         return { status: 'unknown', reason: `cannot load the npm package z3-solver: ${(e as Error).message}` };
       }
       Z3.global_param_set('timeout', String(timeoutMs));
-      const config = Z3.mk_config();
-      const context = Z3.mk_context_rc(config);
-      try {
-        return readSolverOutput(await Z3.eval_smtlib2_string(context, script));
-      } catch (e) {
-        return { status: 'unknown', reason: `z3 (WebAssembly): ${(e as Error).message}` };
-      } finally {
-        Z3.del_context(context);
-        Z3.del_config(config);
-      }
+      const once = async (): Promise<SolverReply> => {
+        const config = Z3.mk_config();
+        const context = Z3.mk_context_rc(config);
+        try {
+          return readSolverOutput(await Z3.eval_smtlib2_string(context, script));
+        } catch (e) {
+          return { status: 'unknown', reason: `z3 (WebAssembly): ${(e as Error).message}` };
+        } finally {
+          Z3.del_context(context);
+          Z3.del_config(config);
+        }
+      };
+      // An answer of unknown is asked once more in a fresh context (seen once in a loaded CI
+      // run on a script the same process had just decided); a second unknown is the answer.
+      const first = await once();
+      if (first.status !== 'unknown') return first;
+      const second = await once();
+      return second.status === 'unknown' ? { status: 'unknown', reason: `${second.reason} (asked twice; the first time: ${first.reason})` } : second;
     },
   };
 }
