@@ -4,15 +4,24 @@
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { analyse } from '../server/src/core/analysis';
 import { catalogue } from '../server/src/core/checks/catalogue';
+import { proveTable } from '../server/src/core/prove';
+import { z3WasmSolver } from '../server/src/cli/z3Wasm';
 
-function faultExample(file: string): { body: string; file: string; said: string[] } {
+/** What `phasewright check` says about a fault example: the structural checks, and for the proof's codes the proof too. */
+async function faultExample(file: string, proof: boolean): Promise<{ body: string; file: string; said: string[] }> {
   const text = readFileSync(file, 'utf8');
   const analysis = analyse(text);
-  const said = analysis.diagnostics.map((d) => {
+  const diagnostics = [...analysis.diagnostics, ...(proof ? ((await proveTable(analysis.machine, z3WasmSolver()))?.diagnostics ?? []) : [])];
+  const said = diagnostics.map((d) => {
     const p = analysis.lines.position(d.span.start);
     return `${file}:${p.line + 1}:${p.col + 1}: ${d.severity === 'info' ? 'note' : d.severity}: ${d.message} [${d.code}]`;
   });
-  return { body: text.trimEnd(), file: `\`${file}\``, said };
+  // The demo with one changed line: the page shows that line, not the whole machine again.
+  const lines = text.split('\n');
+  const header = lines.slice(0, Math.max(0, lines.indexOf('#')));
+  const shown = [...new Set(diagnostics.map((d) => analysis.lines.position(d.span.start).line))].sort((a, b) => a - b);
+  const body = proof && header.length ? [...header, '...', ...shown.map((n) => lines[n]), '...'].join('\n') : text.trimEnd();
+  return { body, file: `\`${file}\``, said };
 }
 
 const parts: string[] = [
@@ -27,10 +36,12 @@ const parts: string[] = [
   ...catalogue.map((c) => `| [\`${c.code}\`](#${c.code}) | ${c.severity} | ${c.title} |`),
   '',
 ];
+async function main(): Promise<void> {
 for (const info of catalogue) {
-  const path = `examples/faults/${info.code}.pwt`;
+  const proof = info.code.startsWith('proof-');
+  const path = proof ? `examples/faults/proof/${info.code}.pwt` : `examples/faults/${info.code}.pwt`;
   if (!existsSync(path)) throw new Error(`${info.code}: no fault example ${path}`);
-  const { body, file, said } = faultExample(path);
+  const { body, file, said } = await faultExample(path, proof);
   parts.push(
     `## \`${info.code}\``,
     '',
@@ -53,4 +64,11 @@ for (const info of catalogue) {
   );
 }
 writeFileSync('docs/diagnostics.md', parts.join('\n'));
+}
+
+// The WebAssembly solver's worker threads would keep the process alive: exit when written.
+main().then(() => process.exit(0), (e) => {
+  console.error(e);
+  process.exit(1);
+});
 console.log(`docs/diagnostics.md: ${catalogue.length} codes`);

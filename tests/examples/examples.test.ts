@@ -1,6 +1,6 @@
 // The bundled examples: the demo machine checks clean, and every fault example produces
 // exactly its own diagnostic code (its file name) and nothing else. Every code in the
-// catalogue has a fault example and a section in docs/diagnostics.md.
+// catalogue has a fault example and a section in docs/diagnostics.md (the proof's in faults/proof/).
 import { describe, expect, it } from 'vitest';
 import { readFileSync, readdirSync } from 'node:fs';
 import { analyse } from '../../server/src/core/analysis';
@@ -29,7 +29,9 @@ describe('examples', () => {
   it('every catalogue code has a fault example and a section in docs/diagnostics.md', () => {
     const doc = readFileSync(new URL('../../docs/diagnostics.md', import.meta.url), 'utf8');
     const documented = [...doc.matchAll(/^## `([a-z0-9-]+)`/gm)].map((m) => m[1]);
-    const withExample = faults.map((f) => f.replace(/\.pwt$/, ''));
+    // The proof's codes have their examples in faults/proof/ (tests/prove/tableProof.test.ts proves them).
+    const proofFaults = readdirSync(new URL('proof/', dir)).filter((f) => f.endsWith('.pwt'));
+    const withExample = [...faults, ...proofFaults].map((f) => f.replace(/\.pwt$/, ''));
     expect(withExample.sort()).toEqual(catalogue.map((c) => c.code).sort());
     expect(documented.sort()).toEqual(catalogue.map((c) => c.code).sort());
   });

@@ -1,6 +1,11 @@
-// `phasewright check FILE... [--json] [--config FILE]`: analyses each file and prints its
-// diagnostics. Exit 0 when no file has errors, 1 when some has, 2 on usage or file errors.
-import { analyse } from '../../core/analysis';
+// `phasewright check FILE... [--json] [--config FILE] [--no-proof]`: analyses each file and prints
+// its diagnostics. When a file has no errors its meaning is proved too (core/prove/proveTable.ts,
+// the same proof the editor runs): a refutation is an error like any other. Exit 0 when no file
+// has errors, 1 when some has, 2 on usage or file errors.
+import { analyse, applySeverities, type Analysis } from '../../core/analysis';
+import { proveTable } from '../../core/prove';
+import type { Diagnostic } from '../../core/text/diagnostic';
+import { SOLVER_CHOICES, type SolverChoice, solverFor } from '../solvers';
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { loadSeverityConfig } from '../config';
@@ -15,6 +20,8 @@ export const checkCommand = defineCommand({
   options: [
     { name: 'json', help: 'print the diagnostics as JSON data (per file: errors, warnings, diagnostics)' },
     { name: 'config', value: 'FILE', help: 'severities per code from a JSON file: { "severities": { "step-gap": "off" } } or the editor settings form' },
+    { name: 'no-proof', help: 'skip the proof that the table implements RV32I (run by default on a file without errors; see `phasewright prove`)' },
+    { name: 'solver', value: 'auto|z3|wasm', help: 'which z3 decides the proof (as for `phasewright prove`); auto by default' },
   ],
   exitCodes: [
     [0, 'no file has errors (warnings may remain)'],
@@ -33,6 +40,12 @@ export const checkCommand = defineCommand({
       io.err(`phasewright check: ${config.reason}\n`);
       return 2;
     }
+    const solverOption = parsed.options.get('solver') ?? 'auto';
+    if (typeof solverOption !== 'string' || !(SOLVER_CHOICES as readonly string[]).includes(solverOption)) {
+      io.err(`phasewright check: --solver takes ${SOLVER_CHOICES.join(', ')}\n`);
+      return 2;
+    }
+    const proving = !parsed.options.has('no-proof');
     const json = parsed.options.has('json');
     const jsonOut: { files: { file: string; errors: number; warnings: number; shown: number; diagnostics: JsonDiagnostic[] }[] } = { files: [] };
     const totals = { errors: 0, warnings: 0, shown: 0, all: 0 };
@@ -44,7 +57,8 @@ export const checkCommand = defineCommand({
         ioFailure = true;
         continue;
       }
-      const analysis = analyse(source.text, { severities: config.severities });
+      const structural = analyse(source.text, { severities: config.severities });
+      const analysis = proving && structural.counts.error === 0 ? await withProof(structural, solverFor(solverOption as SolverChoice), config.severities) : structural;
       // The counts include what the cap left out, so a flooded file still says how bad it is.
       const { error: fileErrors, warning: warnings, info } = analysis.counts;
       totals.errors += fileErrors;
@@ -64,6 +78,17 @@ export const checkCommand = defineCommand({
     return totals.errors ? 1 : 0;
   },
 });
+
+/** The analysis with the proof's diagnostics added (at the configured severities), sorted and counted as analyse does. */
+async function withProof(analysis: Analysis, solver: ReturnType<typeof solverFor>, severities: Parameters<typeof applySeverities>[1]): Promise<Analysis> {
+  const proof = await proveTable(analysis.machine, solver);
+  const added: Diagnostic[] = applySeverities(proof?.diagnostics ?? [], severities);
+  if (!added.length) return analysis;
+  const diagnostics = [...analysis.diagnostics, ...added].sort((a, b) => a.span.start - b.span.start);
+  const counts = { ...analysis.counts };
+  for (const d of added) counts[d.severity]++;
+  return { ...analysis, diagnostics, counts };
+}
 
 function count(n: number, one: string): string {
   return `${n} ${one}${n === 1 ? '' : 's'}`;

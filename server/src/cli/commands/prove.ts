@@ -6,7 +6,7 @@
 import { basename, resolve } from 'node:path';
 import { analyse } from '../../core/analysis';
 import { RV32I_INSTRUCTIONS, instructionByMnemonic } from '../../core/isa/rv32i';
-import { cannotProve, describeCounterexample, obligationsOf, proofPlan, proveMachine } from '../../core/prove';
+import { PROOF_SCOPE, cannotProve, describeCounterexample, obligationsOf, proofPlan, proveMachine } from '../../core/prove';
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { readSource } from '../readSource';
@@ -15,9 +15,6 @@ import { writeOutputSet } from '../output/outputSet';
 import { OutputError } from '../output/safeWriter';
 import { VERSION } from '../version';
 import { SOLVER_CHOICES, type SolverChoice, solverFor } from '../solvers';
-
-/** What a proof covers and what it does not (issue: scope stated in the docs, the hover and here). */
-const PROOF_SCOPE = 'the table over the datapath as described, for RV32I in user mode (pc aligned, no misaligned-address exceptions); not the wiring, the timing or electrical faults of the board';
 
 export const proveCommand = defineCommand({
   name: 'prove',

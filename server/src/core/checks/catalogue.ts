@@ -345,6 +345,18 @@ export const catalogue: CodeInfo[] = [
     title: 'a select key or literal does not fit what it stands for',
     explanation: 'A `select` on a control field is keyed by the field\'s value names, and without an `else` arm it must have an arm for every value name (the message lists the missing ones); a `select` on a plain signal is keyed by numbers that fit its width; no key may be listed twice. A decimal literal must fit the width its place gives it (255 fits 8 bits, 256 does not). A code the field can carry that no arm lists gives 0 at run time, and the evaluator reports it to its caller (the simulator) rather than passing it on silently; list it or add `else`.',
   },
+  {
+    code: 'proof-refuted',
+    severity: 'error',
+    title: 'the table does not implement an RV32I instruction',
+    explanation: 'The prover ran the encoded control store symbolically over the parts\' definitions and found register, immediate and memory values for which an instruction does not do what the RISC-V Unprivileged ISA specifies (the new pc, the value written to rd, or the memory written). The message gives the counterexample: the values before, what RV32I expects and what the table obtains, and the strobe that last set the value. The diagnostic stands on the decode-map row, the strobe or the step the counterexample implicates; the steps it ran are the related locations. `phasewright prove FILE --instruction NAME` prints it in full. The proof covers the table over the datapath as described, in user mode; it does not cover the wiring, the timing or electrical faults, so bring the board up step by step as usual before trusting it.',
+  },
+  {
+    code: 'proof-incomplete',
+    severity: 'warning',
+    title: 'the table\'s meaning could not be proved',
+    explanation: 'Either the prover does not follow this machine (the message says what: for example more than one control store), or an instruction was neither proved nor refuted (a path longer than the walk\'s bound of steps, too many paths, or a solver that could not decide). Nothing is wrong with the table for that reason, but nothing is proved about the instructions named: test them by running programs (`phasewright run`) before burning the store. `phasewright prove FILE` says the reason per instruction.',
+  },
 ];
 
 const byCode = new Map(catalogue.map((c) => [c.code, c]));

@@ -400,7 +400,7 @@ function storeWords(machine: Machine, store: Store, universe: ReturnType<typeof 
     } else {
       lanes = fillWordOf(machine, store);
     }
-    const address = addressOf(store, universe, points[i], decoded ?? { step: column.step, fieldCodes: new Map() }, machine);
+    const address = addressOf(store, universe, points[i], decoded ?? { step: column.step, fieldCodes: new Map(), mapRows: [] }, machine);
     return { address, addressHex: toHex(address, addressDigits), chipHex: chipHexOfWord(lanes, word.chipWidths) };
   });
   return { store: store.name, chipWidths: word.chipWidths, cells };

@@ -2,7 +2,7 @@
 // apply and which field codes its decode maps give. Points no class, step, alternative or map
 // row covers hold the fill word, and say why.
 import { matchesBits } from '../model/numbers';
-import type { ClassDef, DecodeMap, Machine, StepAlt } from '../model/types';
+import type { ClassDef, DecodeMap, Machine, MapRow, StepAlt } from '../model/types';
 import { type PointInputs } from './universe';
 
 export type FillReason = 'no-class' | 'no-step' | 'no-alternative' | 'no-map-row';
@@ -14,6 +14,8 @@ export interface PointDecode {
   fillReason?: FillReason;
   /** Codes of the fields the alternative sets (directly or through a map). */
   fieldCodes: Map<string, number>;
+  /** The decode-map rows that gave them, in the alternative's order (the prover blames a row by them). */
+  mapRows: { map: DecodeMap; row: MapRow }[];
 }
 
 /** Prepared lookups so decoding a point does not search the whole model each time. */
@@ -44,7 +46,7 @@ export class PointDecoder {
   }
 
   decode(inputs: PointInputs): PointDecode {
-    const result: PointDecode = { step: inputs.step, fieldCodes: new Map() };
+    const result: PointDecode = { step: inputs.step, fieldCodes: new Map(), mapRows: [] };
     const cls = this.classFor(inputs);
     if (!cls) {
       result.fillReason = 'no-class';
@@ -74,9 +76,11 @@ export class PointDecoder {
         result.alt = undefined;
         result.fillReason = 'no-map-row';
         result.fieldCodes.clear();
+        result.mapRows = [];
         return result;
       }
       result.fieldCodes.set(action.signal, row.code);
+      result.mapRows.push({ map: map!, row });
     }
     return result;
   }

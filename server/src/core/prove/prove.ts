@@ -48,9 +48,11 @@ export interface Counterexample {
   /** Memory bytes before the instruction (those read; the instruction's own bytes at pc left out). */
   readonly memory: { readonly address: number; readonly value: number }[];
   /** What differs: expected (specification) and obtained (machine). */
-  readonly differences: { readonly what: 'pc' | 'register' | 'memory' | 'fault'; readonly where?: number; readonly expected: string; readonly obtained: string; readonly by?: string }[];
+  readonly differences: { readonly what: 'pc' | 'register' | 'memory' | 'fault'; readonly where?: number; readonly expected: string; readonly obtained: string; readonly by?: string; readonly writer?: { readonly step: number; readonly strobe: string } }[];
   /** The steps the machine ran: step, store address, strobes. */
   readonly steps: string[];
+  /** The same steps as data: the step and the store address it ran from (the editor places its diagnostics by them). */
+  readonly path: { readonly step: number; readonly address: number }[];
 }
 
 /** The longest loop the walk unrolled on the instruction's paths: a step ran `times` times on one path. */
@@ -237,17 +239,17 @@ function effectCheck(T: Terms, effect: Effect, start: Start, path: MachinePath, 
     const memo = new Map<number, bigint>();
     const ev = (t: Term) => evalTerm(t, model, memo);
     const differences: Counterexample['differences'][number][] = [];
-    if (ev(pcGot) !== ev(pcWant)) differences.push({ what: 'pc', expected: hex(ev(pcWant)), obtained: hex(ev(pcGot)), by: path.pcWriter ? `step ${path.pcWriter.step}, ${path.pcWriter.strobe}` : 'no step changed the pc' });
+    if (ev(pcGot) !== ev(pcWant)) differences.push({ what: 'pc', expected: hex(ev(pcWant)), obtained: hex(ev(pcGot)), by: path.pcWriter ? `step ${path.pcWriter.step}, ${path.pcWriter.strobe}` : 'no step changed the pc', ...(path.pcWriter && { writer: { step: path.pcWriter.step, strobe: path.pcWriter.strobe } }) });
     if (ev(xGot) !== ev(xWant)) {
       const index = Number(ev(probeX));
       const writer = [...path.registerWrites].reverse().find((w) => ev(w.when) === 1n && ev(w.index) === BigInt(index));
-      differences.push({ what: 'register', where: index, expected: hex(ev(xWant)), obtained: hex(ev(xGot)), by: writer ? `step ${writer.step}, ${writer.strobe}` : 'no step wrote it' });
+      differences.push({ what: 'register', where: index, expected: hex(ev(xWant)), obtained: hex(ev(xGot)), by: writer ? `step ${writer.step}, ${writer.strobe}` : 'no step wrote it', ...(writer && { writer: { step: writer.step!, strobe: writer.strobe! } }) });
     }
     if (ev(mGot) !== ev(mWant)) {
       const address = Number(ev(probeM));
       const writer = [...path.memoryWrites].reverse().find((w) => ev(w.when) === 1n && ev(w.index) === BigInt(address));
       const byte = (v: bigint) => `0x${v.toString(16).padStart(2, '0')}`;
-      differences.push({ what: 'memory', where: address, expected: byte(ev(mWant)), obtained: byte(ev(mGot)), by: writer ? `step ${writer.step}, ${writer.strobe}` : 'no step wrote it' });
+      differences.push({ what: 'memory', where: address, expected: byte(ev(mWant)), obtained: byte(ev(mGot)), by: writer ? `step ${writer.step}, ${writer.strobe}` : 'no step wrote it', ...(writer && { writer: { step: writer.step!, strobe: writer.strobe! } }) });
     }
     return concreteStart(start, path, ev, differences);
   };
@@ -283,12 +285,18 @@ function concreteStart(start: Start, path: MachinePath, ev: (t: Term) => bigint,
     memory: [...memory].sort((a, b) => a[0] - b[0]).map(([address, value]) => ({ address, value })),
     differences,
     steps: path.steps.map((s) => `step ${s.step} @${s.address}: ${s.asserted.join(', ') || '(nothing)'}`),
+    path: path.steps.map((s) => ({ step: s.step, address: s.address })),
   };
 }
 
 /** Decides every obligation of one instruction with `solver`. */
 export async function proveInstruction(plan: SimPlan, spec: InstructionSpec, solver: Solver, previous = previousInstructionPatterns(plan)): Promise<Verdict> {
-  const { obligations, settled, bounded, unrolled } = obligationsOf(plan, spec, previous);
+  return decideObligations(obligationsOf(plan, spec, previous), solver);
+}
+
+/** The verdict on one instruction's obligations (from obligationsOf): the solver decides each in turn, the first refutation or unknown ends it. */
+export async function decideObligations(built: ReturnType<typeof obligationsOf>, solver: Solver): Promise<Verdict> {
+  const { obligations, settled, bounded, unrolled } = built;
   if (settled && settled.kind !== 'proved') return settled;
   // A path stopped at the bound is "not proved" unless no values take it.
   for (const b of bounded) {
@@ -326,7 +334,7 @@ export async function proveMachine(plan: SimPlan, solver: Solver, options: { onl
 }
 
 /** The counterexample as text lines (the CLI prints them under the instruction's line). */
-export function describeCounterexample(c: Counterexample): string[] {
+export function describeCounterexample(c: Counterexample, options: { steps?: boolean } = {}): string[] {
   const lines = [`  pc = ${hex(c.pc)}, instruction word = ${hex(c.instruction)}`];
   if (c.registers.length) lines.push(`  registers before: ${c.registers.map((r) => `x${r.index} = ${hex(r.value)}`).join(', ')}`);
   if (c.memory.length) lines.push(`  memory before: ${c.memory.map((m) => `[${hex(m.address)}] = 0x${m.value.toString(16).padStart(2, '0')}`).join(', ')}`);
@@ -334,6 +342,6 @@ export function describeCounterexample(c: Counterexample): string[] {
     const where = d.what === 'register' ? `x${d.where}` : d.what === 'memory' ? `memory[${hex(d.where!)}]` : d.what;
     lines.push(`  ${where}: expected ${d.expected} (RV32I), obtained ${d.obtained} (table)${d.by ? `; last set at ${d.by}` : ''}`);
   }
-  lines.push(...c.steps.map((s) => `    ${s}`));
+  if (options.steps !== false) lines.push(...c.steps.map((s) => `    ${s}`));
   return lines;
 }

@@ -15,6 +15,7 @@
 // Deliberately not here: machine state or running (simulator.ts), reports (describe.ts).
 import { decodeWord, encodeMachine, type EncodedMachine, type EncodedStore } from '../encode/encoder';
 import { pointInputs } from '../encode/universe';
+import type { PointDecode } from '../encode/decodePoint';
 import type { ClassDef, Machine, Part, StepAlt, Store } from '../model/types';
 import type { HoldsRole } from '../parts/kinds';
 import { sizeOf } from '../parts/behaviour';
@@ -167,12 +168,12 @@ export class SimPlan {
   }
 
   /** The table's step alternative (and class) behind the word at `address` of store `storeIndex`, if the table wrote one there. */
-  sourceOf(storeIndex: number, address: number): { alt?: StepAlt; cls?: ClassDef } {
+  sourceOf(storeIndex: number, address: number): { alt?: StepAlt; cls?: ClassDef; mapRows?: PointDecode['mapRows'] } {
     const enc = this.stores[storeIndex].enc;
     const point = enc.origin[address];
     if (point === undefined || point < 0) return {};
     const decoded = this.encoded.decoder.decode(pointInputs(this.encoded.universe, point));
-    return { alt: decoded.alt, cls: decoded.cls };
+    return { alt: decoded.alt, cls: decoded.cls, mapRows: decoded.mapRows };
   }
 
   /** Address contribution of the instruction bits and flags (the parts that change only at clock edges). */
