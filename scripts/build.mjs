@@ -31,6 +31,8 @@ await Promise.all([
   build({ ...common, entryPoints: [`${z3Package}/node.js`], outfile: 'dist/z3/solver.js', external: ['./z3-built'], sourcemap: false }),
   build({ ...common, entryPoints: ['server/src/cli/main.ts'], outfile: 'dist/cli.js', banner: { js: '#!/usr/bin/env node' } }),
   build({ ...common, entryPoints: ['server/src/lsp/main.ts'], outfile: 'dist/server.js' }),
+  // The language server's proof worker (lsp/proofs.ts forks it on the first proof).
+  build({ ...common, entryPoints: ['server/src/lsp/proofWorker.ts'], outfile: 'dist/proofWorker.js' }),
   build({ ...common, entryPoints: ['server/src/debug/main.ts'], outfile: 'dist/debug.js' }),
   build({ ...common, entryPoints: ['client/src/extension.ts'], outfile: 'dist/client.js', external: ['vscode'] }),
 ]);

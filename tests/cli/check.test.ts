@@ -61,22 +61,36 @@ describe('phasewright check', () => {
   });
 
   it('gives the same diagnostics as JSON data', async () => {
-    const r = await run('check', '--json', 'examples/faults/step-gap.pwt');
+    const r = await run('check', '--no-proof', '--json', 'examples/faults/step-gap.pwt');
     const data = JSON.parse(r.out);
     expect(data.files[0]).toMatchObject({ file: 'examples/faults/step-gap.pwt', errors: 0, warnings: 1 });
     expect(data.files[0].diagnostics[0]).toMatchObject({ code: 'step-gap', severity: 'warning', start: { line: 14, column: 3 }, end: { line: 14, column: 4 } });
   });
 
+  it('proves a table without errors: a wrong decode-map row is a proof-refuted error on that row; --no-proof skips the proof', { timeout: 120_000 }, async () => {
+    // RISC-V Unprivileged ISA 20191213, section 2.4: SLT compares signed, SLTU unsigned; the example swaps their rows.
+    const r = await run('check', 'examples/faults/proof/proof-refuted.pwt');
+    expect(r.code).toBe(1);
+    const errors = r.out.split('\n').filter((l) => / error: /.test(l));
+    expect(errors.map((l) => l.replace(/: error: (\w+) .*\[(.*)\]$/, ' $1 $2'))).toEqual(['examples/faults/proof/proof-refuted.pwt:66:39 slt proof-refuted', 'examples/faults/proof/proof-refuted.pwt:66:51 sltu proof-refuted']);
+    expect(errors[0]).toMatch(/expected 0x00000001 \(RV32I\), obtained 0x00000000 \(table\)|expected 0x00000000 \(RV32I\), obtained 0x00000001 \(table\)/);
+    expect(r.err).toBe('2 errors, 0 warnings in 1 file\n');
+    const skipped = await run('check', '--no-proof', 'examples/faults/proof/proof-refuted.pwt');
+    expect([skipped.code, skipped.out]).toEqual([0, '']);
+    const demo = await run('check', 'examples/halyard-32.pwt');
+    expect([demo.code, demo.out, demo.err]).toEqual([0, '', 'no errors or warnings in 1 file\n']);
+  });
+
   it('honours a severity configuration file, in its own form or the editor settings form', async () => {
     const config = join(tmp, 'severity.json');
     writeFileSync(config, JSON.stringify({ severities: { 'bus-contention': 'warning' } }));
-    const r = await run('check', '--config', config, 'examples/faults/bus-contention.pwt');
+    const r = await run('check', '--no-proof', '--config', config, 'examples/faults/bus-contention.pwt');
     expect(r.code).toBe(0);
     expect(r.out).toContain('warning: `a.oe` and `b.oe`');
     writeFileSync(config, JSON.stringify({ 'phasewright.severity': { 'bus-contention': 'off' } }));
-    expect((await run('check', '--config', config, 'examples/faults/bus-contention.pwt')).out).toBe('');
+    expect((await run('check', '--no-proof', '--config', config, 'examples/faults/bus-contention.pwt')).out).toBe('');
     writeFileSync(config, JSON.stringify({ severities: { 'bus-contension': 'off' } }));
-    const bad = await run('check', '--config', config, 'examples/faults/bus-contention.pwt');
+    const bad = await run('check', '--no-proof', '--config', config, 'examples/faults/bus-contention.pwt');
     expect(bad.code).toBe(2);
     expect(bad.err).toContain("unknown diagnostic code 'bus-contension'");
   });

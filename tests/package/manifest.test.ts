@@ -42,9 +42,10 @@ describe('manifest', () => {
 
   it('declares the settings the client and server read', () => {
     expect(Object.keys(pkg.contributes.configuration.properties).sort()).toEqual(
-      ['phasewright.formats', 'phasewright.maxFileSizeKB', 'phasewright.outputFolder', 'phasewright.severity', 'phasewright.trace.server'].sort(),
+      ['phasewright.formats', 'phasewright.maxFileSizeKB', 'phasewright.outputFolder', 'phasewright.proofs.enabled', 'phasewright.severity', 'phasewright.trace.server'].sort(),
     );
     expect(pkg.contributes.configuration.properties['phasewright.formats'].items.enum).toEqual(['ihex', 'srec', 'bin', 'memh', 'list']);
+    expect(pkg.contributes.configuration.properties['phasewright.proofs.enabled']).toMatchObject({ type: 'boolean', default: true });
   });
 });
 
@@ -55,7 +56,7 @@ describe('$phasewright problem matcher', () => {
   it('reads every diagnostic line of phasewright check, and no note line', () => {
     let output = '';
     try {
-      execFileSync(process.execPath, [join(root, 'dist/cli.js'), 'check', 'examples/faults/bus-contention.pwt', 'examples/faults/unused-name.pwt'], { cwd: root, encoding: 'utf8' });
+      execFileSync(process.execPath, [join(root, 'dist/cli.js'), 'check', '--no-proof', 'examples/faults/bus-contention.pwt', 'examples/faults/unused-name.pwt'], { cwd: root, encoding: 'utf8' });
     } catch (err) {
       output = (err as { stdout: string }).stdout;
     }

@@ -19,7 +19,7 @@ describe('npm run package:vsix', () => {
     if (!haveTools(['unzip'], 'unzip')) return;
     const output = execFileSync('npm', ['run', 'package:vsix'], { cwd: root, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
     // vsce reports the file count and size of what it packed.
-    expect(output).toMatch(/DONE {2}Packaged: .*phasewright-0\.1\.0\.vsix \(21 files, [\d.]+ (KB|MB)\)/);
+    expect(output).toMatch(/DONE {2}Packaged: .*phasewright-0\.1\.0\.vsix \(22 files, [\d.]+ (KB|MB)\)/);
     expect(existsSync(vsix)).toBe(true);
     const names = execFileSync('unzip', ['-Z1', vsix], { encoding: 'utf8' }).trim().split('\n').sort();
     expect(names).toEqual(
@@ -31,6 +31,7 @@ describe('npm run package:vsix', () => {
         'extension/dist/client.js',
         'extension/dist/debug.js',
         'extension/dist/server.js',
+        'extension/dist/proofWorker.js',
         'extension/dist/z3/LICENSE.txt',
         'extension/dist/z3/solver.js',
         'extension/dist/z3/z3-built.js',

@@ -2,12 +2,16 @@
 // edits is analysed once, after the last one. When the timer fires the current version is
 // analysed and published with its version number. Versions only go up: a version older than
 // one already published is never sent, and a closed document's diagnostics are cleared.
+// A version without errors is then proved in the background (proofs.ts); when its proof
+// arrives and the document is still at that version, the version is published again with the
+// proof's diagnostics added.
 import { type Connection, type Diagnostic as LspDiagnostic, DiagnosticSeverity, DiagnosticTag } from 'vscode-languageserver';
 import type { Analysis } from '../core/analysis';
 import type { Diagnostic } from '../core/text/diagnostic';
 import { toRange } from './convert';
 import type { DocumentState, DocumentStore } from './documents';
 import { describeError } from './guard';
+import type { ProofService } from './proofs';
 
 const severities = { error: DiagnosticSeverity.Error, warning: DiagnosticSeverity.Warning, info: DiagnosticSeverity.Information } as const;
 
@@ -58,7 +62,13 @@ export class DiagnosticsPublisher {
     /** Resolves once the first settings are known, so nothing is published with defaults first. */
     private readonly ready: Promise<void>,
     private readonly debounceMillis: number,
+    private readonly proofs?: { readonly service: ProofService; readonly enabled: () => boolean },
   ) {}
+
+  /** A proof of `version` arrived: publish it if the document is still there and at that version. */
+  proved(uri: string, version: number): void {
+    if (this.store.documents.get(uri)?.version === version) void this.run(uri);
+  }
 
   schedule(uri: string, delay = this.debounceMillis): void {
     const pending = this.timers.get(uri);
@@ -96,7 +106,13 @@ export class DiagnosticsPublisher {
       const last = this.published.get(uri);
       if (last !== undefined && last > version) return;
       this.published.set(uri, version);
-      await this.connection.sendDiagnostics({ uri, version, diagnostics: diagnosticsOf(state, uri) });
+      const diagnostics = diagnosticsOf(state, uri);
+      if (this.proofs?.enabled() && state.kind === 'analysed' && state.analysis.counts.error === 0) {
+        const proof = this.proofs.service.proofOf(uri, version);
+        if (proof) diagnostics.push(...proof.diagnostics.map((d) => toLspDiagnostic(state.analysis, uri, d)));
+        else this.proofs.service.prove(uri, version, state.analysis.text, this.store.currentSettings.severities);
+      }
+      await this.connection.sendDiagnostics({ uri, version, diagnostics });
     } catch (err) {
       this.connection.console.error(`phasewright: publishing diagnostics for ${uri} failed (please report it): ${describeError(err)}`);
     }

@@ -25,6 +25,7 @@ import {
 } from 'vscode-languageserver';
 import type { Analysis } from '../core/analysis';
 import { classLenses } from '../core/ide/codeLens';
+import type { DocumentProof } from '../core/ide/proofView';
 import { quickFixes } from '../core/ide/codeActions';
 import { type CompletionKind, complete } from '../core/ide/completion';
 import { foldingRanges } from '../core/ide/folding';
@@ -93,14 +94,19 @@ function toLspEdits(analysis: Analysis, edits: readonly CoreEdit[]): TextEdit[] 
   return edits.map((e) => ({ range: toRange(analysis.lines, e.span), newText: e.newText }));
 }
 
-export function registerFeatures(connection: Connection, store: DocumentStore, options: { testHooks: boolean; workspaceFolders?: () => readonly string[] }): void {
+export function registerFeatures(connection: Connection, store: DocumentStore, options: { testHooks: boolean; workspaceFolders?: () => readonly string[]; proofOf?: (uri: string, version: number) => DocumentProof | undefined }): void {
   const analysisOf = (uri: string) => store.analysisOf(uri);
+  /** The finished proof of the document's current version, if any. */
+  const proofOf = (uri: string) => {
+    const state = store.stateOf(uri);
+    return state && options.proofOf?.(uri, state.version);
+  };
 
   connection.onHover(
     guarded(connection, 'hover', () => null, (params) => {
       const analysis = analysisOf(params.textDocument.uri);
       if (!analysis) return null;
-      const result = hover(analysis, toOffset(analysis.lines, params.position));
+      const result = hover(analysis, toOffset(analysis.lines, params.position), proofOf(params.textDocument.uri));
       return result ? { contents: { kind: MarkupKind.Markdown, value: result.markdown }, range: toRange(analysis.lines, result.span) } : null;
     }),
   );
@@ -268,7 +274,7 @@ export function registerFeatures(connection: Connection, store: DocumentStore, o
     guarded(connection, 'codeLens', () => [] as CodeLens[], (params) => {
       const analysis = analysisOf(params.textDocument.uri);
       if (!analysis) return [];
-      return classLenses(analysis).map((lens) => ({ range: toRange(analysis.lines, lens.span), command: { title: lens.title, command: '' } }));
+      return classLenses(analysis, proofOf(params.textDocument.uri)).map((lens) => ({ range: toRange(analysis.lines, lens.span), command: { title: lens.title, command: '' } }));
     }),
   );
 

@@ -21,6 +21,7 @@ import {
 import { commandIds, registerCommand } from './commands';
 import { DiagnosticsPublisher } from './diagnostics';
 import { DocumentStore } from './documents';
+import { ProofService } from './proofs';
 import { registerEditorCommands } from './editorCommands';
 import { registerRunCommand } from './runCommand';
 import { registerFeatures, semanticTokensLegend } from './features';
@@ -93,7 +94,17 @@ export function startServer(options: ServerOptions = {}): Connection {
   let capabilities: ClientCapabilities = {};
   let settingsLoaded!: () => void;
   const ready = new Promise<void>((resolve) => (settingsLoaded = resolve));
-  const publisher = new DiagnosticsPublisher(connection, store, ready, options.debounceMillis ?? 4);
+  // Proofs run in a child process; a finished proof republishes its version and refreshes the lenses.
+  let publisher!: DiagnosticsPublisher;
+  const proofs = new ProofService(
+    (uri, version) => {
+      publisher.proved(uri, version);
+      if (capabilities.workspace?.codeLens?.refreshSupport) void connection.sendRequest('workspace/codeLens/refresh').catch(() => undefined);
+    },
+    (message) => connection.console.log(message),
+  );
+  publisher = new DiagnosticsPublisher(connection, store, ready, options.debounceMillis ?? 4, { service: proofs, enabled: () => store.currentSettings.proofs });
+  process.on('exit', () => proofs.dispose());
 
   if (testHooks) {
     registerCommand('phasewright._testEcho', (args) => ({ echo: args }));
@@ -106,7 +117,10 @@ export function startServer(options: ServerOptions = {}): Connection {
     for (const problem of problems) connection.console.warn(`phasewright: ${problem}`);
     const before = JSON.stringify(store.currentSettings);
     store.updateSettings(settings);
-    if (JSON.stringify(settings) !== before) publisher.scheduleAll();
+    if (JSON.stringify(settings) !== before) {
+      proofs.forgetAll();
+      publisher.scheduleAll();
+    }
   };
 
   const pullSettings = async (): Promise<void> => {
@@ -174,6 +188,7 @@ export function startServer(options: ServerOptions = {}): Connection {
   });
   store.documents.onDidClose((event) => {
     store.forget(event.document.uri);
+    proofs.forget(event.document.uri);
     publisher.closed(event.document.uri);
   });
 
@@ -181,7 +196,7 @@ export function startServer(options: ServerOptions = {}): Connection {
     'workspace/didChangeWorkspaceFolders',
     guardedNotification(connection, 'didChangeWorkspaceFolders', (params: { event: Parameters<WorkspaceFolders['change']>[0] }) => workspaceFolders.change(params.event)),
   );
-  registerFeatures(connection, store, { testHooks, workspaceFolders: () => workspaceFolders.list() });
+  registerFeatures(connection, store, { testHooks, workspaceFolders: () => workspaceFolders.list(), proofOf: (uri, version) => (store.currentSettings.proofs ? proofs.proofOf(uri, version) : undefined) });
   store.documents.listen(connection);
   connection.listen();
   return connection;

@@ -1,5 +1,6 @@
 // The server's settings: `phasewright.severity` (diagnostic code -> error | warning | info |
-// off) and `phasewright.maxFileSizeKB`. Read through the same severity-table reader as the
+// off), `phasewright.maxFileSizeKB` and `phasewright.proofs.enabled` (prove each version without
+// errors in the background; on by default). Read through the same severity-table reader as the
 // CLI's --config file; entries that cannot be used are skipped and reported in the log rather
 // than rejecting the whole table, so a typo in one code does not switch all settings off.
 import type { SeverityConfig } from '../core/analysis';
@@ -9,12 +10,14 @@ export interface ServerSettings {
   severities: SeverityConfig;
   /** Files larger than this many kilobytes (UTF-8) are not analysed. */
   maxFileSizeKB: number;
+  /** Prove each document version without errors in the background (lsp/proofs.ts). */
+  proofs: boolean;
 }
 
 export const defaultMaxFileSizeKB = 5120;
 
 export function defaultSettings(): ServerSettings {
-  return { severities: {}, maxFileSizeKB: defaultMaxFileSizeKB };
+  return { severities: {}, maxFileSizeKB: defaultMaxFileSizeKB, proofs: true };
 }
 
 /** Reads the `phasewright` settings section as a client sends it; returns the problems found too. */
@@ -31,6 +34,13 @@ export function readSettings(section: unknown): { settings: ServerSettings; prob
   if (size !== undefined && size !== null) {
     if (typeof size === 'number' && Number.isFinite(size) && size > 0) settings.maxFileSizeKB = size;
     else problems.push(`phasewright.maxFileSizeKB must be a positive number of kilobytes, not ${JSON.stringify(size)}; using ${defaultMaxFileSizeKB}`);
+  }
+  // VS Code hands dotted settings over as nested objects (`proofs: { enabled }`); other clients may send the dotted key.
+  const proofs = values.proofs as Record<string, unknown> | undefined;
+  const enabled = proofs && typeof proofs === 'object' ? proofs.enabled : values['proofs.enabled'];
+  if (enabled !== undefined && enabled !== null) {
+    if (typeof enabled === 'boolean') settings.proofs = enabled;
+    else problems.push(`phasewright.proofs.enabled must be true or false, not ${JSON.stringify(enabled)}; proofs stay on`);
   }
   return { settings, problems };
 }

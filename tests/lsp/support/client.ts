@@ -66,6 +66,14 @@ export async function ensureBuilt(): Promise<void> {
   }
 }
 
+/**
+ * The settings with background proofs off unless the test sets `proofs` itself: most tests are
+ * about structural diagnostics, and a proof's second publication of a version would race them.
+ */
+function withoutProofs(settings: Record<string, unknown>): Record<string, unknown> {
+  return 'proofs' in settings ? settings : { proofs: { enabled: false }, ...settings };
+}
+
 export interface StartOptions {
   /** The `phasewright` settings section the client hands out. */
   settings?: Record<string, unknown>;
@@ -94,7 +102,7 @@ export class LspClient {
     readonly connection: ProtocolConnection,
     private readonly options: StartOptions,
   ) {
-    this.settings = options.settings ?? {};
+    this.settings = withoutProofs(options.settings ?? {});
   }
 
   static async start(options: StartOptions = {}): Promise<LspClient> {
@@ -145,7 +153,7 @@ export class LspClient {
 
   /** Changes the settings and tells the server, which pulls them again. */
   async changeSettings(settings: Record<string, unknown>): Promise<void> {
-    this.settings = settings;
+    this.settings = withoutProofs(settings);
     await this.connection.sendNotification(DidChangeConfigurationNotification.type, { settings: this.options.configuration === false ? { phasewright: settings } : null });
   }
 

@@ -3,6 +3,7 @@
 // step lines (the words they put in the ROMs), classes (the RV32I instructions they run),
 // buses (who drives and loads them, step by step), parts, flags, maps, phases, stores, and the
 // notation's keywords. Pure: it reads an analysis and returns text with the span it explains.
+import { proofHoverLines, type DocumentProof } from './proofView';
 import { sequencerMove } from '../model/sequencing';
 import { type CodeInfo, codeInfo } from '../checks/catalogue';
 import { budgetOf, type LineLoad } from '../budget/budget';
@@ -44,11 +45,11 @@ const maxListed = 12;
 /** Longest step-by-step list in a bus hover. */
 const maxBusSteps = 24;
 
-export function hover(analysis: Analysis, offset: number): HoverResult | undefined {
+export function hover(analysis: Analysis, offset: number, proof?: DocumentProof): HoverResult | undefined {
   const machine = analysis.machine;
   const occurrence = occurrenceAt(analysis, offset);
   if (occurrence) {
-    const markdown = occurrence.symbol.kind === 'kind' ? kindHover(analysis, occurrence.symbol) : hoverSymbol(machine, occurrence.symbol);
+    const markdown = occurrence.symbol.kind === 'kind' ? kindHover(analysis, occurrence.symbol) : hoverSymbol(machine, occurrence.symbol, proof);
     if (markdown) return { markdown, span: occurrence.span };
   }
   const step = writtenStepAt(machine, offset);
@@ -61,7 +62,7 @@ export function hover(analysis: Analysis, offset: number): HoverResult | undefin
   return undefined;
 }
 
-function hoverSymbol(machine: Machine, symbol: SymbolInfo): string | undefined {
+function hoverSymbol(machine: Machine, symbol: SymbolInfo, proof?: DocumentProof): string | undefined {
   switch (symbol.kind) {
     case 'strobe': {
       const signal = machine.signals.get(symbol.name);
@@ -99,7 +100,7 @@ function hoverSymbol(machine: Machine, symbol: SymbolInfo): string | undefined {
     }
     case 'class': {
       const cls = machine.classes.find((c) => c.symbol === symbol);
-      return cls ? classHover(machine, cls) : undefined;
+      return cls ? classHover(machine, cls, proof) : undefined;
     }
     case 'store': {
       const store = machine.stores.find((s) => s.symbol === symbol);
@@ -365,7 +366,7 @@ function phaseHover(machine: Machine, phase: Phase): string {
   return lines.join('\n');
 }
 
-function classHover(machine: Machine, cls: ClassDef): string {
+function classHover(machine: Machine, cls: ClassDef, proof?: DocumentProof): string {
   const lines = [header('class', cls.name, cls.description), ''];
   const major = cls.opcode !== undefined ? majorOpcodeOf(cls.opcode) : undefined;
   if (cls.opcode === undefined) lines.push('- **opcode** none: no instruction selects this class');
@@ -379,6 +380,7 @@ function classHover(machine: Machine, cls: ClassDef): string {
   for (const alts of cls.steps.values()) for (const alt of alts) if (alt.phase && !phases.has(alt.phase.name)) phases.set(alt.phase.name, alt.step);
   if (phases.size) lines.push(`- **phases** ${[...phases].map(([name, at]) => `\`${name}\` from step ${at}`).join(', ')}`);
   lines.push(...cyclesLines(machine, cls));
+  lines.push(...proofHoverLines(cls, proof));
   return lines.join('\n');
 }
 

@@ -4,4 +4,4 @@
 export { cannotProve, decideObligations, describeCounterexample, obligationsOf, proveInstruction, proveMachine, type BoundedPath, type Counterexample, type InstructionResult, type Obligation, type Unrolled, type Verdict } from './prove';
 export { proofPlan, WALK_LIMITS, type WalkLimits } from './execute';
 export { readSolverOutput, smtScript, type Solver, type SolverReply } from './smtlib';
-export { proveTable, proofCounts, newProofCache, PROOF_SCOPE, type ProofCache, type TableProof } from './proveTable';
+export { proveTable, proofCounts, newProofCache, summarise, PROOF_SCOPE, type ProofCache, type TableProof, type VerdictSummary } from './proveTable';

@@ -119,7 +119,7 @@ export function proofDiagnostics(machine: Machine, plan: SimPlan, results: reado
       code: 'proof-refuted',
       severity: 'error',
       span: g.blame.span,
-      message: `${list(names)} ${names.length === 1 ? 'does' : 'do'} not do what RV32I specifies; the proof implicates this ${g.blame.what}. Counterexample for ${names[0]} (${g.description}):\n${lines.join('\n')}`,
+      message: `${list(names)} ${names.length === 1 ? 'does' : 'do'} not do what RV32I specifies; the proof implicates this ${g.blame.what}. Counterexample for ${names[0]} (${g.description}): ${lines.join("; ")}`,
       related,
     });
   }

@@ -92,3 +92,22 @@ export function proofCounts(results: readonly InstructionResult[]): { proved: nu
   const n = (k: Verdict['kind']) => results.filter((r) => r.verdict.kind === k).length;
   return { proved: n('proved'), refuted: n('refuted'), unknown: n('unknown') };
 }
+
+/** One instruction's verdict as the editor shows it (plain data: it crosses from the proof worker). */
+export interface VerdictSummary {
+  readonly mnemonic: string;
+  readonly kind: Verdict['kind'];
+  readonly milliseconds: number;
+  /** Why it is unknown, or which case refutes it. */
+  readonly detail?: string;
+}
+
+export function summarise(results: readonly InstructionResult[]): VerdictSummary[] {
+  return results.map((r) => ({
+    mnemonic: r.mnemonic,
+    kind: r.verdict.kind,
+    milliseconds: r.milliseconds,
+    ...(r.verdict.kind === 'unknown' && { detail: r.verdict.reason }),
+    ...(r.verdict.kind === 'refuted' && { detail: r.verdict.description }),
+  }));
+}
