@@ -355,7 +355,7 @@ export const catalogue: CodeInfo[] = [
     code: 'proof-incomplete',
     severity: 'warning',
     title: 'the table\'s meaning could not be proved',
-    explanation: 'Either the prover does not follow this machine (the message says what: for example more than one control store), or an instruction was neither proved nor refuted (a path longer than the walk\'s bound of steps, too many paths, or a solver that could not decide). Nothing is wrong with the table for that reason, but nothing is proved about the instructions named: test them by running programs (`phasewright run`) before burning the store. `phasewright prove FILE` says the reason per instruction.',
+    explanation: 'Either the prover does not follow this machine (the message says what: for example more than one control store; a table that is not a whole processor, with no program counter, instruction register, memory or register file, gets a note with this code instead of a warning), or an instruction was neither proved nor refuted (a path longer than the walk\'s bound of steps, too many paths, or a solver that could not decide). Nothing is wrong with the table for that reason, but nothing is proved about the instructions named: test them by running programs (`phasewright run`) before burning the store. `phasewright prove FILE` says the reason per instruction.',
   },
 ];
 
