@@ -134,8 +134,12 @@ describe('severity settings', () => {
   });
 
   it('reads the server settings section with defaults', () => {
-    expect(readSettings(undefined)).toEqual({ settings: { severities: {}, maxFileSizeKB: 5120 }, problems: [] });
-    expect(readSettings({ severity: { 'step-gap': 'info' }, maxFileSizeKB: 64 })).toEqual({ settings: { severities: { 'step-gap': 'info' }, maxFileSizeKB: 64 }, problems: [] });
+    expect(readSettings(undefined)).toEqual({ settings: { severities: {}, maxFileSizeKB: 5120, proofs: true }, problems: [] });
+    expect(readSettings({ severity: { 'step-gap': 'info' }, maxFileSizeKB: 64 })).toEqual({ settings: { severities: { 'step-gap': 'info' }, maxFileSizeKB: 64, proofs: true }, problems: [] });
+    // `phasewright.proofs.enabled` arrives nested from VS Code, dotted from some other clients.
+    expect(readSettings({ proofs: { enabled: false } }).settings.proofs).toBe(false);
+    expect(readSettings({ 'proofs.enabled': false }).settings.proofs).toBe(false);
+    expect(readSettings({ proofs: { enabled: 'no' } }).problems).toEqual(['phasewright.proofs.enabled must be true or false, not "no"; proofs stay on']);
     const bad = readSettings({ maxFileSizeKB: -3, severity: 7 });
     expect(bad.settings.maxFileSizeKB).toBe(5120);
     expect(bad.problems).toEqual(['phasewright.severity must be an object of code: level', 'phasewright.maxFileSizeKB must be a positive number of kilobytes, not -3; using 5120']);
