@@ -11,6 +11,7 @@ import { LogicInputError, LogicInvariantError } from './errors';
 import { PrimePool, espresso } from './espresso';
 import { solveUnateCover } from './unateCover';
 import { MAX_EXACT_INPUTS, MAX_QM_INPUTS, minimiseExact } from './qm';
+import { complementNeedsAtLeast } from './polarityBound';
 import { type ProductTerm, type TruthTable, checkTable, validBitsOfWord, verifyCover, wordsFor } from './truthTable';
 
 export interface MinimiseOptions {
@@ -385,9 +386,13 @@ export function minimise(table: TruthTable, options: MinimiseOptions = {}): Mini
     const bound: TimeBound = { timeUp: () => clock() >= deadline, stopped: { early: false } };
     const positive = minimiseSingle(f, method, bound);
     let chosen = { outputIndex, inverted: false, result: positive, stopped: bound.stopped.early };
+    // The complement is kept only with fewer terms; a lower bound on its cover (polarityBound.ts)
+    // spares minimising it where it cannot win, which is most control outputs.
     if (polarity === 'best' && !bound.timeUp()) {
-      const negative = minimiseSingle(complementFunction(f), method, bound);
-      if (negative.terms.length < positive.terms.length) chosen = { outputIndex, inverted: true, result: negative, stopped: bound.stopped.early };
+      if (!complementNeedsAtLeast(f, positive.terms.length)) {
+        const negative = minimiseSingle(complementFunction(f), method, bound);
+        if (negative.terms.length < positive.terms.length) chosen = { outputIndex, inverted: true, result: negative, stopped: bound.stopped.early };
+      }
     } else if (polarity === 'best') chosen.stopped = true;
     options.onProgress?.(k + 1, selected.length, output.name);
     return chosen;
