@@ -251,7 +251,7 @@ function effectCheck(T: Terms, effect: Effect, start: Start, path: MachinePath, 
       const byte = (v: bigint) => `0x${v.toString(16).padStart(2, '0')}`;
       differences.push({ what: 'memory', where: address, expected: byte(ev(mWant)), obtained: byte(ev(mGot)), by: writer ? `step ${writer.step}, ${writer.strobe}` : 'no step wrote it', ...(writer && { writer: { step: writer.step!, strobe: writer.strobe! } }) });
     }
-    return concreteStart(start, path, ev, differences);
+    return concreteStart(start, path, ev, differences, { x: probeX, m: probeM });
   };
   return { path, description, wrong: T.not(holds), why: 'machine effect differs from the RV32I semantics', explain };
 }
@@ -265,15 +265,24 @@ function faultCheck(T: Terms, spec: InstructionSpec, start: Start, path: Machine
   return { path, description, wrong: T.true, why, explain };
 }
 
-function concreteStart(start: Start, path: MachinePath, ev: (t: Term) => bigint, differences: Counterexample['differences'][number][]): Counterexample {
+/**
+ * The counterexample's start in numbers. The probes (the index where the register file and the
+ * memory are compared) read the start too; what they read is listed only when it is where the
+ * difference lies, so "memory before" names bytes the machine or the instruction read.
+ */
+function concreteStart(start: Start, path: MachinePath, ev: (t: Term) => bigint, differences: Counterexample['differences'][number][], probes: { x?: Term; m?: Term } = {}): Counterexample {
   const pc = Number(ev(start.pc));
+  const skipX = differences.some((d) => d.what === 'register') ? undefined : probes.x;
+  const skipM = differences.some((d) => d.what === 'memory') ? undefined : probes.m;
   const registers = new Map<number, number>();
   for (const { index } of start.registers.unknowns()) {
+    if (index === skipX) continue;
     const i = Number(ev(index));
     if (i !== 0 && !registers.has(i)) registers.set(i, Number(ev(start.registers.read(index))));
   }
   const memory = new Map<number, number>();
   for (const { index } of start.memory.unknowns()) {
+    if (index === skipM) continue;
     const a = Number(ev(index));
     if (((a - pc) >>> 0) < 4 || memory.has(a)) continue;
     memory.set(a, Number(ev(start.memory.read(index))));
