@@ -6,6 +6,7 @@ import { analyse, applySeverities, type Analysis } from '../../core/analysis';
 import { proveTable } from '../../core/prove';
 import type { Diagnostic } from '../../core/text/diagnostic';
 import { SOLVER_CHOICES, type SolverChoice, solverFor } from '../solvers';
+import { type Progress, progressLine } from '../progress';
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { loadSeverityConfig } from '../config';
@@ -58,7 +59,7 @@ export const checkCommand = defineCommand({
         continue;
       }
       const structural = analyse(source.text, { severities: config.severities });
-      const analysis = proving && structural.counts.error === 0 ? await withProof(structural, solverFor(solverOption as SolverChoice), config.severities) : structural;
+      const analysis = proving && structural.counts.error === 0 ? await withProof(structural, solverFor(solverOption as SolverChoice), config.severities, progressLine(io, `proving ${file}`)) : structural;
       // The counts include what the cap left out, so a flooded file still says how bad it is.
       const { error: fileErrors, warning: warnings, info } = analysis.counts;
       totals.errors += fileErrors;
@@ -80,8 +81,10 @@ export const checkCommand = defineCommand({
 });
 
 /** The analysis with the proof's diagnostics added (at the configured severities), sorted and counted as analyse does. */
-async function withProof(analysis: Analysis, solver: ReturnType<typeof solverFor>, severities: Parameters<typeof applySeverities>[1]): Promise<Analysis> {
-  const proof = await proveTable(analysis.machine, solver);
+async function withProof(analysis: Analysis, solver: ReturnType<typeof solverFor>, severities: Parameters<typeof applySeverities>[1], progress: Progress): Promise<Analysis> {
+  // On a terminal, a progress line names the instruction being proved (a large machine takes seconds).
+  const proof = await proveTable(analysis.machine, solver, { onProgress: (done, total, mnemonic) => progress.update(done, total, mnemonic) });
+  progress.finish();
   const added: Diagnostic[] = applySeverities(proof?.diagnostics ?? [], severities);
   if (!added.length) return analysis;
   const diagnostics = [...analysis.diagnostics, ...added].sort((a, b) => a.span.start - b.span.start);

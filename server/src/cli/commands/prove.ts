@@ -6,7 +6,7 @@
 import { basename, resolve } from 'node:path';
 import { analyse } from '../../core/analysis';
 import { RV32I_INSTRUCTIONS, instructionByMnemonic } from '../../core/isa/rv32i';
-import { PROOF_SCOPE, cannotProve, describeCounterexample, obligationsOf, proofPlan, proveMachine } from '../../core/prove';
+import { PROOF_SCOPE, cannotProve, describeCounterexample, obligationsOf, proofPlan, proveMachine, type InstructionResult } from '../../core/prove';
 import { parseArgs } from '../args';
 import { defineCommand } from '../help';
 import { readSource } from '../readSource';
@@ -89,18 +89,20 @@ export const proveCommand = defineCommand({
       }
     }
     const solver = solverFor(solverOption as SolverChoice);
-    const results = await proveMachine(built.plan, solver, { only });
-    if (parsed.options.has('json')) {
+    const json = parsed.options.has('json');
+    // In text, each instruction's line is printed as soon as it is decided (a large machine takes seconds).
+    const printLine = (r: InstructionResult) => {
+      const v = r.verdict;
+      const paths = v.kind === 'proved' && v.paths ? ` over ${v.paths} paths` : '';
+      const loop = v.kind === 'proved' && v.unrolled ? `; loop unrolled up to ${v.unrolled.times} times (step ${v.unrolled.step})` : '';
+      const detail = v.kind === 'proved' ? (v.obligations ? `${v.obligations} obligation${v.obligations > 1 ? 's' : ''}${paths}${loop}` : 'traps to the environment on every path') : v.kind === 'unknown' ? v.reason : v.description;
+      io.out(`${r.mnemonic.padEnd(6)} ${v.kind.padEnd(8)} ${String(r.milliseconds).padStart(6)} ms  ${detail}\n`);
+      if (v.kind === 'refuted') io.out(describeCounterexample(v.counterexample).join('\n') + '\n');
+    };
+    const results = await proveMachine(built.plan, solver, { only, ...(!json && { onResult: printLine }) });
+    if (json) {
       io.out(JSON.stringify({ file, solver: solver.name, scope: PROOF_SCOPE, results }, null, 2) + '\n');
     } else {
-      for (const r of results) {
-        const v = r.verdict;
-        const paths = v.kind === 'proved' && v.paths ? ` over ${v.paths} paths` : '';
-        const loop = v.kind === 'proved' && v.unrolled ? `; loop unrolled up to ${v.unrolled.times} times (step ${v.unrolled.step})` : '';
-        const detail = v.kind === 'proved' ? (v.obligations ? `${v.obligations} obligation${v.obligations > 1 ? 's' : ''}${paths}${loop}` : 'traps to the environment on every path') : v.kind === 'unknown' ? v.reason : v.description;
-        io.out(`${r.mnemonic.padEnd(6)} ${v.kind.padEnd(8)} ${String(r.milliseconds).padStart(6)} ms  ${detail}\n`);
-        if (v.kind === 'refuted') io.out(describeCounterexample(v.counterexample).join('\n') + '\n');
-      }
       const count = (k: string) => results.filter((r) => r.verdict.kind === k).length;
       io.out(`${file}: ${count('proved')} proved, ${count('refuted')} refuted, ${count('unknown')} unknown of ${results.length}\n`);
       io.out(`scope: ${PROOF_SCOPE}\n`);

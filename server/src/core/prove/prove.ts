@@ -324,7 +324,7 @@ export async function decideObligations(built: ReturnType<typeof obligationsOf>,
 }
 
 /** Proves each instruction (all 40, or those named), in the order of rv32i.ts. */
-export async function proveMachine(plan: SimPlan, solver: Solver, options: { only?: readonly string[]; now?: () => number } = {}): Promise<InstructionResult[]> {
+export async function proveMachine(plan: SimPlan, solver: Solver, options: { only?: readonly string[]; now?: () => number; onResult?: (result: InstructionResult) => void } = {}): Promise<InstructionResult[]> {
   const now = options.now ?? (() => Date.now());
   const previous = previousInstructionPatterns(plan);
   const results: InstructionResult[] = [];
@@ -338,6 +338,7 @@ export async function proveMachine(plan: SimPlan, solver: Solver, options: { onl
       verdict = { kind: 'unknown', reason: `the prover failed: ${(e as Error).message}` };
     }
     results.push({ mnemonic: spec.mnemonic, verdict, milliseconds: now() - t0 });
+    options.onResult?.(results[results.length - 1]);
   }
   return results;
 }

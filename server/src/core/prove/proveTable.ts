@@ -43,6 +43,8 @@ export interface ProveTableOptions {
   readonly now?: () => number;
   /** Only these mnemonics (the CLI's --instruction); all 40 by default. */
   readonly only?: readonly string[];
+  /** Called before each instruction: how many are done of how many, and the next one's mnemonic. */
+  readonly onProgress?: (done: number, total: number, mnemonic: string) => void;
 }
 
 /**
@@ -60,9 +62,10 @@ export async function proveTable(machine: Machine, solver: Solver, options: Prov
   const plan = built.plan;
   const previous = previousInstructionPatterns(plan);
   const results: (InstructionResult & { reused?: boolean })[] = [];
-  for (const spec of RV32I_INSTRUCTIONS) {
-    if (options.only && !options.only.includes(spec.mnemonic)) continue;
+  const specs = RV32I_INSTRUCTIONS.filter((s) => !options.only || options.only.includes(s.mnemonic));
+  for (const spec of specs) {
     if (options.cancelled?.()) return undefined;
+    options.onProgress?.(results.length, specs.length, spec.mnemonic);
     const t0 = now();
     let verdict: Verdict;
     let reused = false;
